@@ -1,0 +1,82 @@
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import cookieParser from 'cookie-parser';
+import express, { type Express } from 'express';
+import helmet from 'helmet';
+import { createAuthenticate } from './lib/authenticate.ts';
+import type { Deps } from './lib/deps.ts';
+import { createErrorHandler } from './lib/error-handler.ts';
+import { notFound } from './lib/errors.ts';
+import { mountRoutes, type RouteDef } from './lib/routes.ts';
+import { auditRoutes } from './modules/audit/routes.ts';
+import { authRoutes } from './modules/auth/routes.ts';
+import { campaignRoutes } from './modules/campaigns/routes.ts';
+import { healthRoutes } from './modules/health/routes.ts';
+import { invitationRoutes } from './modules/invitations/routes.ts';
+import { labRoutes } from './modules/labs/routes.ts';
+import { libraryRoutes } from './modules/library/routes.ts';
+import { outboxRoutes } from './modules/outbox/routes.ts';
+import { shotRoutes } from './modules/shots/routes.ts';
+import { tokenRoutes } from './modules/tokens/routes.ts';
+
+/** Every API route, in one list: the server mounts it, the authorization-matrix test checks it row by row. */
+export function allRoutes(deps: Deps): RouteDef[] {
+  return [
+    ...healthRoutes(deps),
+    ...authRoutes(deps),
+    ...tokenRoutes(),
+    ...labRoutes(),
+    ...invitationRoutes(deps),
+    ...outboxRoutes(deps),
+    ...campaignRoutes(),
+    ...libraryRoutes(),
+    ...shotRoutes(),
+    ...auditRoutes(),
+  ];
+}
+
+/** Builds the Express app without listening, so tests can drive it with supertest. */
+export function buildApp(deps: Deps): Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          // uPlot and Tailwind set inline styles; scripts stay same-origin only.
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'upgrade-insecure-requests': deps.config.publicUrl.startsWith('https:') ? [] : null,
+        },
+      },
+      // Plain-HTTP loopback installs must not be told to insist on HTTPS.
+      strictTransportSecurity: deps.config.publicUrl.startsWith('https:'),
+    }),
+  );
+  app.use(cookieParser());
+  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', (req, res, next) => {
+    const started = process.hrtime.bigint();
+    res.on('finish', () => {
+      const ms = Number(process.hrtime.bigint() - started) / 1e6;
+      deps.logger.info({ method: req.method, url: req.originalUrl, status: res.statusCode, ms: Math.round(ms * 10) / 10 }, 'request');
+    });
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
+  app.use('/api', createAuthenticate({ jwtSecret: deps.config.jwtSecret, redis: deps.redis }));
+
+  const router = express.Router();
+  mountRoutes(router, allRoutes(deps));
+  app.use(router);
+  app.use('/api', (_req, _res, next) => next(notFound('No such API route.')));
+
+  const clientDir = path.resolve(deps.config.clientDir);
+  if (existsSync(path.join(clientDir, 'index.html'))) {
+    app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => res.sendFile(path.join(clientDir, 'index.html')));
+  }
+  app.use(createErrorHandler(deps.logger));
+  return app;
+}

@@ -1,0 +1,80 @@
+import { z } from 'zod';
+
+/**
+ * Every setting the API server and the worker read, checked once at start-up. Each key has a default for
+ * development and an environment variable; a bad value stops the process with a message naming the variable.
+ */
+const schema = z.object({
+  nodeEnv: z.enum(['development', 'production', 'test']).default('development'),
+  port: z.coerce.number().int().min(0).max(65535).default(8640),
+  host: z.string().default('127.0.0.1'),
+  publicUrl: z.url().default('http://127.0.0.1:8640'),
+  databaseUrl: z.string().startsWith('postgres').default('postgres://postgres@127.0.0.1:5544/gatepost'),
+  redisUrl: z.string().startsWith('redis').default('redis://127.0.0.1:6391'),
+  dataDir: z.string().default('.data'),
+  jwtSecret: z.string().min(32, 'must be at least 32 characters').default('development-only-secret-change-me-0123456789'),
+  /** Browser session lifetime. */
+  sessionHours: z.coerce.number().positive().max(24 * 30).default(12),
+  smtpHost: z.string().default('127.0.0.1'),
+  smtpPort: z.coerce.number().int().min(1).max(65535).default(2526),
+  smtpSecure: z.stringbool().default(false),
+  smtpUser: z.string().optional(),
+  smtpPassword: z.string().optional(),
+  mailFrom: z.string().default('Gatepost <no-reply@gatepost.invalid>'),
+  /** "fake": mail goes to the local fake SMTP server and admins can read it in the app (development, tests). */
+  mailOutbox: z.enum(['fake', 'smtp']).default('fake'),
+  /** Failed sign-ins allowed per account (and per address) in one window before sign-in is refused. */
+  loginMaxFailures: z.coerce.number().int().min(1).default(5),
+  loginWindowSeconds: z.coerce.number().int().min(1).default(15 * 60),
+  logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  clientDir: z.string().default('dist/client'),
+});
+
+export type Config = z.infer<typeof schema>;
+
+const envNames: Record<keyof Config, string> = {
+  nodeEnv: 'NODE_ENV',
+  port: 'GATEPOST_PORT',
+  host: 'GATEPOST_HOST',
+  publicUrl: 'GATEPOST_PUBLIC_URL',
+  databaseUrl: 'GATEPOST_DATABASE_URL',
+  redisUrl: 'GATEPOST_REDIS_URL',
+  dataDir: 'GATEPOST_DATA_DIR',
+  jwtSecret: 'GATEPOST_JWT_SECRET',
+  sessionHours: 'GATEPOST_SESSION_HOURS',
+  smtpHost: 'GATEPOST_SMTP_HOST',
+  smtpPort: 'GATEPOST_SMTP_PORT',
+  smtpSecure: 'GATEPOST_SMTP_SECURE',
+  smtpUser: 'GATEPOST_SMTP_USER',
+  smtpPassword: 'GATEPOST_SMTP_PASSWORD',
+  mailFrom: 'GATEPOST_MAIL_FROM',
+  mailOutbox: 'GATEPOST_MAIL_OUTBOX',
+  loginMaxFailures: 'GATEPOST_LOGIN_MAX_FAILURES',
+  loginWindowSeconds: 'GATEPOST_LOGIN_WINDOW_SECONDS',
+  logLevel: 'GATEPOST_LOG_LEVEL',
+  clientDir: 'GATEPOST_CLIENT_DIR',
+};
+
+export class ConfigError extends Error {}
+
+/** Reads the configuration from `env`; `overrides` (tests) win over the environment. */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
+  const raw: Record<string, unknown> = {};
+  for (const [key, name] of Object.entries(envNames)) {
+    const value = env[name];
+    if (value !== undefined && value !== '') raw[key] = value;
+  }
+  const parsed = schema.safeParse({ ...raw, ...overrides });
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((issue) => {
+      const key = String(issue.path[0]) as keyof Config;
+      return `${envNames[key] ?? key}: ${issue.message}`;
+    });
+    throw new ConfigError(`Invalid configuration:\n  ${lines.join('\n  ')}`);
+  }
+  const config = parsed.data;
+  if (config.nodeEnv === 'production' && config.jwtSecret.startsWith('development-only')) {
+    throw new ConfigError('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
+  }
+  return config;
+}

@@ -1,0 +1,50 @@
+import { loadConfig } from '../config.ts';
+import { createMigrator, migrateUp } from './migrator.ts';
+import { seedDemo, demoAccounts } from './seeders/demo.ts';
+import { createSequelize } from './sequelize.ts';
+
+/**
+ * Database commands: `migrate` (apply pending migrations), `migrate:status`, `migrate:down` (undo the last one),
+ * `seed-demo` (the demo labs, only when absent). Usage: npm run db -- <command>
+ */
+async function main() {
+  const command = process.argv[2];
+  const config = loadConfig();
+  const sequelize = createSequelize(config.databaseUrl);
+  try {
+    switch (command) {
+      case 'migrate': {
+        const applied = await migrateUp(sequelize, config.databaseUrl);
+        console.log(applied.length ? `Applied ${applied.length} migration(s): ${applied.join(', ')}` : 'Database schema is up to date.');
+        break;
+      }
+      case 'migrate:status': {
+        const migrator = createMigrator(sequelize);
+        const [done, pending] = await Promise.all([migrator.executed(), migrator.pending()]);
+        for (const m of done) console.log(`applied  ${m.name}`);
+        for (const m of pending) console.log(`pending  ${m.name}`);
+        break;
+      }
+      case 'migrate:down': {
+        const undone = await createMigrator(sequelize).down();
+        console.log(undone.length ? `Undid ${undone.map((m) => m.name).join(', ')}` : 'Nothing to undo.');
+        break;
+      }
+      case 'seed-demo': {
+        const seeded = await seedDemo(sequelize);
+        console.log(seeded ? `Seeded the demo labs (${demoAccounts.length} accounts).` : 'Demo labs already present; left as they are.');
+        break;
+      }
+      default:
+        console.error('Usage: npm run db -- migrate | migrate:status | migrate:down | seed-demo');
+        process.exitCode = 2;
+    }
+  } catch (err) {
+    console.error(`Database command "${command}" failed: ${(err as Error).message}`);
+    process.exitCode = 1;
+  } finally {
+    await sequelize.close();
+  }
+}
+
+void main();

@@ -1,0 +1,40 @@
+import { readdirSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+import { Umzug, SequelizeStorage } from 'umzug';
+import type { Sequelize } from 'sequelize';
+import pg from 'pg';
+
+const migrationsDir = path.join(path.dirname(fileURLToPath(import.meta.url)), 'migrations');
+
+/** Migrations are the only way the schema changes: files `migrations/NNNN-name.ts`, applied in name order. */
+export function createMigrator(sequelize: Sequelize) {
+  const files = readdirSync(migrationsDir).filter((f) => /^\d{4}-.+\.ts$/.test(f)).sort();
+  return new Umzug({
+    migrations: files.map((file) => ({
+      name: file.replace(/\.ts$/, ''),
+      up: async ({ context }: { context: Sequelize }) => (await import(pathToFileURL(path.join(migrationsDir, file)).href)).up({ context, name: file, path: file }),
+      down: async ({ context }: { context: Sequelize }) => (await import(pathToFileURL(path.join(migrationsDir, file)).href)).down({ context, name: file, path: file }),
+    })),
+    context: sequelize,
+    storage: new SequelizeStorage({ sequelize, tableName: 'schema_migrations' }),
+    logger: undefined,
+  });
+}
+
+/**
+ * Applies pending migrations while holding a PostgreSQL advisory lock, so two processes starting at once do not
+ * race. The lock lives on its own connection: a session lock taken through the pool could be released on another.
+ */
+export async function migrateUp(sequelize: Sequelize, databaseUrl: string): Promise<string[]> {
+  const lockId = 0x6761_7465; // arbitrary, constant for Gatepost
+  const lock = new pg.Client({ connectionString: databaseUrl });
+  await lock.connect();
+  try {
+    await lock.query('SELECT pg_advisory_lock($1)', [lockId]);
+    const applied = await createMigrator(sequelize).up();
+    return applied.map((m) => m.name);
+  } finally {
+    await lock.end();
+  }
+}

@@ -1,0 +1,286 @@
+import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize, type ForeignKey } from 'sequelize';
+import type { Role } from '../../../shared/contracts/roles.ts';
+
+/*
+ * Sequelize models mirror the tables the migrations create (never `sync()`). Only the data-access files of
+ * server/modules use them; everything above returns plain objects.
+ */
+
+export class Lab extends Model<InferAttributes<Lab>, InferCreationAttributes<Lab>> {
+  declare id: CreationOptional<string>;
+  declare name: string;
+  declare slug: string;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export class User extends Model<InferAttributes<User>, InferCreationAttributes<User>> {
+  declare id: CreationOptional<string>;
+  declare email: string;
+  declare name: string;
+  declare passwordHash: string;
+  declare disabledAt: CreationOptional<Date | null>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export class Membership extends Model<InferAttributes<Membership>, InferCreationAttributes<Membership>> {
+  declare id: CreationOptional<string>;
+  declare labId: ForeignKey<Lab['id']>;
+  declare userId: ForeignKey<User['id']>;
+  declare role: Role;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export class ApiToken extends Model<InferAttributes<ApiToken>, InferCreationAttributes<ApiToken>> {
+  declare id: CreationOptional<string>;
+  declare userId: ForeignKey<User['id']>;
+  declare name: string;
+  declare tokenHash: string;
+  declare tokenPrefix: string;
+  declare expiresAt: Date | null;
+  declare lastUsedAt: CreationOptional<Date | null>;
+  declare revokedAt: CreationOptional<Date | null>;
+  declare createdAt: CreationOptional<Date>;
+}
+
+export class Invitation extends Model<InferAttributes<Invitation>, InferCreationAttributes<Invitation>> {
+  declare id: CreationOptional<string>;
+  declare labId: ForeignKey<Lab['id']>;
+  declare email: string;
+  declare role: Role;
+  declare tokenHash: string;
+  declare invitedBy: string | null;
+  declare expiresAt: Date;
+  declare acceptedAt: CreationOptional<Date | null>;
+  declare acceptedBy: CreationOptional<string | null>;
+  declare revokedAt: CreationOptional<Date | null>;
+  declare createdAt: CreationOptional<Date>;
+}
+
+export class Campaign extends Model<InferAttributes<Campaign>, InferCreationAttributes<Campaign>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare name: string;
+  declare description: CreationOptional<string>;
+  declare startedOn: string | null;
+  declare createdBy: string | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export class Projectile extends Model<InferAttributes<Projectile>, InferCreationAttributes<Projectile>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare name: string;
+  declare material: CreationOptional<string>;
+  declare diameterM: number;
+  declare diameterToleranceM: number;
+  declare massKg: number;
+  declare massToleranceKg: number;
+  declare notes: CreationOptional<string>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export interface RigGate {
+  label: string;
+  position_m: number;
+  position_uncertainty_m: number;
+}
+
+export class GateRig extends Model<InferAttributes<GateRig>, InferCreationAttributes<GateRig>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare name: string;
+  declare gates: RigGate[];
+  declare beamWidthM: number;
+  declare sensorType: 'photodiode' | 'phototransistor' | 'photodarlington' | 'other';
+  declare notes: CreationOptional<string>;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export type ShotStatus = 'draft' | 'processing' | 'analysed' | 'in_review' | 'approved' | 'returned' | 'failed';
+
+export class Shot extends Model<InferAttributes<Shot>, InferCreationAttributes<Shot>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare campaignId: string;
+  declare number: number;
+  declare firedAt: Date | null;
+  declare projectileId: string | null;
+  declare gateRigId: string | null;
+  declare tubePressurePa: number | null;
+  declare sealType: CreationOptional<string>;
+  declare ambientTemperatureK: number | null;
+  declare ambientPressurePa: number | null;
+  declare notes: CreationOptional<string>;
+  declare status: CreationOptional<ShotStatus>;
+  declare currentAnalysisId: CreationOptional<string | null>;
+  declare createdBy: string | null;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export class Capture extends Model<InferAttributes<Capture>, InferCreationAttributes<Capture>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare shotId: string;
+  declare fileName: string;
+  declare sizeBytes: number;
+  declare sha256: string;
+  declare storageKey: string;
+  declare state: CreationOptional<'queued' | 'reading' | 'ready' | 'failed'>;
+  declare error: CreationOptional<string | null>;
+  declare layout: CreationOptional<unknown>;
+  declare channels: CreationOptional<unknown>;
+  declare sampleCount: CreationOptional<number | null>;
+  declare timeBase: CreationOptional<unknown>;
+  declare uploadedBy: string | null;
+  declare uploadedAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+}
+
+export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttributes<Analysis>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare shotId: string;
+  declare version: number;
+  declare parameters: unknown;
+  declare engineVersion: string;
+  declare state: CreationOptional<'queued' | 'running' | 'done' | 'failed'>;
+  declare results: CreationOptional<unknown>;
+  declare error: CreationOptional<string | null>;
+  declare jobKey: string;
+  declare requestedBy: string | null;
+  declare createdAt: CreationOptional<Date>;
+  declare completedAt: CreationOptional<Date | null>;
+}
+
+export class Review extends Model<InferAttributes<Review>, InferCreationAttributes<Review>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare shotId: string;
+  declare analysisId: string;
+  declare reviewerId: string | null;
+  declare decision: 'approved' | 'returned';
+  declare comment: CreationOptional<string>;
+  declare createdAt: CreationOptional<Date>;
+}
+
+export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreationAttributes<AuditEvent>> {
+  declare id: CreationOptional<string>;
+  declare labId: string | null;
+  declare actorId: string | null;
+  declare action: string;
+  declare targetType: string | null;
+  declare targetId: string | null;
+  declare details: CreationOptional<Record<string, unknown>>;
+  declare ip: string | null;
+  declare createdAt: CreationOptional<Date>;
+}
+
+const id = { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 };
+const uuid = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
+const text = (allowNull = false) => ({ type: DataTypes.TEXT, allowNull });
+const double = (allowNull = false) => ({ type: DataTypes.DOUBLE, allowNull });
+const date = (allowNull = true) => ({ type: DataTypes.DATE, allowNull });
+const json = (allowNull = true) => ({ type: DataTypes.JSONB, allowNull });
+const stamps = { createdAt: DataTypes.DATE, updatedAt: DataTypes.DATE };
+
+export function initModels(sequelize: Sequelize): void {
+  const opts = (tableName: string, extra: object = {}) => ({ sequelize, tableName, underscored: true, ...extra });
+  Lab.init({ id, name: text(), slug: text(), ...stamps }, opts('labs'));
+  User.init(
+    { id, email: text(), name: text(), passwordHash: text(), disabledAt: date(), ...stamps },
+    opts('users'),
+  );
+  Membership.init({ id, labId: uuid(), userId: uuid(), role: text(), ...stamps }, opts('memberships'));
+  ApiToken.init(
+    {
+      id, userId: uuid(), name: text(), tokenHash: text(), tokenPrefix: text(), expiresAt: date(),
+      lastUsedAt: date(), revokedAt: date(), createdAt: DataTypes.DATE,
+    },
+    opts('api_tokens', { updatedAt: false }),
+  );
+  Invitation.init(
+    {
+      id, labId: uuid(), email: text(), role: text(), tokenHash: text(), invitedBy: uuid(true),
+      expiresAt: date(false), acceptedAt: date(), acceptedBy: uuid(true), revokedAt: date(), createdAt: DataTypes.DATE,
+    },
+    opts('invitations', { updatedAt: false }),
+  );
+  Campaign.init(
+    { id, labId: uuid(), name: text(), description: text(), startedOn: { type: DataTypes.DATEONLY }, createdBy: uuid(true), ...stamps },
+    opts('campaigns'),
+  );
+  Projectile.init(
+    {
+      id, labId: uuid(), name: text(), material: text(), diameterM: double(), diameterToleranceM: double(),
+      massKg: double(), massToleranceKg: double(), notes: text(), ...stamps,
+    },
+    opts('projectiles'),
+  );
+  GateRig.init(
+    { id, labId: uuid(), name: text(), gates: json(false), beamWidthM: double(), sensorType: text(), notes: text(), ...stamps },
+    opts('gate_rigs'),
+  );
+  Shot.init(
+    {
+      id, labId: uuid(), campaignId: uuid(), number: { type: DataTypes.INTEGER, allowNull: false }, firedAt: date(),
+      projectileId: uuid(true), gateRigId: uuid(true), tubePressurePa: double(true), sealType: text(),
+      ambientTemperatureK: double(true), ambientPressurePa: double(true), notes: text(), status: text(),
+      currentAnalysisId: uuid(true), createdBy: uuid(true), ...stamps,
+    },
+    opts('shots'),
+  );
+  Capture.init(
+    {
+      id, labId: uuid(), shotId: uuid(), fileName: text(), sizeBytes: { type: DataTypes.BIGINT, allowNull: false },
+      sha256: text(), storageKey: text(), state: text(), error: text(true), layout: json(), channels: json(),
+      sampleCount: { type: DataTypes.BIGINT }, timeBase: json(), uploadedBy: uuid(true),
+      uploadedAt: DataTypes.DATE, updatedAt: DataTypes.DATE,
+    },
+    opts('captures', { createdAt: 'uploadedAt' }),
+  );
+  Analysis.init(
+    {
+      id, labId: uuid(), shotId: uuid(), version: { type: DataTypes.INTEGER, allowNull: false }, parameters: json(false),
+      engineVersion: text(), state: text(), results: json(), error: text(true), jobKey: text(), requestedBy: uuid(true),
+      createdAt: DataTypes.DATE, completedAt: date(),
+    },
+    opts('analyses', { updatedAt: false }),
+  );
+  Review.init(
+    {
+      id, labId: uuid(), shotId: uuid(), analysisId: uuid(), reviewerId: uuid(true), decision: text(), comment: text(),
+      createdAt: DataTypes.DATE,
+    },
+    opts('reviews', { updatedAt: false }),
+  );
+  AuditEvent.init(
+    {
+      id: { type: DataTypes.BIGINT, primaryKey: true, autoIncrement: true }, labId: uuid(true), actorId: uuid(true),
+      action: text(), targetType: text(true), targetId: text(true), details: json(false), ip: text(true),
+      createdAt: DataTypes.DATE,
+    },
+    opts('audit_events', { updatedAt: false }),
+  );
+
+  Lab.hasMany(Membership, { foreignKey: 'labId' });
+  Membership.belongsTo(Lab, { foreignKey: 'labId' });
+  User.hasMany(Membership, { foreignKey: 'userId' });
+  Membership.belongsTo(User, { foreignKey: 'userId' });
+  User.hasMany(ApiToken, { foreignKey: 'userId' });
+  Lab.hasMany(Invitation, { foreignKey: 'labId' });
+  Lab.hasMany(Campaign, { foreignKey: 'labId' });
+  Campaign.hasMany(Shot, { foreignKey: 'campaignId' });
+  Shot.belongsTo(Campaign, { foreignKey: 'campaignId' });
+  Shot.belongsTo(Projectile, { foreignKey: 'projectileId' });
+  Shot.belongsTo(GateRig, { foreignKey: 'gateRigId' });
+  Shot.hasMany(Capture, { foreignKey: 'shotId' });
+  Shot.hasMany(Analysis, { foreignKey: 'shotId' });
+  Shot.hasMany(Review, { foreignKey: 'shotId' });
+}

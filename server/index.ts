@@ -1,0 +1,59 @@
+import { loadConfig, ConfigError } from './config.ts';
+import { buildApp } from './app.ts';
+import { createLogger } from './lib/logger.ts';
+import { createMailer } from './lib/mailer.ts';
+import { LoginLimiter } from './lib/rate-limit.ts';
+import { createRedis } from './lib/redis.ts';
+import { createSequelize } from './db/sequelize.ts';
+
+/** The API server process: reads config, connects, listens, and shuts down cleanly on SIGINT/SIGTERM. */
+async function main() {
+  let config;
+  try {
+    config = loadConfig();
+  } catch (err) {
+    if (err instanceof ConfigError) {
+      console.error(err.message);
+      process.exit(2);
+    }
+    throw err;
+  }
+  const logger = createLogger(config.logLevel, 'api');
+  const sequelize = createSequelize(config.databaseUrl);
+  const redis = createRedis(config.redisUrl);
+  redis.on('error', (err) => logger.warn({ err: err.message }, 'redis connection problem'));
+  const mailer = createMailer(config);
+  const loginLimiter = new LoginLimiter(redis, { maxFailures: config.loginMaxFailures, windowSeconds: config.loginWindowSeconds });
+  const app = buildApp({ config, logger, sequelize, redis, mailer, loginLimiter });
+
+  const server = app.listen(config.port, config.host, () => {
+    logger.info({ url: config.publicUrl, port: config.port }, 'Gatepost API listening');
+  });
+  server.on('error', (err) => {
+    logger.fatal({ err }, 'cannot listen');
+    process.exit(1);
+  });
+
+  let stopping = false;
+  const shutdown = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    logger.info({ signal }, 'shutting down');
+    const force = setTimeout(() => process.exit(1), 10_000);
+    force.unref();
+    server.closeIdleConnections();
+    await new Promise<void>((resolve) => server.close(() => resolve()));
+    mailer.close();
+    await Promise.allSettled([sequelize.close(), redis.quit()]);
+    process.exit(0);
+  };
+  process.on('SIGINT', () => void shutdown('SIGINT'));
+  process.on('SIGTERM', () => void shutdown('SIGTERM'));
+  process.on('unhandledRejection', (reason) => logger.error({ err: reason }, 'unhandled rejection'));
+  process.on('uncaughtException', (err) => {
+    logger.fatal({ err }, 'uncaught exception');
+    process.exit(1);
+  });
+}
+
+void main();

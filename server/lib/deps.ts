@@ -1,0 +1,16 @@
+import type { Redis } from 'ioredis';
+import type { Sequelize } from 'sequelize';
+import type { Config } from '../config.ts';
+import type { Logger } from './logger.ts';
+import type { Mailer } from './mailer.ts';
+import type { LoginLimiter } from './rate-limit.ts';
+
+/** What route modules need from the outside world; built once in server/index.ts (or by a test). */
+export interface Deps {
+  config: Config;
+  logger: Logger;
+  sequelize: Sequelize;
+  redis: Redis;
+  mailer: Mailer;
+  loginLimiter: LoginLimiter;
+}

@@ -1,0 +1,86 @@
+import type { Response } from 'express';
+import { loginBody, type LoginBody } from '../../../shared/contracts/auth.ts';
+import { User } from '../../db/models/index.ts';
+import { recordAudit } from '../../lib/audit.ts';
+import { revokedSessionKey, SESSION_COOKIE } from '../../lib/authenticate.ts';
+import { clientIp } from '../../lib/client-ip.ts';
+import type { Deps } from '../../lib/deps.ts';
+import { AppError, tooManyRequests } from '../../lib/errors.ts';
+import { verifyAgainstDummy, verifyPassword } from '../../lib/passwords.ts';
+import type { RouteDef } from '../../lib/routes.ts';
+import { signSession } from '../../lib/tokens.ts';
+import { meView } from './service.ts';
+
+/** Signs the user in on this response: a fresh session JWT in an httpOnly, SameSite cookie. */
+export function startSession(res: Response, deps: Deps, userId: string): Date {
+  const { token, claims } = signSession(userId, deps.config.jwtSecret, deps.config.sessionHours);
+  res.cookie(SESSION_COOKIE, token, {
+    httpOnly: true,
+    sameSite: 'lax',
+    secure: deps.config.publicUrl.startsWith('https:'),
+    path: '/',
+    expires: claims.expiresAt,
+  });
+  return claims.expiresAt;
+}
+
+export function authRoutes(deps: Deps): RouteDef[] {
+  return [
+    {
+      method: 'post',
+      path: '/api/auth/login',
+      access: { kind: 'public' },
+      summary: 'Sign in with e-mail and password; sets the session cookie',
+      body: loginBody,
+      async handler(req, res) {
+        const { email, password } = req.body as LoginBody;
+        const ip = clientIp(req);
+        const limit = await deps.loginLimiter.check(email, ip);
+        if (limit.blocked) {
+          res.set('Retry-After', String(limit.retryAfterSeconds));
+          const minutes = Math.ceil(limit.retryAfterSeconds / 60);
+          throw tooManyRequests(
+            `Too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or ask a lab admin to check your account.`,
+            limit.retryAfterSeconds,
+          );
+        }
+        const user = await User.findOne({ where: { email } });
+        const ok = user && !user.disabledAt ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
+        if (!ok || !user) {
+          await deps.loginLimiter.recordFailure(email, ip);
+          await recordAudit({ labId: null, actorId: user?.id ?? null, action: 'auth.login_failed', details: { email }, ip });
+          throw new AppError(401, 'invalid_credentials', 'That e-mail and password do not match an account.');
+        }
+        await deps.loginLimiter.recordSuccess(email);
+        const expiresAt = startSession(res, deps, user.id);
+        await recordAudit({ labId: null, actorId: user.id, action: 'auth.login', ip });
+        res.json(await meView(user.id, 'session', expiresAt));
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/auth/logout',
+      access: { kind: 'public' },
+      summary: 'Sign out: revokes this browser session and clears its cookie',
+      async handler(req, res) {
+        const auth = req.auth;
+        if (auth?.via === 'session' && auth.sessionId && auth.expiresAt) {
+          const ttl = Math.max(1, Math.ceil((auth.expiresAt.getTime() - Date.now()) / 1000));
+          await deps.redis.set(revokedSessionKey(auth.sessionId), '1', 'EX', ttl);
+          await recordAudit({ labId: null, actorId: auth.userId, action: 'auth.logout', ip: clientIp(req) });
+        }
+        res.clearCookie(SESSION_COOKIE, { path: '/' });
+        res.status(204).end();
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/auth/me',
+      access: { kind: 'user' },
+      summary: 'The signed-in user and their labs and roles',
+      async handler(req, res) {
+        res.json(await meView(req.auth!.userId, req.auth!.via, req.auth!.expiresAt));
+      },
+    },
+  ];
+}

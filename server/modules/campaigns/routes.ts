@@ -1,0 +1,69 @@
+import { campaignBody, type CampaignBody } from '../../../shared/contracts/auth.ts';
+import { Campaign, Shot } from '../../db/models/index.ts';
+import { recordAudit } from '../../lib/audit.ts';
+import { clientIp } from '../../lib/client-ip.ts';
+import { conflict, notFound } from '../../lib/errors.ts';
+import type { RouteDef } from '../../lib/routes.ts';
+import { shotSummary } from '../shots/view.ts';
+import { UniqueConstraintError, fn, col } from 'sequelize';
+
+export function campaignRoutes(): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/api/labs/:labId/campaigns',
+      access: { kind: 'lab', permission: 'lab:read' },
+      summary: "The lab's campaigns with their shot counts",
+      async handler(req, res) {
+        const campaigns = await Campaign.findAll({ where: { labId: req.lab!.id }, order: [['startedOn', 'DESC NULLS LAST'], ['name', 'ASC']] });
+        const counts = (await Shot.findAll({
+          where: { labId: req.lab!.id },
+          attributes: ['campaignId', [fn('count', col('id')), 'n']],
+          group: ['campaignId'],
+          raw: true,
+        })) as unknown as { campaignId: string; n: string }[];
+        const byCampaign = new Map(counts.map((c) => [c.campaignId, Number(c.n)]));
+        res.json({
+          campaigns: campaigns.map((c) => ({
+            id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, shotCount: byCampaign.get(c.id) ?? 0,
+          })),
+        });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/labs/:labId/campaigns',
+      access: { kind: 'lab', permission: 'campaigns:write' },
+      summary: 'Start a campaign',
+      body: campaignBody,
+      async handler(req, res) {
+        const body = req.body as CampaignBody;
+        try {
+          const c = await Campaign.create({
+            labId: req.lab!.id, name: body.name, description: body.description, startedOn: body.startedOn ?? null, createdBy: req.auth!.userId,
+          });
+          await recordAudit({ labId: req.lab!.id, actorId: req.auth!.userId, action: 'campaign.created', targetType: 'campaign', targetId: c.id, details: { name: c.name }, ip: clientIp(req) });
+          res.status(201).json({ campaign: { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, shotCount: 0 } });
+        } catch (err) {
+          if (err instanceof UniqueConstraintError) throw conflict(`This lab already has a campaign named "${body.name}".`);
+          throw err;
+        }
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/labs/:labId/campaigns/:campaignId',
+      access: { kind: 'lab', permission: 'lab:read' },
+      summary: 'One campaign and its shots',
+      async handler(req, res) {
+        const c = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
+        if (!c) throw notFound('No such campaign in this lab.');
+        const shots = await Shot.findAll({ where: { campaignId: c.id, labId: req.lab!.id }, order: [['number', 'ASC']] });
+        res.json({
+          campaign: { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, shotCount: shots.length },
+          shots: shots.map(shotSummary),
+        });
+      },
+    },
+  ];
+}

@@ -1,0 +1,67 @@
+import { z } from 'zod';
+import { ROLES } from './roles.ts';
+
+/** Request and response shapes of sign-in, invitations, members and API tokens, shared by server and client. */
+
+export const emailSchema = z.string().trim().toLowerCase().pipe(z.email('Enter a valid e-mail address.')).pipe(z.string().max(254));
+
+/** At least 10 characters: long enough to resist guessing at the rate limit, short enough to type at a bench. */
+export const newPasswordSchema = z
+  .string()
+  .min(10, 'Use at least 10 characters.')
+  .max(200, 'Use at most 200 characters.');
+
+export const loginBody = z.object({
+  email: emailSchema,
+  password: z.string().min(1, 'Enter your password.').max(200),
+});
+export type LoginBody = z.infer<typeof loginBody>;
+
+export const roleSchema = z.enum(ROLES);
+
+export const invitationBody = z.object({ email: emailSchema, role: roleSchema });
+export type InvitationBody = z.infer<typeof invitationBody>;
+
+export const acceptInvitationBody = z.object({
+  /** For a new account; ignored when the e-mail already has an account (then `password` must be its password). */
+  name: z.string().trim().min(1, 'Enter your name.').max(200).optional(),
+  password: z.string().min(1).max(200),
+});
+export type AcceptInvitationBody = z.infer<typeof acceptInvitationBody>;
+
+export const memberRoleBody = z.object({ role: roleSchema });
+
+export const apiTokenBody = z.object({
+  name: z.string().trim().min(1, 'Name the token after the script that uses it.').max(100),
+  /** Days until the token stops working; omit for a token that lasts until revoked. */
+  expiresInDays: z.number().int().min(1).max(366).optional(),
+});
+export type ApiTokenBody = z.infer<typeof apiTokenBody>;
+
+export const campaignBody = z.object({
+  name: z.string().trim().min(1, 'Name the campaign.').max(200),
+  description: z.string().max(5000).default(''),
+  startedOn: z.iso.date().nullable().optional(),
+});
+export type CampaignBody = z.infer<typeof campaignBody>;
+
+export interface MembershipView {
+  labId: string;
+  labName: string;
+  labSlug: string;
+  role: z.infer<typeof roleSchema>;
+}
+
+export interface MeView {
+  user: { id: string; email: string; name: string };
+  memberships: MembershipView[];
+  /** How this request was signed in. */
+  via: 'session' | 'token';
+  /** Session expiry (ISO time), when signed in through the browser. */
+  expiresAt: string | null;
+}
+
+/** Every error the API sends has this shape. */
+export interface ApiErrorBody {
+  error: { code: string; message: string; details?: unknown };
+}
