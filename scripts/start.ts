@@ -1,0 +1,213 @@
+// `npm start`: runs Gatepost with its demo lab on this machine. Starts a project-local PostgreSQL cluster (durable) and
+// Redis (append-only file) on 127.0.0.1, migrates and seeds, builds the client when it changed, then runs the fake
+// SMTP server, the API server and the job worker as child processes until Ctrl-C. See scripts/README.md.
+import { randomBytes, createHash } from 'node:crypto';
+import { chmodSync, existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { performance } from 'node:perf_hooks';
+import {
+  DEFAULT_PORTS, ServiceError, ensureDebianPackages, isPortFree, portFromEnv, postgresCanUse, startPostgres, startRedis,
+  type RunningService,
+} from './lib/services.ts';
+import { describeExit, spawnChild, waitForHttp, type ChildHandle } from './lib/processes.ts';
+
+const startedAt = performance.now();
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+process.chdir(root);
+const tsx = join(root, 'node_modules/.bin/tsx');
+const say = (line: string): void => console.log(`[start] ${line}`);
+
+const services: RunningService[] = [];
+const children: ChildHandle[] = [];
+let shuttingDown: Promise<never> | null = null;
+
+/** Stops the children (newest first), then Redis, then PostgreSQL, and exits with `code`. Runs once. */
+function shutdown(code: number, reason: string): Promise<never> {
+  shuttingDown ??= (async () => {
+    say(reason);
+    await Promise.all([...children].reverse().map((child) => child.stop(10_000)));
+    for (const service of [...services].reverse()) {
+      try {
+        await service.stop();
+      } catch (error) {
+        console.error(`[start] ${(error as Error).message}`);
+        code ||= 1;
+      }
+    }
+    say(code === 0 ? 'stopped' : `stopped (exit ${code})`);
+    process.exit(code);
+  })();
+  return shuttingDown;
+}
+
+for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
+  process.on(signal, () => {
+    // A Ctrl-C reaches this process twice (from the terminal and relayed by tsx); one shutdown is enough.
+    if (!shuttingDown) void shutdown(0, `${signal} received: stopping everything`);
+  });
+}
+
+/** Runs a one-shot step (migrate, seed, build) as a child; a failure stops everything. */
+async function step(name: string, command: string, args: string[], env: NodeJS.ProcessEnv): Promise<void> {
+  const child = spawnChild({ name, command, args, env });
+  children.push(child);
+  const status = await child.exited;
+  children.splice(children.indexOf(child), 1);
+  if (shuttingDown) await shuttingDown;
+  if (status.code !== 0) await shutdown(1, `${name} failed (${describeExit(status)}): stopping everything`);
+}
+
+/** A long-running child; its exit while we are not shutting down stops everything with a non-zero code. */
+function keepRunning(name: string, script: string, env: NodeJS.ProcessEnv): ChildHandle {
+  const child = spawnChild({ name, command: tsx, args: [script], env });
+  children.push(child);
+  void child.exited.then((status) => {
+    if (!shuttingDown) void shutdown(1, `${name} exited unexpectedly (${describeExit(status)}): stopping everything`);
+  });
+  return child;
+}
+
+/**
+ * The data folder: .data/ in the checkout unless GATEPOST_DATA_DIR says otherwise. The PostgreSQL server runs as the
+ * postgres user, which cannot enter a checkout under a private home folder; then a folder under /var/tmp is used.
+ */
+async function chooseDataDir(): Promise<string> {
+  const chosen = process.env.GATEPOST_DATA_DIR;
+  const dir = resolve(chosen || join(root, '.data'));
+  mkdirSync(dir, { recursive: true });
+  if (await postgresCanUse(dir)) return dir;
+  if (chosen) throw new ServiceError(`GATEPOST_DATA_DIR=${chosen}: the postgres user cannot enter it (a parent folder is private)`);
+  const fallback = `/var/tmp/gatepost-${createHash('sha256').update(root).digest('hex').slice(0, 12)}`;
+  say(`the postgres user cannot enter ${dir} (a parent folder is private); keeping the data in ${fallback} instead`);
+  mkdirSync(fallback, { recursive: true, mode: 0o755 });
+  chmodSync(fallback, 0o755);
+  return fallback;
+}
+
+/** A random signing secret made on first start and kept (mode 600) so sessions survive a restart. */
+function jwtSecret(dataDir: string): string {
+  const file = join(dataDir, 'jwt-secret');
+  if (!existsSync(file)) writeFileSync(file, `${randomBytes(48).toString('base64url')}\n`, { mode: 0o600 });
+  chmodSync(file, 0o600);
+  return readFileSync(file, 'utf8').trim();
+}
+
+function newestMtime(path: string): number {
+  if (!existsSync(path)) return 0;
+  const stat = statSync(path);
+  if (!stat.isDirectory()) return stat.mtimeMs;
+  let newest = stat.mtimeMs;
+  for (const entry of readdirSync(path)) newest = Math.max(newest, newestMtime(join(path, entry)));
+  return newest;
+}
+
+/** The client build is current when dist/client/index.html is newer than every input of the build. */
+function clientBuildIsCurrent(): boolean {
+  const built = join(root, 'dist/client/index.html');
+  if (!existsSync(built)) return false;
+  // shared/ is bundled into the client too; package.json and the lock file change the dependencies.
+  const inputs = ['src', 'shared', 'public', 'index.html', 'vite.config.ts', 'postcss.config.js', 'tsconfig.json', 'package.json', 'package-lock.json'];
+  const newestInput = Math.max(...inputs.map((input) => newestMtime(join(root, input))));
+  return statSync(built).mtimeMs > newestInput;
+}
+
+interface DemoAccount {
+  email: string;
+  password: string;
+  role: string;
+}
+
+function demoSignIns(): string[] {
+  const file = join(root, 'server/db/seeders/demo-accounts.json');
+  if (!existsSync(file)) return ['(no server/db/seeders/demo-accounts.json: no demo sign-ins to show)'];
+  try {
+    const accounts = JSON.parse(readFileSync(file, 'utf8')) as DemoAccount[];
+    const width = Math.max(...accounts.map((account) => account.role.length));
+    const emailWidth = Math.max(...accounts.map((account) => account.email.length));
+    return accounts.map((account) => `${account.role.padEnd(width)}  ${account.email.padEnd(emailWidth)}  ${account.password}`);
+  } catch (error) {
+    return [`(could not read ${file}: ${(error as Error).message})`];
+  }
+}
+
+async function main(): Promise<void> {
+  const pgPort = portFromEnv(DEFAULT_PORTS.postgres.env, DEFAULT_PORTS.postgres.port);
+  const redisPort = portFromEnv(DEFAULT_PORTS.redis.env, DEFAULT_PORTS.redis.port);
+  const webPort = portFromEnv(DEFAULT_PORTS.web.env, DEFAULT_PORTS.web.port);
+  const smtpPort = portFromEnv(DEFAULT_PORTS.smtp.env, DEFAULT_PORTS.smtp.port);
+  for (const [port, env] of [[webPort, DEFAULT_PORTS.web.env], [smtpPort, DEFAULT_PORTS.smtp.env]] as const) {
+    if (!(await isPortFree(port))) {
+      throw new ServiceError(`port ${port} on 127.0.0.1 is taken (another npm start?); stop it or set ${env}`);
+    }
+  }
+
+  await ensureDebianPackages(['postgresql', 'redis-server'], say);
+  const dataDir = await chooseDataDir();
+  say(`data folder ${dataDir}`);
+  const secret = jwtSecret(dataDir);
+
+  services.push(await startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), say }));
+  if (shuttingDown) return;
+  services.push(await startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, say }));
+  if (shuttingDown) return;
+  const [postgres, redis] = services;
+
+  const publicUrl = `http://127.0.0.1:${webPort}`;
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    GATEPOST_DATABASE_URL: postgres.url,
+    GATEPOST_REDIS_URL: redis.url,
+    GATEPOST_PORT: String(webPort),
+    GATEPOST_SMTP_HOST: '127.0.0.1',
+    GATEPOST_SMTP_PORT: String(smtpPort),
+    GATEPOST_DATA_DIR: dataDir,
+    GATEPOST_PUBLIC_URL: publicUrl,
+    GATEPOST_JWT_SECRET: secret,
+    GATEPOST_MAIL_OUTBOX: 'fake',
+    NODE_ENV: 'production',
+  };
+
+  await step('migrate', tsx, ['server/db/cli.ts', 'migrate'], env);
+  await step('seed', tsx, ['server/db/cli.ts', 'seed-demo'], env);
+  if (clientBuildIsCurrent()) {
+    say('client build dist/client is newer than src/, shared/, index.html and the configs: skipping vite build');
+  } else {
+    say('building the client (dist/client is missing or older than its sources): vite build');
+    await step('build', join(root, 'node_modules/.bin/vite'), ['build'], env);
+  }
+  if (shuttingDown) return;
+
+  keepRunning('smtp', 'scripts/fake-smtp.ts', env);
+  const api = keepRunning('api', 'server/index.ts', env);
+  const worker = keepRunning('worker', 'worker/index.ts', env);
+
+  try {
+    await waitForHttp(`${publicUrl}/api/health`, { timeoutMs: 90_000, watch: [api, worker] });
+  } catch (error) {
+    if (!shuttingDown) await shutdown(1, `${(error as Error).message}: stopping everything`);
+    return;
+  }
+  const firstPage = await fetch(`${publicUrl}/`).then((response) => response.status, (error: Error) => error.message);
+  if (shuttingDown) return;
+  const seconds = ((performance.now() - startedAt) / 1000).toFixed(1);
+  const lines = [
+    '',
+    `Gatepost is running at ${publicUrl}  (ready in ${seconds} s)`,
+    ...(firstPage === 200 ? [] : [`  warning: GET / answered ${firstPage}, not 200`]),
+    '',
+    'Demo sign-ins (role, e-mail, password):',
+    ...demoSignIns().map((line) => `  ${line}`),
+    '',
+    `Data in ${dataDir}; PostgreSQL on 127.0.0.1:${pgPort}, Redis on 127.0.0.1:${redisPort}, fake SMTP on 127.0.0.1:${smtpPort}.`,
+    'Press Ctrl-C to stop everything (the databases too).',
+    '',
+  ];
+  console.log(lines.join('\n'));
+}
+
+main().catch((error: unknown) => {
+  const message = error instanceof ServiceError ? error.message : (error as Error).stack ?? String(error);
+  console.error(`[start] ${message}`);
+  void shutdown(1, 'start failed: stopping what was started');
+});

@@ -1,0 +1,113 @@
+// `bash scripts/with-services.sh CMD...`: runs CMD against a throwaway PostgreSQL cluster and Redis on free loopback
+// ports in a temporary folder, then stops both and deletes the folder, whatever happens (failure, Ctrl-C, SIGTERM).
+// Exits with CMD's exit code. See scripts/README.md for the environment CMD receives.
+import { spawn } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import { chmodSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { performance } from 'node:perf_hooks';
+import { constants } from 'node:os';
+import {
+  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, startPostgres, startRedis, type RunningService,
+} from './lib/services.ts';
+import { describeExit, spawnChild } from './lib/processes.ts';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+const say = (line: string): void => console.log(`[services] ${line}`);
+const command = process.argv.slice(2);
+if (command.length === 0) {
+  console.error('usage: bash scripts/with-services.sh COMMAND [ARGS...]');
+  process.exit(2);
+}
+
+const services: RunningService[] = [];
+let folder: string | null = null;
+let stopSignal: NodeJS.Signals | null = null;
+let commandProcess: ReturnType<typeof spawn> | null = null;
+
+for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
+  process.on(signal, () => {
+    if (stopSignal) return;
+    stopSignal = signal;
+    say(`${signal} received: stopping`);
+    // A Ctrl-C in the terminal reaches the command too (same process group); a SIGTERM sent to us alone does not.
+    if (commandProcess && commandProcess.exitCode === null) commandProcess.kill(signal);
+  });
+}
+
+async function cleanUp(): Promise<void> {
+  for (const service of [...services].reverse()) {
+    try {
+      await service.stop();
+    } catch (error) {
+      console.error(`[services] ${(error as Error).message}`);
+    }
+  }
+  if (folder) {
+    rmSync(folder, { recursive: true, force: true });
+    say(`removed ${folder}`);
+  }
+}
+
+const signalExitCode = (signal: NodeJS.Signals): number => 128 + (constants.signals[signal] ?? 1);
+
+async function main(): Promise<number> {
+  const startedAt = performance.now();
+  await ensureDebianPackages(['postgresql', 'redis-server', 'chromium'], say);
+  folder = mkdtempSync(join(tmpdir(), 'gatepost-test-'));
+  // mkdtemp makes the folder private (700); the postgres user must be able to enter it.
+  chmodSync(folder, 0o755);
+  const [pgPort, redisPort] = [await freePort(), await freePort()];
+  services.push(await startPostgres({ dir: join(folder, 'postgres'), port: pgPort, durable: false, log: join(folder, 'postgres.log'), say }));
+  if (stopSignal) return signalExitCode(stopSignal);
+  services.push(await startRedis({ dir: join(folder, 'redis'), port: redisPort, persistent: false, say }));
+  if (stopSignal) return signalExitCode(stopSignal);
+  const [postgres, redis] = services;
+
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    GATEPOST_TEST_DATABASE_URL: postgres.url,
+    GATEPOST_TEST_REDIS_URL: redis.url,
+    GATEPOST_DATABASE_URL: postgres.url,
+    GATEPOST_REDIS_URL: redis.url,
+    GATEPOST_CHROMIUM: CHROMIUM_PATH,
+    GATEPOST_TEST_TMP_DIR: folder,
+    GATEPOST_JWT_SECRET: process.env.GATEPOST_JWT_SECRET || randomBytes(32).toString('base64url'),
+  };
+
+  if (existsSync(join(root, 'server/db/cli.ts'))) {
+    const migrate = spawnChild({ name: 'migrate', command: join(root, 'node_modules/.bin/tsx'), args: ['server/db/cli.ts', 'migrate'], env, cwd: root });
+    const status = await migrate.exited;
+    if (stopSignal) return signalExitCode(stopSignal);
+    if (status.code !== 0) {
+      console.error(`[services] migrations failed (${describeExit(status)})`);
+      return 1;
+    }
+  } else {
+    say('server/db/cli.ts does not exist yet: no migrations to run');
+  }
+  say(`PostgreSQL ${postgres.url} and Redis ${redis.url} ready in ${((performance.now() - startedAt) / 1000).toFixed(1)} s`);
+
+  say(`running: ${command.join(' ')}`);
+  return new Promise<number>((resolveCode) => {
+    commandProcess = spawn(command[0], command.slice(1), { stdio: 'inherit', env });
+    commandProcess.on('error', (error) => {
+      console.error(`[services] could not run ${command[0]}: ${error.message}`);
+      resolveCode(127);
+    });
+    commandProcess.on('exit', (code, signal) => resolveCode(code ?? signalExitCode(signal ?? 'SIGTERM')));
+  });
+}
+
+let exitCode: number;
+try {
+  exitCode = await main();
+} catch (error) {
+  console.error(`[services] ${error instanceof ServiceError ? error.message : ((error as Error).stack ?? String(error))}`);
+  exitCode = 1;
+} finally {
+  await cleanUp();
+}
+process.exit(stopSignal && exitCode === 0 ? signalExitCode(stopSignal) : exitCode);
