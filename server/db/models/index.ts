@@ -185,6 +185,9 @@ export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreation
 const id = { type: DataTypes.UUID, primaryKey: true, defaultValue: DataTypes.UUIDV4 };
 const uuid = (allowNull = false) => ({ type: DataTypes.UUID, allowNull });
 const text = (allowNull = false) => ({ type: DataTypes.TEXT, allowNull });
+// Same default as the column's DEFAULT in the migration: without it Sequelize sends NULL and its own notNull check
+// fails before PostgreSQL could fill the default in.
+const textOr = (defaultValue: string) => ({ type: DataTypes.TEXT, allowNull: false, defaultValue });
 const double = (allowNull = false) => ({ type: DataTypes.DOUBLE, allowNull });
 const date = (allowNull = true) => ({ type: DataTypes.DATE, allowNull });
 const json = (allowNull = true) => ({ type: DataTypes.JSONB, allowNull });
@@ -213,25 +216,25 @@ export function initModels(sequelize: Sequelize): void {
     opts('invitations', { updatedAt: false }),
   );
   Campaign.init(
-    { id, labId: uuid(), name: text(), description: text(), startedOn: { type: DataTypes.DATEONLY }, createdBy: uuid(true), ...stamps },
+    { id, labId: uuid(), name: text(), description: textOr(''), startedOn: { type: DataTypes.DATEONLY }, createdBy: uuid(true), ...stamps },
     opts('campaigns'),
   );
   Projectile.init(
     {
-      id, labId: uuid(), name: text(), material: text(), diameterM: double(), diameterToleranceM: double(),
-      massKg: double(), massToleranceKg: double(), notes: text(), ...stamps,
+      id, labId: uuid(), name: text(), material: textOr(''), diameterM: double(), diameterToleranceM: double(),
+      massKg: double(), massToleranceKg: double(), notes: textOr(''), ...stamps,
     },
     opts('projectiles'),
   );
   GateRig.init(
-    { id, labId: uuid(), name: text(), gates: json(false), beamWidthM: double(), sensorType: text(), notes: text(), ...stamps },
+    { id, labId: uuid(), name: text(), gates: json(false), beamWidthM: double(), sensorType: text(), notes: textOr(''), ...stamps },
     opts('gate_rigs'),
   );
   Shot.init(
     {
       id, labId: uuid(), campaignId: uuid(), number: { type: DataTypes.INTEGER, allowNull: false }, firedAt: date(),
-      projectileId: uuid(true), gateRigId: uuid(true), tubePressurePa: double(true), sealType: text(),
-      ambientTemperatureK: double(true), ambientPressurePa: double(true), notes: text(), status: text(),
+      projectileId: uuid(true), gateRigId: uuid(true), tubePressurePa: double(true), sealType: textOr(''),
+      ambientTemperatureK: double(true), ambientPressurePa: double(true), notes: textOr(''), status: textOr('draft'),
       currentAnalysisId: uuid(true), createdBy: uuid(true), ...stamps,
     },
     opts('shots'),
@@ -239,7 +242,7 @@ export function initModels(sequelize: Sequelize): void {
   Capture.init(
     {
       id, labId: uuid(), shotId: uuid(), fileName: text(), sizeBytes: { type: DataTypes.BIGINT, allowNull: false },
-      sha256: text(), storageKey: text(), state: text(), error: text(true), layout: json(), channels: json(),
+      sha256: text(), storageKey: text(), state: textOr('queued'), error: text(true), layout: json(), channels: json(),
       sampleCount: { type: DataTypes.BIGINT }, timeBase: json(), uploadedBy: uuid(true),
       uploadedAt: DataTypes.DATE, updatedAt: DataTypes.DATE,
     },
@@ -248,14 +251,14 @@ export function initModels(sequelize: Sequelize): void {
   Analysis.init(
     {
       id, labId: uuid(), shotId: uuid(), version: { type: DataTypes.INTEGER, allowNull: false }, parameters: json(false),
-      engineVersion: text(), state: text(), results: json(), error: text(true), jobKey: text(), requestedBy: uuid(true),
+      engineVersion: text(), state: textOr('queued'), results: json(), error: text(true), jobKey: text(), requestedBy: uuid(true),
       createdAt: DataTypes.DATE, completedAt: date(),
     },
     opts('analyses', { updatedAt: false }),
   );
   Review.init(
     {
-      id, labId: uuid(), shotId: uuid(), analysisId: uuid(), reviewerId: uuid(true), decision: text(), comment: text(),
+      id, labId: uuid(), shotId: uuid(), analysisId: uuid(), reviewerId: uuid(true), decision: text(), comment: textOr(''),
       createdAt: DataTypes.DATE,
     },
     opts('reviews', { updatedAt: false }),
