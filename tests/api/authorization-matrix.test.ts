@@ -1,0 +1,248 @@
+// The authorization matrix: every API route, called by each Hollowmere role, by another lab's admin and by nobody,
+// must answer exactly the status written in MATRIX below. The expected codes are written out by hand (from the
+// product's role design in issue 2), never computed from shared/contracts/roles.ts, so a wrong entry in PERMISSIONS
+// or a wrong `access` on a route makes this test fail. Lab routes address Hollowmere's records, so Sandgate's admin
+// must be told 404: the API hides other labs' records as if they did not exist.
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { allRoutes } from '../../server/app.ts';
+import { ApiToken, Invitation, Membership, User } from '../../server/db/models/index.ts';
+import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
+import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
+
+/** Column order of every row. `null` is the signed-out caller. */
+const ACTORS = ['admin', 'experimenter', 'analyst', 'reviewer', 'otherLabAdmin', null] as const satisfies readonly (DemoActor | null)[];
+type Actor = (typeof ACTORS)[number];
+type Expected = [admin: number, experimenter: number, analyst: number, reviewer: number, otherLabAdmin: number, signedOut: number];
+
+interface CaseContext {
+  h: ApiHarness;
+  demo: DemoWorld;
+  actor: Actor;
+  /** The acting user; null when signed out. */
+  user: DemoUser | null;
+}
+
+interface Prepared {
+  /** Path parameters besides the defaults (Hollowmere's lab, first campaign, first shot). */
+  params?: Record<string, string>;
+  body?: unknown;
+  /** Replaces the acting user's minted session cookie (e.g. a fresh one to sign out). */
+  cookie?: string;
+}
+
+interface Row {
+  expect: Expected;
+  /** Makes a fresh target for this one call, so cases cannot disturb each other. */
+  prepare?: (ctx: CaseContext) => Promise<Prepared> | Prepared;
+  /** Checks the JSON of a successful answer. */
+  shape?: (body: Record<string, unknown>, ctx: CaseContext) => void;
+}
+
+let serial = 0;
+const unique = (what: string) => `${what}-${Date.now().toString(36)}-${(serial++).toString(36)}`;
+
+/** A new Hollowmere member (no argon2: the hash is never checked), to be re-roled or removed. */
+async function freshMember(demo: DemoWorld): Promise<string> {
+  const user = await User.create({ email: `${unique('member')}@hollowmere.example`, name: 'Matrix Member', passwordHash: 'not-used' });
+  await Membership.create({ labId: demo.labs.hollowmere.id, userId: user.id, role: 'analyst' });
+  return user.id;
+}
+
+/** A pending Hollowmere invitation whose secret link the test knows. */
+async function freshInvitation(demo: DemoWorld): Promise<{ id: string; secret: string }> {
+  const { secret, hash } = newInvitationSecret();
+  const inv = await Invitation.create({
+    labId: demo.labs.hollowmere.id, email: `${unique('invitee')}@example.org`, role: 'experimenter', tokenHash: hash,
+    invitedBy: demo.users.admin.id, expiresAt: new Date(Date.now() + 86_400_000),
+  });
+  return { id: inv.id, secret };
+}
+
+const errorShape = (body: Record<string, unknown>) =>
+  expect(body).toEqual({ error: expect.objectContaining({ code: expect.any(String), message: expect.any(String) }) });
+
+const labRead: Expected = [200, 200, 200, 200, 404, 401];
+const adminOnly = (ok: number): Expected => [ok, 403, 403, 403, 404, 401];
+const anyUser = (ok: number): Expected => [ok, ok, ok, ok, ok, 401];
+const everyone = (ok: number): Expected => [ok, ok, ok, ok, ok, ok];
+
+/** One row per route, in the order of server/app.ts. */
+const MATRIX: Record<string, Row> = {
+  'GET /api/health': {
+    expect: everyone(200),
+    shape: (b) => expect(b).toEqual({ status: 'ok', db: 'ok', redis: 'ok' }),
+  },
+  'POST /api/auth/login': {
+    // Each caller signs in with its own demo account; nobody-signed-in uses the reviewer's.
+    expect: everyone(200),
+    prepare: ({ user, demo }) => {
+      const who = user ?? demo.users.reviewer;
+      return { body: { email: who.email, password: who.password } };
+    },
+    shape: (b, { user, demo }) =>
+      expect(b).toMatchObject({ user: { id: (user ?? demo.users.reviewer).id }, via: 'session', memberships: expect.any(Array) }),
+  },
+  'POST /api/auth/logout': {
+    expect: everyone(204),
+    prepare: ({ h, user }) => (user ? { cookie: h.sessionCookie(user.id) } : {}),
+  },
+  'GET /api/auth/me': {
+    expect: anyUser(200),
+    shape: (b, { user }) => expect(b).toMatchObject({ user: { id: user!.id, email: user!.email }, via: 'session' }),
+  },
+  'GET /api/me/tokens': {
+    expect: anyUser(200),
+    shape: (b) => expect(b).toEqual({ tokens: expect.any(Array) }),
+  },
+  'POST /api/me/tokens': {
+    expect: anyUser(201),
+    prepare: () => ({ body: { name: unique('matrix-script') } }),
+    shape: (b) => expect(b).toMatchObject({ token: { id: expect.any(String) }, secret: expect.stringMatching(/^gpt_/) }),
+  },
+  'DELETE /api/me/tokens/:tokenId': {
+    // A token of the acting user (of the admin when signed out), so every signed-in caller revokes its own.
+    expect: anyUser(204),
+    prepare: async ({ user, demo }) => {
+      const { hash, prefix } = newApiToken();
+      const row = await ApiToken.create({ userId: (user ?? demo.users.admin).id, name: unique('to-revoke'), tokenHash: hash, tokenPrefix: prefix, expiresAt: null });
+      return { params: { tokenId: row.id } };
+    },
+  },
+  'GET /api/labs/:labId': {
+    expect: labRead,
+    shape: (b, { demo, actor }) => expect(b).toEqual({ lab: { id: demo.labs.hollowmere.id, name: 'Hollowmere Ballistics Lab', slug: 'hollowmere' }, role: actor }),
+  },
+  'GET /api/labs/:labId/members': {
+    expect: labRead,
+    shape: (b) => expect(b).toMatchObject({ members: expect.arrayContaining([expect.objectContaining({ email: 'ines.calder@hollowmere.example', role: 'admin' })]) }),
+  },
+  'PATCH /api/labs/:labId/members/:userId': {
+    expect: adminOnly(200),
+    prepare: async ({ demo }) => ({ params: { userId: await freshMember(demo) }, body: { role: 'reviewer' } }),
+    shape: (b) => expect(b).toEqual({ userId: expect.any(String), role: 'reviewer' }),
+  },
+  'DELETE /api/labs/:labId/members/:userId': {
+    expect: adminOnly(204),
+    prepare: async ({ demo }) => ({ params: { userId: await freshMember(demo) } }),
+  },
+  'GET /api/labs/:labId/invitations': {
+    expect: adminOnly(200),
+    shape: (b) => expect(b).toEqual({ invitations: expect.any(Array) }),
+  },
+  'POST /api/labs/:labId/invitations': {
+    expect: adminOnly(201),
+    prepare: () => ({ body: { email: `${unique('new-person')}@example.org`, role: 'analyst' } }),
+    shape: (b) => expect(b).toMatchObject({ invitation: { role: 'analyst', state: 'pending' } }),
+  },
+  'DELETE /api/labs/:labId/invitations/:invitationId': {
+    expect: adminOnly(204),
+    prepare: async ({ demo }) => ({ params: { invitationId: (await freshInvitation(demo)).id } }),
+  },
+  'GET /api/invitations/:token': {
+    // Public on purpose: the invitee has no account yet; the secret in the link is the credential.
+    expect: everyone(200),
+    prepare: async ({ demo }) => ({ params: { token: (await freshInvitation(demo)).secret } }),
+    shape: (b) => expect(b).toMatchObject({ labName: 'Hollowmere Ballistics Lab', role: 'experimenter', accountExists: false }),
+  },
+  'POST /api/invitations/:token/accept': {
+    expect: everyone(200),
+    prepare: async ({ demo }) => ({
+      params: { token: (await freshInvitation(demo)).secret },
+      body: { name: 'Matrix Invitee', password: 'a long enough password' },
+    }),
+    shape: (b) => expect(b).toMatchObject({ via: 'session', memberships: [expect.objectContaining({ labSlug: 'hollowmere', role: 'experimenter' })] }),
+  },
+  'GET /api/labs/:labId/outbox': {
+    expect: adminOnly(200),
+    shape: (b) => expect(b).toEqual({ messages: expect.any(Array) }),
+  },
+  'GET /api/labs/:labId/campaigns': {
+    expect: labRead,
+    shape: (b) => expect(b).toMatchObject({ campaigns: expect.arrayContaining([expect.objectContaining({ name: 'Vacuum sweep, autumn 2026', shotCount: 8 })]) }),
+  },
+  'POST /api/labs/:labId/campaigns': {
+    expect: [201, 201, 403, 403, 404, 401],
+    prepare: () => ({ body: { name: unique('Matrix campaign') } }),
+    shape: (b) => expect(b).toMatchObject({ campaign: { id: expect.any(String), shotCount: 0 } }),
+  },
+  'GET /api/labs/:labId/campaigns/:campaignId': {
+    expect: labRead,
+    shape: (b) => expect(b).toMatchObject({ campaign: { name: 'Vacuum sweep, autumn 2026' }, shots: expect.any(Array) }),
+  },
+  'GET /api/labs/:labId/projectiles': {
+    expect: labRead,
+    shape: (b) => expect(b).toMatchObject({ projectiles: expect.arrayContaining([expect.objectContaining({ diameterM: 0.04, massKg: 0.0027 })]) }),
+  },
+  'GET /api/labs/:labId/gate-rigs': {
+    expect: labRead,
+    shape: (b) => expect(b).toMatchObject({ gateRigs: [expect.objectContaining({ name: 'Exit rig, three gates' })] }),
+  },
+  'GET /api/shots/:shotId': {
+    expect: labRead,
+    shape: (b) => expect(b).toMatchObject({ shot: { number: 1, conditions: { tubePressurePa: 12_000 } } }),
+  },
+  'GET /api/labs/:labId/audit': {
+    expect: [200, 403, 403, 200, 404, 401],
+    shape: (b) => expect(b).toEqual({ events: expect.any(Array) }),
+  },
+};
+
+const routeKey = (r: { method: string; path: string }) => `${r.method.toUpperCase()} ${r.path}`;
+const actorName = (a: Actor) => a ?? 'signedOut';
+
+describe('authorization matrix', () => {
+  let h: ApiHarness;
+  beforeAll(async () => {
+    h = await createApiHarness();
+    await h.resetDatabase();
+  });
+  afterAll(() => h?.close());
+
+  it('When the server gains or loses a route, then this table has exactly one row per route', () => {
+    const routes = allRoutes(h.deps).map(routeKey);
+    const missingRows = routes.filter((k) => !(k in MATRIX));
+    const rowsWithoutRoute = Object.keys(MATRIX).filter((k) => !routes.includes(k));
+    const duplicateRoutes = routes.filter((k, i) => routes.indexOf(k) !== i);
+    expect({ missingRows, rowsWithoutRoute, duplicateRoutes }).toEqual({ missingRows: [], rowsWithoutRoute: [], duplicateRoutes: [] });
+  });
+
+  for (const [key, row] of Object.entries(MATRIX)) {
+    const title = ACTORS.map((a, i) => `${actorName(a)} ${row.expect[i]}`).join(', ');
+    it(`When ${key} is called by each caller, then it answers ${title}`, async () => {
+      const [method, pathTemplate] = key.split(' ') as [string, string];
+      const demo = h.demo;
+      const actual: number[] = [];
+      const unexpected: string[] = [];
+      for (const actor of ACTORS) {
+        const user = actor ? demo.users[actor] : null;
+        const ctx: CaseContext = { h, demo, actor, user };
+        const prepared = (await row.prepare?.(ctx)) ?? {};
+        const params: Record<string, string> = {
+          labId: demo.labs.hollowmere.id,
+          campaignId: demo.hollowmere.campaignIds[0],
+          shotId: demo.hollowmere.shotIds[0],
+          ...prepared.params,
+        };
+        const url = pathTemplate.replace(/:(\w+)/g, (_, name: string) => {
+          if (!params[name]) throw new Error(`${key}: no value for :${name}; add it in the row's prepare`);
+          return encodeURIComponent(params[name]);
+        });
+        let req = request(h.app)[method.toLowerCase() as 'get' | 'post' | 'patch' | 'delete'](url);
+        const cookie = prepared.cookie ?? (user ? h.sessionCookie(user.id) : undefined);
+        if (cookie) req = req.set('Cookie', cookie);
+        if (prepared.body !== undefined) req = req.send(prepared.body as object);
+        const res = await req;
+        actual.push(res.status);
+        if (res.status !== row.expect[actual.length - 1]) {
+          unexpected.push(`${actorName(actor)}: ${res.status} ${JSON.stringify(res.body)}`);
+          continue;
+        }
+        if (res.status >= 400) errorShape(res.body as Record<string, unknown>);
+        else if (res.status !== 204) row.shape?.(res.body as Record<string, unknown>, ctx);
+        else expect(res.text).toBe('');
+      }
+      expect(actual, unexpected.join('\n')).toEqual(row.expect);
+    });
+  }
+});
