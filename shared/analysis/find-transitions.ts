@@ -54,10 +54,8 @@ export function findTransitions(values: ArrayLike<number>, time: TimeBase, optio
   for (let i = 0; i < n; i++) {
     const v = values[i];
     if (v - v !== 0) continue;
-    let entered = 0;
-    if (v <= lowArm) entered = -1;
-    else if (v >= highArm) entered = 1;
-    else continue;
+    if (v > lowArm && v < highArm) continue;
+    const entered = v <= lowArm ? -1 : 1;
     if (entered === state || state === 0) {
       state = entered;
       lastInState = i;

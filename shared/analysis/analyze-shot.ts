@@ -1,0 +1,409 @@
+import { z } from 'zod';
+import { analysisOptionsSchema, type AnalysisOptions, type AnalysisOptionsInput } from '../contracts/analysis.ts';
+import type { ImportedCapture } from '../contracts/capture.ts';
+import { buildShotModel, type FiredGate } from './build-shot-model.ts';
+import { ENGINE_VERSION } from './engine-version.ts';
+import { findDipCandidate } from './find-dip-candidate.ts';
+import { findPulses } from './find-pulses.ts';
+import { measureChannel, type ChannelMeasurement } from './measure-channel.ts';
+import type { ModelInput } from './measurement-model.ts';
+import { propagateMonteCarlo } from './propagate-monte-carlo.ts';
+import { propagateUncertainty } from './propagate-uncertainty.ts';
+import { smoothSavitzkyGolay } from './smooth-savitzky-golay.ts';
+import { speedOfSound } from './speed-of-sound.ts';
+import type {
+  ChannelResult,
+  CrossCheckResult,
+  DerivedResult,
+  FitResult,
+  FlightPairResult,
+  GateResult,
+  OcclusionResult,
+  Polarity,
+  PulseResult,
+  ShotAnalysis,
+  SpeedResult,
+} from './types.ts';
+
+/** Coverage factor of every expanded uncertainty reported: k = 2, ≈ 95 % for a near-normal output (NIST TN 1297 §6). */
+const K = 2;
+
+const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
+const ms = (t: number): string => `${(t * 1e3).toFixed(3)} ms`;
+const pct = (f: number): string => `${(100 * f).toFixed(1)} %`;
+
+function checkCapture(capture: ImportedCapture): void {
+  if (capture === null || typeof capture !== 'object' || !Array.isArray(capture.channels)) {
+    throw new TypeError('capture must be an imported capture with a channels array');
+  }
+  if (capture.channels.length === 0) throw new RangeError('the capture has no channels');
+  if (!Number.isInteger(capture.length) || capture.length < 2) throw new RangeError('the capture needs at least 2 samples');
+  for (const c of capture.channels) {
+    if (c.values.length !== capture.length) {
+      throw new RangeError(`channel ${c.name} has ${c.values.length} samples but the capture declares ${capture.length}`);
+    }
+  }
+  const time = capture.time;
+  if (time.kind === 'uniform') {
+    if (!(time.dt > 0) || !Number.isFinite(time.t0)) throw new RangeError('the time base needs a finite t0 and a positive dt');
+  } else if (time.t.length !== capture.length) {
+    throw new RangeError(`the time column has ${time.t.length} values but the capture declares ${capture.length} samples`);
+  }
+}
+
+function linear(inputs: ModelInput[], evaluate: (x: Float64Array) => number) {
+  return propagateUncertainty({ inputs, evaluate });
+}
+
+/**
+ * Analyses one shot: for each channel the IEEE Std 181-2011 state levels, transitions and pulses, or the
+ * verdict "missed" with the deepest sub-threshold dip; gates mapped from channels; speeds by time of flight
+ * (pairs of like edges, and a constant-deceleration fit with three or more gates) and by occlusion (ℓ/τ);
+ * the uncertainty of each by the GUM law of propagation (JCGM 100:2008), optionally validated by Monte Carlo
+ * (JCGM 101:2008); a flight/occlusion cross-check; Mach number (c = √(γRT), USSA 1976), kinetic energy and
+ * momentum. Pure: the capture is not modified, the result is plain JSON.
+ */
+export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsInput = {}): ShotAnalysis {
+  const parsed = analysisOptionsSchema.safeParse(options);
+  if (!parsed.success) throw new RangeError(`invalid analysis options: ${z.prettifyError(parsed.error)}`);
+  const opts: AnalysisOptions = parsed.data;
+  checkCapture(capture);
+  const warnings: string[] = [];
+  const time = capture.time;
+
+  // 1. Levels, noise and polarity of every channel (on the smoothed copy when smoothing is asked for).
+  if (opts.smoothing !== null && time.kind === 'explicit') {
+    warnings.push('smoothing assumes evenly spaced samples, but this capture has an explicit, uneven time base');
+  }
+  const traces = capture.channels.map((c) =>
+    opts.smoothing === null ? c.values : smoothSavitzkyGolay(c.values, opts.smoothing),
+  );
+  const measured: (ChannelMeasurement | null)[] = traces.map((trace, i) => {
+    try {
+      return measureChannel(trace, {
+        bins: opts.levels.bins,
+        method: opts.levels.method,
+        trimFraction: opts.levels.trimFraction,
+        polarity: opts.polarity,
+      });
+    } catch (error) {
+      warnings.push(`${capture.channels[i].name}: ${(error as Error).message}`);
+      return null;
+    }
+  });
+
+  // 2. The reference step: the rig's, or the largest clean step among the channels.
+  let referenceStep = opts.missed.expectedStep ?? 0;
+  if (referenceStep === 0) {
+    for (const m of measured) if (m !== null && m.snr >= opts.missed.minSnr) referenceStep = Math.max(referenceStep, m.amplitude);
+  }
+
+  // 3. Pulses of each usable channel; "missed" with a candidate dip for the others.
+  const channels: ChannelResult[] = [];
+  for (let c = 0; c < capture.channels.length; c++) {
+    const channel = capture.channels[c];
+    const m = measured[c];
+    const trace = traces[c];
+    if (channel.invalidCount > 0) warnings.push(`${channel.name}: ${channel.invalidCount} invalid samples were skipped`);
+    const base = {
+      name: channel.name,
+      smoothed: opts.smoothing !== null,
+      invalidCount: channel.invalidCount,
+    };
+    if (m === null) {
+      channels.push({
+        ...base,
+        status: 'missed',
+        reason: 'no finite samples to analyse',
+        polarity: opts.polarity === 'auto' ? 'falling' : opts.polarity,
+        levels: { low: 0, high: 0, amplitude: 0, method: opts.levels.method, bins: opts.levels.bins },
+        referenceLevels: { proximal: 0, mesial: 0, distal: 0 },
+        noise: { low: null, high: null },
+        snr: null,
+        threshold: null,
+        transitions: [],
+        pulses: [],
+        candidate: null,
+      });
+      continue;
+    }
+    const common = {
+      ...base,
+      levels: { low: m.low, high: m.high, amplitude: m.amplitude, method: opts.levels.method, bins: opts.levels.bins },
+      referenceLevels: { proximal: m.low + 0.1 * m.amplitude, mesial: m.low + 0.5 * m.amplitude, distal: m.low + 0.9 * m.amplitude },
+      noise: { low: finiteOrNull(m.lowSd), high: finiteOrNull(m.highSd) },
+      snr: finiteOrNull(m.snr),
+    };
+    let reason: string | null = null;
+    if (!(m.snr >= opts.missed.minSnr)) {
+      reason = `its step (${m.amplitude.toPrecision(3)} V) is only ${m.snr.toFixed(1)} times the noise, below ${opts.missed.minSnr}`;
+    } else if (m.amplitude < opts.missed.minStepFraction * referenceStep) {
+      reason = `its step (${m.amplitude.toPrecision(3)} V) is below ${pct(opts.missed.minStepFraction)} of the reference step (${referenceStep.toPrecision(3)} V)`;
+    }
+    let result: ChannelResult | null = null;
+    if (reason === null) {
+      const step = m.blockedLevel - m.clearLevel;
+      const t = opts.threshold;
+      const level = t.unit === 'percent' ? m.clearLevel + (t.level / 100) * step : t.level;
+      const armA = t.unit === 'percent' ? m.clearLevel + ((t.level - t.hysteresis) / 100) * step : t.level - t.hysteresis;
+      const armB = t.unit === 'percent' ? m.clearLevel + ((t.level + t.hysteresis) / 100) * step : t.level + t.hysteresis;
+      const lowArm = Math.min(armA, armB);
+      const highArm = Math.max(armA, armB);
+      if (lowArm < level && level < highArm) {
+        const found = findPulses(trace, { time, crossLevel: level, lowArm, highArm, low: m.low, high: m.high, polarity: m.polarity, noise: m.noise });
+        if (found.openAtStart) warnings.push(`${channel.name}: the record starts with the beam blocked; that pulse was ignored`);
+        if (found.openAtEnd) warnings.push(`${channel.name}: the record ends with the beam blocked; that pulse was ignored`);
+        // A pulse no longer than two sample intervals is a spike, not a projectile (common practice).
+        const minWidth = 2 * (time.kind === 'uniform' ? time.dt : (time.t[time.t.length - 1] - time.t[0]) / (time.t.length - 1));
+        const pulses: PulseResult[] = found.pulses.filter((p) => p.width > minWidth);
+        if (pulses.length < found.pulses.length) {
+          warnings.push(`${channel.name}: ${found.pulses.length - pulses.length} pulse(s) no longer than 2 samples were ignored as spikes`);
+        }
+        if (pulses.length > 0) {
+          result = {
+            ...common,
+            status: 'ok',
+            reason: null,
+            polarity: m.polarity,
+            threshold: { level, lowArm, highArm },
+            transitions: found.transitions,
+            pulses,
+            candidate: null,
+          };
+        } else {
+          reason = found.transitions.length > 0 ? 'no complete pulse inside the record' : 'no transition through the threshold';
+        }
+      } else {
+        reason = 'its threshold level lies outside its hysteresis band';
+      }
+    }
+    channels.push(
+      result ?? {
+        ...common,
+        status: 'missed',
+        reason,
+        polarity: m.polarity,
+        threshold: null,
+        transitions: [],
+        pulses: [],
+        candidate: null,
+      },
+    );
+  }
+
+  // Missed channels: the polarity the working gates show, and the deepest dip toward it.
+  const okPolarities = channels.filter((c) => c.status === 'ok').map((c) => c.polarity);
+  const rigPolarity: Polarity =
+    opts.polarity !== 'auto'
+      ? opts.polarity
+      : okPolarities.filter((p) => p === 'rising').length > okPolarities.length / 2
+        ? 'rising'
+        : 'falling';
+  for (let c = 0; c < channels.length; c++) {
+    const ch = channels[c];
+    const m = measured[c];
+    if (ch.status !== 'missed' || m === null) continue;
+    ch.polarity = rigPolarity;
+    const clearLevel = rigPolarity === 'falling' ? m.high : m.low;
+    const step = referenceStep > 0 ? referenceStep : m.amplitude;
+    let message = `${ch.name}: missed (${ch.reason})`;
+    if (step > 0) {
+      const dip = findDipCandidate(traces[c], { time, clearLevel, referenceStep: rigPolarity === 'falling' ? -step : step });
+      if (dip !== null && dip.depthFraction >= opts.missed.minCandidateFraction) {
+        const threshold = opts.threshold.unit === 'percent' ? `${opts.threshold.level} %` : `${opts.threshold.level} V`;
+        const text = `reached ${Math.round(100 * dip.depthFraction)} % of the step at ${ms(dip.time)}`;
+        ch.candidate = { depthFraction: dip.depthFraction, time: dip.time, message: text };
+        message += `; it ${text} (threshold ${threshold}): lower the threshold to use it`;
+      }
+    }
+    warnings.push(message);
+  }
+
+  // 4. Gates: channel (and pulse order) → position.
+  let gateSpecs = opts.gates;
+  if (gateSpecs === undefined) {
+    if (capture.channels.length > 1 && opts.spacing === undefined) {
+      throw new RangeError('gate positions are unknown: give the gates (channel and position) or the gate spacing');
+    }
+    const spacing = opts.spacing ?? 0;
+    gateSpecs = capture.channels.map((ch, i) => ({ channel: ch.name, position: i * spacing }));
+  }
+  const byName = new Map(channels.map((ch) => [ch.name, ch]));
+  for (const g of gateSpecs) {
+    if (!byName.has(g.channel)) {
+      throw new RangeError(
+        `the gate at ${g.position} m names channel "${g.channel}", which the capture does not have (it has ${channels.map((ch) => ch.name).join(', ')})`,
+      );
+    }
+  }
+  const sortedSpecs = [...gateSpecs].sort((a, b) => a.position - b.position);
+  const gates: GateResult[] = [];
+  const fired: FiredGate[] = [];
+  for (const ch of channels) {
+    const mine = sortedSpecs.filter((g) => g.channel === ch.name);
+    if (mine.length === 0) continue;
+    if (ch.status === 'ok' && ch.pulses.length > mine.length) {
+      warnings.push(`${ch.name}: ${ch.pulses.length} pulses for ${mine.length} gate(s); the first ${mine.length} in time were used`);
+    } else if (ch.status === 'ok' && ch.pulses.length < mine.length) {
+      warnings.push(`${ch.name}: ${ch.pulses.length} pulse(s) for ${mine.length} gates; they were given to the gates nearest the start`);
+    }
+  }
+  for (const spec of sortedSpecs) {
+    const ch = byName.get(spec.channel) as ChannelResult;
+    const order = sortedSpecs.filter((g) => g.channel === spec.channel).indexOf(spec);
+    const pulse = ch.status === 'ok' ? ch.pulses[order] : undefined;
+    gates.push({
+      channel: spec.channel,
+      position: spec.position,
+      status: pulse === undefined ? 'missed' : 'ok',
+      pulses: pulse === undefined ? [] : [{ start: pulse.start, end: pulse.end, width: pulse.width }],
+    });
+    if (pulse !== undefined) fired.push({ channel: spec.channel, position: spec.position, pulse });
+  }
+  for (let k = 1; k < fired.length; k++) {
+    if (fired[k].pulse.start <= fired[k - 1].pulse.start) {
+      warnings.push(
+        `the gate at ${fired[k].position} m (${fired[k].channel}) fired before the gate at ${fired[k - 1].position} m (${fired[k - 1].channel}): check the gate positions`,
+      );
+      break;
+    }
+  }
+
+  // 5. Speeds and their uncertainties, all from one measurement model.
+  const length = opts.projectile.length;
+  const model = buildShotModel(fired, {
+    positionTolerance: opts.positionTolerance,
+    timebaseAccuracyPpm: opts.timebaseAccuracyPpm,
+    projectileLength: length ?? Number.NaN,
+    lengthTolerance: opts.projectile.lengthTolerance,
+  });
+  const { inputs } = model;
+  const x0 = new Float64Array(inputs.length);
+  for (let i = 0; i < inputs.length; i++) x0[i] = inputs[i].value;
+
+  const flight: FlightPairResult[] = [];
+  for (let i = 0; i < fired.length; i++) {
+    for (let j = i + 1; j < fired.length; j++) {
+      const r = linear(inputs, model.flight(i, j, 'mid'));
+      flight.push({
+        from: { channel: fired[i].channel, position: fired[i].position },
+        to: { channel: fired[j].channel, position: fired[j].position },
+        speed: r.value,
+        uncertainty: K * r.standardUncertainty,
+        leadingEdgeSpeed: model.flight(i, j, 'leading')(x0),
+        trailingEdgeSpeed: model.flight(i, j, 'trailing')(x0),
+      });
+    }
+  }
+  let fit: FitResult | null = null;
+  if (model.fitSpeed !== null && model.fitDeceleration !== null) {
+    const v = linear(inputs, model.fitSpeed);
+    const a = linear(inputs, model.fitDeceleration);
+    fit = { gates: fired.length, speed: v.value, speedUncertainty: K * v.standardUncertainty, deceleration: a.value, decelerationUncertainty: K * a.standardUncertainty };
+  }
+  const occlusion: OcclusionResult[] = [];
+  if (model.occlusion !== null && length !== undefined) {
+    for (let k = 0; k < fired.length; k++) {
+      const r = linear(inputs, model.occlusion(k));
+      occlusion.push({
+        channel: fired[k].channel,
+        position: fired[k].position,
+        length,
+        width: fired[k].pulse.width,
+        speed: r.value,
+        uncertainty: K * r.standardUncertainty,
+      });
+    }
+  }
+
+  let primary: { method: 'flight' | 'occlusion'; basis: 'fit' | 'pair' | 'occlusion'; evaluate: (x: Float64Array) => number } | null = null;
+  if (model.fitSpeed !== null) primary = { method: 'flight', basis: 'fit', evaluate: model.fitSpeed };
+  else if (fired.length === 2) primary = { method: 'flight', basis: 'pair', evaluate: model.flight(0, 1, 'mid') };
+  else if (fired.length === 1 && model.occlusion !== null) primary = { method: 'occlusion', basis: 'occlusion', evaluate: model.occlusion(0) };
+  let speed: SpeedResult | null = null;
+  if (primary !== null) {
+    const r = linear(inputs, primary.evaluate);
+    const mc =
+      opts.monteCarloDraws > 0
+        ? propagateMonteCarlo({ inputs, evaluate: primary.evaluate }, { draws: Math.max(100, opts.monteCarloDraws), seed: opts.seed })
+        : null;
+    speed = {
+      method: primary.method,
+      basis: primary.basis,
+      value: r.value,
+      uncertainty: K * r.standardUncertainty,
+      coverage: K,
+      standardUncertainty: r.standardUncertainty,
+      // Inputs with no tolerance given (say, the projectile size for a flight speed) add nothing: leave them out.
+      budget: r.budget.filter((b) => b.contribution > 0),
+      monteCarlo: mc,
+    };
+    if (fired.length === 1) warnings.push('only one gate fired: the speed is its occlusion speed ℓ/τ, which depends on the projectile length and the beam passing through its centre');
+  } else if (fired.length === 0) {
+    warnings.push('no gate fired: no speed');
+  } else {
+    warnings.push('only one gate fired and the projectile length is unknown: no speed (give the projectile length for an occlusion speed)');
+  }
+
+  // 6. Cross-check: flight against occlusion, through the same inputs so shared errors cancel correctly.
+  const crossChecks: CrossCheckResult[] = [];
+  if (model.occlusion !== null && fired.length >= 2) {
+    const occ = model.occlusion;
+    const pairs: { positions: number[]; occ: (x: Float64Array) => number; fl: (x: Float64Array) => number; label: string }[] = [];
+    if (model.fitSpeedAt !== null) {
+      const at = model.fitSpeedAt;
+      for (let k = 0; k < fired.length; k++) {
+        pairs.push({ positions: [fired[k].position], occ: occ(k), fl: at(k), label: `gate at ${fired[k].position} m (${fired[k].channel})` });
+      }
+    } else {
+      // Two gates: the mean of the two occlusion speeds is the speed at the span's mid-time under constant
+      // deceleration, which is what the flight speed measures.
+      const o0 = occ(0);
+      const o1 = occ(1);
+      pairs.push({
+        positions: [fired[0].position, fired[1].position],
+        occ: (x) => 0.5 * (o0(x) + o1(x)),
+        fl: model.flight(0, 1, 'mid'),
+        label: `gates at ${fired[0].position} m and ${fired[1].position} m`,
+      });
+    }
+    for (const p of pairs) {
+      const d = linear(inputs, (x) => p.occ(x) - p.fl(x));
+      const limit = opts.crossCheckCoverage * d.standardUncertainty;
+      const o = p.occ(x0);
+      const f = p.fl(x0);
+      const consistent = Math.abs(d.value) <= limit;
+      crossChecks.push({ positions: p.positions, occlusionSpeed: o, flightSpeed: f, difference: d.value, limit, consistent });
+      if (!consistent) {
+        warnings.push(
+          `cross-check, ${p.label}: occlusion speed ${o.toFixed(2)} m/s differs from flight speed ${f.toFixed(2)} m/s by ${pct(d.value / f)}, ` +
+            `more than their combined uncertainty (${pct(limit / f)} at k = ${opts.crossCheckCoverage}): off-centre beam, wrong projectile length, or a slow or asymmetric sensor?`,
+        );
+      }
+    }
+  }
+
+  // 7. Derived quantities, GUM with relative uncertainties of independent inputs (JCGM 100:2008 §5.1.6).
+  const derived: DerivedResult = { speedOfSound: null, mach: null, kineticEnergy: null, momentum: null };
+  if (speed !== null) {
+    const v = speed.value;
+    const uvRel = speed.standardUncertainty / Math.abs(v);
+    const T = opts.ambient.temperature;
+    if (T !== undefined) {
+      const c = speedOfSound(T);
+      const ucRel = opts.ambient.temperatureTolerance / Math.sqrt(3) / (2 * T); // c ∝ √T
+      derived.speedOfSound = { value: c, uncertainty: K * c * ucRel };
+      derived.mach = { value: v / c, uncertainty: (K * Math.abs(v / c)) * Math.hypot(uvRel, ucRel) };
+    }
+    const mass = opts.projectile.mass;
+    if (mass !== undefined) {
+      const umRel = opts.projectile.massTolerance / Math.sqrt(3) / mass;
+      const e = 0.5 * mass * v * v;
+      const p = mass * v;
+      derived.kineticEnergy = { value: e, uncertainty: K * e * Math.hypot(umRel, 2 * uvRel) };
+      derived.momentum = { value: p, uncertainty: K * Math.abs(p) * Math.hypot(umRel, uvRel) };
+    }
+  }
+
+  return { engineVersion: ENGINE_VERSION, options: opts, channels, gates, speed, flight, fit, occlusion, crossChecks, derived, warnings };
+}

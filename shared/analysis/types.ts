@@ -1,0 +1,162 @@
+/**
+ * The result of a shot analysis. Plain numbers, strings, arrays and objects only (no typed arrays, no
+ * Infinity): the worker stores it as JSONB and the client reads it back unchanged. SI units: s, m, V, m/s.
+ */
+import type { AnalysisOptions } from '../contracts/analysis.ts';
+import type { BudgetLine } from './measurement-model.ts';
+
+export type Polarity = 'falling' | 'rising';
+
+export interface TransitionResult {
+  direction: 'rising' | 'falling';
+  /** Mesial (threshold) crossing, s. */
+  time: number;
+  /** 10–90 % transition duration, s (null when a reference level was not crossed). */
+  duration: number | null;
+  /** Slope at the crossing, V/s. */
+  slope: number;
+  /** Standard uncertainty of `time` from noise, σ_v/|slope|·√((1−α)² + α²), s. */
+  jitter: number;
+  /** Half-width of the rectangular interpolation error of `time`, s. */
+  interpolationHalfWidth: number;
+}
+
+export interface PulseResult {
+  /** Beam blocked (mesial instant of the entry transition), s. */
+  start: number;
+  /** Beam clear again, s. */
+  end: number;
+  /** end − start, s. */
+  width: number;
+  entry: TransitionResult;
+  exit: TransitionResult;
+}
+
+export interface DipCandidate {
+  /** Deepest sustained excursion toward the blocked level, as a fraction of the reference step. */
+  depthFraction: number;
+  /** When it happened, s. */
+  time: number;
+  message: string;
+}
+
+export interface ChannelResult {
+  name: string;
+  status: 'ok' | 'missed';
+  /** Why a channel was judged missed, in words; null when ok. */
+  reason: string | null;
+  polarity: Polarity;
+  /** IEEE 181 state levels, V. */
+  levels: { low: number; high: number; amplitude: number; method: 'mode' | 'mean'; bins: number };
+  /** IEEE 181 reference levels (10 / 50 / 90 % of the amplitude above the low state), V. */
+  referenceLevels: { proximal: number; mesial: number; distal: number };
+  /** Standard deviation within each state, V. */
+  noise: { low: number | null; high: number | null };
+  /** Amplitude over the larger state noise. */
+  snr: number | null;
+  /** Levels actually used for detection, V: crossing level and the hysteresis band. */
+  threshold: { level: number; lowArm: number; highArm: number } | null;
+  smoothed: boolean;
+  invalidCount: number;
+  transitions: TransitionResult[];
+  pulses: PulseResult[];
+  candidate: DipCandidate | null;
+}
+
+export interface GateResult {
+  channel: string;
+  position: number;
+  status: 'ok' | 'missed';
+  /** The pulse assigned to this gate (empty when missed), s. */
+  pulses: { start: number; end: number; width: number }[];
+}
+
+export interface SpeedResult {
+  method: 'flight' | 'occlusion';
+  /** How the value was obtained: a constant-deceleration fit, one pair of gates, or one gate's occlusion. */
+  basis: 'fit' | 'pair' | 'occlusion';
+  /** Speed at the first gate that fired (mean speed over the span for a pair), m/s. */
+  value: number;
+  /** Expanded uncertainty U = k·u_c, m/s. */
+  uncertainty: number;
+  coverage: 2;
+  standardUncertainty: number;
+  budget: BudgetLine[];
+  /** JCGM 101 validation when Monte Carlo draws were asked for. */
+  monteCarlo: { draws: number; mean: number; standardDeviation: number; intervalLow: number; intervalHigh: number } | null;
+}
+
+export interface FlightPairResult {
+  from: { channel: string; position: number };
+  to: { channel: string; position: number };
+  /** Mean speed over the span from the pulse mid-times (leading and trailing edges together), m/s. */
+  speed: number;
+  /** Expanded uncertainty (k = 2), m/s. */
+  uncertainty: number;
+  /** From leading edges only and from trailing edges only, m/s. */
+  leadingEdgeSpeed: number;
+  trailingEdgeSpeed: number;
+}
+
+export interface FitResult {
+  gates: number;
+  /** Speed at the first gate, m/s, and its expanded uncertainty (k = 2). */
+  speed: number;
+  speedUncertainty: number;
+  /** Deceleration, m/s² (positive = slowing), and its expanded uncertainty (k = 2). */
+  deceleration: number;
+  decelerationUncertainty: number;
+}
+
+export interface OcclusionResult {
+  channel: string;
+  position: number;
+  /** Length along the path assumed cut by the beam, m. */
+  length: number;
+  /** Blocked time, s. */
+  width: number;
+  speed: number;
+  /** Expanded uncertainty (k = 2), m/s. */
+  uncertainty: number;
+}
+
+export interface CrossCheckResult {
+  /** Gate positions the comparison covers. */
+  positions: number[];
+  occlusionSpeed: number;
+  flightSpeed: number;
+  /** occlusion − flight, m/s, and k·u of that difference (k = crossCheckCoverage). */
+  difference: number;
+  limit: number;
+  consistent: boolean;
+}
+
+export interface QuantityWithUncertainty {
+  value: number;
+  /** Expanded uncertainty (k = 2). */
+  uncertainty: number;
+}
+
+export interface DerivedResult {
+  /** Speed of sound at the ambient temperature, m/s. */
+  speedOfSound: QuantityWithUncertainty | null;
+  mach: QuantityWithUncertainty | null;
+  /** J */
+  kineticEnergy: QuantityWithUncertainty | null;
+  /** kg·m/s */
+  momentum: QuantityWithUncertainty | null;
+}
+
+export interface ShotAnalysis {
+  engineVersion: string;
+  options: AnalysisOptions;
+  channels: ChannelResult[];
+  gates: GateResult[];
+  speed: SpeedResult | null;
+  flight: FlightPairResult[];
+  fit: FitResult | null;
+  occlusion: OcclusionResult[];
+  crossChecks: CrossCheckResult[];
+  derived: DerivedResult;
+  warnings: string[];
+}

@@ -1,0 +1,160 @@
+/**
+ * `npm run --silent analyze -- FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--json]`
+ *
+ * Analyses one scope export with the same engine the worker runs. Exit codes: 0 analysed (even when gates
+ * missed: that is a result, shown in the warnings), 2 unreadable input or bad arguments (one line on stderr).
+ */
+import { readFile } from 'node:fs/promises';
+import { pathToFileURL } from 'node:url';
+import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
+import type { ShotAnalysis } from '../../shared/analysis/types.ts';
+import type { AnalysisOptionsInput } from '../../shared/contracts/analysis.ts';
+import type { ImportedCapture } from '../../shared/contracts/capture.ts';
+import { parseScopeCsv } from '../../shared/import/parse-scope-csv.ts';
+
+const USAGE = 'usage: analyze FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--json]';
+
+export interface CliIo {
+  stdout: (text: string) => void;
+  stderr: (text: string) => void;
+  /** Reads a capture file; the default reads it whole and parses it with the shared importer. */
+  readCapture?: (path: string) => Promise<ImportedCapture>;
+}
+
+class UsageError extends Error {}
+
+interface CliArgs {
+  file: string;
+  gates: { channel: string; position: number }[];
+  spacing?: number;
+  diameter?: number;
+  json: boolean;
+}
+
+function parseMetres(text: string | undefined, flag: string): number {
+  const value = text === undefined ? Number.NaN : Number(text);
+  if (text === undefined || text.trim() === '' || !Number.isFinite(value)) {
+    throw new UsageError(`${flag} needs a number of metres, got ${text === undefined ? 'nothing' : `'${text}'`}`);
+  }
+  return value;
+}
+
+function parseArgs(argv: string[]): CliArgs {
+  const args: CliArgs = { file: '', gates: [], json: false };
+  const files: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (a === '--json') args.json = true;
+    else if (a === '--gate') {
+      const spec = argv[++i];
+      const at = spec === undefined ? -1 : spec.lastIndexOf('@');
+      if (spec === undefined || at <= 0) throw new UsageError(`--gate needs CHANNEL@POSITION_M (e.g. CH1@0.3), got ${spec === undefined ? 'nothing' : `'${spec}'`}`);
+      args.gates.push({ channel: spec.slice(0, at), position: parseMetres(spec.slice(at + 1), `--gate ${spec}`) });
+    } else if (a === '--spacing') {
+      args.spacing = parseMetres(argv[++i], '--spacing');
+      if (!(args.spacing > 0)) throw new UsageError('--spacing must be positive');
+    } else if (a === '--diameter') {
+      args.diameter = parseMetres(argv[++i], '--diameter');
+      if (!(args.diameter > 0)) throw new UsageError('--diameter must be positive');
+    } else if (a.startsWith('--')) throw new UsageError(`unknown option ${a}`);
+    else files.push(a);
+  }
+  if (files.length !== 1) throw new UsageError(files.length === 0 ? 'no capture file given' : `one capture file at a time, got ${files.length}`);
+  args.file = files[0];
+  return args;
+}
+
+async function readWhole(path: string): Promise<ImportedCapture> {
+  return parseScopeCsv(new Uint8Array(await readFile(path)));
+}
+
+const us = (t: number): string => `${(t * 1e6).toFixed(3)} µs`;
+
+function summary(file: string, a: ShotAnalysis): string {
+  const lines: string[] = [`${file} (engine ${a.engineVersion})`];
+  for (const g of a.gates) {
+    const p = g.pulses[0];
+    lines.push(
+      g.status === 'ok' && p !== undefined
+        ? `  gate ${g.channel} @ ${g.position} m: blocked ${us(p.start)} → ${us(p.end)} (width ${us(p.width)})`
+        : `  gate ${g.channel} @ ${g.position} m: missed`,
+    );
+  }
+  if (a.speed !== null) {
+    const how = a.speed.basis === 'fit' ? 'constant-deceleration fit' : a.speed.basis === 'pair' ? 'time of flight' : 'occlusion';
+    lines.push(`speed: ${a.speed.value.toFixed(2)} ± ${a.speed.uncertainty.toFixed(2)} m/s (${how}; U with k = 2)`);
+    for (const b of a.speed.budget) lines.push(`  ${b.group}: ${b.contribution.toPrecision(3)} m/s (${(100 * b.share).toFixed(1)} % of variance)`);
+  } else lines.push('speed: none');
+  if (a.fit !== null) lines.push(`deceleration: ${a.fit.deceleration.toPrecision(4)} ± ${a.fit.decelerationUncertainty.toPrecision(2)} m/s²`);
+  for (const o of a.occlusion) lines.push(`occlusion ${o.channel} @ ${o.position} m: ${o.speed.toFixed(2)} ± ${o.uncertainty.toFixed(2)} m/s`);
+  for (const w of a.warnings) lines.push(`warning: ${w}`);
+  return lines.join('\n');
+}
+
+/** Runs the CLI on already-split arguments; returns the exit code. */
+export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
+  let args: CliArgs;
+  try {
+    args = parseArgs(argv);
+  } catch (error) {
+    io.stderr(`analyze: ${(error as Error).message}\n${USAGE}\n`);
+    return 2;
+  }
+  let capture: ImportedCapture;
+  try {
+    capture = await (io.readCapture ?? readWhole)(args.file);
+  } catch (error) {
+    const e = error as NodeJS.ErrnoException;
+    const reason = e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message;
+    io.stderr(`analyze: cannot read ${args.file}: ${reason.split('\n')[0]}\n`);
+    return 2;
+  }
+  const options: AnalysisOptionsInput = {};
+  if (args.gates.length > 0) options.gates = args.gates;
+  if (args.spacing !== undefined) options.spacing = args.spacing;
+  if (args.diameter !== undefined) options.projectile = { length: args.diameter };
+  if (args.gates.length === 0 && args.spacing === undefined && capture.channels.length > 1) {
+    io.stderr(`analyze: ${args.file} has ${capture.channels.length} channels; give --spacing M or --gate CHANNEL@POSITION_M for each gate\n`);
+    return 2;
+  }
+  let analysis: ShotAnalysis;
+  try {
+    analysis = analyzeShot(capture, options);
+  } catch (error) {
+    io.stderr(`analyze: ${args.file}: ${(error as Error).message.split('\n')[0]}\n`);
+    return 2;
+  }
+  if (args.json) {
+    const { engineVersion, gates, speed, flight, fit, occlusion, crossChecks, derived, warnings, channels } = analysis;
+    const out = {
+      file: args.file,
+      engineVersion,
+      gates,
+      speed,
+      flight,
+      fit,
+      occlusion,
+      crossChecks,
+      derived,
+      channels: channels.map((c) => ({ name: c.name, status: c.status, reason: c.reason, polarity: c.polarity, levels: c.levels, noise: c.noise, candidate: c.candidate })),
+      warnings,
+    };
+    io.stdout(`${JSON.stringify(out, null, 2)}\n`);
+  } else io.stdout(`${summary(args.file, analysis)}\n`);
+  return 0;
+}
+
+if (process.argv[1] !== undefined && import.meta.url === pathToFileURL(process.argv[1]).href) {
+  runAnalyze(process.argv.slice(2), {
+    stdout: (t) => process.stdout.write(t),
+    stderr: (t) => process.stderr.write(t),
+  }).then(
+    (code) => {
+      process.exitCode = code;
+    },
+    (error: unknown) => {
+      process.stderr.write(`analyze: ${(error as Error).message}\n`);
+      process.exitCode = 1;
+    },
+  );
+}
