@@ -1,0 +1,24 @@
+import { createBrowserRouter, Navigate } from 'react-router-dom';
+import { RouteError } from './routes/route-error.tsx';
+
+/** Routes load their module on first visit (code splitting); each has its own error boundary. */
+export const router = createBrowserRouter([
+  { path: '/', lazy: () => import('./routes/home.tsx'), errorElement: <RouteError /> },
+  { path: '/sign-in', lazy: () => import('./routes/sign-in.tsx') },
+  { path: '/invite/:token', lazy: () => import('./routes/invite.tsx') },
+  { path: '/account/tokens', lazy: () => import('./routes/account-tokens.tsx') },
+  {
+    path: '/labs/:labId',
+    lazy: () => import('./routes/lab.tsx'),
+    children: [
+      { index: true, element: <Navigate to="campaigns" replace /> },
+      { path: 'campaigns', lazy: () => import('./routes/lab-campaigns.tsx') },
+      { path: 'campaigns/:campaignId', lazy: () => import('./routes/lab-campaign.tsx') },
+      { path: 'library', lazy: () => import('./routes/lab-library.tsx') },
+      { path: 'people', lazy: () => import('./routes/lab-people.tsx') },
+      { path: 'audit', lazy: () => import('./routes/lab-audit.tsx') },
+      { path: 'outbox', lazy: () => import('./routes/lab-outbox.tsx') },
+    ],
+  },
+  { path: '*', lazy: () => import('./routes/not-found.tsx') },
+]);

@@ -1,0 +1,11 @@
+import { useParams } from 'react-router-dom';
+import { CampaignShots } from '../../features/campaigns/components/campaign-shots.tsx';
+import { useLab } from '../lab-context.ts';
+
+export function Component() {
+  const { membership } = useLab();
+  const { campaignId = '' } = useParams();
+  return <CampaignShots labId={membership.labId} campaignId={campaignId} />;
+}
+
+export { RouteError as ErrorBoundary } from './route-error.tsx';

@@ -1,0 +1,15 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { api } from '../../../lib/api-client.ts';
+import { meKey } from './me.ts';
+
+export function useSignOut() {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: () => api.post<void>('/api/auth/logout'),
+    onSettled: () => {
+      // Nothing of the previous user may stay in the cache for the next one.
+      queryClient.clear();
+      queryClient.setQueryData(meKey, null);
+    },
+  });
+}

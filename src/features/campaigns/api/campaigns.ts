@@ -1,0 +1,31 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { api } from '../../../lib/api-client.ts';
+import type { CampaignBody } from '../../../../shared/contracts/auth.ts';
+import { labKeys } from '../../labs/api/members.ts';
+
+export interface CampaignRow { id: string; name: string; description: string; startedOn: string | null; shotCount: number }
+export interface ShotRow {
+  id: string; number: number; firedAt: string | null; status: string;
+  conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
+  notes: string;
+}
+
+export const campaignsQueryOptions = (labId: string) =>
+  queryOptions({ queryKey: labKeys.campaigns(labId), queryFn: () => api.get<{ campaigns: CampaignRow[] }>(`/api/labs/${labId}/campaigns`) });
+
+export const campaignQueryOptions = (labId: string, campaignId: string) =>
+  queryOptions({
+    queryKey: labKeys.campaign(labId, campaignId),
+    queryFn: () => api.get<{ campaign: CampaignRow; shots: ShotRow[] }>(`/api/labs/${labId}/campaigns/${campaignId}`),
+  });
+
+export const useCampaigns = (labId: string) => useQuery(campaignsQueryOptions(labId));
+export const useCampaign = (labId: string, campaignId: string) => useQuery(campaignQueryOptions(labId, campaignId));
+
+export function useCreateCampaign(labId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (body: CampaignBody) => api.post<{ campaign: CampaignRow }>(`/api/labs/${labId}/campaigns`, body),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: labKeys.campaigns(labId) }),
+  });
+}

@@ -1,0 +1,30 @@
+import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import { api } from '../../../lib/api-client.ts';
+import type { Role } from '../../../../shared/contracts/roles.ts';
+
+export interface Member { userId: string; name: string; email: string; role: Role; since: string; active: boolean }
+
+export const labKeys = {
+  all: (labId: string) => ['labs', labId] as const,
+  members: (labId: string) => [...labKeys.all(labId), 'members'] as const,
+  invitations: (labId: string) => [...labKeys.all(labId), 'invitations'] as const,
+  outbox: (labId: string) => [...labKeys.all(labId), 'outbox'] as const,
+  audit: (labId: string) => [...labKeys.all(labId), 'audit'] as const,
+  campaigns: (labId: string) => [...labKeys.all(labId), 'campaigns'] as const,
+  campaign: (labId: string, id: string) => [...labKeys.campaigns(labId), id] as const,
+  projectiles: (labId: string) => [...labKeys.all(labId), 'projectiles'] as const,
+  gateRigs: (labId: string) => [...labKeys.all(labId), 'gate-rigs'] as const,
+};
+
+export const membersQueryOptions = (labId: string) =>
+  queryOptions({ queryKey: labKeys.members(labId), queryFn: () => api.get<{ members: Member[] }>(`/api/labs/${labId}/members`) });
+
+export const useMembers = (labId: string) => useQuery(membersQueryOptions(labId));
+
+export function useChangeRole(labId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: ({ userId, role }: { userId: string; role: Role }) => api.patch(`/api/labs/${labId}/members/${userId}`, { role }),
+    onSettled: () => queryClient.invalidateQueries({ queryKey: labKeys.members(labId) }),
+  });
+}

@@ -1,0 +1,100 @@
+import { useState, type FormEvent } from 'react';
+import { invitationBody } from '../../../../shared/contracts/auth.ts';
+import { ROLE_LABELS, ROLES, type Role } from '../../../../shared/contracts/roles.ts';
+import { Badge, Button, Card, EmptyState, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { formatDate } from '../../../lib/format.ts';
+import { useChangeRole, useMembers } from '../../labs/api/members.ts';
+import { useInvitations, useInvite, useWithdrawInvitation } from '../api/invitations.ts';
+
+function InviteForm({ labId }: { labId: string }) {
+  const invite = useInvite(labId);
+  const [email, setEmail] = useState('');
+  const [role, setRole] = useState<Role>('experimenter');
+  const [problem, setProblem] = useState<string>();
+  const [sentTo, setSentTo] = useState<string>();
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    const parsed = invitationBody.safeParse({ email, role });
+    if (!parsed.success) return setProblem(parsed.error.issues[0].message);
+    setProblem(undefined);
+    invite.mutate(parsed.data, { onSuccess: () => { setSentTo(parsed.data.email); setEmail(''); } });
+  };
+  return (
+    <form onSubmit={submit} className="grid items-end gap-3 sm:grid-cols-[2fr_1fr_auto]" noValidate>
+      <TextField label="E-mail" type="email" value={email} onChange={(e) => setEmail(e.target.value)} placeholder="name@lab.example" />
+      <SelectField label="Role" value={role} onChange={(e) => setRole(e.target.value as Role)}>
+        {ROLES.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
+      </SelectField>
+      <Button type="submit" disabled={invite.isPending}>{invite.isPending ? 'Sending…' : 'Send invitation'}</Button>
+      {(problem || invite.isError) && <div className="sm:col-span-3"><ErrorNote error={invite.error ?? new Error(problem)} /></div>}
+      {sentTo && !invite.isError && <p role="status" className="text-sm text-emerald-700 sm:col-span-3">Invitation sent to {sentTo}.</p>}
+    </form>
+  );
+}
+
+function Invitations({ labId }: { labId: string }) {
+  const invitations = useInvitations(labId, true);
+  const withdraw = useWithdrawInvitation(labId);
+  if (invitations.isPending) return <Loading />;
+  if (invitations.isError) return <ErrorNote error={invitations.error} />;
+  const rows = invitations.data.invitations;
+  if (rows.length === 0) return <p className="text-sm text-harbour-500">No invitations sent yet.</p>;
+  const tone = { pending: 'signal', accepted: 'good', revoked: 'neutral', expired: 'neutral' } as const;
+  return (
+    <ul className="divide-y divide-harbour-100">
+      {rows.map((inv) => (
+        <li key={inv.id} className="flex flex-wrap items-center justify-between gap-2 py-2 text-sm">
+          <span>{inv.email} <span className="text-harbour-500">as {ROLE_LABELS[inv.role].toLowerCase()}, sent {formatDate(inv.createdAt)}</span></span>
+          <span className="flex items-center gap-2">
+            <Badge tone={tone[inv.state]}>{inv.state}</Badge>
+            {inv.state === 'pending' && <Button variant="ghost" className="!py-1" onClick={() => withdraw.mutate(inv.id)}>Withdraw</Button>}
+          </span>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmin: boolean; myUserId: string }) {
+  const members = useMembers(labId);
+  const changeRole = useChangeRole(labId);
+  return (
+    <div className="space-y-6">
+      <Card title="Members">
+        {members.isPending && <Loading />}
+        {members.isError && <ErrorNote error={members.error} />}
+        {members.data?.members.length === 0 && <EmptyState title="No members" />}
+        {changeRole.isError && <div className="mb-3"><ErrorNote error={changeRole.error} /></div>}
+        <ul className="divide-y divide-harbour-100">
+          {members.data?.members.map((m) => (
+            <li key={m.userId} className="flex flex-wrap items-center justify-between gap-3 py-3">
+              <span>
+                <span className="font-medium">{m.name}</span>{m.userId === myUserId && <span className="text-harbour-500"> (you)</span>}
+                <span className="block text-sm text-harbour-500">{m.email}</span>
+              </span>
+              {isAdmin ? (
+                <select
+                  aria-label={`Role of ${m.name}`}
+                  value={m.role}
+                  onChange={(e) => changeRole.mutate({ userId: m.userId, role: e.target.value as Role })}
+                  className="rounded-md border-0 bg-white py-1.5 pl-2 pr-8 text-sm ring-1 ring-harbour-200"
+                >
+                  {ROLES.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
+                </select>
+              ) : (
+                <Badge>{ROLE_LABELS[m.role]}</Badge>
+              )}
+            </li>
+          ))}
+        </ul>
+      </Card>
+      {isAdmin && (
+        <Card title="Invite someone">
+          <InviteForm labId={labId} />
+          <h3 className="mb-2 mt-6 text-xs font-semibold uppercase tracking-wide text-harbour-500">Sent invitations</h3>
+          <Invitations labId={labId} />
+        </Card>
+      )}
+    </div>
+  );
+}

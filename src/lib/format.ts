@@ -1,0 +1,19 @@
+/** Display formatting at the edge: SI values in, lab units out (kPa, °C, mm, g). */
+
+/** Tube pressures span decades (100 kPa to 1 kPa), so they keep 3 significant digits; ambient pressure keeps 0.1 kPa. */
+export const formatKpa = (pa: number | null | undefined, significant = 3) =>
+  pa == null ? '—' : `${(pa / 1000).toLocaleString('en', { maximumSignificantDigits: significant })} kPa`;
+export const formatCelsius = (k: number | null | undefined) => (k == null ? '—' : `${(k - 273.15).toFixed(1)} °C`);
+export const formatMm = (m: number, digits = 1) => `${(m * 1000).toFixed(digits)} mm`;
+export const formatGrams = (kg: number, digits = 2) => `${(kg * 1000).toFixed(digits)} g`;
+
+export function formatDateTime(iso: string | null | undefined): string {
+  if (!iso) return '—';
+  const d = new Date(iso);
+  return d.toLocaleString('en-GB', { year: 'numeric', month: 'short', day: '2-digit', hour: '2-digit', minute: '2-digit' });
+}
+
+export function formatDate(iso: string | null | undefined): string {
+  if (!iso) return '—';
+  return new Date(iso).toLocaleDateString('en-GB', { year: 'numeric', month: 'short', day: '2-digit' });
+}
