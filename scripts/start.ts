@@ -48,6 +48,28 @@ for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
   });
 }
 
+/** The parent process id of `pid`, from /proc (field 4 of stat; the command name before it may hold spaces). */
+function parentOf(pid: number): number | null {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    return Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]);
+  } catch {
+    return null;
+  }
+}
+
+// npm runs `sh -c "bash scripts/start.sh"` and passes a SIGTERM it receives to that sh alone, which dies without
+// passing it on; tsx (our parent) is then re-parented. Treat the launcher going away as a stop request, so a
+// `kill <npm pid>` leaves no servers or databases behind.
+const launcher = parentOf(process.ppid);
+// With the launcher gone the terminal or pipe may be gone too: a failed write must not end the shutdown half-way.
+for (const stream of [process.stdout, process.stderr]) stream.on('error', () => undefined);
+setInterval(() => {
+  if (!shuttingDown && launcher !== null && parentOf(process.ppid) !== launcher) {
+    void shutdown(0, 'the launching process went away: stopping everything');
+  }
+}, 500).unref();
+
 /** Runs a one-shot step (migrate, seed, build) as a child; a failure stops everything. */
 async function step(name: string, command: string, args: string[], env: NodeJS.ProcessEnv): Promise<void> {
   const child = spawnChild({ name, command, args, env });
@@ -116,6 +138,7 @@ interface DemoAccount {
   email: string;
   password: string;
   role: string;
+  lab?: string;
 }
 
 function demoSignIns(): string[] {
@@ -125,7 +148,8 @@ function demoSignIns(): string[] {
     const accounts = JSON.parse(readFileSync(file, 'utf8')) as DemoAccount[];
     const width = Math.max(...accounts.map((account) => account.role.length));
     const emailWidth = Math.max(...accounts.map((account) => account.email.length));
-    return accounts.map((account) => `${account.role.padEnd(width)}  ${account.email.padEnd(emailWidth)}  ${account.password}`);
+    return accounts.map((account) =>
+      `${account.role.padEnd(width)}  ${account.email.padEnd(emailWidth)}  ${account.password}${account.lab ? `  (lab ${account.lab})` : ''}`);
   } catch (error) {
     return [`(could not read ${file}: ${(error as Error).message})`];
   }
