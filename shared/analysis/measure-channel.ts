@@ -30,16 +30,20 @@ export interface ChannelMeasurement {
 }
 
 /**
- * State levels (IEEE Std 181-2011 histogram method), noise within each state and polarity of one channel.
+ * State levels (IEEE Std 181-2011 histogram method; the mode refined by the mean of the samples in the state's
+ * noise band), noise within each state and polarity of one channel.
  * A beam is clear for most of a record, so with polarity "auto" the more populated state is the clear one
  * (common practice: the record is set up around a short pulse).
  */
 export function measureChannel(values: ArrayLike<number>, options: MeasureChannelOptions = {}): ChannelMeasurement {
   const { bins = 100, method = 'mode', trimFraction = 0.001, polarity = 'auto' } = options;
   const levels = stateLevels(values, { bins, method, trimFraction });
-  const { low, high } = levels;
+  const noise = stateNoise(values, levels.low, levels.high);
+  // The mode is only known to a bin; the mean of the state's own samples pins it down (a level off by half a
+  // bin, 0.5 % of the step, would move every crossing by 0.5 % of the edge's duration).
+  const low = method === 'mode' ? noise.lowLevel : levels.low;
+  const high = method === 'mode' ? noise.highLevel : levels.high;
   const amplitude = high - low;
-  const noise = stateNoise(values, low, high);
   const lowSd = noise.lowSd;
   const highSd = noise.highSd;
   const sds = [lowSd, highSd].filter((s) => Number.isFinite(s));

@@ -1,48 +1,79 @@
 export interface StateNoiseOptions {
-  /** Samples within this fraction of the amplitude of a state level count as that state. @default 0.4 */
+  /** Widest band considered around each state level, as a fraction of the amplitude. @default 0.4 */
   bandFraction?: number;
 }
 
 export interface StateNoise {
-  /** Standard deviation of the samples in the lower state, in the values' unit. */
+  /** Mean of the lower state's samples within its chosen band: the state level free of histogram binning, V. */
+  lowLevel: number;
+  highLevel: number;
+  /** Standard deviation of those samples, in the values' unit (NaN when a state has under 2 samples). */
   lowSd: number;
-  /** Standard deviation of the samples in the upper state. */
   highSd: number;
+  /** Samples within the widest band of each state (for telling the dominant state). */
   lowCount: number;
   highCount: number;
 }
 
+const SHELLS = 10;
+
 /**
- * Noise of each state: the standard deviation of the samples lying within ±bandFraction·amplitude of its state
- * level (IEEE Std 181-2011 uses the state's samples; the band keeps transitions out). A wide band (±40 %) keeps
- * the gaussian tails in up to 4σ for noise of 10 % of the amplitude. One pass, shifted sums for accuracy.
+ * Noise of each state: the standard deviation of the samples around its state level (IEEE Std 181-2011 takes
+ * the state's own samples). A fixed band either truncates the noise (too narrow) or takes in the transitions'
+ * samples (too wide), so the band is chosen from the data: one pass sorts deviations into nested bands, each half
+ * the width of the last, and the narrowest band at least 4 standard deviations wide is used (a gaussian
+ * truncated at ±4σ keeps 99.99 % of its variance, e.g. Johnson, Kotz & Balakrishnan, Continuous Univariate
+ * Distributions vol. 1 §13.10). The mean in that band also refines the histogram's level past its bin width.
  */
 export function stateNoise(values: ArrayLike<number>, low: number, high: number, options: StateNoiseOptions = {}): StateNoise {
   const { bandFraction = 0.4 } = options;
   if (!(bandFraction > 0 && bandFraction <= 0.5)) throw new RangeError('bandFraction must lie in (0, 0.5]');
-  const band = bandFraction * Math.abs(high - low);
-  let lowCount = 0;
-  let lowSum = 0;
-  let lowSum2 = 0;
-  let highCount = 0;
-  let highSum = 0;
-  let highSum2 = 0;
+  const widest = bandFraction * Math.abs(high - low);
+  // Shell j holds deviations d with widest/2^(j+1) < |d| ≤ widest/2^j; the last shell holds everything inside.
+  const lowStats = new Float64Array(3 * SHELLS);
+  const highStats = new Float64Array(3 * SHELLS);
   const n = values.length;
   for (let i = 0; i < n; i++) {
     const v = values[i];
-    const dl = v - low;
-    const dh = v - high;
-    if (dl <= band && dl >= -band) {
-      lowCount++;
-      lowSum += dl;
-      lowSum2 += dl * dl;
-    } else if (dh <= band && dh >= -band) {
-      highCount++;
-      highSum += dh;
-      highSum2 += dh * dh;
+    let d = v - low;
+    let stats = lowStats;
+    if (!(d <= widest && d >= -widest)) {
+      d = v - high;
+      if (!(d <= widest && d >= -widest)) continue; // also skips NaN
+      stats = highStats;
     }
+    const a = d < 0 ? -d : d;
+    let j = 0;
+    let edge = widest / 2;
+    while (j < SHELLS - 1 && a <= edge) {
+      j++;
+      edge /= 2;
+    }
+    stats[3 * j]++;
+    stats[3 * j + 1] += d;
+    stats[3 * j + 2] += d * d;
   }
-  const sd = (count: number, sum: number, sum2: number): number =>
-    count > 1 ? Math.sqrt(Math.max(0, (sum2 - (sum * sum) / count) / (count - 1))) : Number.NaN;
-  return { lowSd: sd(lowCount, lowSum, lowSum2), highSd: sd(highCount, highSum, highSum2), lowCount, highCount };
+  const pick = (stats: Float64Array, level: number) => {
+    let count = 0;
+    let sum = 0;
+    let sum2 = 0;
+    let chosen: { level: number; sd: number } | null = null;
+    const total = stats.reduce((acc, _, k) => (k % 3 === 0 ? acc + stats[k] : acc), 0);
+    // Grow the band from the narrowest shell outward; stop at the first band ≥ 4 SD wide.
+    for (let j = SHELLS - 1; j >= 0; j--) {
+      count += stats[3 * j];
+      sum += stats[3 * j + 1];
+      sum2 += stats[3 * j + 2];
+      if (count < 2) continue;
+      const mean = sum / count;
+      const sd = Math.sqrt(Math.max(0, (sum2 - sum * mean) / (count - 1)));
+      const halfWidth = widest / 2 ** j;
+      chosen = { level: level + mean, sd };
+      if (halfWidth >= 4 * sd) break;
+    }
+    return { level: chosen?.level ?? level, sd: chosen?.sd ?? Number.NaN, count: total };
+  };
+  const lo = pick(lowStats, low);
+  const hi = pick(highStats, high);
+  return { lowLevel: lo.level, highLevel: hi.level, lowSd: lo.sd, highSd: hi.sd, lowCount: lo.count, highCount: hi.count };
 }
