@@ -277,6 +277,8 @@ export function initModels(sequelize: Sequelize): void {
   User.hasMany(Membership, { foreignKey: 'userId' });
   Membership.belongsTo(User, { foreignKey: 'userId' });
   User.hasMany(ApiToken, { foreignKey: 'userId' });
+  // authenticate.ts loads a token together with its user.
+  ApiToken.belongsTo(User, { foreignKey: 'userId' });
   Lab.hasMany(Invitation, { foreignKey: 'labId' });
   Lab.hasMany(Campaign, { foreignKey: 'labId' });
   Campaign.hasMany(Shot, { foreignKey: 'campaignId' });
