@@ -1,0 +1,308 @@
+import { ImportError } from './import-error.ts';
+import type { CapturePlan } from './detect-capture-plan.ts';
+import { readSampleField } from './read-sample-field.ts';
+
+/** Column roles for the scanner, one per column of the file. */
+export const SLOT_IGNORE = -1;
+export const SLOT_TIME = -2;
+export const SLOT_INDEX = -3;
+
+/** The part of a CapturePlan the byte scanner needs, in a form that can be posted to a worker thread. */
+export interface ScanSpec {
+  /** Delimiter byte, or -1 for runs of spaces and tabs. */
+  delimiter: number;
+  /** 46 for ".", 44 for a decimal comma. */
+  decimal: number;
+  /** Per column: channel number (≥ 0), SLOT_TIME, SLOT_INDEX or SLOT_IGNORE. */
+  slots: number[];
+  requiredFields: number;
+  /** Multipliers to SI, per channel, and for the time column. */
+  factors: number[];
+  timeFactor: number;
+  textSentinels: string[];
+  numericSentinels: number[];
+  /** Number of numbers a row holds, for messages. */
+  expected: number;
+}
+
+/** Where the scanner writes; `values[k][row]` for channel k. `times` only when the file has a time column. */
+export interface ScanOutput {
+  values: Float64Array[];
+  times: Float64Array | null;
+  invalidCounts: number[];
+}
+
+export interface ScanState {
+  /** Next row to write (index into the output arrays). */
+  row: number;
+  /** Line number of the next line to read (1-based, in the whole file). */
+  line: number;
+  /** Last time written, for the increasing-time check across calls; NaN before the first row. */
+  lastTime: number;
+  /** Index expected in the index column for the next row; NaN when not known yet. */
+  nextIndex: number;
+}
+
+export interface ScanStop {
+  /** 'text': a field that is not a number (maybe a footer); the others are errors in the data. */
+  kind: 'text' | 'error' | 'full';
+  /** Byte offset of the start of the line that stopped the scan. */
+  offset: number;
+  error: ImportError | null;
+}
+
+/** Builds the scanner's spec from a plan. */
+export function scanSpecFromPlan(plan: CapturePlan): ScanSpec {
+  const slots = plan.columnRoles.map(() => SLOT_IGNORE);
+  if (plan.timeColumn !== null) slots[plan.timeColumn] = SLOT_TIME;
+  if (plan.indexColumn !== null) slots[plan.indexColumn] = SLOT_INDEX;
+  plan.channels.forEach((c, k) => { slots[c.column] = k; });
+  return {
+    delimiter: plan.delimiter === 'whitespace' ? -1 : plan.delimiter.charCodeAt(0),
+    decimal: plan.decimalComma ? 44 : 46,
+    slots,
+    requiredFields: plan.requiredFields,
+    factors: plan.channels.map((c) => c.factor),
+    timeFactor: plan.timeFactor,
+    textSentinels: [...plan.fieldOptions.textSentinels],
+    numericSentinels: [...plan.fieldOptions.numericSentinels],
+    expected: plan.channels.length + (plan.timeColumn !== null ? 1 : 0) + (plan.indexColumn !== null ? 1 : 0),
+  };
+}
+
+// Exact powers of ten up to 1e22 (the largest exactly representable in a double).
+const POW10 = Array.from({ length: 23 }, (_, i) => Number(`1e${i}`));
+// Largest mantissa kept exact: 15 significant digits stay below 2^53.
+const MAX_DIGITS = 15;
+const latin1 = new TextDecoder('latin1');
+
+/**
+ * Reads plain rows of numbers straight from bytes into preallocated typed arrays: the fast path for the body of
+ * a deep record, where csv-parse runs at ~19 MB/s (../shared/STACK.md) and this at several hundred.
+ *
+ * Numbers are parsed without making strings. A decimal with at most 15 significant digits and a power-of-ten
+ * exponent of at most 22 is computed as one exact IEEE multiplication or division of two exactly representable
+ * doubles, which is correctly rounded and so bit-identical to parseFloat (Clinger, "How to read floating point
+ * numbers accurately", PLDI 1990, the fast path). Every other field (more digits, huge exponents, sentinels,
+ * text) goes through readSampleField, the same code the text path uses.
+ *
+ * Reads the complete lines in bytes[start, end) (`end` must be a line end or the end of the file), and stops at
+ * the first line it cannot read, returning where; the caller decides whether that is a footer or an error.
+ */
+export function scanNumericRows(bytes: Uint8Array, start: number, end: number, spec: ScanSpec, out: ScanOutput, state: ScanState): ScanStop | null {
+  const { delimiter, decimal, slots, requiredFields, factors, timeFactor } = spec;
+  const width = slots.length;
+  const whitespace = delimiter === -1;
+  const values = out.values;
+  const times = out.times;
+  const capacity = times !== null ? times.length : values.length > 0 ? values[0].length : 0;
+  const textSentinels = new Set(spec.textSentinels);
+  const numericSentinels = new Set(spec.numericSentinels);
+  let minSentinel = Infinity;
+  for (const s of spec.numericSentinels) minSentinel = Math.min(minSentinel, Math.abs(s));
+  const fieldOptions = { decimalComma: decimal === 44, textSentinels, numericSentinels };
+  let row = state.row;
+  let line = state.line;
+  let lastTime = state.lastTime;
+  let nextIndex = state.nextIndex;
+  let p = start;
+
+  const fail = (lineStart: number, message: string): ScanStop => {
+    state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
+    return { kind: 'error', offset: lineStart, error: new ImportError(message, line) };
+  };
+
+  while (p < end) {
+    const lineStart = p;
+    // Blank line (or only spaces/tabs).
+    let q = p;
+    while (q < end && (bytes[q] === 32 || bytes[q] === 9)) q++;
+    if (q >= end || bytes[q] === 10 || bytes[q] === 13) {
+      p = skipEol(bytes, q, end);
+      line++;
+      continue;
+    }
+    if (row >= capacity) {
+      state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
+      return { kind: 'full', offset: lineStart, error: null };
+    }
+    let col = 0;
+    let rowTime = NaN;
+    let blank = false;
+    for (;;) {
+      // Skip spaces before a field (and, with whitespace delimiting, the delimiter run itself).
+      while (p < end && (bytes[p] === 32 || (whitespace && bytes[p] === 9))) p++;
+      const slot = col < width ? slots[col] : SLOT_IGNORE;
+      const fieldStart = p;
+      let value = 0;
+      let parsed = false;
+      if (slot !== SLOT_IGNORE) {
+        // Fast parse: [sign] digits [. digits] [e [sign] digits].
+        let c = p < end ? bytes[p] : 10;
+        let neg = false;
+        if (c === 45) { neg = true; c = ++p < end ? bytes[p] : 10; }
+        else if (c === 43) { c = ++p < end ? bytes[p] : 10; }
+        let mant = 0;
+        let sig = 0;
+        let exp10 = 0;
+        let digits = 0;
+        while (c >= 48 && c <= 57) {
+          if (mant !== 0 || c !== 48) {
+            if (sig < MAX_DIGITS) { mant = mant * 10 + (c - 48); sig++; } else { sig = 99; }
+          }
+          digits++;
+          c = ++p < end ? bytes[p] : 10;
+        }
+        if (c === decimal) {
+          c = ++p < end ? bytes[p] : 10;
+          while (c >= 48 && c <= 57) {
+            if (mant !== 0 || c !== 48) {
+              if (sig < MAX_DIGITS) { mant = mant * 10 + (c - 48); sig++; } else { sig = 99; }
+            }
+            exp10--;
+            digits++;
+            c = ++p < end ? bytes[p] : 10;
+          }
+        }
+        if ((c === 101 || c === 69) && digits > 0) {
+          c = ++p < end ? bytes[p] : 10;
+          let eneg = false;
+          if (c === 45) { eneg = true; c = ++p < end ? bytes[p] : 10; }
+          else if (c === 43) { c = ++p < end ? bytes[p] : 10; }
+          let e = 0;
+          let edigits = 0;
+          while (c >= 48 && c <= 57) {
+            if (e < 100000) e = e * 10 + (c - 48);
+            edigits++;
+            c = ++p < end ? bytes[p] : 10;
+          }
+          if (edigits === 0) digits = 0; // "1e" is not a number: let the slow path refuse it
+          exp10 += eneg ? -e : e;
+        }
+        if (!whitespace) while (c === 32 && p < end) c = ++p < end ? bytes[p] : 10;
+        const atEnd = p >= end || c === 10 || c === 13 || (whitespace ? c === 32 || c === 9 : c === delimiter);
+        if (digits > 0 && atEnd && sig <= MAX_DIGITS) {
+          if (mant === 0) value = 0;
+          else if (exp10 === 0) value = mant;
+          else if (exp10 > 0 && exp10 <= 22) value = mant * POW10[exp10];
+          else if (exp10 < 0 && exp10 >= -22) value = mant / POW10[-exp10];
+          else value = NaN; // outside the exact fast path
+          if (value === value) {
+            parsed = true;
+            if (neg) value = -value;
+          }
+        }
+      }
+      // Find the end of the field.
+      let fieldEnd = p;
+      if (!parsed) {
+        fieldEnd = fieldStart;
+        while (fieldEnd < end) {
+          const c = bytes[fieldEnd];
+          if (c === 10 || c === 13 || (whitespace ? c === 32 || c === 9 : c === delimiter)) break;
+          fieldEnd++;
+        }
+        p = fieldEnd;
+        if (slot !== SLOT_IGNORE || col >= width) {
+          const text = latin1.decode(bytes.subarray(fieldStart, fieldEnd));
+          if (col >= width) {
+            if (text.trim() !== '') return fail(lineStart, `expected ${width} columns as in the rows above, found more (extra value '${clip(text)}')`);
+          } else {
+            const v = readSampleField(text, fieldOptions);
+            if (v === undefined) {
+              if (text.trim() === '' && restIsEmpty(bytes, lineStart, end, delimiter)) {
+                // A line of only delimiters counts as blank, as in the text path.
+                p = skipToEol(bytes, fieldStart, end);
+                blank = true;
+                break;
+              }
+              state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
+              return {
+                kind: 'text',
+                offset: lineStart,
+                error: new ImportError(`expected ${spec.expected} numbers, found '${clip(text)}'${slot === SLOT_TIME ? ' in the time column' : slot === SLOT_INDEX ? ' in the index column' : ''}`, line),
+              };
+            }
+            value = v;
+            parsed = true;
+          }
+        }
+      } else if (value !== 0 && Math.abs(value) >= minSentinel && numericSentinels.has(value)) {
+        value = NaN;
+      }
+      if (parsed) {
+        if (slot >= 0) {
+          if (value !== value) out.invalidCounts[slot]++;
+          values[slot][row] = value * factors[slot];
+        } else if (slot === SLOT_TIME) {
+          if (value !== value) return fail(lineStart, `the time is '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}', not a number; every row needs a valid time`);
+          rowTime = value * timeFactor;
+        } else if (slot === SLOT_INDEX) {
+          if (!Number.isInteger(value)) return fail(lineStart, `expected ${spec.expected} numbers, found '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}' in the index column`);
+          if (nextIndex === nextIndex && value !== nextIndex) {
+            return fail(lineStart, `the sample index ${value} does not follow ${nextIndex - 1} (indices must count up by one)`);
+          }
+          nextIndex = value + 1;
+        }
+      }
+      // Move past the delimiter, or end the line.
+      const c = p < end ? bytes[p] : 10;
+      if (c === 10 || c === 13) break;
+      if (whitespace) {
+        while (p < end && (bytes[p] === 32 || bytes[p] === 9)) p++;
+        if (p >= end || bytes[p] === 10 || bytes[p] === 13) break;
+      } else {
+        p++;
+      }
+      col++;
+    }
+    if (blank) {
+      p = skipEol(bytes, p, end);
+      line++;
+      continue;
+    }
+    const fields = col + 1;
+    if (fields < requiredFields) {
+      return fail(lineStart, `expected ${spec.expected} numbers, found ${fields} field${fields === 1 ? '' : 's'} (a short row)`);
+    }
+    if (times !== null) {
+      if (row > 0 || lastTime === lastTime) {
+        if (!(rowTime > lastTime)) {
+          const what = rowTime === lastTime ? 'repeats the previous time' : 'is earlier than the previous time';
+          return fail(lineStart, `the time ${rowTime} s ${what} (times must increase)`);
+        }
+      }
+      times[row] = rowTime;
+      lastTime = rowTime;
+    }
+    row++;
+    p = skipEol(bytes, p, end);
+    line++;
+  }
+  state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
+  return null;
+}
+
+function skipEol(bytes: Uint8Array, p: number, end: number): number {
+  if (p < end && bytes[p] === 13) p++;
+  if (p < end && bytes[p] === 10) p++;
+  return p;
+}
+
+function skipToEol(bytes: Uint8Array, p: number, end: number): number {
+  while (p < end && bytes[p] !== 10 && bytes[p] !== 13) p++;
+  return p;
+}
+
+function restIsEmpty(bytes: Uint8Array, p: number, end: number, delimiter: number): boolean {
+  for (; p < end && bytes[p] !== 10 && bytes[p] !== 13; p++) {
+    const c = bytes[p];
+    if (c !== 32 && c !== 9 && c !== delimiter) return false;
+  }
+  return true;
+}
+
+function clip(text: string): string {
+  const t = text.trim();
+  return t.length > 40 ? `${t.slice(0, 40)}…` : t;
+}

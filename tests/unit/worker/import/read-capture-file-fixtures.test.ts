@@ -1,0 +1,23 @@
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
+import { readCaptureFile } from '../../../../worker/import/read-capture-file.ts';
+import { checkAgainstTruth } from '../../import/check-against-truth.ts';
+import { CAPTURES_DIR, readCapture, readManifest } from '../../import/fixture-manifest.ts';
+
+// The disk reader's byte scanner must give what the generator wrote, and agree to the bit with the text path.
+const manifest = readManifest();
+
+describe('readCaptureFile on every fixture layout', () => {
+  for (const [name, truth] of Object.entries(manifest)) {
+    it(`When ${name} is read from disk, then it matches the generator and the text path bit for bit`, async () => {
+      const capture = await readCaptureFile(join(CAPTURES_DIR, name), { headBytes: 4096 });
+      checkAgainstTruth(capture, truth);
+      const text = parseScopeCsv(readCapture(name));
+      expect(capture.time).toEqual(text.time);
+      capture.channels.forEach((c, k) => expect(Array.from(c.values)).toEqual(Array.from(text.channels[k].values)));
+      expect(capture.warnings).toEqual(text.warnings);
+      expect(capture.metadata).toEqual(text.metadata);
+    });
+  }
+});

@@ -1,0 +1,193 @@
+import type { ImportedCapture } from '../../shared/contracts/capture.ts';
+import { decodeCaptureBytes } from '../../shared/import/decode-capture-bytes.ts';
+import { detectCapturePlan } from '../../shared/import/detect-capture-plan.ts';
+import { ImportError } from '../../shared/import/import-error.ts';
+import { parseScopeCsv, type ParseScopeCsvOptions } from '../../shared/import/parse-scope-csv.ts';
+import { scanNumericRows, scanSpecFromPlan, type ScanOutput, type ScanState } from '../../shared/import/scan-numeric-rows.ts';
+import { splitLines } from '../../shared/import/split-lines.ts';
+import { finishCapture, isFooterText } from './finish-capture.ts';
+
+export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
+  /** Bytes read before the layout must be clear; a file with no data rows in them is refused. @default 1 MiB */
+  headBytes?: number;
+  /** Longest line accepted in the data; a longer one means the file is not a capture. @default 1 MiB */
+  maxLineBytes?: number;
+  /** Most text after the data that is still taken as a footer. @default 64 KiB */
+  footerBytes?: number;
+  /** Most bytes read for files the fast path cannot take (quoted fields in the data, UTF-16). @default 256 MiB */
+  maxTextBytes?: number;
+  /** Total size of the stream when known, to size the arrays once. @default unknown (arrays grow by doubling) */
+  sizeHint?: number;
+}
+
+/**
+ * Reads a scope export from a stream of bytes (a file, an upload) with the fast byte scanner, holding only the
+ * current block and the sample arrays in memory. The layout is detected from the first `headBytes`; the read
+ * stops at the first line that cannot be data, so a huge file of junk is refused after at most about
+ * `headBytes` + one block instead of being read to its end. Files the scanner cannot take (quoted data fields,
+ * UTF-16) go through parseScopeCsv whole, up to `maxTextBytes`.
+ */
+export async function readCaptureStream(source: AsyncIterable<Uint8Array>, options: ReadCaptureStreamOptions = {}): Promise<ImportedCapture> {
+  const {
+    headBytes = 1 << 20,
+    maxLineBytes = 1 << 20,
+    footerBytes = 64 << 10,
+    maxTextBytes = 256 << 20,
+    sizeHint,
+  } = options;
+  if (!(headBytes >= 1024)) throw new RangeError('headBytes must be at least 1024');
+  const iterator = source[Symbol.asyncIterator]();
+  let done = false;
+  let consumed = 0;
+  const next = async (): Promise<Uint8Array | null> => {
+    if (done) return null;
+    const r = await iterator.next();
+    if (r.done) {
+      done = true;
+      return null;
+    }
+    consumed += r.value.length;
+    return r.value;
+  };
+  try {
+    // The head: enough bytes to see the preamble, the header and the first rows.
+    const headParts: Uint8Array[] = [];
+    let headLength = 0;
+    while (headLength < headBytes) {
+      const chunk = await next();
+      if (chunk === null) break;
+      headParts.push(chunk);
+      headLength += chunk.length;
+    }
+    const head = concat(headParts, headLength);
+    if (head.length === 0) throw new ImportError('the file is empty: there is no text in it');
+    let cut = head.length;
+    if (!done) {
+      cut = lastLineEnd(head);
+      if (cut === 0) throw new ImportError(`no line end in the first ${formatBytes(head.length)}; this is not a CSV text file`, 1);
+    }
+    const decoded = decodeCaptureBytes(head.subarray(0, cut), { encoding: options.encoding });
+    const lines = splitLines(decoded.text);
+    const plan = detectCapturePlan(lines, { ...options, encoding: decoded.encoding, partial: !done });
+    const dataLines = lines.slice(plan.dataStartLine - 1, plan.dataStartLine + 200);
+    const fast = decoded.encoding !== 'utf-16le' && decoded.encoding !== 'utf-16be' && !dataLines.some((l) => l.includes('"'));
+    const lineEnding = decoded.text.includes('\r\n') ? 'CRLF' : decoded.text.includes('\n') ? 'LF' : 'CR';
+    const sourceInfo = { encoding: decoded.encoding, bom: decoded.bom, lineEnding };
+    if (!fast) {
+      // The general text path needs the whole file in memory.
+      const parts = [head];
+      let total = head.length;
+      for (let chunk = await next(); chunk !== null; chunk = await next()) {
+        total += chunk.length;
+        if (total > maxTextBytes) {
+          throw new ImportError(`this file needs the general text reader (quoted fields or UTF-16) and is larger than its limit of ${formatBytes(maxTextBytes)}; export it without quotes, as UTF-8`);
+        }
+        parts.push(chunk);
+      }
+      return parseScopeCsv(concat(parts, total), options);
+    }
+
+    const spec = scanSpecFromPlan(plan);
+    const dataOffset = lineStartOffset(head, plan.dataStartLine);
+    const headRows = Math.max(1, dataLines.length);
+    const bytesPerRow = Math.max(1, (cut - dataOffset) / headRows);
+    let capacity = sizeHint !== undefined ? Math.ceil((sizeHint - dataOffset) / bytesPerRow * 1.05) + 1024 : Math.max(4096, headRows * 4);
+    const out: ScanOutput = {
+      values: plan.channels.map(() => new Float64Array(capacity)),
+      times: plan.timeMode === 'column' ? new Float64Array(capacity) : null,
+      invalidCounts: plan.channels.map(() => 0),
+    };
+    const state: ScanState = { row: 0, line: plan.dataStartLine, lastTime: NaN, nextIndex: NaN };
+    let pending = head.subarray(dataOffset);
+    for (;;) {
+      const stopAt = done ? pending.length : lastLineEnd(pending);
+      if (stopAt === 0 && pending.length > maxLineBytes) {
+        throw new ImportError(`a line is longer than ${formatBytes(maxLineBytes)}, which no row of samples is; this is not a capture file`, state.line);
+      }
+      let stop = stopAt > 0 ? scanNumericRows(pending, 0, stopAt, spec, out, state) : null;
+      while (stop !== null && stop.kind === 'full') {
+        capacity *= 2;
+        grow(out, capacity);
+        stop = scanNumericRows(pending, stop.offset, stopAt, spec, out, state);
+      }
+      if (stop !== null) {
+        if (stop.kind === 'text') {
+          // Text after the data is a footer only if nothing but text follows, and not much of it.
+          const tailParts = [pending.subarray(stop.offset)];
+          let tailLength = tailParts[0].length;
+          while (!done && tailLength <= footerBytes) {
+            const chunk = await next();
+            if (chunk === null) break;
+            tailParts.push(chunk);
+            tailLength += chunk.length;
+          }
+          if (done && tailLength <= footerBytes) {
+            const tailText = decodeCaptureBytes(concat(tailParts, tailLength), { encoding: decoded.encoding }).text;
+            if (isFooterText(plan, tailText)) {
+              return finishCapture({ plan, out, rows: state.row, footerText: tailText, source: { ...sourceInfo, reader: 'stream' } });
+            }
+          }
+        }
+        throw stop.error as ImportError;
+      }
+      if (done) break;
+      const chunk = await next();
+      const rest = pending.subarray(stopAt);
+      pending = chunk === null ? rest : concat([rest, chunk], rest.length + chunk.length);
+    }
+    return finishCapture({ plan, out, rows: state.row, footerText: null, source: { ...sourceInfo, reader: 'stream', bytesRead: consumed } });
+  } finally {
+    if (!done) await iterator.return?.();
+  }
+}
+
+function grow(out: ScanOutput, capacity: number): void {
+  out.values = out.values.map((v) => {
+    const bigger = new Float64Array(capacity);
+    bigger.set(v);
+    return bigger;
+  });
+  if (out.times !== null) {
+    const bigger = new Float64Array(capacity);
+    bigger.set(out.times);
+    out.times = bigger;
+  }
+}
+
+function concat(parts: Uint8Array[], length: number): Uint8Array {
+  if (parts.length === 1) return parts[0];
+  const out = new Uint8Array(length);
+  let at = 0;
+  for (const p of parts) {
+    out.set(p, at);
+    at += p.length;
+  }
+  return out;
+}
+
+/** Offset just past the last complete line end; a CR as the last byte may be half a CRLF and does not count. */
+function lastLineEnd(bytes: Uint8Array): number {
+  let j = bytes.length - 1;
+  while (j >= 0 && !(bytes[j] === 10 || (bytes[j] === 13 && j + 1 < bytes.length))) j--;
+  return j + 1;
+}
+
+/** Byte offset where 1-based line `line` starts (LF, CRLF or CR line ends), past a UTF-8 BOM on line 1. */
+export function lineStartOffset(bytes: Uint8Array, line: number): number {
+  let p = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  for (let l = 1; l < line; l++) {
+    while (p < bytes.length && bytes[p] !== 10 && bytes[p] !== 13) p++;
+    if (p < bytes.length && bytes[p] === 13) {
+      p++;
+      if (p < bytes.length && bytes[p] === 10) p++;
+    } else if (p < bytes.length) {
+      p++;
+    }
+  }
+  return p;
+}
+
+function formatBytes(n: number): string {
+  return n >= 1 << 20 ? `${(n / (1 << 20)).toFixed(0)} MiB` : `${(n / 1024).toFixed(0)} KiB`;
+}
+
