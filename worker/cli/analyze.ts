@@ -4,20 +4,19 @@
  * Analyses one scope export with the same engine the worker runs. Exit codes: 0 analysed (even when gates
  * missed: that is a result, shown in the warnings), 2 unreadable input or bad arguments (one line on stderr).
  */
-import { readFile } from 'node:fs/promises';
 import { pathToFileURL } from 'node:url';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import type { ShotAnalysis } from '../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { parseScopeCsv } from '../../shared/import/parse-scope-csv.ts';
+import { readCaptureFile } from '../import/read-capture-file.ts';
 
 const USAGE = 'usage: analyze FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--json]';
 
 export interface CliIo {
   stdout: (text: string) => void;
   stderr: (text: string) => void;
-  /** Reads a capture file; the default reads it whole and parses it with the shared importer. */
+  /** Reads a capture file; the default is the worker's importer (the same one uploads go through). */
   readCapture?: (path: string) => Promise<ImportedCapture>;
 }
 
@@ -64,10 +63,6 @@ function parseArgs(argv: string[]): CliArgs {
   return args;
 }
 
-async function readWhole(path: string): Promise<ImportedCapture> {
-  return parseScopeCsv(new Uint8Array(await readFile(path)));
-}
-
 const us = (t: number): string => `${(t * 1e6).toFixed(3)} µs`;
 
 function summary(file: string, a: ShotAnalysis): string {
@@ -102,11 +97,12 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
   }
   let capture: ImportedCapture;
   try {
-    capture = await (io.readCapture ?? readWhole)(args.file);
+    capture = await (io.readCapture ?? ((path: string) => readCaptureFile(path)))(args.file);
   } catch (error) {
     const e = error as NodeJS.ErrnoException;
-    const reason = e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message;
-    io.stderr(`analyze: cannot read ${args.file}: ${reason.split('\n')[0]}\n`);
+    const reason = (e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message).split('\n')[0];
+    // The importer's messages usually name the file already ("cannot open x.csv: no such file").
+    io.stderr(reason.includes(args.file) ? `analyze: ${reason}\n` : `analyze: cannot read ${args.file}: ${reason}\n`);
     return 2;
   }
   const options: AnalysisOptionsInput = {};

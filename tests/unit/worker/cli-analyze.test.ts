@@ -92,7 +92,7 @@ describe('analyze CLI', () => {
     const bad = await run([junk, '--spacing', '0.1']);
     expect(bad.code).toBe(2);
     expect(bad.stderr.trim().split('\n')).toHaveLength(1);
-    expect(bad.stderr).toMatch(/^analyze: /);
+    expect(bad.stderr).toMatch(/^analyze: cannot read .*junk\.csv: \S/);
     const { path } = writeShot('args.csv', { sampleInterval: 2e-7, length: 4000 });
     expect((await run([path, '--gate', 'CH1'])).stderr).toMatch(/--gate needs CHANNEL@POSITION_M/);
     expect((await run([path, '--gate', 'CH7@0', '--gate', 'CH1@0.1'])).stderr).toMatch(/names channel "CH7", which the capture does not have/);
