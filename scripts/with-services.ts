@@ -3,14 +3,15 @@
 // Exits with CMD's exit code. See scripts/README.md for the environment CMD receives.
 import { spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { chmodSync, existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { chmodSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
 import { constants } from 'node:os';
 import {
-  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, startPostgres, startRedis, type RunningService,
+  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, startPostgres, startRedis, stopPostgresAt, stopRedisByPidFile,
+  type RunningService,
 } from './lib/services.ts';
 import { describeExit, spawnChild } from './lib/processes.ts';
 
@@ -20,6 +21,43 @@ const command = process.argv.slice(2);
 if (command.length === 0) {
   console.error('usage: bash scripts/with-services.sh COMMAND [ARGS...]');
   process.exit(2);
+}
+
+// A closed pipe (`npm run test:api | head`) must not crash this process before it has stopped the services.
+for (const stream of [process.stdout, process.stderr]) stream.on('error', () => undefined);
+
+const FOLDER_PREFIX = 'gatepost-test-';
+const OWNER_FILE = 'owner.pid';
+
+/**
+ * Clears away the services and folders of earlier runs whose owner process is gone: a run killed with SIGKILL (or a
+ * machine reset) cannot clean up after itself, and its PostgreSQL and Redis would otherwise run until reboot.
+ * Only folders carrying an owner file are touched, so nothing of other programs is.
+ */
+async function sweepAbandonedRuns(): Promise<void> {
+  for (const name of readdirSync(tmpdir()).filter((entry) => entry.startsWith(FOLDER_PREFIX))) {
+    const dir = join(tmpdir(), name);
+    let owner: number;
+    try {
+      owner = Number(readFileSync(join(dir, OWNER_FILE), 'utf8'));
+    } catch {
+      continue;
+    }
+    if (!Number.isInteger(owner) || owner <= 0 || processIsAlive(owner)) continue;
+    say(`clearing away ${dir}, left by an earlier run (pid ${owner}) that was killed`);
+    await stopPostgresAt(join(dir, 'postgres'), 'immediate').catch((error: Error) => say(error.message));
+    await stopRedisByPidFile(join(dir, 'redis', 'redis.pid')).catch((error: Error) => say(error.message));
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+function processIsAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (error) {
+    return (error as NodeJS.ErrnoException).code === 'EPERM';
+  }
 }
 
 const services: RunningService[] = [];
@@ -56,7 +94,9 @@ const signalExitCode = (signal: NodeJS.Signals): number => 128 + (constants.sign
 async function main(): Promise<number> {
   const startedAt = performance.now();
   await ensureDebianPackages(['postgresql', 'redis-server', 'chromium'], say);
-  folder = mkdtempSync(join(tmpdir(), 'gatepost-test-'));
+  await sweepAbandonedRuns();
+  folder = mkdtempSync(join(tmpdir(), FOLDER_PREFIX));
+  writeFileSync(join(folder, OWNER_FILE), String(process.pid));
   // mkdtemp makes the folder private (700); the postgres user must be able to enter it.
   chmodSync(folder, 0o755);
   const [pgPort, redisPort] = [await freePort(), await freePort()];

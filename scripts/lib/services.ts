@@ -330,11 +330,38 @@ function postmasterPort(dir: string): number | null {
   }
 }
 
-async function stopPostgresCluster(pgCtl: string, dir: string): Promise<void> {
+/**
+ * Stops whatever PostgreSQL server runs from the cluster folder `dir` (used to clear away clusters a killed run left
+ * behind). `immediate` skips the shutdown checkpoint, fine only for clusters about to be deleted.
+ */
+export async function stopPostgresAt(dir: string, mode: 'fast' | 'immediate' = 'fast'): Promise<void> {
+  const binDir = findPostgresBinDir();
+  if (!binDir || !existsSync(join(dir, 'postmaster.pid'))) return;
+  await stopPostgresCluster(join(binDir, 'pg_ctl'), dir, mode);
+}
+
+/** Stops the Redis server whose pid file is `pidFile`, if it is still a running redis-server. */
+export async function stopRedisByPidFile(pidFile: string): Promise<void> {
+  const pid = readPid(pidFile);
+  if (pid === null || !isAlive(pid)) return;
+  let command: string;
+  try {
+    command = readFileSync(`/proc/${pid}/cmdline`, 'utf8');
+  } catch {
+    return;
+  }
+  if (!command.includes('redis-server')) return; // the pid was reused by another program
+  process.kill(pid, 'SIGTERM');
+  const deadline = Date.now() + 10_000;
+  while (isAlive(pid) && Date.now() < deadline) await sleep(50);
+  if (isAlive(pid)) process.kill(pid, 'SIGKILL');
+}
+
+async function stopPostgresCluster(pgCtl: string, dir: string, mode: 'fast' | 'immediate' = 'fast'): Promise<void> {
   const status = await run(...asPostgres(pgCtl, ['-D', dir, 'status']));
   if (status.code !== 0) return; // not running (exit 3) or no cluster (exit 4): nothing to stop
   // fast: roll back open transactions and stop now; the cluster itself stays consistent.
-  const result = await run(...asPostgres(pgCtl, ['-D', dir, '-w', '-t', '60', '-m', 'fast', 'stop']));
+  const result = await run(...asPostgres(pgCtl, ['-D', dir, '-w', '-t', '60', '-m', mode, 'stop']));
   if (result.code !== 0) throw new ServiceError(`pg_ctl stop failed for ${dir}: ${result.output.trim()}`);
 }
 
