@@ -53,9 +53,13 @@ export function findTransitions(values: ArrayLike<number>, time: TimeBase, optio
   let previousTransition = 0;
   for (let i = 0; i < n; i++) {
     const v = values[i];
-    if (v - v !== 0) continue;
-    if (v > lowArm && v < highArm) continue;
-    const entered = v <= lowArm ? -1 : 1;
+    let entered: number;
+    // Most samples sit inside one state or on an edge: one or two comparisons each, NaN falls to `continue`.
+    if (v > lowArm) {
+      if (v < highArm) continue;
+      entered = 1;
+    } else if (v <= lowArm) entered = -1;
+    else continue;
     if (entered === state || state === 0) {
       state = entered;
       lastInState = i;

@@ -33,6 +33,9 @@ export function stateNoise(values: ArrayLike<number>, low: number, high: number,
   const lowStats = new Float64Array(3 * SHELLS);
   const highStats = new Float64Array(3 * SHELLS);
   const n = values.length;
+  // |d|/widest·2³⁰ as an integer: its leading zeros give the shell (each shell halves the band) in one
+  // instruction instead of a loop of comparisons per sample.
+  const toInt = 2 ** 30 / widest;
   for (let i = 0; i < n; i++) {
     const v = values[i];
     let d = v - low;
@@ -42,16 +45,14 @@ export function stateNoise(values: ArrayLike<number>, low: number, high: number,
       if (!(d <= widest && d >= -widest)) continue; // also skips NaN
       stats = highStats;
     }
-    const a = d < 0 ? -d : d;
-    let j = 0;
-    let edge = widest / 2;
-    while (j < SHELLS - 1 && a <= edge) {
-      j++;
-      edge /= 2;
-    }
-    stats[3 * j]++;
-    stats[3 * j + 1] += d;
-    stats[3 * j + 2] += d * d;
+    const q = (d < 0 ? -d : d) * toInt;
+    let j = Math.clz32(q) - 2; // q in (2²⁹, 2³⁰] → shell 0
+    if (j < 0) j = 0;
+    else if (j > SHELLS - 1) j = SHELLS - 1;
+    const at = 3 * j;
+    stats[at]++;
+    stats[at + 1] += d;
+    stats[at + 2] += d * d;
   }
   const pick = (stats: Float64Array, level: number) => {
     let count = 0;
