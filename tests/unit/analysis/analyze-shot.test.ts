@@ -198,6 +198,31 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(mc.intervalHigh).toBeGreaterThan(analysis.speed!.value);
   });
 
+  it('reads an explicit time base and Float32 values the same way as a uniform Float64 record', () => {
+    const shot = simulateShot({ noiseRms: 0.01, seed: 4 });
+    const capture = simulatedShotToCapture(shot);
+    const t = new Float64Array(capture.length);
+    for (let i = 0; i < t.length; i++) t[i] = shot.time.t0 + i * shot.time.dt;
+    const explicit = analyzeShot({ ...capture, time: { kind: 'explicit', t } }, { spacing: 0.1 });
+    const single = analyzeShot(
+      { ...capture, channels: capture.channels.map((c) => ({ ...c, values: Float32Array.from(c.values) })) },
+      { spacing: 0.1 },
+    );
+    for (const a of [explicit, single]) {
+      expect(Math.abs(a.gates[0].pulses[0].start - shot.truth.gates[0].entry)).toBeLessThan(2e-8);
+      expect(Math.abs(a.speed!.value / 300 - 1)).toBeLessThan(1e-3);
+    }
+  });
+
+  it('reports a flat (disconnected) channel as missed instead of failing', () => {
+    const capture = simulatedShotToCapture(simulateShot({ gatePositions: [0, 0.1] }));
+    capture.channels[1].values = new Float64Array(capture.length).fill(0.01);
+    const analysis = analyzeShot(capture, { spacing: 0.1, projectile: { length: D } });
+    expect(analysis.channels[1].status).toBe('missed');
+    expect(analysis.gates[1].status).toBe('missed');
+    expect(analysis.speed!.method).toBe('occlusion');
+  });
+
   it('returns plain JSON: a round trip through JSON changes nothing', () => {
     const { analysis } = simulateAndAnalyze(
       { gatePositions: [0, 0.1, 0.2], dipDepth: [1, 1, 0.4], noiseRms: 0.02, length: 12000 },
