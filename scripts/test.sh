@@ -7,13 +7,13 @@ export PATH="$PWD/node_modules/.bin:$PATH"
 # shellcheck source=lib/steps.sh
 source scripts/lib/steps.sh
 
-started=$(now)
+test_started=$(now)
 GATEPOST_TEST_REPORTS=$(mktemp -d "${TMPDIR:-/tmp}/gatepost-reports-XXXXXX")
 export GATEPOST_TEST_REPORTS
 
 summary() {
   local code=$?
-  printf '\nnpm test %s in %s s\n' "$([ "$code" -eq 0 ] && echo passed || echo FAILED)" "$(elapsed "$started")"
+  printf '\nnpm test %s in %s s\n' "$([ "$code" -eq 0 ] && echo passed || echo FAILED)" "$(elapsed "$test_started")"
   # The last line: tests passed and failed over every vitest run that got as far as writing its report.
   node -e '
     const fs = require("fs"), path = require("path");
