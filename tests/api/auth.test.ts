@@ -6,7 +6,9 @@ import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
 import { ApiToken, AuditEvent, Campaign, Invitation, Lab, Membership, Shot, User } from '../../server/db/models/index.ts';
 import { SESSION_COOKIE } from '../../server/lib/authenticate.ts';
+import { readFakeOutbox } from '../../server/dev/fake-smtp.ts';
 import { createMailer } from '../../server/lib/mailer.ts';
+import { hashPassword } from '../../server/lib/passwords.ts';
 import { newInvitationSecret, sha256Hex } from '../../server/lib/tokens.ts';
 import {
   cookiePair, createApiHarness, freeLoopbackPort, setCookieFor, type ApiHarness, type DemoWorld,
@@ -289,6 +291,8 @@ describe('invitations', () => {
     expect(me.body).toMatchObject({ user: { email, name: 'Nadia Ferrow' }, memberships: [{ labId: hollowmere.id, role: 'analyst' }] });
     // The password chosen on acceptance is the account's password from now on.
     expect((await login(email, password)).status).toBe(200);
+    const acceptedEvent = await AuditEvent.findOne({ where: { action: 'invitation.accepted', targetId: sent.body.invitation.id }, rejectOnEmpty: true });
+    expect(acceptedEvent).toMatchObject({ labId: hollowmere.id, actorId: me.body.user.id, details: { role: 'analyst' } });
 
     // Act 4: the link is used up.
     const reopened = await request(h.app).get(`/api/invitations/${token}`);
@@ -320,6 +324,82 @@ describe('invitations', () => {
     expect(open).toBe(0);
     const list = await request(h.app).get(`/api/labs/${demo.labs.hollowmere.id}/invitations`).set('Cookie', admin);
     expect(list.body.invitations.filter((i: { email: string; state: string }) => i.email === email && i.state === 'pending')).toEqual([]);
+  });
+});
+
+describe('invitation edge cases', () => {
+  const invite = (labId: string, cookie: string, body: object) =>
+    request(h.app).post(`/api/labs/${labId}/invitations`).set('Cookie', cookie).send(body);
+  const secretFromOutbox = async (email: string) => {
+    const mails = await readFakeOutbox(h.redis);
+    const mail = mails.find((m) => m.to.includes(email));
+    return /\/invite\/([A-Za-z0-9_-]+)/.exec(mail?.text ?? '')?.[1] ?? '';
+  };
+
+  it('When the invited address already has an account, then accepting needs that account\'s password and adds the membership', async () => {
+    // Arrange: someone from a third lab, with a real password.
+    const email = uniqueEmail('lena.orsk');
+    const other = await Lab.create({ name: 'Third test lab', slug: `third-${Date.now().toString(36)}` });
+    const user = await User.create({ email, name: 'Lena Orsk', passwordHash: await hashPassword('lena-own-password') });
+    await Membership.create({ labId: other.id, userId: user.id, role: 'experimenter' });
+    expect((await invite(demo.labs.hollowmere.id, h.sessionCookie(demo.users.admin.id), { email, role: 'reviewer' })).status).toBe(201);
+    const token = await secretFromOutbox(email);
+    // Act
+    const offer = await request(h.app).get(`/api/invitations/${token}`);
+    const wrong = await request(h.app).post(`/api/invitations/${token}/accept`).send({ password: 'not-her-password' });
+    const right = await request(h.app).post(`/api/invitations/${token}/accept`).send({ password: 'lena-own-password' });
+    // Assert
+    expect(offer.body.accountExists).toBe(true);
+    expect(wrong.status).toBe(401);
+    expect(wrong.body.error.message).toBe(`${email} already has an account: enter its password to join Hollowmere Ballistics Lab.`);
+    expect(right.status).toBe(200);
+    expect(right.body.memberships.map((m: { labSlug: string; role: string }) => [m.labSlug, m.role]).sort()).toEqual([
+      ['hollowmere', 'reviewer'], [other.slug, 'experimenter'],
+    ].sort());
+  });
+
+  it('When an invitation was withdrawn or has expired, then its link answers 410 saying which', async () => {
+    // Arrange
+    const admin = h.sessionCookie(demo.users.admin.id);
+    const lab = demo.labs.hollowmere.id;
+    const [withdrawnEmail, expiredEmail] = [uniqueEmail('withdrawn'), uniqueEmail('expired')];
+    const withdrawn = await invite(lab, admin, { email: withdrawnEmail, role: 'analyst' });
+    const expired = await invite(lab, admin, { email: expiredEmail, role: 'analyst' });
+    // Act
+    expect((await request(h.app).delete(`/api/labs/${lab}/invitations/${withdrawn.body.invitation.id}`).set('Cookie', admin)).status).toBe(204);
+    await h.sequelize.query("UPDATE invitations SET expires_at = now() - interval '1 second' WHERE id = $1", { bind: [expired.body.invitation.id] });
+    const a = await request(h.app).get(`/api/invitations/${await secretFromOutbox(withdrawnEmail)}`);
+    const b = await request(h.app).post(`/api/invitations/${await secretFromOutbox(expiredEmail)}/accept`).send({ name: 'Too Late', password: 'a long enough password' });
+    // Assert
+    expect(a.status).toBe(410);
+    expect(a.body.error.message).toBe('This invitation was withdrawn. Ask your lab admin for a new one.');
+    expect(b.status).toBe(410);
+    expect(b.body.error.message).toBe('This invitation has expired. Ask your lab admin for a new one.');
+    expect(await User.count({ where: { email: expiredEmail } })).toBe(0);
+  });
+
+  it('When a link is made up, then it answers 404 without saying more', async () => {
+    const res = await request(h.app).get('/api/invitations/made-up-secret-that-matches-nothing');
+    expect(res.status).toBe(404);
+    expect(res.body.error.message).toBe('This invitation link is not valid. Ask your lab admin for a new one.');
+  });
+
+  it('When an admin invites a current member or a malformed address, then 409 or 400 says what is wrong and no mail goes out', async () => {
+    // Arrange
+    const admin = h.sessionCookie(demo.users.admin.id);
+    const lab = demo.labs.hollowmere.id;
+    // Act
+    const member = await invite(lab, admin, { email: 'Priya.Okafor@hollowmere.example', role: 'reviewer' });
+    const malformed = await invite(lab, admin, { email: 'priya at hollowmere', role: 'reviewer' });
+    const badRole = await invite(lab, admin, { email: uniqueEmail('someone'), role: 'owner' });
+    // Assert
+    expect(member.status).toBe(409);
+    expect(member.body.error.message).toBe('priya.okafor@hollowmere.example is already a member of this lab.');
+    expect(malformed.status).toBe(400);
+    expect(malformed.body.error.message).toBe('Please correct the request: email: Enter a valid e-mail address.');
+    expect(badRole.status).toBe(400);
+    expect(badRole.body.error.details.fields[0].path).toBe('role');
+    expect(await readFakeOutbox(h.redis)).toEqual([]);
   });
 });
 

@@ -235,7 +235,7 @@ describe('authorization matrix', () => {
         const res = await req;
         actual.push(res.status);
         if (res.status !== row.expect[actual.length - 1]) {
-          unexpected.push(`${actorName(actor)}: ${res.status} ${JSON.stringify(res.body)}`);
+          unexpected.push(`${actorName(actor)}: ${res.status} ${JSON.stringify(res.body).slice(0, 300)}`);
           continue;
         }
         if (res.status >= 400) errorShape(res.body as Record<string, unknown>);
