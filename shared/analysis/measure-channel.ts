@@ -7,7 +7,7 @@ export interface MeasureChannelOptions {
   bins?: number;
   /** IEEE 181 level estimator. @default "mode" */
   method?: 'mode' | 'mean';
-  /** Fraction of samples trimmed at each end of the range before the histogram. @default 0.001 */
+  /** Largest fraction of isolated outlier samples trimmed at each end of the range. @default 0.01 */
   trimFraction?: number;
   /** Polarity, or "auto" to take the state the trace spends less time in as the blocked one. @default "auto" */
   polarity?: Polarity | 'auto';
@@ -36,7 +36,7 @@ export interface ChannelMeasurement {
  * (common practice: the record is set up around a short pulse).
  */
 export function measureChannel(values: ArrayLike<number>, options: MeasureChannelOptions = {}): ChannelMeasurement {
-  const { bins = 100, method = 'mode', trimFraction = 0.001, polarity = 'auto' } = options;
+  const { bins = 100, method = 'mode', trimFraction = 0.01, polarity = 'auto' } = options;
   const levels = stateLevels(values, { bins, method, trimFraction });
   const noise = stateNoise(values, levels.low, levels.high);
   // The mode is only known to a bin; the mean of the state's own samples pins it down (a level off by half a

@@ -4,9 +4,13 @@ export interface StateLevelsOptions {
   /** "mode": centre of the most populated bin of each half; "mean": count-weighted mean of its bin centres.
    * @default "mode" */
   method?: 'mode' | 'mean';
-  /** Fraction of the finite samples ignored at each end of the value range, so that a few spikes cannot
-   * stretch the histogram until both states share one half (0 = the plain method). @default 0 */
+  /** Largest fraction of the samples that may be dropped at each end of the value range as isolated outliers
+   * (spikes), so they cannot stretch the histogram until both states share one half (0 = the plain method).
+   * @default 0 */
   trimFraction?: number;
+  /** Records longer than twice this are histogrammed from a systematic subsample of about this many samples
+   * (0 = always every sample). @default 1_000_000 */
+  maxSamples?: number;
 }
 
 export interface StateLevels {
@@ -17,14 +21,16 @@ export interface StateLevels {
   /** Bounds of the histogram actually used. */
   histogramMin: number;
   histogramMax: number;
-  /** Finite samples seen (NaN and ±Infinity are skipped). */
+  /** Finite samples examined (NaN and ±Infinity are skipped). */
   finiteCount: number;
+  /** Every `stride`-th sample was examined. */
+  stride: number;
 }
 
-// Resolution of the first histogram that locates the trimmed range; 4096 bins put the trim bounds within
-// 1/4096 of the full range, far below the state histogram's own bin width.
-const TRIM_BINS = 4096;
-const TRIM_SAMPLES = 1_000_000;
+// Resolution of the histogram that finds isolated outliers at the ends of the range.
+const TRIM_BINS = 1024;
+// An end bin holding no more than this share of the samples (and at least 1) counts as isolated outliers.
+const SPARSE_SHARE = 1e-5;
 
 /**
  * State levels of a two-state waveform by the histogram method of IEEE Std 181-2011 §5.2.1.3 (also
@@ -34,32 +40,37 @@ const TRIM_SAMPLES = 1_000_000;
  * max + ε (ε = 2⁻⁵²), bin ⌈n·(x − lower)/(upper − lower)⌉, both halves include the middle bin
  * iLow + ⌊(iHigh − iLow)/2⌋, a level is a bin centre.
  *
- * One pass for the range and one for the histogram (plus one with `trimFraction` > 0): no sort, so it stays
- * linear on records of tens of millions of samples.
+ * Deep records are histogrammed from a systematic subsample: a histogram of 10⁶ samples locates a mode as well
+ * as one of 10⁷, and the levels are refined afterwards on the whole record (see state-noise.ts). With
+ * `trimFraction`, sparse bins at the ends (isolated samples: spikes) are dropped first, never a dense state.
  */
 export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptions = {}): StateLevels {
-  const { bins = 100, method = 'mode', trimFraction = 0 } = options;
+  const { bins = 100, method = 'mode', trimFraction = 0, maxSamples = 1_000_000 } = options;
   if (!Number.isInteger(bins) || bins < 2) throw new RangeError('bins must be an integer ≥ 2');
   if (!(trimFraction >= 0 && trimFraction < 0.5)) throw new RangeError('trimFraction must lie in [0, 0.5)');
   if (method !== 'mode' && method !== 'mean') throw new TypeError('method must be "mode" or "mean"');
+  if (!(Number.isInteger(maxSamples) && maxSamples >= 0)) throw new RangeError('maxSamples must be an integer ≥ 0');
   const n = values.length;
+  const stride = maxSamples > 0 && n > 2 * maxSamples ? Math.floor(n / maxSamples) : 1;
   let min = Number.POSITIVE_INFINITY;
   let max = Number.NEGATIVE_INFINITY;
+  let examined = 0;
   let nanCount = 0;
   // NaN fails both comparisons, so it never becomes min or max; counting it apart keeps this loop branch-light.
-  for (let i = 0; i < n; i++) {
+  for (let i = 0; i < n; i += stride) {
     const v = values[i];
     if (v < min) min = v;
     if (v > max) max = v;
     if (v !== v) nanCount++;
+    examined++;
   }
-  let finiteCount = n - nanCount;
+  let finiteCount = examined - nanCount;
   if (min === Number.NEGATIVE_INFINITY || max === Number.POSITIVE_INFINITY) {
     // ±Infinity is not a level: recount with finite samples only (rare, so the slow path is fine).
     min = Number.POSITIVE_INFINITY;
     max = Number.NEGATIVE_INFINITY;
     finiteCount = 0;
-    for (let i = 0; i < n; i++) {
+    for (let i = 0; i < n; i += stride) {
       const v = values[i];
       if (v - v !== 0) continue;
       finiteCount++;
@@ -70,30 +81,21 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   if (finiteCount < 2) throw new RangeError('state levels need at least 2 finite samples');
 
   if (trimFraction > 0 && max > min) {
-    // The trimmed range is a quantile, so a systematic subsample of about 10⁶ samples locates it well enough and
-    // saves most of a pass on deep records. A lone spike the subsample misses leaves its bin empty, and empty
-    // end bins are trimmed anyway.
-    const stride = Math.max(1, Math.floor(n / TRIM_SAMPLES));
     const counts = new Float64Array(TRIM_BINS);
     const scale = TRIM_BINS / (max - min);
-    let counted = 0;
     for (let i = 0; i < n; i += stride) {
       const k = Math.floor((values[i] - min) * scale);
-      if (k >= 0 && k < TRIM_BINS) {
-        counts[k]++;
-        counted++;
-      } else if (k === TRIM_BINS) {
-        counts[TRIM_BINS - 1]++;
-        counted++;
-      }
+      if (k >= 0 && k < TRIM_BINS) counts[k]++;
+      else if (k === TRIM_BINS) counts[TRIM_BINS - 1]++;
     }
-    const cut = trimFraction * counted;
+    const cap = trimFraction * finiteCount;
+    const sparse = Math.max(1, SPARSE_SHARE * finiteCount);
     let below = 0;
     let kLow = 0;
-    while (kLow < TRIM_BINS - 1 && below + counts[kLow] <= cut) below += counts[kLow++];
+    while (kLow < TRIM_BINS - 1 && counts[kLow] <= sparse && below + counts[kLow] <= cap) below += counts[kLow++];
     let above = 0;
     let kHigh = TRIM_BINS - 1;
-    while (kHigh > kLow && above + counts[kHigh] <= cut) above += counts[kHigh--];
+    while (kHigh > kLow && counts[kHigh] <= sparse && above + counts[kHigh] <= cap) above += counts[kHigh--];
     const width = (max - min) / TRIM_BINS;
     const trimmedMin = min + kLow * width;
     const trimmedMax = min + (kHigh + 1) * width;
@@ -105,10 +107,10 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   const lower = min - eps;
   const upper = max + eps;
   // A flat record (or one so large that ε vanishes in rounding) has a single level.
-  if (!(upper > lower)) return { low: min, high: max, histogramMin: min, histogramMax: max, finiteCount };
+  if (!(upper > lower)) return { low: min, high: max, histogramMin: min, histogramMax: max, finiteCount, stride };
   const counts = new Float64Array(bins + 1); // 1-based, as in the reference implementation
   const scale = bins / (upper - lower);
-  for (let i = 0; i < n; i++) {
+  for (let i = 0; i < n; i += stride) {
     const v = values[i];
     if (!(v >= lower && v <= upper)) continue; // also skips NaN and trimmed samples
     let k = Math.ceil((v - lower) * scale);
@@ -137,5 +139,5 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
     }
     return sum / weight;
   };
-  return { low: level(iLow, iMid), high: level(iMid, iHigh), histogramMin: lower, histogramMax: upper, finiteCount };
+  return { low: level(iLow, iMid), high: level(iMid, iHigh), histogramMin: lower, histogramMax: upper, finiteCount, stride };
 }

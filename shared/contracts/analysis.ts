@@ -34,9 +34,10 @@ export const analysisOptionsSchema = z.object({
       /** IEEE 181 histogram method: the mode (default) or the mean of each half. */
       method: z.enum(['mode', 'mean']).default('mode'),
       bins: z.number().int().min(4).max(65536).default(100),
-      /** Fraction of samples ignored at each end of the value range before the histogram, so a few spikes
-       * cannot stretch it (0 = the plain IEEE 181 / Octave method). */
-      trimFraction: z.number().min(0).max(0.05).default(0.001),
+      /** Largest fraction of the samples dropped at each end of the value range as isolated outliers (spikes)
+       * before the histogram, so they cannot stretch it; dense states are never dropped (0 = the plain
+       * IEEE 181 / Octave method). */
+      trimFraction: z.number().min(0).max(0.05).default(0.01),
     })
     .prefault({}),
   threshold: thresholdSchema.prefault({}),

@@ -51,6 +51,32 @@ describe('stateLevels (IEEE Std 181-2011 histogram method)', () => {
     expect(Math.abs(trimmed.high - 5)).toBeLessThan(0.05);
   });
 
+  it('never trims a short but dense state: a 0.13 % blocked state in a 3-million-sample record (subsampled)', () => {
+    // Like a 131 µs pulse in a 0.1 s record: the blocked state is rare but every one of its samples is real.
+    const n = 3_000_000;
+    const v = new Float64Array(n);
+    let seed = 1;
+    const noise = () => {
+      seed = (seed * 16807) % 2147483647; // Park–Miller minimal standard generator, uniform noise ±0.02 V
+      return 0.04 * (seed / 2147483647 - 0.5);
+    };
+    for (let i = 0; i < n; i++) v[i] = (i >= 1_000_000 && i < 1_003_900 ? 0.2 : 4.8) + noise();
+    const s = stateLevels(v, { trimFraction: 0.01 });
+    expect(s.stride).toBe(3);
+    expect(Math.abs(s.low - 0.2)).toBeLessThan(0.05);
+    expect(Math.abs(s.high - 4.8)).toBeLessThan(0.05);
+  });
+
+  it('trims many isolated spikes of random height (0.5 % of the samples)', () => {
+    const v = new Float64Array(20000);
+    for (let i = 0; i < v.length; i++) v[i] = i % 10 < 3 ? 0 : 5;
+    for (let k = 0; k < 100; k++) v[(k * 7919) % v.length] = 5 + 40 * (((k * 37) % 100) / 100);
+    expect(stateLevels(v).low).toBeGreaterThan(4); // untrimmed, both states fall into the lower half
+    const s = stateLevels(v, { trimFraction: 0.01 });
+    expect(Math.abs(s.low)).toBeLessThan(0.05);
+    expect(Math.abs(s.high - 5)).toBeLessThan(0.05);
+  });
+
   it('rejects records without two finite samples and bad options with exact messages', () => {
     expect(() => stateLevels(new Float64Array([Number.NaN, 1]))).toThrow(new RangeError('state levels need at least 2 finite samples'));
     expect(() => stateLevels(new Float64Array(4), { bins: 1 })).toThrow(new RangeError('bins must be an integer ≥ 2'));
