@@ -41,23 +41,26 @@ async function simulatedCapturePath(): Promise<string> {
   return path;
 }
 
-async function capturePath(): Promise<{ path: string; source: string }> {
+async function capturePath(): Promise<{ path: string; source: string; trueSpeed: number | null }> {
   const lib = join(root, 'bench', 'lib', 'big-capture.ts');
   if (existsSync(lib)) {
-    const mod = (await import(pathToFileURL(lib).href)) as { ensureBigCapture?: () => unknown };
+    const mod = (await import(pathToFileURL(lib).href)) as { ensureBigCapture?: () => unknown; BIG_CAPTURE_SHOT?: { speed?: unknown } };
     if (typeof mod.ensureBigCapture === 'function') {
       const got = (await mod.ensureBigCapture()) as unknown;
       const path = typeof got === 'string' ? got : (got as { path?: unknown })?.path;
-      if (typeof path === 'string') return { path, source: 'the import benchmark capture (bench/lib/big-capture.ts)' };
+      const speed = mod.BIG_CAPTURE_SHOT?.speed;
+      if (typeof path === 'string') {
+        return { path, source: 'the import benchmark capture (bench/lib/big-capture.ts)', trueSpeed: typeof speed === 'number' ? speed : null };
+      }
     }
   }
-  return { path: await simulatedCapturePath(), source: 'a simulated capture (bench/lib/big-capture.ts not found)' };
+  return { path: await simulatedCapturePath(), source: 'a simulated capture (bench/lib/big-capture.ts not found)', trueSpeed: 600 };
 }
 
 const median = (xs: number[]): number => [...xs].sort((p, q) => p - q)[Math.floor(xs.length / 2)];
 
 async function main(): Promise<void> {
-  const { path, source } = await capturePath();
+  const { path, source, trueSpeed } = await capturePath();
   console.log(`capture: ${path}\n  from ${source}`);
   const importTimes: number[] = [];
   let capture: ImportedCapture | null = null;
@@ -94,7 +97,8 @@ async function main(): Promise<void> {
     speed = a.speed === null ? 'no speed' : `${a.speed.value.toFixed(2)} ± ${a.speed.uncertainty.toFixed(2)} m/s`;
   }
   const fullMs = median(full);
-  console.log(`whole shot (all channels, gates 0.1 m apart): ${fullMs.toFixed(0)} ms median → ${speed}`);
+  const truth = trueSpeed === null ? '' : ` (simulated truth ${trueSpeed} m/s)`;
+  console.log(`whole shot (all channels, gates 0.1 m apart): ${fullMs.toFixed(0)} ms median → ${speed}${truth}`);
   console.log(`ratio analysis / import: ${(fullMs / importMs).toFixed(3)} (target ≤ 0.25); sum of per-channel runs ${(perChannelTotal / importMs).toFixed(3)}`);
 }
 
