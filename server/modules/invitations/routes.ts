@@ -79,11 +79,6 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
           Lab.findByPk(labId, { rejectOnEmpty: true }),
           User.findByPk(req.auth!.userId, { rejectOnEmpty: true }),
         ]);
-        // A new invitation replaces any still-open one for the same address.
-        await Invitation.update(
-          { revokedAt: new Date() },
-          { where: { labId, email, acceptedAt: null, revokedAt: null } },
-        );
         const { secret, hash } = newInvitationSecret();
         const invitation = await Invitation.create({
           labId, email, role, tokenHash: hash, invitedBy: inviter.id,
@@ -108,6 +103,12 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
           deps.logger.error({ err }, 'invitation e-mail not sent');
           throw serviceUnavailable('The invitation e-mail could not be sent (the mail server did not accept it). Nothing was saved; try again later.', err);
         }
+        // A new invitation replaces any still-open one for the same address, but only once it has gone out: a
+        // failed send must leave the earlier link working ("Nothing was saved").
+        await Invitation.update(
+          { revokedAt: new Date() },
+          { where: { labId, email, acceptedAt: null, revokedAt: null, id: { [Op.ne]: invitation.id } } },
+        );
         await recordAudit({ labId, actorId: inviter.id, action: 'invitation.sent', targetType: 'invitation', targetId: invitation.id, details: { email, role }, ip: clientIp(req) });
         res.status(201).json({ invitation: view(invitation) });
       },
