@@ -182,6 +182,19 @@ describe('sign-in rate limit', () => {
     expect(res.status).toBe(200);
     expect(await h.redis.exists(accountKey)).toBe(0);
   });
+
+  // KNOWN WEAKNESS (reported to the lead, not fixed here): check() runs before the slow password hash and
+  // recordFailure() after it, so guesses sent at the same moment all pass the check. Measured: 10 parallel wrong
+  // passwords with loginMaxFailures = 3 were all verified (10 × 401, counter 10). `it.fails` keeps this visible:
+  // it turns red once the limiter reserves an attempt before verifying, and should then become a plain `it`.
+  it.fails('When many wrong passwords arrive at once, then no more than loginMaxFailures of them are checked', async () => {
+    // Arrange
+    const analyst = demo.users.analyst;
+    // Act
+    const answers = await Promise.all(Array.from({ length: 5 }, (_, i) => login(analyst.email, `parallel-guess-${i}`)));
+    // Assert
+    expect(answers.filter((r) => r.status === 401).length).toBeLessThanOrEqual(h.config.loginMaxFailures);
+  });
 });
 
 describe('personal API tokens', () => {
@@ -325,6 +338,38 @@ describe('invitations', () => {
     const list = await request(h.app).get(`/api/labs/${demo.labs.hollowmere.id}/invitations`).set('Cookie', admin);
     expect(list.body.invitations.filter((i: { email: string; state: string }) => i.email === email && i.state === 'pending')).toEqual([]);
   });
+
+  it('When re-sending to the same address fails because the mail server is down, then the earlier link keeps working', async () => {
+    // Arrange: a first invitation that went out.
+    const admin = h.sessionCookie(demo.users.admin.id);
+    const lab = demo.labs.hollowmere.id;
+    const email = uniqueEmail('resend');
+    const first = await request(h.app).post(`/api/labs/${lab}/invitations`).set('Cookie', admin).send({ email, role: 'analyst' });
+    expect(first.status).toBe(201);
+    const token = /\/invite\/([A-Za-z0-9_-]+)/.exec((await readFakeOutbox(h.redis)).find((m) => m.to.includes(email))!.text)![1];
+    const down = h.appWithMailer(createMailer({ ...h.config, smtpPort: await freeLoopbackPort() }));
+    // Act
+    const resend = await request(down).post(`/api/labs/${lab}/invitations`).set('Cookie', admin).send({ email, role: 'analyst' });
+    // Assert
+    expect(resend.status).toBe(503);
+    expect((await request(h.app).get(`/api/invitations/${token}`)).status).toBe(200);
+    expect((await Invitation.findByPk(first.body.invitation.id, { rejectOnEmpty: true })).revokedAt).toBeNull();
+  });
+
+  it('When an invitation is re-sent successfully, then only the newest link works', async () => {
+    // Arrange
+    const admin = h.sessionCookie(demo.users.admin.id);
+    const lab = demo.labs.hollowmere.id;
+    const email = uniqueEmail('resent');
+    await request(h.app).post(`/api/labs/${lab}/invitations`).set('Cookie', admin).send({ email, role: 'analyst' });
+    // Act
+    const again = await request(h.app).post(`/api/labs/${lab}/invitations`).set('Cookie', admin).send({ email, role: 'reviewer' });
+    // Assert: newest mail first in the outbox.
+    expect(again.status).toBe(201);
+    const [newest, older] = (await readFakeOutbox(h.redis)).filter((m) => m.to.includes(email)).map((m) => /\/invite\/([A-Za-z0-9_-]+)/.exec(m.text)![1]);
+    expect((await request(h.app).get(`/api/invitations/${newest}`)).body.role).toBe('reviewer');
+    expect((await request(h.app).get(`/api/invitations/${older}`)).status).toBe(410);
+  });
 });
 
 describe('invitation edge cases', () => {
@@ -400,6 +445,28 @@ describe('invitation edge cases', () => {
     expect(badRole.status).toBe(400);
     expect(badRole.body.error.details.fields[0].path).toBe('role');
     expect(await readFakeOutbox(h.redis)).toEqual([]);
+  });
+});
+
+describe('error answers', () => {
+  it('When a body is not JSON or a route does not exist, then the answer is the one JSON error shape', async () => {
+    // Act
+    const badJson = await request(h.app).post('/api/auth/login').set('Content-Type', 'application/json').send('{"email": ');
+    const noRoute = await request(h.app).get('/api/no-such-thing');
+    const notUuid = await request(h.app).get('/api/shots/42').set('Cookie', h.sessionCookie(demo.users.admin.id));
+    // Assert
+    expect(badJson.status).toBe(400);
+    expect(badJson.body).toEqual({ error: { code: 'bad_request', message: 'The request body is not valid JSON.' } });
+    expect(noRoute.status).toBe(404);
+    expect(noRoute.body).toEqual({ error: { code: 'not_found', message: 'No such API route.' } });
+    expect(notUuid.status).toBe(404);
+  });
+
+  it('When sign-in input is missing or malformed, then 400 names each field', async () => {
+    const res = await request(h.app).post('/api/auth/login').send({ email: 'not-an-address' });
+    expect(res.status).toBe(400);
+    expect(res.body.error.details.fields.map((f: { path: string }) => f.path).sort()).toEqual(['email', 'password']);
+    expect(res.body.error.message).toContain('email: Enter a valid e-mail address.');
   });
 });
 
