@@ -71,6 +71,26 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   const warnings: string[] = [];
   const time = capture.time;
 
+  // The gate rig: which channels are gates, and where. Channels that are no gate (a trigger, a pressure
+  // probe) are measured but set no reference step and raise no "missed" warnings.
+  let gateSpecs = opts.gates;
+  if (gateSpecs === undefined) {
+    if (capture.channels.length > 1 && opts.spacing === undefined) {
+      throw new RangeError('gate positions are unknown: give the gates (channel and position) or the gate spacing');
+    }
+    const spacing = opts.spacing ?? 0;
+    gateSpecs = capture.channels.map((ch, i) => ({ channel: ch.name, position: i * spacing }));
+  }
+  const channelNames = capture.channels.map((ch) => ch.name);
+  for (const g of gateSpecs) {
+    if (!channelNames.includes(g.channel)) {
+      throw new RangeError(
+        `the gate at ${g.position} m names channel "${g.channel}", which the capture does not have (it has ${channelNames.join(', ')})`,
+      );
+    }
+  }
+  const isGate = capture.channels.map((ch) => gateSpecs.some((g) => g.channel === ch.name));
+
   // 1. Levels, noise and polarity of every channel (on the smoothed copy when smoothing is asked for).
   if (opts.smoothing !== null && time.kind === 'explicit') {
     warnings.push('smoothing assumes evenly spaced samples, but this capture has an explicit, uneven time base');
@@ -95,7 +115,9 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   // 2. The reference step: the rig's, or the largest clean step among the channels.
   let referenceStep = opts.missed.expectedStep ?? 0;
   if (referenceStep === 0) {
-    for (const m of measured) if (m !== null && m.snr >= opts.missed.minSnr) referenceStep = Math.max(referenceStep, m.amplitude);
+    measured.forEach((m, c) => {
+      if (m !== null && isGate[c] && m.snr >= opts.missed.minSnr) referenceStep = Math.max(referenceStep, m.amplitude);
+    });
   }
 
   // 3. Pulses of each usable channel; "missed" with a candidate dip for the others.
@@ -151,12 +173,12 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
       const highArm = Math.max(armA, armB);
       if (lowArm < level && level < highArm) {
         const found = findPulses(trace, { time, crossLevel: level, lowArm, highArm, low: m.low, high: m.high, polarity: m.polarity, noise: m.noise });
-        if (found.openAtStart) warnings.push(`${channel.name}: the record starts with the beam blocked; that pulse was ignored`);
-        if (found.openAtEnd) warnings.push(`${channel.name}: the record ends with the beam blocked; that pulse was ignored`);
+        if (found.openAtStart && isGate[c]) warnings.push(`${channel.name}: the record starts with the beam blocked; that pulse was ignored`);
+        if (found.openAtEnd && isGate[c]) warnings.push(`${channel.name}: the record ends with the beam blocked; that pulse was ignored`);
         // A pulse no longer than two sample intervals is a spike, not a projectile (common practice).
         const minWidth = 2 * (time.kind === 'uniform' ? time.dt : (time.t[time.t.length - 1] - time.t[0]) / (time.t.length - 1));
         const pulses: PulseResult[] = found.pulses.filter((p) => p.width > minWidth);
-        if (pulses.length < found.pulses.length) {
+        if (pulses.length < found.pulses.length && isGate[c]) {
           warnings.push(`${channel.name}: ${found.pulses.length - pulses.length} pulse(s) no longer than 2 samples were ignored as spikes`);
         }
         if (pulses.length > 0) {
@@ -192,7 +214,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   }
 
   // Missed channels: the polarity the working gates show, and the deepest dip toward it.
-  const okPolarities = channels.filter((c) => c.status === 'ok').map((c) => c.polarity);
+  const okPolarities = channels.filter((c, i) => c.status === 'ok' && isGate[i]).map((c) => c.polarity);
   const rigPolarity: Polarity =
     opts.polarity !== 'auto'
       ? opts.polarity
@@ -202,7 +224,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   for (let c = 0; c < channels.length; c++) {
     const ch = channels[c];
     const m = measured[c];
-    if (ch.status !== 'missed' || m === null) continue;
+    if (ch.status !== 'missed' || m === null || !isGate[c]) continue;
     ch.polarity = rigPolarity;
     const clearLevel = rigPolarity === 'falling' ? m.high : m.low;
     const step = referenceStep > 0 ? referenceStep : m.amplitude;
@@ -220,22 +242,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   }
 
   // 4. Gates: channel (and pulse order) → position.
-  let gateSpecs = opts.gates;
-  if (gateSpecs === undefined) {
-    if (capture.channels.length > 1 && opts.spacing === undefined) {
-      throw new RangeError('gate positions are unknown: give the gates (channel and position) or the gate spacing');
-    }
-    const spacing = opts.spacing ?? 0;
-    gateSpecs = capture.channels.map((ch, i) => ({ channel: ch.name, position: i * spacing }));
-  }
   const byName = new Map(channels.map((ch) => [ch.name, ch]));
-  for (const g of gateSpecs) {
-    if (!byName.has(g.channel)) {
-      throw new RangeError(
-        `the gate at ${g.position} m names channel "${g.channel}", which the capture does not have (it has ${channels.map((ch) => ch.name).join(', ')})`,
-      );
-    }
-  }
   const sortedSpecs = [...gateSpecs].sort((a, b) => a.position - b.position);
   const gates: GateResult[] = [];
   const fired: FiredGate[] = [];

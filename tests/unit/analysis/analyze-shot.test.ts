@@ -223,6 +223,18 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(analysis.speed!.method).toBe('occlusion');
   });
 
+  it('a channel that is no gate (a 10 V trigger) neither sets the reference step nor raises warnings', () => {
+    const shot = simulateShot({ noiseRms: 0.01 });
+    const capture = simulatedShotToCapture(shot);
+    const trigger = new Float64Array(capture.length);
+    for (let i = 0; i < trigger.length; i++) trigger[i] = i > 800 ? 10 : 0;
+    capture.channels.push({ name: 'TRIG', unit: 'V', sourceUnit: 'V', values: trigger, invalidCount: 0 });
+    const analysis = analyzeShot(capture, { gates: [{ channel: 'CH1', position: 0 }, { channel: 'CH2', position: 0.1 }] });
+    expect(analysis.gates.map((g) => g.status)).toEqual(['ok', 'ok']);
+    expect(analysis.warnings).toEqual([]);
+    expect(Math.abs(analysis.speed!.value / 300 - 1)).toBeLessThan(1e-3);
+  });
+
   it('returns plain JSON: a round trip through JSON changes nothing', () => {
     const { analysis } = simulateAndAnalyze(
       { gatePositions: [0, 0.1, 0.2], dipDepth: [1, 1, 0.4], noiseRms: 0.02, length: 12000 },
