@@ -19,9 +19,9 @@ export interface ChannelMeasurement {
   amplitude: number;
   lowSd: number;
   highSd: number;
-  /** Noise for timing jitter: RMS of the two states' standard deviations (or the one that exists), V. */
+  /** Noise for timing jitter: standard deviation in the clear state (or in the other when it has too few samples), V. */
   noise: number;
-  /** Amplitude over the larger state noise (Infinity for a noise-free record). */
+  /** Amplitude over `noise` (Infinity for a noise-free record). */
   snr: number;
   polarity: Polarity;
   /** Level of the beam-clear state and of the beam-blocked state, V. */
@@ -40,24 +40,29 @@ export function measureChannel(values: ArrayLike<number>, options: MeasureChanne
   const levels = stateLevels(values, { bins, method, trimFraction });
   const noise = stateNoise(values, levels.low, levels.high);
   // The mode is only known to a bin; the mean of the state's own samples pins it down (a level off by half a
-  // bin, 0.5 % of the step, would move every crossing by 0.5 % of the edge's duration).
-  const low = method === 'mode' ? noise.lowLevel : levels.low;
-  const high = method === 'mode' ? noise.highLevel : levels.high;
+  // bin, 0.5 % of the step, would move every crossing by 0.5 % of the edge's duration). A state that never
+  // settles (a slow sensor's dip) has no flat part to average: there the mean wanders off and the mode stays.
+  const binWidth = (levels.histogramMax - levels.histogramMin) / bins;
+  const refine = (mode: number, mean: number): number => (method === 'mode' && Math.abs(mean - mode) <= binWidth ? mean : mode);
+  const low = refine(levels.low, noise.lowLevel);
+  const high = refine(levels.high, noise.highLevel);
   const amplitude = high - low;
   const lowSd = noise.lowSd;
   const highSd = noise.highSd;
-  const sds = [lowSd, highSd].filter((s) => Number.isFinite(s));
-  const rms = sds.length > 0 ? Math.sqrt(sds.reduce((a, s) => a + s * s, 0) / sds.length) : 0;
-  const worst = sds.length > 0 ? Math.max(...sds) : 0;
-  const snr = worst > 0 ? amplitude / worst : amplitude > 0 ? Number.POSITIVE_INFINITY : 0;
   const resolved: Polarity = polarity !== 'auto' ? polarity : noise.highCount >= noise.lowCount ? 'falling' : 'rising';
+  // The instrument's noise is read in the clear state: it is flat and holds most samples, whereas the blocked
+  // state of a slow sensor is still settling and its spread is signal, not noise.
+  const clearSd = resolved === 'falling' ? highSd : lowSd;
+  const otherSd = resolved === 'falling' ? lowSd : highSd;
+  const sd = Number.isFinite(clearSd) ? clearSd : Number.isFinite(otherSd) ? otherSd : 0;
+  const snr = sd > 0 ? amplitude / sd : amplitude > 0 ? Number.POSITIVE_INFINITY : 0;
   return {
     low,
     high,
     amplitude,
     lowSd,
     highSd,
-    noise: rms,
+    noise: sd,
     snr,
     polarity: resolved,
     clearLevel: resolved === 'falling' ? high : low,

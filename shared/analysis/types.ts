@@ -52,7 +52,7 @@ export interface ChannelResult {
   referenceLevels: { proximal: number; mesial: number; distal: number };
   /** Standard deviation within each state, V. */
   noise: { low: number | null; high: number | null };
-  /** Amplitude over the larger state noise. */
+  /** Amplitude over the clear state's noise (null for a noise-free record). */
   snr: number | null;
   /** Levels actually used for detection, V: crossing level and the hysteresis band. */
   threshold: { level: number; lowArm: number; highArm: number } | null;

@@ -69,6 +69,16 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(Math.abs(analysis.speed!.value / 300 - 1)).toBeLessThan(1e-4);
   });
 
+  it('very slow sensor (τ = 100 µs, a photodarlington, on a 133 µs pulse): gates still fire, the cross-check warns', () => {
+    // DOMAIN.md: photodarlingtons ~100 µs. The dip never settles, so the width (and ℓ/τ) is distorted while the
+    // like-edge flight time is not: exactly what the cross-check exists to flag.
+    const { analysis } = simulateAndAnalyze({ responseTime: 1e-4, length: 20000, noiseRms: 0.01 }, { spacing: 0.1, projectile: { length: D } });
+    expect(analysis.gates.map((g) => g.status)).toEqual(['ok', 'ok']);
+    expect(Math.abs(analysis.speed!.value - 300)).toBeLessThan(analysis.speed!.uncertainty);
+    expect(analysis.crossChecks[0].consistent).toBe(false);
+    expect(analysis.warnings.join('\n')).toMatch(/cross-check.*slow or asymmetric sensor/);
+  });
+
   it('detects rising and falling polarity from the trace', () => {
     for (const polarity of ['rising', 'falling'] as const) {
       const { analysis } = simulateAndAnalyze({ polarity, noiseRms: 0.01 }, { spacing: 0.1 });
