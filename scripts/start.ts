@@ -19,6 +19,8 @@ const tsx = join(root, 'node_modules/.bin/tsx');
 const say = (line: string): void => console.log(`[start] ${line}`);
 
 const services: RunningService[] = [];
+// A database being started when a stop request comes: the shutdown waits for it, then stops it too.
+let serviceStarting: Promise<unknown> = Promise.resolve();
 const children: ChildHandle[] = [];
 let shuttingDown: Promise<never> | null = null;
 
@@ -27,6 +29,7 @@ function shutdown(code: number, reason: string): Promise<never> {
   shuttingDown ??= (async () => {
     say(reason);
     await Promise.all([...children].reverse().map((child) => child.stop(10_000)));
+    await serviceStarting.catch(() => undefined);
     for (const service of [...services].reverse()) {
       try {
         await service.stop();
@@ -69,6 +72,12 @@ setInterval(() => {
     void shutdown(0, 'the launching process went away: stopping everything');
   }
 }, 500).unref();
+
+/** Starts a database and records it for the shutdown in the same step, so a Ctrl-C meanwhile cannot miss it. */
+function startService(start: () => Promise<RunningService>): Promise<unknown> {
+  serviceStarting = start().then((service) => services.push(service));
+  return serviceStarting;
+}
 
 /** Runs a one-shot step (migrate, seed, build) as a child; a failure stops everything. */
 async function step(name: string, command: string, args: string[], env: NodeJS.ProcessEnv): Promise<void> {
@@ -171,9 +180,9 @@ async function main(): Promise<void> {
   say(`data folder ${dataDir}`);
   const secret = jwtSecret(dataDir);
 
-  services.push(await startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), say }));
+  await startService(() => startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), say }));
   if (shuttingDown) return;
-  services.push(await startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, say }));
+  await startService(() => startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, say }));
   if (shuttingDown) return;
   const [postgres, redis] = services;
 

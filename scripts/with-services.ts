@@ -13,7 +13,7 @@ import {
   CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, startPostgres, startRedis, stopPostgresAt, stopRedisByPidFile,
   type RunningService,
 } from './lib/services.ts';
-import { describeExit, spawnChild } from './lib/processes.ts';
+import { describeExit, spawnChild, type ChildHandle } from './lib/processes.ts';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const say = (line: string): void => console.log(`[services] ${line}`);
@@ -64,6 +64,7 @@ const services: RunningService[] = [];
 let folder: string | null = null;
 let stopSignal: NodeJS.Signals | null = null;
 let commandProcess: ReturnType<typeof spawn> | null = null;
+let migrateProcess: ChildHandle | null = null;
 
 for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
   process.on(signal, () => {
@@ -72,6 +73,7 @@ for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
     say(`${signal} received: stopping`);
     // A Ctrl-C in the terminal reaches the command too (same process group); a SIGTERM sent to us alone does not.
     if (commandProcess && commandProcess.exitCode === null) commandProcess.kill(signal);
+    void migrateProcess?.stop();
   });
 }
 
@@ -118,7 +120,7 @@ async function main(): Promise<number> {
   };
 
   if (existsSync(join(root, 'server/db/cli.ts'))) {
-    const migrate = spawnChild({ name: 'migrate', command: join(root, 'node_modules/.bin/tsx'), args: ['server/db/cli.ts', 'migrate'], env, cwd: root });
+    const migrate = (migrateProcess = spawnChild({ name: 'migrate', command: join(root, 'node_modules/.bin/tsx'), args: ['server/db/cli.ts', 'migrate'], env, cwd: root }));
     const status = await migrate.exited;
     if (stopSignal) return signalExitCode(stopSignal);
     if (status.code !== 0) {
