@@ -1,6 +1,7 @@
 import { ImportError } from './import-error.ts';
 import type { CapturePlan } from './detect-capture-plan.ts';
 import { readSampleField } from './read-sample-field.ts';
+import type { TimeGridHull } from './time-grid-hull.ts';
 
 /** Column roles for the scanner, one per column of the file. */
 export const SLOT_IGNORE = -1;
@@ -29,6 +30,8 @@ export interface ScanSpec {
 export interface ScanOutput {
   values: Float64Array[];
   times: Float64Array | null;
+  /** For a time column whose times are not kept: tracks their deviation from an even grid instead. */
+  hull?: TimeGridHull | null;
   invalidCounts: number[];
 }
 
@@ -72,8 +75,8 @@ export function scanSpecFromPlan(plan: CapturePlan): ScanSpec {
 
 // Exact powers of ten up to 1e22 (the largest exactly representable in a double).
 const POW10 = Array.from({ length: 23 }, (_, i) => Number(`1e${i}`));
-// Largest mantissa kept exact: 15 significant digits stay below 2^53.
-const MAX_DIGITS = 15;
+// Largest integer below which every integer is exact in a double: 2^53 − 1.
+const MAX_EXACT = 9007199254740991;
 const latin1 = new TextDecoder('latin1');
 
 /**
@@ -95,7 +98,9 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   const whitespace = delimiter === -1;
   const values = out.values;
   const times = out.times;
-  const capacity = times !== null ? times.length : values.length > 0 ? values[0].length : 0;
+  const hull = out.hull ?? null;
+  const hasTime = slots.includes(SLOT_TIME);
+  const capacity = values.length > 0 ? values[0].length : times !== null ? times.length : 0;
   const textSentinels = new Set(spec.textSentinels);
   const numericSentinels = new Set(spec.numericSentinels);
   let minSentinel = Infinity;
@@ -105,12 +110,10 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   let line = state.line;
   let lastTime = state.lastTime;
   let nextIndex = state.nextIndex;
+  if (end > start && bytes[end - 1] !== 10 && bytes[end - 1] !== 13) {
+    throw new RangeError('end must follow a line end (append one after the last line of a file)');
+  }
   let p = start;
-
-  const fail = (lineStart: number, message: string): ScanStop => {
-    state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
-    return { kind: 'error', offset: lineStart, error: new ImportError(message, line) };
-  };
 
   while (p < end) {
     const lineStart = p;
@@ -130,58 +133,40 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
     let rowTime = NaN;
     let blank = false;
     for (;;) {
-      // Skip spaces before a field (and, with whitespace delimiting, the delimiter run itself).
-      while (p < end && (bytes[p] === 32 || (whitespace && bytes[p] === 9))) p++;
+      // Skip spaces before a field (and, with whitespace delimiting, the delimiter run itself). No bounds checks
+      // inside a line: the byte before `end` is a line end, and every loop below stops at one.
+      if (whitespace) while (bytes[p] === 32 || bytes[p] === 9) p++;
+      else while (bytes[p] === 32) p++;
       const slot = col < width ? slots[col] : SLOT_IGNORE;
       const fieldStart = p;
       let value = 0;
       let parsed = false;
       if (slot !== SLOT_IGNORE) {
         // Fast parse: [sign] digits [. digits] [e [sign] digits].
-        let c = p < end ? bytes[p] : 10;
+        let c = bytes[p];
         let neg = false;
-        if (c === 45) { neg = true; c = ++p < end ? bytes[p] : 10; }
-        else if (c === 43) { c = ++p < end ? bytes[p] : 10; }
+        if (c === 45) { neg = true; c = bytes[++p]; } else if (c === 43) { c = bytes[++p]; }
         let mant = 0;
-        let sig = 0;
         let exp10 = 0;
         let digits = 0;
-        while (c >= 48 && c <= 57) {
-          if (mant !== 0 || c !== 48) {
-            if (sig < MAX_DIGITS) { mant = mant * 10 + (c - 48); sig++; } else { sig = 99; }
-          }
-          digits++;
-          c = ++p < end ? bytes[p] : 10;
-        }
+        while ((c - 48) >>> 0 < 10) { mant = mant * 10 + (c - 48); digits++; c = bytes[++p]; }
         if (c === decimal) {
-          c = ++p < end ? bytes[p] : 10;
-          while (c >= 48 && c <= 57) {
-            if (mant !== 0 || c !== 48) {
-              if (sig < MAX_DIGITS) { mant = mant * 10 + (c - 48); sig++; } else { sig = 99; }
-            }
-            exp10--;
-            digits++;
-            c = ++p < end ? bytes[p] : 10;
-          }
+          c = bytes[++p];
+          while ((c - 48) >>> 0 < 10) { mant = mant * 10 + (c - 48); exp10--; digits++; c = bytes[++p]; }
         }
         if ((c === 101 || c === 69) && digits > 0) {
-          c = ++p < end ? bytes[p] : 10;
+          c = bytes[++p];
           let eneg = false;
-          if (c === 45) { eneg = true; c = ++p < end ? bytes[p] : 10; }
-          else if (c === 43) { c = ++p < end ? bytes[p] : 10; }
+          if (c === 45) { eneg = true; c = bytes[++p]; } else if (c === 43) { c = bytes[++p]; }
           let e = 0;
           let edigits = 0;
-          while (c >= 48 && c <= 57) {
-            if (e < 100000) e = e * 10 + (c - 48);
-            edigits++;
-            c = ++p < end ? bytes[p] : 10;
-          }
+          while ((c - 48) >>> 0 < 10) { if (e < 100000) e = e * 10 + (c - 48); edigits++; c = bytes[++p]; }
           if (edigits === 0) digits = 0; // "1e" is not a number: let the slow path refuse it
           exp10 += eneg ? -e : e;
         }
-        if (!whitespace) while (c === 32 && p < end) c = ++p < end ? bytes[p] : 10;
-        const atEnd = p >= end || c === 10 || c === 13 || (whitespace ? c === 32 || c === 9 : c === delimiter);
-        if (digits > 0 && atEnd && sig <= MAX_DIGITS) {
+        if (!whitespace) while (c === 32) c = bytes[++p];
+        // Every partial mantissa is at most the final one, so a final one below 2^53 was built exactly.
+        if (digits > 0 && mant <= MAX_EXACT && (c === delimiter || c === 10 || c === 13 || (whitespace && (c === 32 || c === 9)))) {
           if (mant === 0) value = 0;
           else if (exp10 === 0) value = mant;
           else if (exp10 > 0 && exp10 <= 22) value = mant * POW10[exp10];
@@ -197,7 +182,7 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
       let fieldEnd = p;
       if (!parsed) {
         fieldEnd = fieldStart;
-        while (fieldEnd < end) {
+        for (;;) {
           const c = bytes[fieldEnd];
           if (c === 10 || c === 13 || (whitespace ? c === 32 || c === 9 : c === delimiter)) break;
           fieldEnd++;
@@ -206,7 +191,7 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
         if (slot !== SLOT_IGNORE || col >= width) {
           const text = latin1.decode(bytes.subarray(fieldStart, fieldEnd));
           if (col >= width) {
-            if (text.trim() !== '') return fail(lineStart, `expected ${width} columns as in the rows above, found more (extra value '${clip(text)}')`);
+            if (text.trim() !== '') return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${width} columns as in the rows above, found more (extra value '${clip(text)}')`);
           } else {
             const v = readSampleField(text, fieldOptions);
             if (v === undefined) {
@@ -235,22 +220,22 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
           if (value !== value) out.invalidCounts[slot]++;
           values[slot][row] = value * factors[slot];
         } else if (slot === SLOT_TIME) {
-          if (value !== value) return fail(lineStart, `the time is '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}', not a number; every row needs a valid time`);
+          if (value !== value) return failAt(state, row, line, lastTime, nextIndex, lineStart, `the time is '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}', not a number; every row needs a valid time`);
           rowTime = value * timeFactor;
         } else if (slot === SLOT_INDEX) {
-          if (!Number.isInteger(value)) return fail(lineStart, `expected ${spec.expected} numbers, found '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}' in the index column`);
+          if (!Number.isInteger(value)) return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${spec.expected} numbers, found '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}' in the index column`);
           if (nextIndex === nextIndex && value !== nextIndex) {
-            return fail(lineStart, `the sample index ${value} does not follow ${nextIndex - 1} (indices must count up by one)`);
+            return failAt(state, row, line, lastTime, nextIndex, lineStart, `the sample index ${value} does not follow ${nextIndex - 1} (indices must count up by one)`);
           }
           nextIndex = value + 1;
         }
       }
       // Move past the delimiter, or end the line.
-      const c = p < end ? bytes[p] : 10;
+      const c = bytes[p];
       if (c === 10 || c === 13) break;
       if (whitespace) {
-        while (p < end && (bytes[p] === 32 || bytes[p] === 9)) p++;
-        if (p >= end || bytes[p] === 10 || bytes[p] === 13) break;
+        while (bytes[p] === 32 || bytes[p] === 9) p++;
+        if (bytes[p] === 10 || bytes[p] === 13) break;
       } else {
         p++;
       }
@@ -263,16 +248,17 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
     }
     const fields = col + 1;
     if (fields < requiredFields) {
-      return fail(lineStart, `expected ${spec.expected} numbers, found ${fields} field${fields === 1 ? '' : 's'} (a short row)`);
+      return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${spec.expected} numbers, found ${fields} field${fields === 1 ? '' : 's'} (a short row)`);
     }
-    if (times !== null) {
-      if (row > 0 || lastTime === lastTime) {
+    if (hasTime) {
+      if (lastTime === lastTime) {
         if (!(rowTime > lastTime)) {
           const what = rowTime === lastTime ? 'repeats the previous time' : 'is earlier than the previous time';
-          return fail(lineStart, `the time ${rowTime} s ${what} (times must increase)`);
+          return failAt(state, row, line, lastTime, nextIndex, lineStart, `the time ${rowTime} s ${what} (times must increase)`);
         }
       }
-      times[row] = rowTime;
+      if (times !== null) times[row] = rowTime;
+      else if (hull !== null) hull.push(row, rowTime);
       lastTime = rowTime;
     }
     row++;
@@ -281,6 +267,15 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   }
   state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
   return null;
+}
+
+// Outside the scan loop on purpose: a closure over row/line would move them out of registers in V8.
+function failAt(state: ScanState, row: number, line: number, lastTime: number, nextIndex: number, lineStart: number, message: string): ScanStop {
+  state.row = row;
+  state.line = line;
+  state.lastTime = lastTime;
+  state.nextIndex = nextIndex;
+  return { kind: 'error', offset: lineStart, error: new ImportError(message, line) };
 }
 
 function skipEol(bytes: Uint8Array, p: number, end: number): number {

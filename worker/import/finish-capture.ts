@@ -15,6 +15,8 @@ export interface FinishCaptureInput {
   /** Text after the last data row when the scan stopped at a footer; null when the data ran to the end. */
   footerText: string | null;
   source: Record<string, unknown>;
+  /** The time base when it was worked out while scanning (TimeGridHull) instead of from `out.times`. */
+  time?: TimeBase;
 }
 
 /**
@@ -40,7 +42,9 @@ export function finishCapture(input: FinishCaptureInput): ImportedCapture {
   }
   if (rows < 2) throw new ImportError('the file holds only one row of samples; at least two are needed for a time base', plan.dataStartLine);
   let time: TimeBase;
-  if (out.times !== null) {
+  if (input.time !== undefined) {
+    time = input.time;
+  } else if (out.times !== null) {
     const fitted = fitTimeBase(out.times, rows, { tolerance: plan.uniformTolerance });
     time = fitted.time;
     if (fitted.warning !== null) warnings.push(fitted.warning);

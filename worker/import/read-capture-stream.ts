@@ -5,7 +5,10 @@ import { ImportError } from '../../shared/import/import-error.ts';
 import { parseScopeCsv, type ParseScopeCsvOptions } from '../../shared/import/parse-scope-csv.ts';
 import { scanNumericRows, scanSpecFromPlan, type ScanOutput, type ScanState } from '../../shared/import/scan-numeric-rows.ts';
 import { splitLines } from '../../shared/import/split-lines.ts';
+import { TimeGridHull } from '../../shared/import/time-grid-hull.ts';
 import { finishCapture, isFooterText } from './finish-capture.ts';
+import { headTimeHint } from './head-time-hint.ts';
+import { lineStartOffset } from './line-start-offset.ts';
 
 export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
   /** Bytes read before the layout must be clear; a file with no data rows in them is refused. @default 1 MiB */
@@ -18,6 +21,10 @@ export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
   maxTextBytes?: number;
   /** Total size of the stream when known, to size the arrays once. @default unknown (arrays grow by doubling) */
   sizeHint?: number;
+  /** Opens the same bytes again. When given, an evenly spaced time column is checked without keeping its
+   * times (TimeGridHull), and only a file that turns out unevenly spaced is read a second time to keep them.
+   * @default none: the times are kept while reading */
+  reopen?: () => AsyncIterable<Uint8Array>;
 }
 
 /**
@@ -56,7 +63,7 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     while (headLength < headBytes) {
       const chunk = await next();
       if (chunk === null) break;
-      headParts.push(chunk);
+      headParts.push(chunk.slice()); // the source may reuse its buffer
       headLength += chunk.length;
     }
     const head = concat(headParts, headLength);
@@ -78,6 +85,7 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
       const parts = [head];
       let total = head.length;
       for (let chunk = await next(); chunk !== null; chunk = await next()) {
+        chunk = chunk.slice();
         total += chunk.length;
         if (total > maxTextBytes) {
           throw new ImportError(`this file needs the general text reader (quoted fields or UTF-16) and is larger than its limit of ${formatBytes(maxTextBytes)}; export it without quotes, as UTF-8`);
@@ -89,53 +97,86 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
 
     const spec = scanSpecFromPlan(plan);
     const dataOffset = lineStartOffset(head, plan.dataStartLine);
-    const headRows = Math.max(1, dataLines.length);
+    const headRows = Math.max(1, lines.length - plan.dataStartLine + 1);
     const bytesPerRow = Math.max(1, (cut - dataOffset) / headRows);
     let capacity = sizeHint !== undefined ? Math.ceil((sizeHint - dataOffset) / bytesPerRow * 1.05) + 1024 : Math.max(4096, headRows * 4);
+    const hint = options.reopen !== undefined ? headTimeHint(plan, lines) : null;
     const out: ScanOutput = {
       values: plan.channels.map(() => new Float64Array(capacity)),
-      times: plan.timeMode === 'column' ? new Float64Array(capacity) : null,
+      times: plan.timeMode === 'column' && hint === null ? new Float64Array(capacity) : null,
+      hull: hint === null ? null : new TimeGridHull(hint.t0, hint.dtHint),
       invalidCounts: plan.channels.map(() => 0),
     };
+    const finish = async (footerText: string | null): Promise<ImportedCapture> => {
+      const source = { ...sourceInfo, reader: 'stream', bytesRead: consumed };
+      if (out.hull === null || out.hull === undefined || state.row < 2) return finishCapture({ plan, out, rows: state.row, footerText, source });
+      const t0 = out.hull.t0;
+      const dt = (state.lastTime - t0) / (state.row - 1);
+      const jitter = out.hull.jitter(t0, dt);
+      if (jitter <= plan.uniformTolerance * dt) {
+        return finishCapture({ plan, out, rows: state.row, footerText, source, time: { kind: 'uniform', t0, dt, jitter } });
+      }
+      // Unevenly spaced: read again, keeping every time.
+      const again = (options.reopen as () => AsyncIterable<Uint8Array>)();
+      return readCaptureStream(again, { ...options, reopen: undefined });
+    };
     const state: ScanState = { row: 0, line: plan.dataStartLine, lastTime: NaN, nextIndex: NaN };
-    let pending = head.subarray(dataOffset);
+    // One work buffer for the whole read: a fresh buffer per chunk would pile up as garbage between collections.
+    let work = new Uint8Array(Math.max(2 << 20, head.length - dataOffset + 1));
+    work.set(head.subarray(dataOffset));
+    let filled = head.length - dataOffset;
+    const room = (need: number) => {
+      if (need <= work.length) return;
+      const bigger = new Uint8Array(Math.max(need, work.length * 2));
+      bigger.set(work.subarray(0, filled));
+      work = bigger;
+    };
     for (;;) {
-      const stopAt = done ? pending.length : lastLineEnd(pending);
-      if (stopAt === 0 && pending.length > maxLineBytes) {
+      if (done && filled > 0 && work[filled - 1] !== 10 && work[filled - 1] !== 13) {
+        room(filled + 1);
+        work[filled++] = 10; // the scanner wants every line ended
+      }
+      const stopAt = done ? filled : lastLineEnd(work, filled);
+      if (stopAt === 0 && filled > maxLineBytes) {
         throw new ImportError(`a line is longer than ${formatBytes(maxLineBytes)}, which no row of samples is; this is not a capture file`, state.line);
       }
-      let stop = stopAt > 0 ? scanNumericRows(pending, 0, stopAt, spec, out, state) : null;
+      let stop = stopAt > 0 ? scanNumericRows(work, 0, stopAt, spec, out, state) : null;
       while (stop !== null && stop.kind === 'full') {
-        capacity *= 2;
+        capacity = Math.ceil(capacity * (sizeHint !== undefined ? 1.25 : 2));
         grow(out, capacity);
-        stop = scanNumericRows(pending, stop.offset, stopAt, spec, out, state);
+        stop = scanNumericRows(work, stop.offset, stopAt, spec, out, state);
       }
       if (stop !== null) {
         if (stop.kind === 'text') {
           // Text after the data is a footer only if nothing but text follows, and not much of it.
-          const tailParts = [pending.subarray(stop.offset)];
+          const tailParts = [work.slice(stop.offset, filled)];
           let tailLength = tailParts[0].length;
           while (!done && tailLength <= footerBytes) {
             const chunk = await next();
             if (chunk === null) break;
-            tailParts.push(chunk);
+            tailParts.push(chunk.slice());
             tailLength += chunk.length;
           }
           if (done && tailLength <= footerBytes) {
             const tailText = decodeCaptureBytes(concat(tailParts, tailLength), { encoding: decoded.encoding }).text;
             if (isFooterText(plan, tailText)) {
-              return finishCapture({ plan, out, rows: state.row, footerText: tailText, source: { ...sourceInfo, reader: 'stream' } });
+              return await finish(tailText);
             }
           }
         }
         throw stop.error as ImportError;
       }
       if (done) break;
+      work.copyWithin(0, stopAt, filled);
+      filled -= stopAt;
       const chunk = await next();
-      const rest = pending.subarray(stopAt);
-      pending = chunk === null ? rest : concat([rest, chunk], rest.length + chunk.length);
+      if (chunk !== null) {
+        room(filled + chunk.length + 1);
+        work.set(chunk, filled);
+        filled += chunk.length;
+      }
     }
-    return finishCapture({ plan, out, rows: state.row, footerText: null, source: { ...sourceInfo, reader: 'stream', bytesRead: consumed } });
+    return await finish(null);
   } finally {
     if (!done) await iterator.return?.();
   }
@@ -165,26 +206,12 @@ function concat(parts: Uint8Array[], length: number): Uint8Array {
   return out;
 }
 
-/** Offset just past the last complete line end; a CR as the last byte may be half a CRLF and does not count. */
-function lastLineEnd(bytes: Uint8Array): number {
-  let j = bytes.length - 1;
-  while (j >= 0 && !(bytes[j] === 10 || (bytes[j] === 13 && j + 1 < bytes.length))) j--;
+/** Offset just past the last complete line end in bytes[0, length); a CR as the last byte may be half a CRLF and
+ * does not count. */
+function lastLineEnd(bytes: Uint8Array, length = bytes.length): number {
+  let j = length - 1;
+  while (j >= 0 && !(bytes[j] === 10 || (bytes[j] === 13 && j + 1 < length))) j--;
   return j + 1;
-}
-
-/** Byte offset where 1-based line `line` starts (LF, CRLF or CR line ends), past a UTF-8 BOM on line 1. */
-export function lineStartOffset(bytes: Uint8Array, line: number): number {
-  let p = bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
-  for (let l = 1; l < line; l++) {
-    while (p < bytes.length && bytes[p] !== 10 && bytes[p] !== 13) p++;
-    if (p < bytes.length && bytes[p] === 13) {
-      p++;
-      if (p < bytes.length && bytes[p] === 10) p++;
-    } else if (p < bytes.length) {
-      p++;
-    }
-  }
-  return p;
 }
 
 function formatBytes(n: number): string {

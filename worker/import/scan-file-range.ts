@@ -15,17 +15,20 @@ export interface ScanFileRangeOptions {
 export function scanFileRange(fd: number, start: number, end: number, spec: ScanSpec, out: ScanOutput, state: ScanState, options: ScanFileRangeOptions = {}): ScanStop | null {
   const { blockBytes = 4 << 20 } = options;
   if (!(start >= 0 && start <= end)) throw new RangeError('start and end must satisfy 0 <= start <= end');
-  const buffer = new Uint8Array(Math.min(blockBytes, Math.max(1, end - start)));
+  // One spare byte to end a last line that has no line end, as the scanner wants.
+  const buffer = new Uint8Array(Math.min(blockBytes, Math.max(1, end - start)) + 1);
+  const room = buffer.length - 1;
   let filled = 0; // bytes in buffer
   let bufferAt = start; // file offset of buffer[0]
   let position = start;
   while (position < end || filled > 0) {
-    const want = Math.min(buffer.length - filled, end - position);
+    const want = Math.min(room - filled, end - position);
     const got = want > 0 ? readSync(fd, buffer, filled, want, position) : 0;
     if (want > 0 && got === 0) throw new ImportError(`the file ended early, at byte ${position}; was it changed while being read?`);
     position += got;
     filled += got;
     const atEnd = position >= end;
+    if (atEnd && filled > 0 && buffer[filled - 1] !== 10 && buffer[filled - 1] !== 13) buffer[filled++] = 10;
     let stopAt = filled;
     if (!atEnd) {
       // Scan only complete lines; keep the tail for the next block. A CR as the last byte may be the first

@@ -1,0 +1,72 @@
+/**
+ * Import benchmark: reads the 10-million-row capture (bench/lib/big-capture.ts) from disk into typed arrays and
+ * prints MB/s, rows/s, peak RSS against the size of the output arrays, and the time as a ratio to `wc -l` on the
+ * same file in the same run (the baseline: the fastest anything can walk the file's lines).
+ * Each reading runs in a fresh child process so its peak RSS is its own. Run: npm run bench:import
+ */
+import { execFileSync, spawnSync } from 'node:child_process';
+import { statSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { readCaptureFile } from '../worker/import/read-capture-file.ts';
+import { ensureBigCapture } from './lib/big-capture.ts';
+
+interface Measurement {
+  seconds: number;
+  rows: number;
+  channels: number;
+  outputBytes: number;
+  peakRssBytes: number;
+  startRssBytes: number;
+  timeKind: string;
+}
+
+async function measure(path: string, threads: number): Promise<void> {
+  const startRssBytes = process.memoryUsage().rss;
+  const t = performance.now();
+  const capture = await readCaptureFile(path, { threads });
+  const seconds = (performance.now() - t) / 1000;
+  let outputBytes = capture.channels.reduce((sum, c) => sum + c.values.byteLength, 0);
+  if (capture.time.kind === 'explicit') outputBytes += capture.time.t.byteLength;
+  const m: Measurement = {
+    seconds, rows: capture.length, channels: capture.channels.length, outputBytes,
+    peakRssBytes: process.resourceUsage().maxRSS * 1024, startRssBytes, timeKind: capture.time.kind,
+  };
+  process.stdout.write(`${JSON.stringify(m)}\n`);
+}
+
+function run(path: string, threads: number): Measurement {
+  const child = spawnSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--measure', path, String(threads)], { encoding: 'utf8' });
+  if (child.status !== 0) throw new Error(`measurement failed: ${child.stderr}`);
+  return JSON.parse(child.stdout.trim().split('\n').pop() as string);
+}
+
+function timeWc(path: string): number {
+  const t = performance.now();
+  execFileSync('wc', ['-l', path], { encoding: 'utf8' });
+  return (performance.now() - t) / 1000;
+}
+
+async function main(): Promise<void> {
+  const path = await ensureBigCapture();
+  const bytes = statSync(path).size;
+  const mb = bytes / 1e6;
+  execFileSync('cat', [path], { maxBuffer: 1 << 30, stdio: ['ignore', 'ignore', 'ignore'] }); // into the page cache
+  const wc = Math.min(timeWc(path), timeWc(path), timeWc(path));
+  console.log(`file: ${path} (${mb.toFixed(0)} MB), page cache warm`);
+  console.log(`baseline wc -l: ${wc.toFixed(3)} s (${(mb / wc).toFixed(0)} MB/s)`);
+  for (const threads of [1, 2]) {
+    const runs = [run(path, threads), run(path, threads)];
+    const best = runs.reduce((a, b) => (b.seconds < a.seconds ? b : a));
+    const peak = Math.max(...runs.map((r) => r.peakRssBytes));
+    console.log(
+      `readCaptureFile, ${threads} thread${threads > 1 ? 's' : ''}: ${best.seconds.toFixed(3)} s (best of ${runs.length}), `
+      + `${(mb / best.seconds).toFixed(0)} MB/s, ${(best.rows / best.seconds / 1e6).toFixed(2)} M rows/s, `
+      + `peak RSS ${(peak / 1e6).toFixed(0)} MB = ${(peak / best.outputBytes).toFixed(2)}× the output arrays `
+      + `(${(best.outputBytes / 1e6).toFixed(0)} MB: ${best.channels} channels × ${best.rows} rows, time ${best.timeKind}; `
+      + `process at start ${(best.startRssBytes / 1e6).toFixed(0)} MB), ${(best.seconds / wc).toFixed(1)}× wc -l`,
+    );
+  }
+}
+
+if (process.argv[2] === '--measure') await measure(process.argv[3], Number(process.argv[4]));
+else await main();

@@ -1,0 +1,66 @@
+// Worker-thread side of the parallel disk read: scans one byte range of a file into shared sample arrays.
+import { closeSync, openSync } from 'node:fs';
+import { parentPort } from 'node:worker_threads';
+import { ImportError } from '../../shared/import/import-error.ts';
+import { TimeGridHull, type TimeGridHullData } from '../../shared/import/time-grid-hull.ts';
+import type { ScanOutput, ScanSpec, ScanState } from '../../shared/import/scan-numeric-rows.ts';
+import { scanFileRange } from './scan-file-range.ts';
+
+export interface ScanRangeRequest {
+  path: string;
+  start: number;
+  end: number;
+  spec: ScanSpec;
+  values: SharedArrayBuffer[];
+  times: SharedArrayBuffer | null;
+  rowOffset: number;
+  line: number;
+  /** Reference grid for tracking the time column's evenness without keeping it; null to keep the times. */
+  hull: { t0: number; dtHint: number } | null;
+}
+
+export interface ScanRangeReply {
+  row: number;
+  line: number;
+  lastTime: number;
+  hull: TimeGridHullData | null;
+  stop: { kind: string; offset: number; reason: string; line: number | null } | null;
+  invalidCounts: number[];
+  failure: string | null;
+}
+
+parentPort?.once('message', (request: ScanRangeRequest) => {
+  let reply: ScanRangeReply;
+  try {
+    const out: ScanOutput = {
+      values: request.values.map((b) => new Float64Array(b)),
+      times: request.times === null ? null : new Float64Array(request.times),
+      hull: request.hull === null ? null : new TimeGridHull(request.hull.t0, request.hull.dtHint),
+      invalidCounts: request.spec.factors.map(() => 0),
+    };
+    const state: ScanState = { row: request.rowOffset, line: request.line, lastTime: NaN, nextIndex: NaN };
+    const fd = openSync(request.path, 'r');
+    try {
+      const stop = scanFileRange(fd, request.start, request.end, request.spec, out, state);
+      reply = {
+        row: state.row,
+        line: state.line,
+        lastTime: state.lastTime,
+        hull: out.hull?.toData() ?? null,
+        stop: stop === null ? null : { kind: stop.kind, offset: stop.offset, reason: stop.error?.reason ?? '', line: stop.error?.line ?? null },
+        invalidCounts: out.invalidCounts,
+        failure: null,
+      };
+    } finally {
+      closeSync(fd);
+    }
+  } catch (error) {
+    if (error instanceof ImportError) {
+      reply = { row: 0, line: 0, lastTime: NaN, hull: null, stop: { kind: 'error', offset: 0, reason: error.reason, line: error.line }, invalidCounts: [], failure: null };
+      parentPort?.postMessage(reply);
+      return;
+    }
+    reply = { row: 0, line: 0, lastTime: NaN, hull: null, stop: null, invalidCounts: [], failure: error instanceof Error ? `${error.name}: ${error.message}` : String(error) };
+  }
+  parentPort?.postMessage(reply);
+});
