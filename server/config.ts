@@ -28,7 +28,18 @@ const schema = z.object({
   loginWindowSeconds: z.coerce.number().int().min(1).default(15 * 60),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   clientDir: z.string().default('dist/client'),
-});
+  /** Where raw files and channel files are kept: "local" (under `<dataDir>/blobs`) or an S3-compatible bucket. */
+  storage: z.enum(['local', 's3']).default('local'),
+  /** S3 endpoint URL; unset means AWS itself. */
+  s3Endpoint: z.url().optional(),
+  s3Region: z.string().min(1).default('us-east-1'),
+  s3Bucket: z.string().min(3).optional(),
+  /** Unset access keys fall back to the AWS SDK's default credential chain (instance role, profile). */
+  s3AccessKeyId: z.string().optional(),
+  s3SecretAccessKey: z.string().optional(),
+  /** Bucket in the URL path (most self-hosted S3-compatible servers need it). */
+  s3ForcePathStyle: z.stringbool().default(true),
+}).refine((c) => c.storage !== 's3' || !!c.s3Bucket, { path: ['s3Bucket'], message: 'must be set when GATEPOST_STORAGE is s3' });
 
 export type Config = z.infer<typeof schema>;
 
@@ -53,6 +64,13 @@ const envNames: Record<keyof Config, string> = {
   loginWindowSeconds: 'GATEPOST_LOGIN_WINDOW_SECONDS',
   logLevel: 'GATEPOST_LOG_LEVEL',
   clientDir: 'GATEPOST_CLIENT_DIR',
+  storage: 'GATEPOST_STORAGE',
+  s3Endpoint: 'GATEPOST_S3_ENDPOINT',
+  s3Region: 'GATEPOST_S3_REGION',
+  s3Bucket: 'GATEPOST_S3_BUCKET',
+  s3AccessKeyId: 'GATEPOST_S3_ACCESS_KEY_ID',
+  s3SecretAccessKey: 'GATEPOST_S3_SECRET_ACCESS_KEY',
+  s3ForcePathStyle: 'GATEPOST_S3_FORCE_PATH_STYLE',
 };
 
 export class ConfigError extends Error {}

@@ -5,6 +5,7 @@ import { createMailer } from './lib/mailer.ts';
 import { LoginLimiter } from './lib/rate-limit.ts';
 import { createRedis } from './lib/redis.ts';
 import { createSequelize } from './db/sequelize.ts';
+import { createBlobStore } from './storage/create-blob-store.ts';
 
 /** The API server process: reads config, connects, listens, and shuts down cleanly on SIGINT/SIGTERM. */
 async function main() {
@@ -24,7 +25,8 @@ async function main() {
   redis.on('error', (err) => logger.warn({ err: err.message }, 'redis connection problem'));
   const mailer = createMailer(config);
   const loginLimiter = new LoginLimiter(redis, { maxFailures: config.loginMaxFailures, windowSeconds: config.loginWindowSeconds });
-  const app = buildApp({ config, logger, sequelize, redis, mailer, loginLimiter });
+  const blobStore = createBlobStore(config);
+  const app = buildApp({ config, logger, sequelize, redis, mailer, loginLimiter, blobStore });
 
   const server = app.listen(config.port, config.host, () => {
     logger.info({ url: config.publicUrl, port: config.port }, 'Gatepost API listening');

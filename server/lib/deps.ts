@@ -1,6 +1,7 @@
 import type { Redis } from 'ioredis';
 import type { Sequelize } from 'sequelize';
 import type { Config } from '../config.ts';
+import type { BlobStore } from '../storage/blob-store.ts';
 import type { Logger } from './logger.ts';
 import type { Mailer } from './mailer.ts';
 import type { LoginLimiter } from './rate-limit.ts';
@@ -13,4 +14,6 @@ export interface Deps {
   redis: Redis;
   mailer: Mailer;
   loginLimiter: LoginLimiter;
+  /** Raw uploaded files and channel files (local disk or S3). */
+  blobStore: BlobStore;
 }

@@ -1,7 +1,10 @@
 // The API under test with its real dependencies: the throwaway PostgreSQL and Redis of scripts/with-services.sh,
 // the real nodemailer transport and an in-process fake SMTP server that shares the test Redis. Only the clock-heavy
 // parts are made fast: a short sign-in window, sessions minted without argon2.
+import { mkdtempSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import type { Express } from 'express';
 import { Redis } from 'ioredis';
 import type { Sequelize } from 'sequelize';
@@ -18,6 +21,7 @@ import { createLogger } from '../../server/lib/logger.ts';
 import { createMailer, type Mailer } from '../../server/lib/mailer.ts';
 import { LoginLimiter } from '../../server/lib/rate-limit.ts';
 import { signSession } from '../../server/lib/tokens.ts';
+import { LocalDiskStore } from '../../server/storage/local-disk-store.ts';
 
 /** The columns of the authorization matrix: four Hollowmere roles, another lab's admin, and nobody. */
 export type DemoActor = Role | 'otherLabAdmin';
@@ -120,7 +124,10 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
   const sequelize = createSequelize(config.databaseUrl);
   const mailer = createMailer(config);
   const loginLimiter = new LoginLimiter(redis, { maxFailures: config.loginMaxFailures, windowSeconds: config.loginWindowSeconds });
-  const deps: Deps = { config, logger, sequelize, redis, mailer, loginLimiter };
+  // Blobs of this test run only, in a temp folder removed by close().
+  const blobDir = mkdtempSync(path.join(tmpdir(), 'gatepost-blobs-'));
+  const blobStore = new LocalDiskStore(blobDir);
+  const deps: Deps = { config, logger, sequelize, redis, mailer, loginLimiter, blobStore };
   const app = buildApp(deps);
   const extraMailers: Mailer[] = [];
   let demo: DemoWorld | null = null;
@@ -193,6 +200,7 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
       await smtp.close();
       await sequelize.close();
       await redis.quit();
+      rmSync(blobDir, { recursive: true, force: true });
     },
   };
   return harness;
