@@ -95,11 +95,11 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   if (opts.smoothing !== null && time.kind === 'explicit') {
     warnings.push('smoothing assumes evenly spaced samples, but this capture has an explicit, uneven time base');
   }
-  const traces = capture.channels.map((c) =>
-    opts.smoothing === null ? c.values : smoothSavitzkyGolay(c.values, opts.smoothing),
-  );
-  const measured: (ChannelMeasurement | null)[] = traces.map((trace, i) => {
+  const traces: ArrayLike<number>[] = capture.channels.map((c) => c.values);
+  const measured: (ChannelMeasurement | null)[] = traces.map((raw, i) => {
     try {
+      const trace = opts.smoothing === null ? raw : smoothSavitzkyGolay(raw, opts.smoothing);
+      traces[i] = trace;
       return measureChannel(trace, {
         bins: opts.levels.bins,
         method: opts.levels.method,
@@ -291,6 +291,9 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   const flight: FlightPairResult[] = [];
   for (let i = 0; i < fired.length; i++) {
     for (let j = i + 1; j < fired.length; j++) {
+      if (fired[j].pulse.start + fired[j].pulse.end === fired[i].pulse.start + fired[i].pulse.end) {
+        throw new RangeError(`the gates at ${fired[i].position} m and ${fired[j].position} m show the very same pulse: check the gate map`);
+      }
       const r = linear(inputs, model.flight(i, j, 'mid'));
       flight.push({
         from: { channel: fired[i].channel, position: fired[i].position },
@@ -303,10 +306,16 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     }
   }
   let fit: FitResult | null = null;
+  let fitUsable = model.fitSpeed !== null;
   if (model.fitSpeed !== null && model.fitDeceleration !== null) {
-    const v = linear(inputs, model.fitSpeed);
-    const a = linear(inputs, model.fitDeceleration);
-    fit = { gates: fired.length, speed: v.value, speedUncertainty: K * v.standardUncertainty, deceleration: a.value, decelerationUncertainty: K * a.standardUncertainty };
+    try {
+      const v = linear(inputs, model.fitSpeed);
+      const a = linear(inputs, model.fitDeceleration);
+      fit = { gates: fired.length, speed: v.value, speedUncertainty: K * v.standardUncertainty, deceleration: a.value, decelerationUncertainty: K * a.standardUncertainty };
+    } catch (error) {
+      fitUsable = false;
+      warnings.push(`the constant-deceleration fit failed (${(error as Error).message}); the speed is the first pair's flight speed`);
+    }
   }
   const occlusion: OcclusionResult[] = [];
   if (model.occlusion !== null && length !== undefined) {
@@ -324,8 +333,8 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   }
 
   let primary: { method: 'flight' | 'occlusion'; basis: 'fit' | 'pair' | 'occlusion'; evaluate: (x: Float64Array) => number } | null = null;
-  if (model.fitSpeed !== null) primary = { method: 'flight', basis: 'fit', evaluate: model.fitSpeed };
-  else if (fired.length === 2) primary = { method: 'flight', basis: 'pair', evaluate: model.flight(0, 1, 'mid') };
+  if (model.fitSpeed !== null && fitUsable) primary = { method: 'flight', basis: 'fit', evaluate: model.fitSpeed };
+  else if (fired.length >= 2) primary = { method: 'flight', basis: 'pair', evaluate: model.flight(0, 1, 'mid') };
   else if (fired.length === 1 && model.occlusion !== null) primary = { method: 'occlusion', basis: 'occlusion', evaluate: model.occlusion(0) };
   let speed: SpeedResult | null = null;
   if (primary !== null) {
@@ -357,7 +366,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   if (model.occlusion !== null && fired.length >= 2) {
     const occ = model.occlusion;
     const pairs: { positions: number[]; occ: (x: Float64Array) => number; fl: (x: Float64Array) => number; label: string }[] = [];
-    if (model.fitSpeedAt !== null) {
+    if (model.fitSpeedAt !== null && fitUsable) {
       const at = model.fitSpeedAt;
       for (let k = 0; k < fired.length; k++) {
         pairs.push({ positions: [fired[k].position], occ: occ(k), fl: at(k), label: `gate at ${fired[k].position} m (${fired[k].channel})` });

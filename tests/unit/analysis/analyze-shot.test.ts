@@ -261,5 +261,7 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(() => analyzeShot(capture)).toThrow('gate positions are unknown: give the gates (channel and position) or the gate spacing');
     expect(() => analyzeShot(capture, { spacing: -1 })).toThrow(/^invalid analysis options: .*spacing/s);
     expect(() => analyzeShot({ ...capture, channels: [] }, { spacing: 0.1 })).toThrow('the capture has no channels');
+    const copied = { ...capture, channels: [capture.channels[0], { ...capture.channels[0], name: 'CH2' }] };
+    expect(() => analyzeShot(copied, { spacing: 0.1 })).toThrow('the gates at 0 m and 0.1 m show the very same pulse: check the gate map');
   });
 });
