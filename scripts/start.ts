@@ -240,6 +240,8 @@ async function main(): Promise<void> {
 }
 
 main().catch((error: unknown) => {
+  // A stop request interrupts what was starting (Ctrl-C reaches pg_ctl too); its failure is expected then.
+  if (shuttingDown) return;
   const message = error instanceof ServiceError ? error.message : (error as Error).stack ?? String(error);
   console.error(`[start] ${message}`);
   void shutdown(1, 'start failed: stopping what was started');

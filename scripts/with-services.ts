@@ -147,9 +147,11 @@ let exitCode: number;
 try {
   exitCode = await main();
 } catch (error) {
-  console.error(`[services] ${error instanceof ServiceError ? error.message : ((error as Error).stack ?? String(error))}`);
+  // A Ctrl-C reaches pg_ctl and initdb too; their failure is then expected, not news.
+  if (!stopSignal) console.error(`[services] ${error instanceof ServiceError ? error.message : ((error as Error).stack ?? String(error))}`);
   exitCode = 1;
 } finally {
   await cleanUp();
 }
-process.exit(stopSignal && exitCode === 0 ? signalExitCode(stopSignal) : exitCode);
+// Stopped by a signal: report it as such (130 for Ctrl-C), unless the command already exited with its own code.
+process.exit(stopSignal && (exitCode === 0 || !commandProcess) ? signalExitCode(stopSignal) : exitCode);
