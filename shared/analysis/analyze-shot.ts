@@ -232,10 +232,13 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     if (step > 0) {
       const dip = findDipCandidate(traces[c], { time, clearLevel, referenceStep: rigPolarity === 'falling' ? -step : step });
       if (dip !== null && dip.depthFraction >= opts.missed.minCandidateFraction) {
-        const threshold = opts.threshold.unit === 'percent' ? `${opts.threshold.level} %` : `${opts.threshold.level} V`;
+        const t = opts.threshold;
+        const threshold = t.unit === 'percent' ? `${t.level} %` : `${t.level} V`;
+        const thresholdDepth = t.unit === 'percent' ? t.level / 100 : Math.abs(t.level - clearLevel) / step;
         const text = `reached ${Math.round(100 * dip.depthFraction)} % of the step at ${ms(dip.time)}`;
         ch.candidate = { depthFraction: dip.depthFraction, time: dip.time, message: text };
-        message += `; it ${text} (threshold ${threshold}): lower the threshold to use it`;
+        const advice = dip.depthFraction < thresholdDepth ? 'lower the threshold to use it' : 'smooth the trace or check the gate wiring';
+        message += `; it ${text} (threshold ${threshold}): ${advice}`;
       }
     }
     warnings.push(message);

@@ -127,7 +127,7 @@ describe('analyzeShot on simulated captures with known truth', () => {
     const g3 = shot.truth.gates[2];
     expect(ch.candidate!.time).toBeGreaterThan(g3.entry);
     expect(ch.candidate!.time).toBeLessThan(g3.exit);
-    expect(analysis.warnings.join('\n')).toMatch(/CH3: missed .*reached 3[789] % of the step at 0\.\d{3} ms/);
+    expect(analysis.warnings.join('\n')).toMatch(/CH3: missed .*reached 3[789] % of the step at 0\.\d{3} ms \(threshold 50 %\): lower the threshold to use it/);
     expect(analysis.speed!.basis).toBe('pair');
     expect(Math.abs(analysis.speed!.value / 300 - 1)).toBeLessThan(1e-3);
   });
