@@ -147,14 +147,16 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   for (let i = end + 1; i < lines.length; i++) if (!isBlank(i)) footer.push(i);
 
   // Column roles from the block of plain data rows.
-  let columnCount = 0;
-  for (let i = start; i <= end; i++) if (isPure(i)) columnCount = Math.max(columnCount, rows[i].length);
+  // The usual width of a data row decides the columns; a longer row is an error reported when it is read.
+  const widths: number[] = [];
+  for (let i = start; i <= end && widths.length < 1000; i++) if (isPure(i)) widths.push(rows[i].length);
+  const columnCount = modeOf(widths);
   const hasNumber = new Array<boolean>(columnCount).fill(false);
   for (let i = start; i <= end; i++) {
     if (!isPure(i)) continue;
-    cells[i].forEach((c, col) => {
-      if (c === 'num' || c === 'sentinel') hasNumber[col] = true;
-    });
+    for (let col = 0; col < Math.min(columnCount, cells[i].length); col++) {
+      if (cells[i][col] === 'num' || cells[i][col] === 'sentinel') hasNumber[col] = true;
+    }
   }
   const dataColumns = hasNumber.flatMap((h, col) => (h ? [col] : []));
   const requiredFields = dataColumns[dataColumns.length - 1] + 1;

@@ -1,0 +1,105 @@
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { readSampleField } from '../../../shared/import/read-sample-field.ts';
+import { SLOT_IGNORE, SLOT_TIME, scanNumericRows, type ScanSpec } from '../../../shared/import/scan-numeric-rows.ts';
+
+const encoder = new TextEncoder();
+
+function spec(over: Partial<ScanSpec> = {}): ScanSpec {
+  return {
+    delimiter: 44, decimal: 46, slots: [0], requiredFields: 1, factors: [1], timeFactor: 1,
+    textSentinels: ['nan', 'over'], numericSentinels: [], expected: 1, ...over,
+  };
+}
+
+/** Scans one field per line and returns the numbers read. */
+function scanColumn(fields: string[], s: ScanSpec = spec()): Float64Array {
+  const bytes = encoder.encode(`${fields.join('\n')}\n`);
+  const out = { values: [new Float64Array(fields.length)], times: null, invalidCounts: [0] };
+  const state = { row: 0, line: 1, lastTime: NaN, nextIndex: NaN };
+  const stop = scanNumericRows(bytes, 0, bytes.length, s, out, state);
+  if (stop !== null) throw stop.error;
+  expect(state.row).toBe(fields.length);
+  return out.values[0];
+}
+
+// The reference is JavaScript's own parseFloat (ECMA-262 §21.1.2.12, correctly rounded): the fast path must
+// give the very same double for every spelling of every number.
+const expected = (text: string) => {
+  const v = parseFloat(text.replace(',', '.'));
+  return Number.isFinite(v) ? v : NaN;
+};
+
+describe('scanNumericRows number parsing', () => {
+  it('When random doubles are printed in many formats, then every one reads back bit-identical to parseFloat', () => {
+    const printed = fc.tuple(fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer({ min: 0, max: 9 }), fc.integer({ min: 1, max: 21 }))
+      .map(([x, which, digits]) => {
+        switch (which) {
+          case 0: return String(x);
+          case 1: return x.toExponential(Math.min(digits, 20));
+          case 2: return Math.abs(x) < 1e21 ? x.toFixed(Math.min(digits, 20)) : String(x);
+          case 3: return x.toPrecision(digits);
+          case 4: return x.toExponential(Math.min(digits, 20)).toUpperCase();
+          case 5: return x.toExponential(Math.min(digits, 20)).replace(/e([0-9])/, 'e+0$1');
+          case 6: return (x >= 0 ? '+' : '') + x.toPrecision(Math.min(digits, 17));
+          case 7: return x.toPrecision(Math.min(digits, 17)).replace(/^(-?)0\./, '$1.');
+          case 8: return `00${Math.abs(x).toExponential(6)}`;
+          default: return `${x.toFixed(3)}000000`;
+        }
+      });
+    fc.assert(fc.property(fc.array(printed, { minLength: 1, maxLength: 20 }), (fields) => {
+      const got = scanColumn(fields);
+      fields.forEach((f, i) => expect(Object.is(got[i], expected(f)), `${f}: ${got[i]} vs ${expected(f)}`).toBe(true));
+    }), { numRuns: 400 });
+  });
+
+  it('When random digit strings (long mantissas, big exponents) are read, then they equal parseFloat to the bit', () => {
+    const text = fc.stringMatching(/^[-+]?(\d{1,25}(\.\d{0,25})?|\.\d{1,25})([eE][-+]?\d{1,3})?$/);
+    fc.assert(fc.property(fc.array(text, { minLength: 1, maxLength: 20 }), (fields) => {
+      const got = scanColumn(fields);
+      fields.forEach((f, i) => expect(Object.is(got[i], expected(f)), `${f}`).toBe(true));
+    }), { numRuns: 400 });
+  });
+
+  it('When numbers use a decimal comma, then they read as parseFloat of the same number with a point', () => {
+    const s = spec({ delimiter: 59, decimal: 44 });
+    fc.assert(fc.property(fc.array(fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e6, max: 1e6 }), { minLength: 1, maxLength: 10 }), (xs) => {
+      const fields = xs.map((x) => x.toPrecision(9).replace('.', ','));
+      const got = scanColumn(fields, s);
+      fields.forEach((f, i) => expect(Object.is(got[i], expected(f))).toBe(true));
+    }), { numRuns: 200 });
+  });
+
+  it('When the scanner and the text path read the same field, then they agree (sentinels included)', () => {
+    const options = { textSentinels: new Set(['nan', 'over']), numericSentinels: new Set<number>() };
+    for (const f of ['-0', '0.000', '1e-400', '1e400', 'NaN', 'OVER', ' 2.5 ', '7.', '.5e1', '-.5E-1']) {
+      const v = readSampleField(f, options) as number;
+      expect(Object.is(scanColumn([f])[0], v), f).toBe(true);
+    }
+  });
+
+  it('When a field is not a number, then the scan stops at its line with the exact message', () => {
+    const bytes = encoder.encode('0,1,2\n1,2,3\n2,ERR,4\n');
+    const out = { values: [new Float64Array(3), new Float64Array(3)], times: new Float64Array(3), invalidCounts: [0, 0] };
+    const state = { row: 0, line: 2040, lastTime: NaN, nextIndex: NaN };
+    const stop = scanNumericRows(bytes, 0, bytes.length, spec({ slots: [SLOT_TIME, 0, 1], requiredFields: 3, factors: [1, 1], expected: 3 }), out, state);
+    expect(stop?.kind).toBe('text');
+    expect(stop?.error?.message).toBe("line 2,042: expected 3 numbers, found 'ERR'");
+    expect(stop?.offset).toBe(12);
+    expect(state.row).toBe(2);
+  });
+
+  it('When a column is ignored, then its text is not read', () => {
+    const bytes = encoder.encode('note,1.5\nmore text,2.5\n');
+    const out = { values: [new Float64Array(2)], times: null, invalidCounts: [0] };
+    const stop = scanNumericRows(bytes, 0, bytes.length, spec({ slots: [SLOT_IGNORE, 0], requiredFields: 2 }), out, { row: 0, line: 1, lastTime: NaN, nextIndex: NaN });
+    expect(stop).toBeNull();
+    expect(Array.from(out.values[0])).toEqual([1.5, 2.5]);
+  });
+
+  it('When the range does not end at a line end, then it refuses (the caller must end the last line)', () => {
+    const bytes = encoder.encode('1.5');
+    expect(() => scanNumericRows(bytes, 0, 3, spec(), { values: [new Float64Array(1)], times: null, invalidCounts: [0] }, { row: 0, line: 1, lastTime: NaN, nextIndex: NaN }))
+      .toThrow(new RangeError('end must follow a line end (append one after the last line of a file)'));
+  });
+});
