@@ -120,6 +120,8 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     });
   }
 
+  const minStepFraction = opts.missed.minStepFraction ?? (opts.threshold.unit === 'percent' ? opts.threshold.level / 100 : 0.5);
+
   // 3. Pulses of each usable channel; "missed" with a candidate dip for the others.
   const channels: ChannelResult[] = [];
   for (let c = 0; c < capture.channels.length; c++) {
@@ -159,8 +161,8 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     let reason: string | null = null;
     if (!(m.snr >= opts.missed.minSnr)) {
       reason = `its step (${m.amplitude.toPrecision(3)} V) is only ${m.snr.toFixed(1)} times the noise, below ${opts.missed.minSnr}`;
-    } else if (m.amplitude < opts.missed.minStepFraction * referenceStep) {
-      reason = `its step (${m.amplitude.toPrecision(3)} V) is below ${pct(opts.missed.minStepFraction)} of the reference step (${referenceStep.toPrecision(3)} V)`;
+    } else if (m.amplitude < minStepFraction * referenceStep) {
+      reason = `its step (${m.amplitude.toPrecision(3)} V) is below ${pct(minStepFraction)} of the reference step (${referenceStep.toPrecision(3)} V)`;
     }
     let result: ChannelResult | null = null;
     if (reason === null) {

@@ -86,8 +86,9 @@ export const analysisOptionsSchema = z.object({
       /** A channel whose step is smaller than this many noise standard deviations has no usable pulse. */
       minSnr: z.number().positive().default(10),
       /** A channel whose step is smaller than this fraction of the reference step (the largest good channel's,
-       * or `expectedStep`) is reported as missed. */
-      minStepFraction: z.number().min(0).max(1).default(0.5),
+       * or `expectedStep`) is reported as missed. When absent: the percent threshold's level (a dip that does not
+       * reach the threshold of a full step is missed, and lowering the threshold brings it back), or 0.5. */
+      minStepFraction: z.number().min(0).max(1).optional(),
       /** Clear-to-blocked step of the gates, V, when known from the rig. */
       expectedStep: z.number().positive().optional(),
       /** Dips shallower than this fraction of the reference step are not reported as candidates. */

@@ -130,6 +130,11 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(analysis.warnings.join('\n')).toMatch(/CH3: missed .*reached 3[789] % of the step at 0\.\d{3} ms \(threshold 50 %\): lower the threshold to use it/);
     expect(analysis.speed!.basis).toBe('pair');
     expect(Math.abs(analysis.speed!.value / 300 - 1)).toBeLessThan(1e-3);
+    // Following the advice: a 30 % threshold (arms 20–40 %) catches the 38 % dip and the third gate fires.
+    const again = analyzeShot(simulatedShotToCapture(shot), { spacing: 0.1, threshold: { level: 30, hysteresis: 10 } });
+    expect(again.gates.map((g) => g.status)).toEqual(['ok', 'ok', 'ok']);
+    expect(again.gates[2].pulses[0].start).toBeGreaterThan(g3.entry - 3e-6);
+    expect(again.gates[2].pulses[0].start).toBeLessThan(g3.entry + 3e-6);
   });
 
   it('a gate with no dip at all is missed without a candidate, and noise is not analysed into pulses', () => {
