@@ -132,6 +132,10 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     if (start < 0) {
       let last = lines.length - 1;
       while (last > 0 && isBlank(last)) last--;
+      const textLines = lines.filter((_, i) => !isBlank(i)).length;
+      if (textLines > 50) {
+        throw new ImportError(`no rows of numbers were found in ${textLines} lines${partial ? ' at the start of the file' : ''}; this does not look like an oscilloscope CSV export`, last + 1);
+      }
       if (rows[last].length >= 2 || TIME_NAME.test(lines[last].trim())) {
         throw new ImportError('the header has no rows of samples after it', last + 1);
       }
