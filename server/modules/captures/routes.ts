@@ -1,0 +1,97 @@
+import type { Request } from 'express';
+import { z } from 'zod';
+import { Capture } from '../../db/models/index.ts';
+import type { Deps } from '../../lib/deps.ts';
+import { AppError, badRequest, conflict, notFound } from '../../lib/errors.ts';
+import type { RouteDef } from '../../lib/routes.ts';
+import { parseInput } from '../../lib/validate.ts';
+import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
+import { readWindow, recordExtent } from '../../traces/read-window.ts';
+
+/** Routes addressed by a capture id find their lab from the capture itself. */
+export async function labOfCapture(req: Request): Promise<string | null> {
+  const capture = await Capture.findByPk(req.params.captureId as string, { attributes: ['labId'] });
+  return capture?.labId ?? null;
+}
+
+const seconds = z
+  .string()
+  .trim()
+  .regex(/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/, 'must be a number of seconds, e.g. 0.0015 or 1.5e-3')
+  .transform(Number)
+  .refine(Number.isFinite, 'must be a finite number of seconds');
+
+/** `GET /api/captures/:captureId/window` query: channel by index or name, window in seconds, column count. */
+export const windowQuerySchema = z
+  .object({
+    /** Channel index (0, 1, …) or name as shown in the capture ("CH1", "Gate A"). */
+    channel: z.string().trim().min(1, 'name a channel by index or name').default('0'),
+    /** Window start, s; defaults to the first sample. */
+    from: seconds.optional(),
+    /** Window end, s (inclusive); defaults to the last sample. */
+    to: seconds.optional(),
+    /** Most (min, max) columns in the answer, usually the plot width in pixels. */
+    points: z.coerce.number().int('must be a whole number').min(10).max(10_000).default(1000),
+  })
+  .refine((q) => q.from === undefined || q.to === undefined || q.from <= q.to, {
+    path: ['from'],
+    message: 'must not be later than to',
+  });
+
+function channelIndexOf(files: ChannelFiles, wanted: string): number {
+  if (/^\d+$/.test(wanted) && Number(wanted) < files.channels.length) return Number(wanted);
+  const exact = files.channels.findIndex((c) => c.name === wanted);
+  if (exact >= 0) return exact;
+  const folded = files.channels.findIndex((c) => c.name.toLowerCase() === wanted.toLowerCase());
+  if (folded >= 0) return folded;
+  const list = files.channels.map((c) => `${c.index} (${c.name})`).join(', ');
+  throw badRequest(`Please correct the request: channel: this capture has no channel "${wanted}"; it has ${list || 'no channels'}.`);
+}
+
+export function captureRoutes(deps: Deps): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/api/captures/:captureId/window',
+      access: { kind: 'lab', permission: 'lab:read', labOf: labOfCapture },
+      summary: 'Min/max columns (or raw samples at full zoom) of one channel over a time window',
+      async handler(req, res) {
+        const query = parseInput(windowQuerySchema, req.query);
+        const capture = await Capture.findOne({
+          where: { id: req.params.captureId as string, labId: req.lab!.id },
+          attributes: ['id', 'state', 'error', 'channels'],
+        });
+        if (!capture) throw notFound('No such capture.');
+        if (capture.state === 'failed') {
+          throw conflict(`This capture could not be read, so it has no traces: ${capture.error ?? 'no reason was recorded'}`);
+        }
+        if (capture.state !== 'ready') {
+          throw conflict(`This capture is still being read (state: ${capture.state}); its traces are available once it is ready.`);
+        }
+        const parsed = channelFilesSchema.safeParse(capture.channels);
+        if (!parsed.success) {
+          deps.logger.error({ captureId: capture.id, issues: parsed.error.issues }, 'capture channel files descriptor is invalid');
+          throw new AppError(500, 'internal', 'The stored trace files of this capture are not in a form this server can read.', undefined, {
+            isOperational: false,
+          });
+        }
+        const files = parsed.data;
+        const index = channelIndexOf(files, query.channel);
+        const extent = recordExtent(files);
+        const from = query.from ?? extent?.first ?? 0;
+        const to = query.to ?? Math.max(from, extent?.last ?? 0);
+        if (from > to) throw badRequest('Please correct the request: from: must not be later than to');
+        const window = await readWindow(deps.blobStore, files, index, from, to, query.points);
+        const channel = files.channels[index];
+        res.json({
+          captureId: capture.id,
+          channel: { index, name: channel.name, unit: channel.unit, sourceUnit: channel.sourceUnit },
+          from,
+          to,
+          points: query.points,
+          ...window,
+        });
+      },
+    },
+  ];
+}

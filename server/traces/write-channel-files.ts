@@ -1,0 +1,83 @@
+import type { ImportedCapture } from '../../shared/contracts/capture.ts';
+import { buildMinMaxPyramid } from '../../shared/traces/build-min-max-pyramid.ts';
+import { assertBlobKey, type BlobStore } from '../storage/blob-store.ts';
+import { float32Bytes, float64Bytes, type ChannelFiles } from './channel-files.ts';
+
+export interface WriteChannelFilesOptions {
+  /** Pyramid block factor. @default 16 */
+  factor?: number;
+  /** Stop the pyramid once a level has at most this many pairs. @default 1024 */
+  maxTopPairs?: number;
+}
+
+/** Folder of one capture's derived files: `labs/<labId>/captures/<captureId>`. */
+export function captureFilesPrefix(labId: string, captureId: string): string {
+  const prefix = `labs/${labId}/captures/${captureId}`;
+  assertBlobKey(prefix);
+  return prefix;
+}
+
+/**
+ * Writes each channel of an imported capture as little-endian Float32 samples
+ * (`…/ch<i>/samples.f32`) plus its min/max pyramid (`…/ch<i>/level-<k>.f32`, interleaved min, max), and an
+ * explicit time column as Float64 (`…/time.f64`). Returns the descriptor to keep in the Capture row.
+ *
+ * Float32 (24-bit mantissa, ~7 significant digits) is far finer than a scope's 8–12-bit ADC and a screen's
+ * pixels, so it is enough for display; the analysis never reads these files, it runs on the importer's
+ * full-precision arrays. The pyramid is built from the full-precision values and then rounded: rounding is
+ * monotone, so round(min x) = min(round x) and the levels agree exactly with the stored samples.
+ * Rewriting the same capture overwrites the same keys, so a retried ingest job leaves nothing doubled.
+ */
+export async function writeChannelFiles(
+  store: BlobStore,
+  labId: string,
+  captureId: string,
+  capture: ImportedCapture,
+  options: WriteChannelFilesOptions = {},
+): Promise<ChannelFiles> {
+  const { factor = 16, maxTopPairs = 1024 } = options;
+  const prefix = captureFilesPrefix(labId, captureId);
+  const { length } = capture;
+
+  let time: ChannelFiles['time'];
+  if (capture.time.kind === 'uniform') {
+    const { t0, dt, jitter } = capture.time;
+    time = { kind: 'uniform', t0, dt, jitter };
+  } else {
+    const t = capture.time.t;
+    if (t.length !== length) throw new RangeError(`explicit time base has ${t.length} times for ${length} samples`);
+    const key = `${prefix}/time.f64`;
+    await store.putBytes(key, float64Bytes(t));
+    time = { kind: 'explicit', key, first: length ? t[0] : null, last: length ? t[length - 1] : null };
+  }
+
+  const channels: ChannelFiles['channels'] = [];
+  for (let index = 0; index < capture.channels.length; index++) {
+    const channel = capture.channels[index];
+    if (channel.values.length !== length) {
+      throw new RangeError(`channel ${index} (${channel.name}) has ${channel.values.length} samples, the capture ${length}`);
+    }
+    const folder = `${prefix}/ch${index}`;
+    const samplesKey = `${folder}/samples.f32`;
+    await store.putBytes(samplesKey, float32Bytes(channel.values));
+    const levels: ChannelFiles['channels'][number]['levels'] = [];
+    const pyramid = buildMinMaxPyramid(channel.values, { factor, maxTopPairs });
+    for (let k = 0; k < pyramid.length; k++) {
+      const key = `${folder}/level-${k + 1}.f32`;
+      await store.putBytes(key, float32Bytes(pyramid[k].pairs));
+      levels.push({ level: k + 1, blockSize: pyramid[k].blockSize, key, length: pyramid[k].pairs.length / 2 });
+    }
+    channels.push({
+      index,
+      name: channel.name,
+      unit: channel.unit,
+      sourceUnit: channel.sourceUnit,
+      invalidCount: channel.invalidCount,
+      length,
+      factor,
+      samplesKey,
+      levels,
+    });
+  }
+  return { format: 'gatepost-channel-files-1', length, time, channels };
+}
