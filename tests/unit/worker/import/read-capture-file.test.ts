@@ -1,0 +1,97 @@
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { writeCaptureLayout } from '../../../../fixtures/lib/write-capture-layout.ts';
+import { ImportError } from '../../../../shared/import/import-error.ts';
+import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
+import { countLineEnds } from '../../../../worker/import/count-line-ends.ts';
+import { readCaptureFile } from '../../../../worker/import/read-capture-file.ts';
+import { checkAgainstTruth } from '../../import/check-against-truth.ts';
+
+const dir = mkdtempSync(join(tmpdir(), 'gatepost-import-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** A 30 000-row capture (a stand-in ramp and square wave) in the plain-time layout, with its truth. */
+function written(n = 30_000) {
+  const a = Float64Array.from({ length: n }, (_, i) => (i % 1000 < 500 ? 4.8 : 0.2));
+  const b = Float64Array.from({ length: n }, (_, i) => Math.sin(i / 100));
+  return writeCaptureLayout('plain-time', { t0: -1e-3, dt: 1e-7, channels: [{ name: 'Gate A', values: a }, { name: 'Gate B', values: b }] });
+}
+
+function save(name: string, bytes: Uint8Array | string): string {
+  const path = join(dir, name);
+  writeFileSync(path, bytes);
+  return path;
+}
+
+async function rejection(promise: Promise<unknown>): Promise<ImportError> {
+  try {
+    await promise;
+  } catch (error) {
+    expect(error).toBeInstanceOf(ImportError);
+    return error as ImportError;
+  }
+  throw new Error('expected an ImportError');
+}
+
+describe('readCaptureFile', () => {
+  it('When the file is missing, empty or a folder, then the message says which', async () => {
+    expect((await rejection(readCaptureFile(join(dir, 'nope.csv')))).message).toBe(`cannot open ${join(dir, 'nope.csv')}: no such file`);
+    expect((await rejection(readCaptureFile(save('empty.csv', '')))).message).toBe('the file is empty: there is no text in it');
+    expect((await rejection(readCaptureFile(dir))).message).toBe(`${dir} is a folder, not a file`);
+  });
+
+  it('When a file is split across two threads, then the result matches the generator and the one-thread read', async () => {
+    const { bytes, truth } = written();
+    const path = save('two.csv', bytes);
+    const [two, one] = await Promise.all([
+      readCaptureFile(path, { threads: 2, headBytes: 4096 }),
+      readCaptureFile(path, { threads: 1, headBytes: 4096 }),
+    ]);
+    expect(two.layout.reader).toBe('two threads');
+    checkAgainstTruth(two, truth);
+    expect(two.time).toMatchObject({ kind: 'uniform', t0: (one.time as { t0: number }).t0, dt: (one.time as { dt: number }).dt });
+    expect(Math.abs((two.time as { jitter: number }).jitter - (one.time as { jitter: number }).jitter)).toBeLessThan(1e-9 * 1e-7);
+    two.channels.forEach((c, k) => expect(c.values).toEqual(one.channels[k].values));
+  });
+
+  it('When the split file has blank lines, a footer and bad data in its second half, then each is handled as in one thread', async () => {
+    const { bytes } = written();
+    const text = new TextDecoder().decode(bytes);
+    const lines = text.split('\n');
+    lines.splice(100, 0, '');
+    lines.splice(25_000, 0, '', '');
+    const withBlanks = `${lines.join('\n')}End of record\nSaved by,bench PC\n`;
+    const capture = await readCaptureFile(save('blanks.csv', withBlanks), { threads: 2, headBytes: 4096 });
+    const reference = parseScopeCsv(new TextEncoder().encode(withBlanks));
+    expect(capture.length).toBe(30_000);
+    expect(capture.channels[1].values).toEqual(reference.channels[1].values);
+    expect(capture.metadata).toEqual(reference.metadata);
+
+    lines.splice(27_000, 1, '2.6e-3,ERR,0.5');
+    const error = await rejection(readCaptureFile(save('bad.csv', lines.join('\n')), { threads: 2, headBytes: 4096 }));
+    expect(error.message).toBe("line 27,001: expected 3 numbers, found 'ERR'");
+  });
+
+  it('When the times are unevenly spaced, then the reader keeps them (read again with times)', async () => {
+    const nonuniform = 'Time (s),CH1 (V)\n' + Array.from({ length: 20_000 }, (_, i) => `${i < 10_000 ? i : 2 * i - 10_000}e-7,${i % 3}`).join('\n') + '\n';
+    const capture = await readCaptureFile(save('uneven.csv', nonuniform), { threads: 2, headBytes: 4096 });
+    expect(capture.time.kind).toBe('explicit');
+    expect(capture.time.kind === 'explicit' && capture.time.t[15_000]).toBeCloseTo(2e-3, 15);
+  });
+});
+
+describe('countLineEnds', () => {
+  it('When counting line ends four bytes at a time, then the count equals a byte-by-byte count at every alignment', () => {
+    const bytes = new TextEncoder().encode('a\nbb\n\n\nccc\r\nd\n'.repeat(37));
+    for (let start = 0; start < 8; start++) {
+      for (let end = bytes.length - 8; end <= bytes.length; end++) {
+        let direct = 0;
+        for (let i = start; i < end; i++) if (bytes[i] === 10) direct++;
+        expect(countLineEnds(bytes, start, end, 10)).toBe(direct);
+        expect(countLineEnds(bytes.subarray(1), Math.max(0, start - 1), end - 1, 13)).toBe(bytes.subarray(1).subarray(Math.max(0, start - 1), end - 1).filter((b) => b === 13).length);
+      }
+    }
+  });
+});
