@@ -164,6 +164,9 @@ describe('sign-in rate limit', () => {
     const addressKeys = await h.redis.keys('gp:login-fail:addr:*');
     expect(addressKeys).toHaveLength(1);
     expect(await h.redis.get(addressKeys[0])).toBe(String(max));
+    const addressTtl = await h.redis.ttl(addressKeys[0]);
+    expect(addressTtl).toBeGreaterThan(0);
+    expect(addressTtl).toBeLessThanOrEqual(h.config.loginWindowSeconds);
     // Another account from the same address is still below the address limit (4 × per account by default).
     expect((await login(demo.users.admin.email, demo.users.admin.password)).status).toBe(200);
   });

@@ -75,11 +75,8 @@ export interface ApiHarness {
   close(): Promise<void>;
 }
 
-// Every table migration 0001 creates; schema_migrations stays, so the schema is not lost.
-const APP_TABLES = [
-  'audit_events', 'reviews', 'analyses', 'captures', 'shots', 'gate_rigs', 'projectiles', 'campaigns',
-  'invitations', 'api_tokens', 'memberships', 'users', 'labs',
-];
+// umzug's record of applied migrations: the one table a reset must keep.
+const KEEP_TABLES = ['schema_migrations'];
 
 function requireEnv(name: string): string {
   const value = process.env[name];
@@ -132,15 +129,28 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
   const extraMailers: Mailer[] = [];
   let demo: DemoWorld | null = null;
 
+  // Orders fixed by the seed's own data (creation times can tie within a millisecond): campaigns by start date, so
+  // Hollowmere's first is the vacuum sweep with its shots; shots by number; library items by name.
   async function idsOf(labId: string) {
     const where = { labId };
-    const byAge = { attributes: ['id'], order: [['createdAt', 'ASC']] as [string, string][] };
+    const ids = (rows: { id: string }[]) => rows.map((r) => r.id);
     return {
-      campaignIds: (await Campaign.findAll({ where, ...byAge })).map((r) => r.id),
-      shotIds: (await Shot.findAll({ where, ...byAge })).map((r) => r.id),
-      projectileIds: (await Projectile.findAll({ where, ...byAge })).map((r) => r.id),
-      gateRigIds: (await GateRig.findAll({ where, ...byAge })).map((r) => r.id),
+      campaignIds: ids(await Campaign.findAll({ where, attributes: ['id'], order: [['startedOn', 'ASC'], ['name', 'ASC']] })),
+      shotIds: ids(await Shot.findAll({ where, attributes: ['id'], order: [['number', 'ASC']] })),
+      projectileIds: ids(await Projectile.findAll({ where, attributes: ['id'], order: [['name', 'ASC']] })),
+      gateRigIds: ids(await GateRig.findAll({ where, attributes: ['id'], order: [['name', 'ASC']] })),
     };
+  }
+
+  // Every table the migrations made, read from the catalog, so tables of later migrations are emptied too.
+  let appTables: string[] | null = null;
+  async function tablesToEmpty(): Promise<string[]> {
+    if (!appTables) {
+      const [rows] = await sequelize.query("SELECT tablename FROM pg_tables WHERE schemaname = 'public' ORDER BY tablename");
+      appTables = (rows as { tablename: string }[]).map((r) => r.tablename).filter((t) => !KEEP_TABLES.includes(t));
+      if (!appTables.includes('labs')) throw new Error('the test database has no app tables: were the migrations run?');
+    }
+    return appTables;
   }
 
   async function loadDemo(): Promise<DemoWorld> {
@@ -173,7 +183,8 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
     smtpPort: smtp.port,
     async resetDatabase() {
       // TRUNCATE fires no row triggers, so the append-only audit table empties too (UPDATE/DELETE stay forbidden).
-      await sequelize.query(`TRUNCATE ${APP_TABLES.join(', ')} RESTART IDENTITY CASCADE`);
+      const tables = await tablesToEmpty();
+      await sequelize.query(`TRUNCATE ${tables.map((t) => `"${t}"`).join(', ')} RESTART IDENTITY CASCADE`);
       await redis.flushdb();
       await seedDemo(sequelize);
       demo = await loadDemo();
