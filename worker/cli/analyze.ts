@@ -88,6 +88,16 @@ function summary(file: string, a: ShotAnalysis): string {
 
 /** Runs the CLI on already-split arguments; returns the exit code. */
 export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
+  if (argv.includes('--help') || argv.includes('-h')) {
+    io.stdout(
+      `${USAGE}\n` +
+        '  --gate CH@M   channel CH is a gate at M metres along the path (repeat; one channel may carry several gates)\n' +
+        '  --spacing M   without --gate: every channel is a gate, in column order, M metres apart\n' +
+        '  --diameter M  projectile length along the path, for occlusion speeds and the cross-check\n' +
+        '  --json        one JSON object (gates, speed, warnings, …) instead of the summary\n',
+    );
+    return 0;
+  }
   let args: CliArgs;
   try {
     args = parseArgs(argv);

@@ -100,6 +100,12 @@ describe('analyze CLI', () => {
     expect((await run([path, '--spacing', 'ten'])).stderr).toMatch(/--spacing needs a number of metres, got 'ten'/);
   });
 
+  it('prints its usage with --help and exits 0', async () => {
+    const { code, stdout } = await run(['--help']);
+    expect(code).toBe(0);
+    expect(stdout).toMatch(/^usage: analyze FILE \[--gate CHANNEL@POSITION_M\]\.\.\. \[--spacing M\] \[--diameter M\] \[--json\]/);
+  });
+
   it('runs as `npm run --silent analyze` and exits 0 with JSON on stdout', async () => {
     const { path } = writeShot('npm.csv', { sampleInterval: 2e-7, length: 4000 });
     const { stdout } = await promisify(execFile)('npm', ['run', '--silent', 'analyze', '--', path, '--spacing', '0.1', '--json'], { cwd: process.cwd() });
