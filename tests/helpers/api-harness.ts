@@ -166,7 +166,8 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
       const user = await User.findOne({ where: { email: account.email }, rejectOnEmpty: true });
       const membership = await Membership.findOne({ where: { userId: user.id, labId: labs[account.lab].id }, rejectOnEmpty: true });
       const actor: DemoActor = account.lab === 'sandgate' ? 'otherLabAdmin' : membership.role;
-      users[actor] = { id: user.id, email: user.email, password: account.password, name: user.name, role: membership.role, labSlug: account.lab };
+      // The first account of each role in demo-accounts.json stands for that role.
+      users[actor] ??= { id: user.id, email: user.email, password: account.password, name: user.name, role: membership.role, labSlug: account.lab };
     }
     for (const actor of ['admin', 'experimenter', 'analyst', 'reviewer', 'otherLabAdmin'] as const) {
       if (!users[actor]) throw new Error(`demo-accounts.json has no ${actor}`);
