@@ -27,6 +27,8 @@ import type {
 
 /** Coverage factor of every expanded uncertainty reported: k = 2, ≈ 95 % for a near-normal output (NIST TN 1297 §6). */
 const K = 2;
+/** More pulses than this per gate on a channel means it is not seeing a projectile. */
+const MAX_PULSES_PER_GATE = 10;
 
 const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
 const ms = (t: number): string => `${(t * 1e3).toFixed(3)} ms`;
@@ -183,7 +185,11 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
         if (pulses.length < found.pulses.length && isGate[c]) {
           warnings.push(`${channel.name}: ${found.pulses.length - pulses.length} pulse(s) no longer than 2 samples were ignored as spikes`);
         }
-        if (pulses.length > 0) {
+        // A gate sees one pulse per projectile; dozens mean the "states" are hum or noise (common practice).
+        const gatesHere = gateSpecs.filter((g) => g.channel === channel.name).length;
+        if (isGate[c] && pulses.length > MAX_PULSES_PER_GATE * gatesHere) {
+          reason = `${pulses.length} pulses where ${gatesHere} gate(s) should give ${gatesHere}: hum or noise, not a projectile`;
+        } else if (pulses.length > 0) {
           result = {
             ...common,
             status: 'ok',
@@ -229,7 +235,8 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     if (ch.status !== 'missed' || m === null || !isGate[c]) continue;
     ch.polarity = rigPolarity;
     const clearLevel = rigPolarity === 'falling' ? m.high : m.low;
-    const step = referenceStep > 0 ? referenceStep : m.amplitude;
+    // Without a clean gate (or the rig's expected step) a depth in "% of the step" would mean nothing.
+    const step = referenceStep;
     let message = `${ch.name}: missed (${ch.reason})`;
     if (step > 0) {
       const dip = findDipCandidate(traces[c], { time, clearLevel, referenceStep: rigPolarity === 'falling' ? -step : step });

@@ -21,7 +21,7 @@ export interface ChannelMeasurement {
   highSd: number;
   /** Noise for timing jitter: standard deviation in the clear state (or in the other when it has too few samples), V. */
   noise: number;
-  /** Amplitude over `noise` (Infinity for a noise-free record). */
+  /** Amplitude over the larger of `noise` and the successive-difference noise (Infinity for a noise-free record). */
   snr: number;
   polarity: Polarity;
   /** Level of the beam-clear state and of the beam-blocked state, V. */
@@ -55,7 +55,11 @@ export function measureChannel(values: ArrayLike<number>, options: MeasureChanne
   const clearSd = resolved === 'falling' ? highSd : lowSd;
   const otherSd = resolved === 'falling' ? lowSd : highSd;
   const sd = Number.isFinite(clearSd) ? clearSd : Number.isFinite(otherSd) ? otherSd : 0;
-  const snr = sd > 0 ? amplitude / sd : amplitude > 0 ? Number.POSITIVE_INFINITY : 0;
+  // Hum or a noise-only trace can look like two states with little spread in each (a sine's histogram is
+  // bimodal); successive differences still see the white noise, so the step is judged against the larger.
+  const clearDiffSd = resolved === 'falling' ? noise.highDiffSd : noise.lowDiffSd;
+  const judged = Number.isFinite(clearDiffSd) ? Math.max(sd, clearDiffSd) : sd;
+  const snr = judged > 0 ? amplitude / judged : amplitude > 0 ? Number.POSITIVE_INFINITY : 0;
   return {
     low,
     high,

@@ -16,6 +16,10 @@ export interface StateNoise {
   /** Samples within the widest band of each state (for telling the dominant state). */
   lowCount: number;
   highCount: number;
+  /** White-noise estimate from successive differences within a state, √(mean(Δv²)/2), V (NaN when too few).
+   * Slow wander (hum, a settling sensor) cancels in a difference, so this sees only sample-to-sample noise. */
+  lowDiffSd: number;
+  highDiffSd: number;
 }
 
 const SHELLS = 10;
@@ -41,14 +45,28 @@ export function stateNoise(values: ArrayLike<number>, low: number, high: number,
   // |d|/widest·2³⁰ as an integer: its leading zeros give the shell (each shell halves the band) in one
   // instruction instead of a loop of comparisons per sample.
   const toInt = 2 ** 30 / widest;
+  // Successive differences [count, Σ Δ²] per state, both samples inside the same state's band.
+  const lowDiff = [0, 0];
+  const highDiff = [0, 0];
   for (let i = 0; i < n; i += stride) {
     const v = values[i];
     let d = v - low;
     let stats = lowStats;
+    let level = low;
+    let diff = lowDiff;
     if (!(d <= widest && d >= -widest)) {
       d = v - high;
       if (!(d <= widest && d >= -widest)) continue; // also skips NaN
       stats = highStats;
+      level = high;
+      diff = highDiff;
+    }
+    if (i + 1 < n) {
+      const e = values[i + 1] - level;
+      if (e <= widest && e >= -widest) {
+        diff[0]++;
+        diff[1] += (e - d) * (e - d);
+      }
     }
     const q = (d < 0 ? -d : d) * toInt;
     let j = Math.clz32(q) - 2; // q in (2²⁹, 2³⁰] → shell 0
@@ -81,5 +99,15 @@ export function stateNoise(values: ArrayLike<number>, low: number, high: number,
   };
   const lo = pick(lowStats, low);
   const hi = pick(highStats, high);
-  return { lowLevel: lo.level, highLevel: hi.level, lowSd: lo.sd, highSd: hi.sd, lowCount: lo.count, highCount: hi.count };
+  const diffSd = (acc: number[]): number => (acc[0] >= 2 ? Math.sqrt(acc[1] / acc[0] / 2) : Number.NaN);
+  return {
+    lowLevel: lo.level,
+    highLevel: hi.level,
+    lowSd: lo.sd,
+    highSd: hi.sd,
+    lowCount: lo.count,
+    highCount: hi.count,
+    lowDiffSd: diffSd(lowDiff),
+    highDiffSd: diffSd(highDiff),
+  };
 }

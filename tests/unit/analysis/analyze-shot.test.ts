@@ -147,6 +147,33 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(Math.abs(analysis.speed!.value / 300 - 1)).toBeLessThan(2e-3);
   });
 
+  it('hum and noise without a projectile: every gate is missed, none is analysed into noise pulses', () => {
+    // A record ending before the ball arrives; 50 Hz hum makes the histogram bimodal (two false "states").
+    for (const [hum, noise] of [
+      [0.02, 0.02],
+      [0.05, 0.005],
+      [0.2, 0.01],
+    ]) {
+      const { analysis } = simulateAndAnalyze(
+        { arrivalTime: 1, humAmplitude: hum, noiseRms: noise, length: 200000, sampleInterval: 1e-7 },
+        { spacing: 0.1 },
+      );
+      expect(analysis.gates.map((g) => g.status)).toEqual(['missed', 'missed']);
+      expect(analysis.channels.every((c) => c.pulses.length === 0 && c.candidate === null)).toBe(true);
+      expect(analysis.speed).toBeNull();
+      expect(analysis.warnings).toContain('no gate fired: no speed');
+    }
+  });
+
+  it('a gate channel with dozens of clean pulses (interference, a chopper) is missed, not timed', () => {
+    const capture = simulatedShotToCapture(simulateShot({ gatePositions: [0] }));
+    const v = capture.channels[0].values;
+    for (let i = 0; i < v.length; i++) v[i] = Math.floor(i / 100) % 2 === 0 ? 4.8 : 0.2;
+    const analysis = analyzeShot(capture, { gates: [{ channel: 'CH1', position: 0 }] });
+    expect(analysis.gates[0].status).toBe('missed');
+    expect(analysis.channels[0].reason).toBe('49 pulses where 1 gate(s) should give 1: hum or noise, not a projectile'); // the 50th is cut by the record's end
+  });
+
   it('off-centre beam (b = 5 mm on a 40 mm ball): occlusion reads +3.3 % and the cross-check warns', () => {
     // DOMAIN.md: chord 2√(R² − b²) is 3.2 % short, so ℓ = D over-states the speed by 3.3 %.
     const { analysis } = simulateAndAnalyze({ beamOffset: 0.005, noiseRms: 0.02 }, { spacing: 0.1, projectile: { length: D } });
