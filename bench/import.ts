@@ -6,6 +6,7 @@
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { statSync } from 'node:fs';
+import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { readCaptureFile } from '../worker/import/read-capture-file.ts';
 import { ensureBigCapture } from './lib/big-capture.ts';
@@ -18,18 +19,22 @@ interface Measurement {
   peakRssBytes: number;
   startRssBytes: number;
   timeKind: string;
+  cpuSeconds: number;
 }
 
 async function measure(path: string, threads: number): Promise<void> {
   const startRssBytes = process.memoryUsage().rss;
+  const cpu = process.cpuUsage();
   const t = performance.now();
   const capture = await readCaptureFile(path, { threads });
   const seconds = (performance.now() - t) / 1000;
+  const used = process.cpuUsage(cpu);
   let outputBytes = capture.channels.reduce((sum, c) => sum + c.values.byteLength, 0);
   if (capture.time.kind === 'explicit') outputBytes += capture.time.t.byteLength;
   const m: Measurement = {
     seconds, rows: capture.length, channels: capture.channels.length, outputBytes,
     peakRssBytes: process.resourceUsage().maxRSS * 1024, startRssBytes, timeKind: capture.time.kind,
+    cpuSeconds: (used.user + used.system) / 1e6,
   };
   process.stdout.write(`${JSON.stringify(m)}\n`);
 }
@@ -53,7 +58,7 @@ async function main(): Promise<void> {
   execFileSync('cat', [path], { maxBuffer: 1 << 30, stdio: ['ignore', 'ignore', 'ignore'] }); // into the page cache
   const wc = Math.min(timeWc(path), timeWc(path), timeWc(path));
   console.log(`file: ${path} (${mb.toFixed(0)} MB), page cache warm`);
-  console.log(`baseline wc -l: ${wc.toFixed(3)} s (${(mb / wc).toFixed(0)} MB/s)`);
+  console.log(`baseline wc -l: ${wc.toFixed(3)} s (${(mb / wc).toFixed(0)} MB/s); load average ${loadavg().map((l) => l.toFixed(1)).join(' ')} on ${availableParallelism()} cores`);
   for (const threads of [1, 2]) {
     const runs = [run(path, threads), run(path, threads)];
     const best = runs.reduce((a, b) => (b.seconds < a.seconds ? b : a));
@@ -63,7 +68,8 @@ async function main(): Promise<void> {
       + `${(mb / best.seconds).toFixed(0)} MB/s, ${(best.rows / best.seconds / 1e6).toFixed(2)} M rows/s, `
       + `peak RSS ${(peak / 1e6).toFixed(0)} MB = ${(peak / best.outputBytes).toFixed(2)}× the output arrays `
       + `(${(best.outputBytes / 1e6).toFixed(0)} MB: ${best.channels} channels × ${best.rows} rows, time ${best.timeKind}; `
-      + `process at start ${(best.startRssBytes / 1e6).toFixed(0)} MB), ${(best.seconds / wc).toFixed(1)}× wc -l`,
+      + `process at start ${(best.startRssBytes / 1e6).toFixed(0)} MB), ${(best.seconds / wc).toFixed(1)}× wc -l; `
+      + `CPU ${best.cpuSeconds.toFixed(2)} s (${(mb / best.cpuSeconds).toFixed(0)} MB per CPU-second)`,
     );
   }
 }

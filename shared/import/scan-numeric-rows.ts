@@ -148,11 +148,16 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
         if (c === 45) { neg = true; c = bytes[++p]; } else if (c === 43) { c = bytes[++p]; }
         let mant = 0;
         let exp10 = 0;
-        let digits = 0;
-        while ((c - 48) >>> 0 < 10) { mant = mant * 10 + (c - 48); digits++; c = bytes[++p]; }
+        // Digit counts come from positions, so the digit loops do one multiply-add and one load a byte.
+        const intStart = p;
+        while ((c - 48) >>> 0 < 10) { mant = mant * 10 + (c - 48); c = bytes[++p]; }
+        let digits = p - intStart;
         if (c === decimal) {
-          c = bytes[++p];
-          while ((c - 48) >>> 0 < 10) { mant = mant * 10 + (c - 48); exp10--; digits++; c = bytes[++p]; }
+          const fracStart = ++p;
+          c = bytes[p];
+          while ((c - 48) >>> 0 < 10) { mant = mant * 10 + (c - 48); c = bytes[++p]; }
+          exp10 = fracStart - p;
+          digits -= exp10;
         }
         if ((c === 101 || c === 69) && digits > 0) {
           c = bytes[++p];

@@ -36,18 +36,39 @@ export class TimeGridHull {
   /** Adds sample i (in increasing order) at time t, in seconds. */
   push(i: number, t: number): void {
     const r = t - this.t0 - i * this.dtHint;
-    // Upper hull: drop the last vertex while it does not make a right turn.
+    // Locals, not fields, inside the loops: this runs once per row of a deep record.
+    let xs = this.ui;
+    let ys = this.ur;
     let n = this.un;
-    while (n >= 2 && (this.ui[n - 1] - this.ui[n - 2]) * (r - this.ur[n - 2]) - (this.ur[n - 1] - this.ur[n - 2]) * (i - this.ui[n - 2]) >= 0) n--;
-    if (n === this.ui.length) [this.ui, this.ur] = [grow(this.ui), grow(this.ur)];
-    this.ui[n] = i;
-    this.ur[n] = r;
+    // Upper hull: drop the last vertex while it does not make a right turn.
+    while (n >= 2) {
+      const x0 = xs[n - 2];
+      const y0 = ys[n - 2];
+      if ((xs[n - 1] - x0) * (r - y0) - (ys[n - 1] - y0) * (i - x0) >= 0) n--;
+      else break;
+    }
+    if (n === xs.length) {
+      this.ui = xs = grow(xs);
+      this.ur = ys = grow(ys);
+    }
+    xs[n] = i;
+    ys[n] = r;
     this.un = n + 1;
+    xs = this.li;
+    ys = this.lr;
     n = this.ln;
-    while (n >= 2 && (this.li[n - 1] - this.li[n - 2]) * (r - this.lr[n - 2]) - (this.lr[n - 1] - this.lr[n - 2]) * (i - this.li[n - 2]) <= 0) n--;
-    if (n === this.li.length) [this.li, this.lr] = [grow(this.li), grow(this.lr)];
-    this.li[n] = i;
-    this.lr[n] = r;
+    while (n >= 2) {
+      const x0 = xs[n - 2];
+      const y0 = ys[n - 2];
+      if ((xs[n - 1] - x0) * (r - y0) - (ys[n - 1] - y0) * (i - x0) <= 0) n--;
+      else break;
+    }
+    if (n === xs.length) {
+      this.li = xs = grow(xs);
+      this.lr = ys = grow(ys);
+    }
+    xs[n] = i;
+    ys[n] = r;
     this.ln = n + 1;
   }
 
