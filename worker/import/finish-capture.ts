@@ -27,9 +27,10 @@ export interface FinishCaptureInput {
 export function finishCapture(input: FinishCaptureInput): ImportedCapture {
   const { plan, out, rows, footerText, source } = input;
   const warnings: string[] = [];
-  let footerLines = 0;
+  let footerLines = plan.footerLines;
   const metadata = { ...plan.metadata };
-  if (footerText !== null) {
+  // A plan made from the whole file has read the footer already; one made from the head has not.
+  if (footerText !== null && plan.dataEndLine === null) {
     for (const line of splitLines(footerText)) {
       const fields = splitFields(line, plan.delimiter).map((f) => f.trim()).filter((f) => f !== '');
       if (fields.length === 0) continue;

@@ -10,8 +10,8 @@ const manifest = readManifest();
 
 describe('readCaptureFile on every fixture layout', () => {
   for (const [name, truth] of Object.entries(manifest)) {
-    it(`When ${name} is read from disk, then it matches the generator and the text path bit for bit`, async () => {
-      const capture = await readCaptureFile(join(CAPTURES_DIR, name), { headBytes: 4096 });
+    it.each([4096, undefined])(`When ${name} is read from disk (head of %s bytes), then it matches the generator and the text path bit for bit`, async (headBytes) => {
+      const capture = await readCaptureFile(join(CAPTURES_DIR, name), { headBytes });
       checkAgainstTruth(capture, truth);
       const text = parseScopeCsv(readCapture(name));
       // Same grid to the bit; the jitter of the disk path comes from a convex hull, so equal to rounding.
