@@ -7,10 +7,13 @@ import { createAuthenticate } from './lib/authenticate.ts';
 import type { Deps } from './lib/deps.ts';
 import { createErrorHandler } from './lib/error-handler.ts';
 import { notFound } from './lib/errors.ts';
+import { buildOpenApi } from './lib/openapi.ts';
 import { mountRoutes, type RouteDef } from './lib/routes.ts';
+import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
 import { authRoutes } from './modules/auth/routes.ts';
 import { campaignRoutes } from './modules/campaigns/routes.ts';
+import { captureRoutes } from './modules/captures/routes.ts';
 import { healthRoutes } from './modules/health/routes.ts';
 import { invitationRoutes } from './modules/invitations/routes.ts';
 import { labRoutes } from './modules/labs/routes.ts';
@@ -19,9 +22,11 @@ import { outboxRoutes } from './modules/outbox/routes.ts';
 import { shotRoutes } from './modules/shots/routes.ts';
 import { tokenRoutes } from './modules/tokens/routes.ts';
 
+const API_VERSION = '0.1.0';
+
 /** Every API route, in one list: the server mounts it, the authorization-matrix test checks it row by row. */
 export function allRoutes(deps: Deps): RouteDef[] {
-  return [
+  const routes: RouteDef[] = [
     ...healthRoutes(deps),
     ...authRoutes(deps),
     ...tokenRoutes(),
@@ -30,9 +35,21 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...outboxRoutes(deps),
     ...campaignRoutes(),
     ...libraryRoutes(),
-    ...shotRoutes(),
+    ...shotRoutes(deps),
+    ...analysisRoutes(deps),
+    ...captureRoutes(deps),
     ...auditRoutes(),
   ];
+  routes.push({
+    method: 'get',
+    path: '/api/openapi.json',
+    access: { kind: 'public' },
+    summary: 'This document: every route, generated from the route table and its zod schemas',
+    handler(_req, res) {
+      res.json(buildOpenApi(routes, { version: API_VERSION, serverUrl: deps.config.publicUrl }));
+    },
+  });
+  return routes;
 }
 
 /** Builds the Express app without listening, so tests can drive it with supertest. */

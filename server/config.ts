@@ -39,6 +39,12 @@ const schema = z.object({
   s3SecretAccessKey: z.string().optional(),
   /** Bucket in the URL path (most self-hosted S3-compatible servers need it). */
   s3ForcePathStyle: z.stringbool().default(true),
+  /** Largest scope file one upload may carry. */
+  uploadLimitBytes: z.coerce.number().int().positive().default(2 * 1024 ** 3),
+  /** How long a worker holds a job before another may take it over (stalled-job recovery), ms. */
+  jobLockMs: z.coerce.number().int().min(1000).default(30_000),
+  /** How often the worker re-queues captures and analyses whose job never reached Redis, ms. */
+  sweepIntervalMs: z.coerce.number().int().min(200).default(15_000),
 }).refine((c) => c.storage !== 's3' || !!c.s3Bucket, { path: ['s3Bucket'], message: 'must be set when GATEPOST_STORAGE is s3' });
 
 export type Config = z.infer<typeof schema>;
@@ -71,6 +77,9 @@ const envNames: Record<keyof Config, string> = {
   s3AccessKeyId: 'GATEPOST_S3_ACCESS_KEY_ID',
   s3SecretAccessKey: 'GATEPOST_S3_SECRET_ACCESS_KEY',
   s3ForcePathStyle: 'GATEPOST_S3_FORCE_PATH_STYLE',
+  uploadLimitBytes: 'GATEPOST_UPLOAD_LIMIT_BYTES',
+  jobLockMs: 'GATEPOST_JOB_LOCK_MS',
+  sweepIntervalMs: 'GATEPOST_SWEEP_INTERVAL_MS',
 };
 
 export class ConfigError extends Error {}

@@ -4,6 +4,7 @@ import { createLogger } from './lib/logger.ts';
 import { createMailer } from './lib/mailer.ts';
 import { LoginLimiter } from './lib/rate-limit.ts';
 import { createRedis } from './lib/redis.ts';
+import { createJobQueues } from './lib/job-queues.ts';
 import { createSequelize } from './db/sequelize.ts';
 import { createBlobStore } from './storage/create-blob-store.ts';
 
@@ -26,7 +27,8 @@ async function main() {
   const mailer = createMailer(config);
   const loginLimiter = new LoginLimiter(redis, { maxFailures: config.loginMaxFailures, windowSeconds: config.loginWindowSeconds });
   const blobStore = createBlobStore(config);
-  const app = buildApp({ config, logger, sequelize, redis, mailer, loginLimiter, blobStore });
+  const queues = createJobQueues(config.redisUrl);
+  const app = buildApp({ config, logger, sequelize, redis, mailer, loginLimiter, queues, blobStore });
 
   const server = app.listen(config.port, config.host, () => {
     logger.info({ url: config.publicUrl, port: config.port }, 'Gatepost API listening');
@@ -46,7 +48,7 @@ async function main() {
     server.closeIdleConnections();
     await new Promise<void>((resolve) => server.close(() => resolve()));
     mailer.close();
-    await Promise.allSettled([sequelize.close(), redis.quit()]);
+    await Promise.allSettled([sequelize.close(), redis.quit(), queues.close()]);
     process.exit(0);
   };
   process.on('SIGINT', () => void shutdown('SIGINT'));

@@ -1,23 +1,54 @@
-import { UnrecoverableError, Worker, type Job } from 'bullmq';
-import { loadConfig, ConfigError } from '../server/config.ts';
-import { createLogger } from '../server/lib/logger.ts';
-import { QUEUES, redisConnection } from './queues.ts';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { Worker, type Job } from 'bullmq';
+import { Op } from 'sequelize';
+import { loadConfig, ConfigError, type Config } from '../server/config.ts';
+import { Analysis, Capture } from '../server/db/models/index.ts';
+import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
+import { closeWorkerContext, workerContext } from './context.ts';
+import { redisConnection } from './queues.ts';
 
 /**
- * The job worker process: one BullMQ Worker per queue, each dispatching by job name to a processor in
- * worker/processors/. Runs apart from the API so heavy imports and analyses never slow requests; several
- * workers on several machines may share one Redis and one PostgreSQL.
+ * The job worker process: one BullMQ Worker per queue. The processors are sandboxed in worker threads
+ * (worker/processors/*.ts), so a long import or analysis never blocks this thread's lock renewals. Several worker
+ * processes, on one machine or many, may share one Redis and one PostgreSQL: each job runs once.
  */
-type Processor = (job: Job) => Promise<unknown>;
-
-/** Processors by queue and job name. The ingest and analysis processors arrive with issue 5. */
-const processors: Record<string, Record<string, Processor>> = {
-  [QUEUES.ingest]: {},
-  [QUEUES.analysis]: {},
+const here = path.dirname(fileURLToPath(import.meta.url));
+const processorFiles = {
+  [QUEUE_NAMES.ingest]: path.join(here, 'processors/ingest-capture.boot.mjs'),
+  [QUEUE_NAMES.analysis]: path.join(here, 'processors/analyse-shot.boot.mjs'),
 };
 
+/** After the last retry of a transient fault, the row says so instead of staying "queued" for ever. */
+async function recordFinalFailure(queue: string, job: Job | undefined, err: Error) {
+  if (!job) return;
+  const attempts = job.opts.attempts ?? 1;
+  const unrecoverable = err.name === 'UnrecoverableError';
+  if (!unrecoverable && job.attemptsMade < attempts) return;
+  const message = `${err.message} (gave up after ${job.attemptsMade} attempt${job.attemptsMade === 1 ? '' : 's'})`;
+  if (queue === QUEUE_NAMES.ingest) {
+    await Capture.update({ state: 'failed', progress: 100, error: unrecoverable ? err.message : message }, { where: { id: job.data.captureId, state: { [Op.ne]: 'ready' } } });
+  } else {
+    await Analysis.update({ state: 'failed', progress: 100, error: unrecoverable ? err.message : message, completedAt: new Date() }, { where: { id: job.data.analysisId, state: { [Op.ne]: 'done' } } });
+  }
+}
+
+/**
+ * Re-queues work whose job never reached Redis (the API saved the row, then Redis was away). Job ids are
+ * deterministic, so a job that does exist is not added twice.
+ */
+async function sweep(config: Config) {
+  const { queues, logger } = workerContext();
+  const before = new Date(Date.now() - Math.min(10_000, config.sweepIntervalMs));
+  const captures = await Capture.findAll({ where: { state: 'queued', updatedAt: { [Op.lt]: before } }, attributes: ['id', 'ingestAttempt'], limit: 500 });
+  for (const c of captures) await queues.addIngest({ captureId: c.id, attempt: c.ingestAttempt });
+  const analyses = await Analysis.findAll({ where: { state: 'queued', createdAt: { [Op.lt]: before } }, attributes: ['id'], limit: 500 });
+  for (const a of analyses) await queues.addAnalysis({ analysisId: a.id });
+  if (captures.length + analyses.length > 0) logger.info({ captures: captures.length, analyses: analyses.length }, 'sweep re-queued work');
+}
+
 async function main() {
-  let config;
+  let config: Config;
   try {
     config = loadConfig();
   } catch (err) {
@@ -27,32 +58,43 @@ async function main() {
     }
     throw err;
   }
-  const logger = createLogger(config.logLevel, 'worker');
-  const workers = Object.entries(processors).map(([queue, byName]) => {
-    const worker = new Worker(
-      queue,
-      async (job) => {
-        const processor = byName[job.name];
-        if (!processor) throw new UnrecoverableError(`No processor for job "${job.name}" on queue ${queue}`);
-        return processor(job);
-      },
-      { connection: redisConnection(config.redisUrl), concurrency: 2 },
-    );
-    worker.on('failed', (job, err) => logger.warn({ queue, job: job?.id, name: job?.name, err: err.message }, 'job failed'));
+  const { logger, sequelize } = workerContext();
+  await sequelize.authenticate();
+  const workers = Object.entries(processorFiles).map(([queue, file]) => {
+    const worker = new Worker(queue, file, {
+      connection: redisConnection(config.redisUrl),
+      useWorkerThreads: true,
+      concurrency: 2,
+      lockDuration: config.jobLockMs,
+      stalledInterval: config.jobLockMs,
+      maxStalledCount: 2,
+    });
+    worker.on('failed', (job, err) => {
+      logger.warn({ queue, job: job?.id, attempt: job?.attemptsMade, err: err.message }, 'job failed');
+      recordFinalFailure(queue, job, err).catch((e: Error) => logger.error({ err: e.message }, 'could not record the failure'));
+    });
+    worker.on('completed', (job) => logger.info({ queue, job: job.id }, 'job done'));
     worker.on('error', (err) => logger.error({ queue, err: err.message }, 'worker error'));
     return worker;
   });
   await Promise.all(workers.map((w) => w.waitUntilReady()));
-  logger.info({ queues: Object.keys(processors) }, 'Gatepost worker ready');
+  logger.info({ queues: Object.keys(processorFiles) }, 'Gatepost worker ready');
+
+  const sweeper = setInterval(() => {
+    sweep(config).catch((err: Error) => logger.warn({ err: err.message }, 'sweep failed; will try again'));
+  }, config.sweepIntervalMs);
+  void sweep(config).catch(() => {});
 
   let stopping = false;
   const shutdown = async (signal: string) => {
     if (stopping) return;
     stopping = true;
+    clearInterval(sweeper);
     logger.info({ signal }, 'worker shutting down: finishing running jobs');
     const force = setTimeout(() => process.exit(1), 30_000);
     force.unref();
     await Promise.allSettled(workers.map((w) => w.close()));
+    await closeWorkerContext();
     process.exit(0);
   };
   process.on('SIGINT', () => void shutdown('SIGINT'));

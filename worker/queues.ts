@@ -1,16 +1,12 @@
 import { Queue } from 'bullmq';
+import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
+
+export const QUEUES = QUEUE_NAMES;
 
 /**
- * Queue names and the connection options every queue and worker shares. BullMQ needs a real Redis
- * (see ../shared/STACK.md); `maxRetriesPerRequest: null` is what BullMQ requires of a worker connection.
+ * Connection options every queue and worker shares. BullMQ needs a real Redis (see ../shared/STACK.md);
+ * `maxRetriesPerRequest: null` is what BullMQ requires of a worker connection.
  */
-export const QUEUES = {
-  /** Import a stored capture file (issue 5). */
-  ingest: 'gatepost-ingest',
-  /** Run the analysis engine for one analysis version (issue 5). */
-  analysis: 'gatepost-analysis',
-} as const;
-
 export function redisConnection(url: string) {
   const u = new URL(url);
   return {

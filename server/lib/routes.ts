@@ -27,6 +27,12 @@ export interface RouteDef {
   summary: string;
   /** Request body schema: the parsed value replaces `req.body`. */
   body?: z.ZodType;
+  /** Query-string schema: the parsed value is in `res.locals.query`. */
+  query?: z.ZodType;
+  /** Body is multipart/form-data with files in this field (documentation; the handler receives them). */
+  multipartFiles?: string;
+  /** Success status and what the response holds, for the OpenAPI document. @default 200, "JSON" */
+  response?: { status: number; description: string };
   handler: (req: Request, res: Response) => unknown;
 }
 
@@ -64,11 +70,19 @@ function validateBody(schema: z.ZodType): RequestHandler {
   };
 }
 
+function validateQuery(schema: z.ZodType): RequestHandler {
+  return (req, res, next) => {
+    res.locals.query = parseInput(schema, req.query ?? {});
+    next();
+  };
+}
+
 /** Mounts route definitions with their access guard and body validation; returns them for the route registry. */
 export function mountRoutes(router: Router, routes: RouteDef[]): RouteDef[] {
   for (const route of routes) {
     const chain: RequestHandler[] = [guard(route)];
     if (route.body) chain.push(validateBody(route.body));
+    if (route.query) chain.push(validateQuery(route.query));
     chain.push(async (req, res) => {
       await route.handler(req, res);
     });

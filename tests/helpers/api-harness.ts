@@ -20,6 +20,7 @@ import type { Deps } from '../../server/lib/deps.ts';
 import { createLogger } from '../../server/lib/logger.ts';
 import { createMailer, type Mailer } from '../../server/lib/mailer.ts';
 import { LoginLimiter } from '../../server/lib/rate-limit.ts';
+import { createJobQueues } from '../../server/lib/job-queues.ts';
 import { signSession } from '../../server/lib/tokens.ts';
 import { LocalDiskStore } from '../../server/storage/local-disk-store.ts';
 
@@ -110,9 +111,10 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
     mailOutbox: 'fake',
     smtpHost: '127.0.0.1',
     smtpPort: smtp.port,
-    // A short window keeps the rate-limit test quick; 3 failures keep its loop short.
+    // 3 failures keep the rate-limit loop short. The window is short (default 900 s) so leftover counters clear
+    // themselves, yet long enough that three argon2 checks on a loaded 2-core machine (~1 s each seen) fit in it.
     loginMaxFailures: 3,
-    loginWindowSeconds: 3,
+    loginWindowSeconds: 10,
     logLevel: (process.env.GATEPOST_TEST_LOG_LEVEL as Config['logLevel'] | undefined) ?? 'silent',
     publicUrl: 'http://127.0.0.1:8640',
     ...options.config,
@@ -124,7 +126,9 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
   // Blobs of this test run only, in a temp folder removed by close().
   const blobDir = mkdtempSync(path.join(tmpdir(), 'gatepost-blobs-'));
   const blobStore = new LocalDiskStore(blobDir);
-  const deps: Deps = { config, logger, sequelize, redis, mailer, loginLimiter, blobStore };
+  // Jobs queued by in-process API tests land in the test Redis; no worker runs them unless a test starts one.
+  const queues = createJobQueues(redisUrl);
+  const deps: Deps = { config, logger, sequelize, redis, mailer, loginLimiter, blobStore, queues };
   const app = buildApp(deps);
   const extraMailers: Mailer[] = [];
   let demo: DemoWorld | null = null;
@@ -207,6 +211,7 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
       return buildApp({ ...deps, mailer: other });
     },
     async close() {
+      await queues.close();
       mailer.close();
       for (const m of extraMailers) m.close();
       await smtp.close();

@@ -166,6 +166,9 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     if (out.times !== null && rows0 > 0 && rows1 > 0 && !(out.times[rows0] > out.times[rows0 - 1])) {
       throw new ImportError(`the time ${out.times[rows0]} s is not after the previous ${out.times[rows0 - 1]} s (times must increase)`, plan.dataStartLine + lines0);
     }
+    if (reply.firstIndex !== null && rows0 > 0 && reply.firstIndex !== state.nextIndex) {
+      throw new ImportError(`the sample index ${reply.firstIndex} does not follow ${state.nextIndex - 1} (indices must count up by one)`, plan.dataStartLine + lines0);
+    }
     const source = { encoding: decoded.encoding, bom: decoded.bom, lineEnding: eol === 13 ? 'CR' : head.includes(13) ? 'CRLF' : 'LF', reader: 'two threads' };
     if (out.hull === null || out.hull === undefined || rows < 2) return finishCapture({ plan, out, rows, footerText, source });
     if (reply.hull !== null && rows1 > 0) {

@@ -23,6 +23,7 @@ export interface ScanRangeReply {
   row: number;
   line: number;
   lastTime: number;
+  firstIndex: number | null;
   hull: TimeGridHullData | null;
   stop: { kind: string; offset: number; reason: string; line: number | null } | null;
   invalidCounts: number[];
@@ -46,6 +47,7 @@ parentPort?.once('message', (request: ScanRangeRequest) => {
         row: state.row,
         line: state.line,
         lastTime: state.lastTime,
+        firstIndex: state.firstIndex ?? null,
         hull: out.hull?.toData() ?? null,
         stop: stop === null ? null : { kind: stop.kind, offset: stop.offset, reason: stop.error?.reason ?? '', line: stop.error?.line ?? null },
         invalidCounts: out.invalidCounts,
@@ -56,11 +58,11 @@ parentPort?.once('message', (request: ScanRangeRequest) => {
     }
   } catch (error) {
     if (error instanceof ImportError) {
-      reply = { row: 0, line: 0, lastTime: NaN, hull: null, stop: { kind: 'error', offset: 0, reason: error.reason, line: error.line }, invalidCounts: [], failure: null };
+      reply = { row: 0, line: 0, lastTime: NaN, firstIndex: null, hull: null, stop: { kind: 'error', offset: 0, reason: error.reason, line: error.line }, invalidCounts: [], failure: null };
       parentPort?.postMessage(reply);
       return;
     }
-    reply = { row: 0, line: 0, lastTime: NaN, hull: null, stop: null, invalidCounts: [], failure: error instanceof Error ? `${error.name}: ${error.message}` : String(error) };
+    reply = { row: 0, line: 0, lastTime: NaN, firstIndex: null, hull: null, stop: null, invalidCounts: [], failure: error instanceof Error ? `${error.name}: ${error.message}` : String(error) };
   }
   parentPort?.postMessage(reply);
 });

@@ -134,10 +134,14 @@ export class Capture extends Model<InferAttributes<Capture>, InferCreationAttrib
   declare storageKey: string;
   declare state: CreationOptional<'queued' | 'reading' | 'ready' | 'failed'>;
   declare error: CreationOptional<string | null>;
-  declare layout: CreationOptional<unknown>;
-  declare channels: CreationOptional<unknown>;
+  declare layout: CreationOptional<object | null>;
+  declare channels: CreationOptional<object | null>;
   declare sampleCount: CreationOptional<number | null>;
-  declare timeBase: CreationOptional<unknown>;
+  declare timeBase: CreationOptional<object | null>;
+  declare importOptions: CreationOptional<Record<string, unknown>>;
+  declare ingestAttempt: CreationOptional<number>;
+  declare progress: CreationOptional<number>;
+  declare warnings: CreationOptional<string[]>;
   declare uploadedBy: string | null;
   declare uploadedAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -155,6 +159,9 @@ export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttr
   declare error: CreationOptional<string | null>;
   declare jobKey: string;
   declare requestedBy: string | null;
+  declare progress: CreationOptional<number>;
+  declare captureIds: CreationOptional<string[]>;
+  declare startedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare completedAt: CreationOptional<Date | null>;
 }
@@ -243,7 +250,12 @@ export function initModels(sequelize: Sequelize): void {
     {
       id, labId: uuid(), shotId: uuid(), fileName: text(), sizeBytes: { type: DataTypes.BIGINT, allowNull: false },
       sha256: text(), storageKey: text(), state: textOr('queued'), error: text(true), layout: json(), channels: json(),
-      sampleCount: { type: DataTypes.BIGINT }, timeBase: json(), uploadedBy: uuid(true),
+      sampleCount: { type: DataTypes.BIGINT }, timeBase: json(),
+      importOptions: { type: DataTypes.JSONB, allowNull: false, defaultValue: {} },
+      ingestAttempt: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
+      progress: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      warnings: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
+      uploadedBy: uuid(true),
       uploadedAt: DataTypes.DATE, updatedAt: DataTypes.DATE,
     },
     opts('captures', { createdAt: 'uploadedAt' }),
@@ -252,7 +264,9 @@ export function initModels(sequelize: Sequelize): void {
     {
       id, labId: uuid(), shotId: uuid(), version: { type: DataTypes.INTEGER, allowNull: false }, parameters: json(false),
       engineVersion: text(), state: textOr('queued'), results: json(), error: text(true), jobKey: text(), requestedBy: uuid(true),
-      createdAt: DataTypes.DATE, completedAt: date(),
+      progress: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
+      captureIds: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
+      startedAt: date(), createdAt: DataTypes.DATE, completedAt: date(),
     },
     opts('analyses', { updatedAt: false }),
   );

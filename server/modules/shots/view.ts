@@ -1,4 +1,4 @@
-import type { Shot } from '../../db/models/index.ts';
+import type { Analysis, Capture, Shot } from '../../db/models/index.ts';
 
 /** The shot as the API shows it: SI values, named with their unit. */
 export function shotSummary(s: Shot) {
@@ -19,4 +19,44 @@ export function shotSummary(s: Shot) {
     notes: s.notes,
     currentAnalysisId: s.currentAnalysisId,
   };
+}
+
+export function captureView(c: Capture) {
+  return {
+    id: c.id,
+    fileName: c.fileName,
+    sizeBytes: Number(c.sizeBytes),
+    sha256: c.sha256,
+    state: c.state,
+    progress: c.progress,
+    error: c.error,
+    warnings: c.warnings,
+    layout: c.layout,
+    channels: c.channels,
+    sampleCount: c.sampleCount == null ? null : Number(c.sampleCount),
+    timeBase: c.timeBase,
+    importOptions: c.importOptions,
+    ingestAttempt: c.ingestAttempt,
+    uploadedAt: c.uploadedAt,
+  };
+}
+
+/** An analysis version without its (large) results: for lists and progress. */
+export function analysisSummary(a: Analysis) {
+  return {
+    id: a.id,
+    version: a.version,
+    state: a.state,
+    progress: a.progress,
+    error: a.error,
+    engineVersion: a.engineVersion,
+    requestedBy: a.requestedBy,
+    createdAt: a.createdAt,
+    startedAt: a.startedAt,
+    completedAt: a.completedAt,
+  };
+}
+
+export function analysisView(a: Analysis) {
+  return { ...analysisSummary(a), parameters: a.parameters, captureIds: a.captureIds, results: a.results };
 }

@@ -1,0 +1,51 @@
+import { Queue } from 'bullmq';
+import {
+  analysisJobId, ingestJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData, type IngestJobData,
+} from '../../shared/contracts/jobs.ts';
+
+/** Retry transient faults (database or Redis briefly away) with exponential backoff: 2 s, 4 s, 8 s, 16 s, 32 s. */
+const defaultJobOptions = {
+  attempts: 6,
+  backoff: { type: 'exponential', delay: 2_000 },
+  removeOnComplete: { age: 7 * 24 * 3600, count: 10_000 },
+  removeOnFail: { age: 30 * 24 * 3600 },
+} as const;
+
+export interface JobQueues {
+  addIngest(data: IngestJobData): Promise<void>;
+  addAnalysis(data: AnalysisJobData): Promise<void>;
+  close(): Promise<void>;
+}
+
+function connectionOf(url: string) {
+  const u = new URL(url);
+  return {
+    host: u.hostname,
+    port: Number(u.port || 6379),
+    password: u.password || undefined,
+    db: u.pathname.length > 1 ? Number(u.pathname.slice(1)) : 0,
+    // Fail fast in the API: a request must not hang while Redis is away (the worker's sweep queues it later).
+    maxRetriesPerRequest: 1,
+    enableOfflineQueue: false,
+  };
+}
+
+/** The API's and the worker's handle on the job queues; job ids are deterministic, so adding twice adds once. */
+export function createJobQueues(redisUrl: string): JobQueues {
+  const ingest = new Queue(QUEUE_NAMES.ingest, { connection: connectionOf(redisUrl), defaultJobOptions });
+  const analysis = new Queue(QUEUE_NAMES.analysis, { connection: connectionOf(redisUrl), defaultJobOptions });
+  // Errors surface on the add() calls; without a listener ioredis would log each reconnect attempt as unhandled.
+  ingest.on('error', () => {});
+  analysis.on('error', () => {});
+  return {
+    async addIngest(data) {
+      await ingest.add(JOB_NAMES.ingest, data, { jobId: ingestJobId(data) });
+    },
+    async addAnalysis(data) {
+      await analysis.add(JOB_NAMES.analysis, data, { jobId: analysisJobId(data) });
+    },
+    async close() {
+      await Promise.allSettled([ingest.close(), analysis.close()]);
+    },
+  };
+}

@@ -1,0 +1,145 @@
+import { randomUUID } from 'node:crypto';
+import type { Request } from 'express';
+import diff from 'microdiff';
+import { z } from 'zod';
+import { Analysis, Capture, Shot } from '../../db/models/index.ts';
+import { recordAudit } from '../../lib/audit.ts';
+import { clientIp } from '../../lib/client-ip.ts';
+import type { Deps } from '../../lib/deps.ts';
+import { badRequest, conflict, notFound } from '../../lib/errors.ts';
+import type { RouteDef } from '../../lib/routes.ts';
+import { requestAnalysisBody, reingestBody, type ImportOverrides } from '../../../shared/contracts/shots.ts';
+import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
+import { labOfShot } from '../shots/routes.ts';
+import { analysisSummary, analysisView, captureView } from '../shots/view.ts';
+import { createAnalysisVersion } from './service.ts';
+
+async function shotInLab(req: Request): Promise<Shot> {
+  const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
+  if (!shot) throw notFound('No such shot.');
+  return shot;
+}
+
+async function analysisOfShot(shot: Shot, analysisId: string): Promise<Analysis> {
+  const analysis = await Analysis.findOne({ where: { id: analysisId, shotId: shot.id } });
+  if (!analysis) throw notFound('No such analysis version of this shot.');
+  return analysis;
+}
+
+const pathOf = (p: (string | number)[]) => p.map((k) => (typeof k === 'number' ? `[${k}]` : `.${k}`)).join('').replace(/^\./, '');
+
+/** What changed between two versions, as JSON paths with the value before and after. */
+export function diffVersions(a: Analysis, b: Analysis) {
+  const changes = (x: unknown, y: unknown) =>
+    diff((x ?? {}) as Record<string, unknown>, (y ?? {}) as Record<string, unknown>).map((d) => ({
+      path: pathOf(d.path),
+      kind: d.type === 'CREATE' ? 'added' : d.type === 'REMOVE' ? 'removed' : 'changed',
+      from: 'oldValue' in d ? d.oldValue : undefined,
+      to: 'value' in d ? d.value : undefined,
+    }));
+  return {
+    from: analysisSummary(a),
+    to: analysisSummary(b),
+    engineChanged: a.engineVersion !== b.engineVersion,
+    parameters: changes(a.parameters, b.parameters),
+    // The options echo inside the results repeats the parameters; compare the results proper.
+    results: changes(stripOptions(a.results), stripOptions(b.results)),
+  };
+}
+
+function stripOptions(results: unknown): unknown {
+  if (!results || typeof results !== 'object') return results;
+  const { options: _options, ...rest } = results as Record<string, unknown>;
+  return rest;
+}
+
+export function analysisRoutes(deps: Deps): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/api/shots/:shotId/analyses',
+      access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
+      summary: "The shot's analysis versions, newest first (without results)",
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        const rows = await Analysis.findAll({ where: { shotId: shot.id }, order: [['version', 'DESC']], attributes: { exclude: ['results'] } });
+        res.json({ analyses: rows.map(analysisSummary), currentAnalysisId: shot.currentAnalysisId });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/shots/:shotId/analyses',
+      access: { kind: 'lab', permission: 'analyses:write', labOf: labOfShot },
+      summary: 'Recompute with new parameters: queues a new analysis version (send Idempotency-Key to make retries safe)',
+      body: requestAnalysisBody,
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        const key = req.get('idempotency-key');
+        const idempotency = key ? z.string().min(8).max(200).regex(/^[\w.-]+$/).safeParse(key) : null;
+        if (idempotency && !idempotency.success) throw badRequest('Idempotency-Key must be 8–200 letters, digits, dots, dashes or underscores.');
+        const jobKey = `request-${shot.id}-${idempotency?.data ?? randomUUID()}`;
+        const { analysis, created } = await createAnalysisVersion(deps.sequelize, {
+          shotId: shot.id,
+          parametersInput: (req.body as { parameters: AnalysisOptionsInput }).parameters,
+          requestedBy: req.auth!.userId,
+          jobKey,
+        });
+        if (created) {
+          await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'analysis.requested', targetType: 'shot', targetId: shot.id, details: { version: analysis.version }, ip: clientIp(req) });
+        }
+        try {
+          await deps.queues.addAnalysis({ analysisId: analysis.id });
+        } catch (err) {
+          deps.logger.warn({ err: (err as Error).message, analysisId: analysis.id }, 'analysis job not queued now; the worker sweep will queue it');
+        }
+        res.status(created ? 202 : 200).json({ analysis: analysisSummary(analysis) });
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/shots/:shotId/analyses/:analysisId',
+      access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
+      summary: 'One analysis version: parameters, engine version, results',
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        res.json({ analysis: analysisView(await analysisOfShot(shot, req.params.analysisId as string)) });
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/shots/:shotId/analyses/:analysisId/diff/:otherId',
+      access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
+      summary: 'What changed between two analysis versions: parameters and results',
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        const [a, b] = await Promise.all([
+          analysisOfShot(shot, req.params.analysisId as string),
+          analysisOfShot(shot, req.params.otherId as string),
+        ]);
+        res.json(diffVersions(a, b));
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/shots/:shotId/captures/:captureId/reingest',
+      access: { kind: 'lab', permission: 'shots:write', labOf: labOfShot },
+      summary: 'Read a capture again, with importer overrides (column roles, units, time base) when detection got it wrong',
+      body: reingestBody,
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        const capture = await Capture.findOne({ where: { id: req.params.captureId as string, shotId: shot.id } });
+        if (!capture) throw notFound('No such capture on this shot.');
+        if (capture.state === 'queued' || capture.state === 'reading') throw conflict('This capture is being read right now; wait for it to finish.');
+        const { importOptions } = req.body as { importOptions: ImportOverrides };
+        await capture.update({ importOptions, ingestAttempt: capture.ingestAttempt + 1, state: 'queued', progress: 0, error: null });
+        await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'capture.reingest', targetType: 'shot', targetId: shot.id, details: { captureId: capture.id, importOptions }, ip: clientIp(req) });
+        try {
+          await deps.queues.addIngest({ captureId: capture.id, attempt: capture.ingestAttempt });
+        } catch (err) {
+          deps.logger.warn({ err: (err as Error).message, captureId: capture.id }, 'ingest job not queued now; the worker sweep will queue it');
+        }
+        res.status(202).json({ capture: captureView(capture) });
+      },
+    },
+  ];
+}

@@ -1,0 +1,105 @@
+import { Op, type Sequelize, type Transaction } from 'sequelize';
+import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
+import { ENGINE_VERSION } from '../../../shared/analysis/engine-version.ts';
+import { Analysis, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
+import { badRequest, conflict } from '../../lib/errors.ts';
+
+export interface StoredChannel { name: string }
+
+/** Ready captures of a shot in the order the analysis combines them (upload order). */
+export async function readyCaptures(shotId: string, transaction?: Transaction) {
+  return Capture.findAll({ where: { shotId, state: 'ready' }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']], transaction });
+}
+
+/**
+ * Channel names as the analysis will see them after combining one-file-per-channel captures: a name already
+ * taken gets the file name appended, the same rule as shared/import/combine-captures.ts.
+ */
+export function combinedChannelNames(captures: { fileName: string; channels: unknown }[]): string[] {
+  const seen = new Set<string>();
+  const names: string[] = [];
+  for (const c of captures) {
+    for (const ch of ((c.channels as { channels?: StoredChannel[] } | null)?.channels ?? [])) {
+      names.push(seen.has(ch.name) ? `${ch.name} (${c.fileName})` : ch.name);
+      seen.add(ch.name);
+    }
+  }
+  return names;
+}
+
+/**
+ * The analysis a shot gets by default: the rig's gates on the captured channels in order (first channel = first
+ * gate), the rig's position tolerance, the projectile's length and mass with their tolerances, the shot's ambient
+ * temperature, and the engine's automatic levels and thresholds.
+ */
+export async function defaultParameters(shot: Shot, channelNames: string[]): Promise<AnalysisOptionsInput> {
+  const [rig, projectile] = await Promise.all([
+    shot.gateRigId ? GateRig.findByPk(shot.gateRigId) : null,
+    shot.projectileId ? Projectile.findByPk(shot.projectileId) : null,
+  ]);
+  const params: AnalysisOptionsInput = {};
+  if (rig && channelNames.length > 0) {
+    const n = Math.min(rig.gates.length, channelNames.length);
+    params.gates = rig.gates.slice(0, n).map((g, i) => ({ channel: channelNames[i], position: g.position_m }));
+    params.positionTolerance = Math.max(0, ...rig.gates.map((g) => g.position_uncertainty_m));
+  }
+  if (projectile) {
+    params.projectile = {
+      length: projectile.diameterM,
+      lengthTolerance: projectile.diameterToleranceM,
+      mass: projectile.massKg,
+      massTolerance: projectile.massToleranceKg,
+    };
+  }
+  if (shot.ambientTemperatureK) params.ambient = { temperature: shot.ambientTemperatureK };
+  return params;
+}
+
+/**
+ * Creates the next analysis version of a shot, or returns the existing one with the same `jobKey` (so a retried
+ * request or a rerun job never makes a second row). Versions are numbered under a lock on the shot row.
+ */
+export async function createAnalysisVersion(
+  sequelize: Sequelize,
+  input: { shotId: string; parametersInput: AnalysisOptionsInput; requestedBy: string | null; jobKey: string },
+): Promise<{ analysis: Analysis; created: boolean }> {
+  const parsed = analysisOptionsSchema.safeParse(input.parametersInput);
+  if (!parsed.success) {
+    throw badRequest(`Please correct the analysis parameters: ${parsed.error.issues.map((i) => `${i.path.join('.') || 'parameters'}: ${i.message}`).join('; ')}`);
+  }
+  return sequelize.transaction(async (transaction) => {
+    const shot = await Shot.findByPk(input.shotId, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!shot) throw conflict('The shot no longer exists.');
+    const existing = await Analysis.findOne({ where: { jobKey: input.jobKey }, transaction });
+    if (existing) return { analysis: existing, created: false };
+    const captures = await readyCaptures(shot.id, transaction);
+    if (captures.length === 0) throw conflict('This shot has no capture that has been read yet; upload a file first.');
+    const last = (await Analysis.max('version', { where: { shotId: shot.id }, transaction })) as number | null;
+    const analysis = await Analysis.create(
+      {
+        labId: shot.labId,
+        shotId: shot.id,
+        version: (last ?? 0) + 1,
+        parameters: parsed.data,
+        engineVersion: ENGINE_VERSION,
+        jobKey: input.jobKey,
+        requestedBy: input.requestedBy,
+        captureIds: captures.map((c) => c.id),
+      },
+      { transaction },
+    );
+    if (shot.status === 'draft' || shot.status === 'failed' || shot.status === 'analysed') {
+      await shot.update({ status: 'processing' }, { transaction });
+    }
+    return { analysis, created: true };
+  });
+}
+
+/** Captures still being read, or analyses not yet finished: the shot is busy. */
+export async function shotIsBusy(shotId: string): Promise<boolean> {
+  const [captures, analyses] = await Promise.all([
+    Capture.count({ where: { shotId, state: { [Op.in]: ['queued', 'reading'] } } }),
+    Analysis.count({ where: { shotId, state: { [Op.in]: ['queued', 'running'] } } }),
+  ]);
+  return captures + analyses > 0;
+}

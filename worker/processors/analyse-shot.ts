@@ -1,0 +1,71 @@
+import { UnrecoverableError, type Job } from 'bullmq';
+import { Op } from 'sequelize';
+import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
+import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
+import type { ImportedCapture } from '../../shared/contracts/capture.ts';
+import { analysisJobData } from '../../shared/contracts/jobs.ts';
+import { combineCaptures } from '../../shared/import/combine-captures.ts';
+import { ImportError } from '../../shared/import/import-error.ts';
+import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
+import { workerContext } from '../context.ts';
+import { readStoredCapture } from '../read-stored-capture.ts';
+
+/**
+ * Analysis job: run the engine on the captures the version names, with its stored parameters, and store the
+ * results on that version. Idempotent: the row exists before the job, a finished version is left alone, and the
+ * final write only happens while the row is not yet done.
+ */
+export default async function analyseShot(job: Job): Promise<{ analysisId: string; state: string }> {
+  const data = analysisJobData.parse(job.data);
+  const { sequelize, blobStore } = workerContext();
+  const analysis = await Analysis.findByPk(data.analysisId);
+  if (!analysis) throw new UnrecoverableError(`analysis ${data.analysisId} no longer exists`);
+  if (analysis.state === 'done' || analysis.state === 'failed') return { analysisId: analysis.id, state: analysis.state };
+
+  await analysis.update({ state: 'running', progress: 10, startedAt: analysis.startedAt ?? new Date() });
+  await job.updateProgress(10);
+  let results;
+  try {
+    const ids = analysis.captureIds;
+    const rows = await Capture.findAll({ where: { id: { [Op.in]: ids } } });
+    const ordered = ids.map((id) => rows.find((r) => r.id === id)).filter((r): r is Capture => !!r);
+    if (ordered.length !== ids.length) throw new ImportError('a capture this analysis reads no longer exists');
+    const imported: ImportedCapture[] = [];
+    for (const c of ordered) imported.push(await readStoredCapture(blobStore, c));
+    await analysis.update({ progress: 50 });
+    await job.updateProgress(50);
+    const capture = imported.length === 1 ? imported[0] : combineCaptures(imported, { labels: ordered.map((c) => c.fileName) });
+    const parameters = analysisOptionsSchema.parse(analysis.parameters);
+    results = analyzeShot(capture, parameters);
+  } catch (err) {
+    if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || err instanceof Error && err.name === 'ZodError') {
+      await analysis.update({ state: 'failed', progress: 100, error: err.message, completedAt: new Date() });
+      await settleShot(analysis.shotId);
+      throw new UnrecoverableError(err.message);
+    }
+    throw err;
+  }
+
+  await sequelize.transaction(async (transaction) => {
+    const [updated] = await Analysis.update(
+      { state: 'done', progress: 100, results: JSON.parse(JSON.stringify(results)), completedAt: new Date(), error: null },
+      { where: { id: analysis.id, state: { [Op.ne]: 'done' } }, transaction },
+    );
+    if (updated === 0) return;
+    const shot = await Shot.findByPk(analysis.shotId, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!shot) return;
+    // A signed-off shot keeps its approved version as current; later versions wait for a new review.
+    if (shot.status === 'approved' || shot.status === 'in_review') return;
+    const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction }) : null;
+    if (!current || current.version < analysis.version) {
+      await shot.update({ currentAnalysisId: analysis.id, status: 'analysed' }, { transaction });
+    }
+  });
+  await job.updateProgress(100);
+  return { analysisId: analysis.id, state: 'done' };
+}
+
+async function settleShot(shotId: string): Promise<void> {
+  const shot = await Shot.findByPk(shotId);
+  if (shot && shot.status === 'processing' && !shot.currentAnalysisId) await shot.update({ status: 'failed' });
+}

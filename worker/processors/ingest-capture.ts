@@ -1,0 +1,82 @@
+import { createHash } from 'node:crypto';
+import { UnrecoverableError, type Job } from 'bullmq';
+import { Op } from 'sequelize';
+import { ingestJobData } from '../../shared/contracts/jobs.ts';
+import { ImportError } from '../../shared/import/import-error.ts';
+import { Capture, Shot } from '../../server/db/models/index.ts';
+import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../../server/modules/analyses/service.ts';
+import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
+import { workerContext } from '../context.ts';
+import { readStoredCapture } from '../read-stored-capture.ts';
+
+/**
+ * Ingest job: read a stored capture file, write its channels and trace pyramids, record what was detected, and
+ * once every capture of the shot is read, queue the shot's automatic analysis. Runs again safely: a stale attempt
+ * is skipped, files are overwritten with the same bytes, the automatic analysis is keyed by the captures it reads.
+ */
+export default async function ingestCapture(job: Job): Promise<{ captureId: string; state: string }> {
+  const data = ingestJobData.parse(job.data);
+  const { sequelize, blobStore, queues, logger } = workerContext();
+  const capture = await Capture.findByPk(data.captureId);
+  if (!capture) throw new UnrecoverableError(`capture ${data.captureId} no longer exists`);
+  if (capture.ingestAttempt !== data.attempt) return { captureId: capture.id, state: 'superseded' };
+
+  await capture.update({ state: 'reading', progress: 10, error: null });
+  await job.updateProgress(10);
+  let imported;
+  try {
+    imported = await readStoredCapture(blobStore, capture);
+  } catch (err) {
+    if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError) {
+      // A file that cannot be read stays stored and says why; retrying cannot change its bytes.
+      await capture.update({ state: 'failed', progress: 100, error: err.message });
+      await settleShot(capture.shotId);
+      throw new UnrecoverableError(err.message);
+    }
+    throw err;
+  }
+  await capture.update({ progress: 60 });
+  await job.updateProgress(60);
+  const descriptor = await writeChannelFiles(blobStore, capture.labId, capture.id, imported);
+  const timeBase = descriptor.time;
+  await capture.update({
+    state: 'ready',
+    progress: 100,
+    layout: imported.layout,
+    channels: descriptor,
+    sampleCount: imported.length,
+    timeBase,
+    warnings: imported.warnings,
+    error: null,
+  });
+  await job.updateProgress(100);
+
+  const shot = await settleShot(capture.shotId);
+  if (shot) {
+    const ready = await readyCaptures(shot.id);
+    const pending = await Capture.count({ where: { shotId: shot.id, state: { [Op.in]: ['queued', 'reading'] } } });
+    if (pending === 0 && ready.length > 0) {
+      // Keyed by exactly which capture attempts it reads: two ingests finishing together make one analysis.
+      const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
+      const parameters = await defaultParameters(shot, combinedChannelNames(ready));
+      const { analysis } = await createAnalysisVersion(sequelize, { shotId: shot.id, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shot.id}-${key}` });
+      try {
+        await queues.addAnalysis({ analysisId: analysis.id });
+      } catch (err) {
+        logger.warn({ err: (err as Error).message, analysisId: analysis.id }, 'analysis job not queued now; the sweep will queue it');
+      }
+    }
+  }
+  return { captureId: capture.id, state: 'ready' };
+}
+
+/** A shot whose captures all failed is marked failed; returns the shot. */
+async function settleShot(shotId: string): Promise<Shot | null> {
+  const shot = await Shot.findByPk(shotId);
+  if (!shot) return null;
+  const states = (await Capture.findAll({ where: { shotId }, attributes: ['state'] })).map((c) => c.state);
+  if (states.length > 0 && states.every((s) => s === 'failed') && shot.status === 'processing') {
+    await shot.update({ status: 'failed' });
+  }
+  return shot;
+}
