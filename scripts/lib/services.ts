@@ -42,7 +42,11 @@ interface RunResult {
  * Runs a command to completion, collecting stdout and stderr together. Resolves on 'exit', not 'close': a daemon
  * started by the command may keep the pipes open long after the command itself has finished.
  */
-function run(command: string, args: string[], options: { inherit?: boolean; env?: NodeJS.ProcessEnv; cwd?: string } = {}): Promise<RunResult> {
+function run(
+  command: string,
+  args: string[],
+  options: { inherit?: boolean; env?: NodeJS.ProcessEnv; cwd?: string; timeoutMs?: number } = {},
+): Promise<RunResult> {
   return new Promise((resolve, reject) => {
     const child = spawn(command, args, {
       cwd: options.cwd ?? '/',
@@ -53,7 +57,9 @@ function run(command: string, args: string[], options: { inherit?: boolean; env?
     child.stdout?.on('data', (chunk: Buffer) => { output += chunk.toString(); });
     child.stderr?.on('data', (chunk: Buffer) => { output += chunk.toString(); });
     child.on('error', (error) => reject(new ServiceError(`could not run ${command}: ${error.message}`)));
+    const timer = options.timeoutMs ? setTimeout(() => child.kill('SIGKILL'), options.timeoutMs) : null;
     child.on('exit', (code, signal) => {
+      if (timer) clearTimeout(timer);
       child.stdout?.destroy();
       child.stderr?.destroy();
       resolve({ code: code ?? (signal ? 128 : 1), output });
@@ -243,6 +249,10 @@ export async function startPostgres(options: PostgresOptions): Promise<RunningSe
   if (!(await postgresCanUse(parent))) {
     throw new ServiceError(`the postgres user cannot reach ${parent} (a parent folder is private); use a folder under /var/tmp`);
   }
+  const portTaken = (): ServiceError =>
+    new ServiceError(`port ${port} on 127.0.0.1 is taken by another program; choose another PostgreSQL port (GATEPOST_PG_PORT)`);
+  // Before initdb, so a taken port costs no cluster; a cluster of this folder on this port is checked below.
+  if (postmasterPort(dir) !== port && !(await isPortFree(port))) throw portTaken();
   if (!existsSync(join(dir, 'PG_VERSION'))) {
     if (existsSync(dir) && readdirSync(dir).length > 0) {
       throw new ServiceError(`${dir} is not empty and holds no PostgreSQL cluster; move it away or delete it`);
@@ -269,9 +279,7 @@ export async function startPostgres(options: PostgresOptions): Promise<RunningSe
       say(`PostgreSQL in ${dir} is running on port ${runningPort}; restarting it on port ${port}`);
       await stopPostgresCluster(pgCtl, dir);
     }
-    if (!(await isPortFree(port))) {
-      throw new ServiceError(`port ${port} on 127.0.0.1 is taken by another program; choose another PostgreSQL port (GATEPOST_PG_PORT)`);
-    }
+    if (!(await isPortFree(port))) throw portTaken();
     // -k '' opens no Unix socket: no write access to /var/run/postgresql is needed, and deep folders do not hit
     // the 107-byte socket path limit. pg_ctl passes -o through a shell, hence the quotes.
     const serverOptions = [`-c listen_addresses=127.0.0.1`, `-p ${port}`, `-k ''`];
@@ -294,7 +302,9 @@ export async function startPostgres(options: PostgresOptions): Promise<RunningSe
       await client.query('CREATE DATABASE gatepost');
     }
   } catch (error) {
-    throw new ServiceError(`PostgreSQL on port ${port} is up but the database gatepost could not be prepared: ${(error as Error).message}`);
+    // Nobody gets a handle to stop it with, so stop it here rather than leave it running.
+    await stopPostgresCluster(pgCtl, dir).catch(() => undefined);
+    throw new ServiceError(`PostgreSQL on port ${port} started but the database gatepost could not be prepared (server stopped again): ${(error as Error).message}`);
   } finally {
     await client.end().catch(() => undefined);
   }
@@ -393,7 +403,8 @@ export async function startRedis(options: RedisOptions): Promise<RunningService>
   const logFile = join(dir, 'redis.log');
 
   const ourPid = readPid(pidFile);
-  const servingPid = await redisProcessId(cli, port);
+  // Ask only when something listens: redis-cli on a free port would just fail, slowly on a busy machine.
+  const servingPid = (await isPortFree(port)) ? null : await redisProcessId(cli, port);
   if (servingPid !== null && servingPid === ourPid) {
     say(`Redis in ${dir} is already running on port ${port}; reusing it`);
   } else {
@@ -411,8 +422,9 @@ export async function startRedis(options: RedisOptions): Promise<RunningService>
     const deadline = Date.now() + 60_000;
     for (;;) {
       const pid = await redisProcessId(cli, port);
-      if (pid !== null && pid === readPid(pidFile) && (await run(cli, ['-p', String(port), 'ping'])).output.trim() === 'PONG') break;
+      if (pid !== null && pid === readPid(pidFile) && (await run(cli, ['-p', String(port), 'ping'], { timeoutMs: 3_000 })).output.trim() === 'PONG') break;
       if (Date.now() > deadline) {
+        await stopRedisByPidFile(pidFile);
         throw new ServiceError(`Redis did not answer on port ${port} within 60 s. Last lines of ${logFile}:\n${tail(logFile)}`);
       }
       await sleep(50);
@@ -428,7 +440,7 @@ export async function startRedis(options: RedisOptions): Promise<RunningService>
         say('stopping Redis');
         const pid = readPid(pidFile);
         if (pid === null || (await redisProcessId(cli, port)) !== pid) return;
-        await run(cli, ['-p', String(port), 'shutdown', ...(persistent ? [] : ['nosave'])]);
+        await run(cli, ['-p', String(port), 'shutdown', ...(persistent ? [] : ['nosave'])], { timeoutMs: 30_000 });
         const deadline = Date.now() + 30_000;
         while (isAlive(pid) && Date.now() < deadline) await sleep(50);
         if (isAlive(pid)) {
@@ -443,7 +455,8 @@ export async function startRedis(options: RedisOptions): Promise<RunningService>
 
 /** The process id of the Redis server answering on 127.0.0.1:port, or null when none answers. */
 async function redisProcessId(cli: string, port: number): Promise<number | null> {
-  const result = await run(cli, ['-h', '127.0.0.1', '-p', String(port), 'info', 'server']);
+  // A program that is not Redis may accept the connection and never answer: give up after a few seconds.
+  const result = await run(cli, ['-h', '127.0.0.1', '-p', String(port), 'info', 'server'], { timeoutMs: 2_000 });
   const match = /process_id:(\d+)/.exec(result.output);
   return result.code === 0 && match ? Number(match[1]) : null;
 }
