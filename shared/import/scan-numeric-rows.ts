@@ -44,6 +44,8 @@ export interface ScanState {
   lastTime: number;
   /** Index expected in the index column for the next row; NaN when not known yet. */
   nextIndex: number;
+  /** Index read in the first row of this scan, when it started without one expected (a part of a split file). */
+  firstIndex?: number;
 }
 
 export interface ScanStop {
@@ -229,7 +231,8 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
           rowTime = value * timeFactor;
         } else if (slot === SLOT_INDEX) {
           if (!Number.isInteger(value)) return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${spec.expected} numbers, found '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}' in the index column`);
-          if (nextIndex === nextIndex && value !== nextIndex) {
+          if (nextIndex !== nextIndex) state.firstIndex = value;
+          else if (value !== nextIndex) {
             return failAt(state, row, line, lastTime, nextIndex, lineStart, `the sample index ${value} does not follow ${nextIndex - 1} (indices must count up by one)`);
           }
           nextIndex = value + 1;

@@ -74,6 +74,21 @@ describe('readCaptureFile', () => {
     expect(error.message).toBe("line 27,001: expected 3 numbers, found 'ERR'");
   });
 
+  it('When a sample index skips exactly where the file is split between threads, then the skip is still found', async () => {
+    const header = 'Sample interval,1e-7\nIndex,CH1\n';
+    const body = Array.from({ length: 20_000 }, (_, i) => `${i},${(i % 9) / 10}`);
+    const dataOffset = header.length;
+    const size = dataOffset + body.join('\n').length + 1;
+    // The reader splits at the first line start after the middle of the data (read-capture-file.ts).
+    const text = header + body.join('\n') + '\n';
+    const mid = dataOffset + Math.floor((size - dataOffset) / 2);
+    const splitLine = text.slice(0, text.indexOf('\n', mid) + 1).split('\n').length; // 1-based line after the split
+    const k = splitLine - 3; // body row on that line
+    body[k] = `${k + 1},${(k % 9) / 10}`; // same length, so the split stays where it was computed
+    const error = await rejection(readCaptureFile(save('index-split.csv', header + body.join('\n') + '\n'), { threads: 2, headBytes: 1024 }));
+    expect(error.message).toBe(`line ${splitLine.toLocaleString('en-US')}: the sample index ${k + 1} does not follow ${k - 1} (indices must count up by one)`);
+  });
+
   it('When the times are unevenly spaced, then the reader keeps them (read again with times)', async () => {
     const nonuniform = 'Time (s),CH1 (V)\n' + Array.from({ length: 20_000 }, (_, i) => `${i < 10_000 ? i : 2 * i - 10_000}e-7,${i % 3}`).join('\n') + '\n';
     const capture = await readCaptureFile(save('uneven.csv', nonuniform), { threads: 2, headBytes: 4096 });
