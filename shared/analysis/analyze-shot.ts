@@ -344,6 +344,15 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     }
   }
 
+  const t = opts.threshold;
+  if (occlusion.length > 0 && !(t.unit === 'percent' && t.level === 50)) {
+    // DOMAIN.md "beam width and threshold": switching at fractions f_on, f_off gives ℓ = D + w(1 − f_on − f_off).
+    warnings.push(
+      `occlusion speeds take the projectile length as the blocked length, which holds for crossings at 50 % of the step; ` +
+        `at ${t.unit === 'percent' ? `${t.level} %` : `${t.level} V`} the blocked time also depends on the beam width`,
+    );
+  }
+
   let primary: { method: 'flight' | 'occlusion'; basis: 'fit' | 'pair' | 'occlusion'; evaluate: (x: Float64Array) => number } | null = null;
   if (model.fitSpeed !== null && fitUsable) primary = { method: 'flight', basis: 'fit', evaluate: model.fitSpeed };
   else if (fired.length >= 2) primary = { method: 'flight', basis: 'pair', evaluate: model.flight(0, 1, 'mid') };

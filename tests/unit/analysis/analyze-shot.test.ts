@@ -185,8 +185,13 @@ describe('analyzeShot on simulated captures with known truth', () => {
 
   it('a threshold at 30 % of the step lengthens the pulse by w(1 − 0.3 − 0.3) (DOMAIN.md beam width and threshold)', () => {
     const w = 0.002;
-    const { analysis } = simulateAndAnalyze({ beamWidth: w }, { spacing: 0.1, threshold: { unit: 'percent', level: 30, hysteresis: 20 } });
+    const { analysis } = simulateAndAnalyze(
+      { beamWidth: w },
+      { spacing: 0.1, threshold: { unit: 'percent', level: 30, hysteresis: 20 }, projectile: { length: D } },
+    );
     expect(analysis.gates[0].pulses[0].width).toBeCloseTo((D + w * 0.4) / 300, 9);
+    // ℓ = D is then wrong by 0.4·w, and the analyst is told so.
+    expect(analysis.warnings.join('\n')).toMatch(/holds for crossings at 50 % of the step; at 30 % the blocked time also depends on the beam width/);
   });
 
   it('a threshold in volts with its own hysteresis gives the same flight speed', () => {

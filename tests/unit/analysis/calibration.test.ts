@@ -68,4 +68,31 @@ describe('uncertainty calibration on simulated shots', () => {
     expect(rate).toBeGreaterThanOrEqual(0.93);
     expect(rate).toBeLessThanOrEqual(0.98);
   });
+
+  it('three gates, constant-deceleration fit: U of the speed at the first gate and of the deceleration cover the truth in 93–98 % of 300 shots', () => {
+    // Random deceleration 0–20 000 m/s², gates misplaced within ±0.5 mm, noise 50 mV: the whole fit model at once.
+    const random = createRandom(9);
+    const a = 0.0005;
+    const speedHits: boolean[] = [];
+    const decelerationHits: boolean[] = [];
+    for (let s = 0; s < 300; s++) {
+      const speed = 250 + 100 * random.uniform();
+      const deceleration = 20000 * random.uniform();
+      const positions = [0, 0.1, 0.2].map((p) => p + a * (2 * random.uniform() - 1));
+      const { shot, analysis } = simulateAndAnalyze(
+        { speed, deceleration, gatePositions: positions, noiseRms: 0.05, sampleInterval: 4e-7, length: 3000, seed: 700 + s },
+        { spacing: 0.1, positionTolerance: a, timebaseAccuracyPpm: 0 },
+      );
+      // Truth: the simulator's speed of the ball's centre as it passes the first gate, and its deceleration.
+      speedHits.push(Math.abs(analysis.speed!.value - shot.truth.gates[0].speed) <= analysis.speed!.uncertainty);
+      decelerationHits.push(Math.abs(analysis.fit!.deceleration - deceleration) <= analysis.fit!.decelerationUncertainty);
+    }
+    const v = coverage(speedHits);
+    const d = coverage(decelerationHits);
+    console.info(`calibration (fit): speed ${(100 * v).toFixed(1)} %, deceleration ${(100 * d).toFixed(1)} % of 300 shots`);
+    for (const rate of [v, d]) {
+      expect(rate).toBeGreaterThanOrEqual(0.93);
+      expect(rate).toBeLessThanOrEqual(0.98);
+    }
+  });
 });
