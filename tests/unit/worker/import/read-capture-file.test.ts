@@ -84,7 +84,8 @@ describe('readCaptureFile', () => {
     const mid = dataOffset + Math.floor((size - dataOffset) / 2);
     const splitLine = text.slice(0, text.indexOf('\n', mid) + 1).split('\n').length; // 1-based line after the split
     const k = splitLine - 3; // body row on that line
-    body[k] = `${k + 1},${(k % 9) / 10}`; // same length, so the split stays where it was computed
+    // Every index from there on one higher: the only gap is at the split. Same lengths, so the split stays put.
+    for (let j = k; j < body.length; j++) body[j] = `${j + 1},${(j % 9) / 10}`;
     const error = await rejection(readCaptureFile(save('index-split.csv', header + body.join('\n') + '\n'), { threads: 2, headBytes: 1024 }));
     expect(error.message).toBe(`line ${splitLine.toLocaleString('en-US')}: the sample index ${k + 1} does not follow ${k - 1} (indices must count up by one)`);
   });
