@@ -420,7 +420,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     }
   }
 
-  // 7. Derived quantities, GUM with relative uncertainties of independent inputs (JCGM 100:2008 §5.1.6).
+  // 7. Derived quantities, GUM with relative uncertainties of independent inputs (JCGM 100:2008 §5.1.6, from memory).
   const derived: DerivedResult = { speedOfSound: null, mach: null, kineticEnergy: null, momentum: null };
   if (speed !== null) {
     const v = speed.value;

@@ -40,7 +40,7 @@ const PER_GATE = 5;
 const rect = (halfWidth: number): number => halfWidth / Math.sqrt(3);
 
 /**
- * The measurement model of a shot (JCGM 100:2008 §4.1): one set of input quantities — each gate's position,
+ * The measurement model of a shot (JCGM 100:2008): one set of input quantities — each gate's position,
  * each crossing instant's noise jitter (normal) and interpolation error (rectangular), the time base's scale
  * error and the projectile's length — and every reported speed as a function of them. Because flight, fit
  * and occlusion speeds share the same inputs, their differences (the cross-check) carry the correlations.

@@ -25,7 +25,7 @@ export interface FindLevelCrossingOptions {
 }
 
 /**
- * The crossing of `level` nearest to the search start, linearly interpolated as IEEE Std 181-2011 §5.3.3
+ * The crossing of `level` nearest to the search start, linearly interpolated as IEEE Std 181-2011
  * prescribes for the reference-level instant. NaN samples are stepped over, so a crossing may span a gap;
  * returns null when the level is not crossed in the range.
  */

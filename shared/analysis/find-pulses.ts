@@ -37,7 +37,7 @@ function describe(t: Transition, noise: number): TransitionResult {
     // Timing jitter from additive noise, σ_t = σ_v/|dV/dt| (Knoll, Radiation Detection and Measurement, ch. 17),
     // with both interpolated samples noisy: ×√((1−α)² + α²).
     jitter: Math.abs(t.slope) > 0 ? (noise / Math.abs(t.slope)) * Math.sqrt((1 - alpha) ** 2 + alpha ** 2) : h / Math.sqrt(12),
-    // Linear interpolation error bound h²/8·|f''|/|f'| (e.g. Burden & Faires, Numerical Analysis §3.1) for a
+    // Linear interpolation error bound h²/8·|f''|/|f'| (the error term of linear interpolation, e.g. Burden & Faires, Numerical Analysis) for a
     // first-order edge, f''/f' = 1/τ with τ = duration/ln 9: h/2·(0.55·h/duration). An edge faster than the
     // samples is only known to within the sample interval: h/2.
     interpolationHalfWidth: duration === null ? h / 2 : (h / 2) * Math.min(1, (0.55 * h) / duration),
@@ -47,7 +47,7 @@ function describe(t: Transition, noise: number): TransitionResult {
 /**
  * Pulses of one gate channel: transitions by the IEEE 181 hysteresis rule, paired into "beam blocked" →
  * "beam clear" with the polarity; pulse duration is the time between the two mesial instants (IEEE Std
- * 181-2011 §5.3.3). A pulse open at either end of the record is not returned (its width is unknown).
+ * 181-2011). A pulse open at either end of the record is not returned (its width is unknown).
  */
 export function findPulses(values: ArrayLike<number>, options: FindPulsesOptions): FoundPulses {
   const { time, crossLevel, lowArm, highArm, low, high, polarity, noise } = options;

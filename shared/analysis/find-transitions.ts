@@ -31,7 +31,7 @@ export interface Transition {
 }
 
 /**
- * Transitions of a two-state waveform by the rule of IEEE Std 181-2011 §5.3: a transition counts only when
+ * Transitions of a two-state waveform by the rule of IEEE Std 181-2011: a transition counts only when
  * the trace leaves one state's band and enters the other's (the bands are the hysteresis, so noise around the
  * crossing level cannot make new transitions); its instant is the crossing of `crossLevel` nearest the entry
  * into the new state, linearly interpolated. One pass over the samples; crossings are searched only around

@@ -10,7 +10,7 @@ export interface ConstantDecelerationFit {
 /**
  * Weighted least-squares fit of x(t) = x₀ + v·(t − tRef) − (a/2)·(t − tRef)² to gate positions against
  * crossing instants (constant-deceleration model; weighted linear least squares, e.g. Bevington & Robinson,
- * Data Reduction and Error Analysis, ch. 7). Weights are 1/σ² of each point expressed in position.
+ * Data Reduction and Error Analysis). Weights are 1/σ² of each point expressed in position.
  * With exactly three points the fit passes through them. Solves the 3×3 normal equations directly, with time
  * scaled to the span so they stay well conditioned.
  */

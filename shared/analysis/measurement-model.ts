@@ -1,4 +1,4 @@
-/** One input quantity of a measurement model (JCGM 100:2008 §4): its estimate and standard uncertainty. */
+/** One input quantity of a measurement model (JCGM 100:2008): its estimate and standard uncertainty. */
 export interface ModelInput {
   /** What it is ("CH2 entry: noise jitter"). */
   name: string;
@@ -8,7 +8,7 @@ export interface ModelInput {
   value: number;
   /** Standard uncertainty u(xᵢ), in the input's unit. */
   standardUncertainty: number;
-  /** Distribution assigned to the input, used by the Monte Carlo propagation (JCGM 101:2008 §6.4). */
+  /** Distribution assigned to the input, used by the Monte Carlo propagation (JCGM 101:2008). */
   distribution: 'normal' | 'rectangular';
 }
 

@@ -2,7 +2,7 @@ import { createRandom } from './create-random.ts';
 import type { MeasurementModel } from './measurement-model.ts';
 
 export interface PropagateMonteCarloOptions {
-  /** Number of Monte Carlo trials M. @default 1_000_000 (JCGM 101:2008 §7.2.1) */
+  /** Number of Monte Carlo trials M. @default 1_000_000 (the order JCGM 101:2008 suggests) */
   draws?: number;
   /** Seed of the generator: same seed, same result. @default 1 */
   seed?: number;
@@ -12,11 +12,11 @@ export interface PropagateMonteCarloOptions {
 
 export interface MonteCarloPropagation {
   draws: number;
-  /** Mean of the M model values (the estimate of Y, JCGM 101 §7.6). */
+  /** Mean of the M model values (the estimate of Y, JCGM 101). */
   mean: number;
   /** Their standard deviation (the standard uncertainty u(y)). */
   standardDeviation: number;
-  /** Probabilistically symmetric coverage interval (JCGM 101 §7.7). */
+  /** Probabilistically symmetric coverage interval (JCGM 101). */
   intervalLow: number;
   intervalHigh: number;
 }

@@ -12,7 +12,7 @@ export interface LinearPropagation {
 /**
  * Law of propagation of uncertainty for uncorrelated inputs, JCGM 100:2008 (GUM) §5.1.2 eq. (10):
  * u_c²(y) = Σ (∂f/∂xᵢ)² u²(xᵢ). The sensitivity coefficients are evaluated numerically by central differences
- * over ±u(xᵢ), as GUM §5.1.3 note 2 allows, so any model written as a plain function can be propagated.
+ * over ±u(xᵢ), as the GUM allows for sensitivity coefficients (§5.1.3, from memory), so any model written as a plain function can be propagated.
  */
 export function propagateUncertainty(model: MeasurementModel): LinearPropagation {
   const { inputs, evaluate } = model;

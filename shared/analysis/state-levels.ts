@@ -33,7 +33,7 @@ const TRIM_BINS = 1024;
 const SPARSE_SHARE = 1e-5;
 
 /**
- * State levels of a two-state waveform by the histogram method of IEEE Std 181-2011 §5.2.1.3 (also
+ * State levels of a two-state waveform by the histogram method of IEEE Std 181-2011 (also
  * IEC 60469:2013): the histogram of the record is split into lower and upper halves at its middle bin and each
  * state level is the mode (or mean) of its half. Bin rules follow the open reference implementation
  * `statelevels` of the GNU Octave signal package, so its published values are reproduced: bounds min − ε and

@@ -30,7 +30,7 @@ const SHELLS = 10;
  * samples (too wide), so the band is chosen from the data: one pass sorts deviations into nested bands, each half
  * the width of the last, and the narrowest band at least 4 standard deviations wide is used (a gaussian
  * truncated at ±4σ keeps 99.99 % of its variance, e.g. Johnson, Kotz & Balakrishnan, Continuous Univariate
- * Distributions vol. 1 §13.10). The mean in that band also refines the histogram's level past its bin width.
+ * Distributions vol. 1, chapter on the normal distribution). The mean in that band also refines the histogram's level past its bin width.
  */
 export function stateNoise(values: ArrayLike<number>, low: number, high: number, options: StateNoiseOptions = {}): StateNoise {
   const { bandFraction = 0.4, maxSamples = 1_000_000 } = options;

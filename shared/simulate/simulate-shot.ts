@@ -100,7 +100,7 @@ function perGate(value: number | number[], count: number, name: string): number[
  * the overlap of the chord [x − r, x + r], r = √(R² − b²), with the strip, divided by w; its 50 % instants
  * are exactly when the chord's ends pass the beam centre (DOMAIN.md "Beam width and threshold").
  * The sensor is a first-order low-pass, discretized exactly for an input that is linear between samples
- * (ramp-invariant discretization, e.g. Franklin, Powell & Workman, Digital Control of Dynamic Systems §6.3).
+ * (ramp-invariant discretization, e.g. Franklin, Powell & Workman, Digital Control of Dynamic Systems).
  * Noise, hum, spikes and ADC quantization are added afterwards, as in the scope's front end.
  */
 export function simulateShot(options: SimulateShotOptions = {}): SimulatedShot {

@@ -44,7 +44,7 @@ describe('Monte Carlo propagation (JCGM 101:2008)', () => {
     expect(Math.abs(r.intervalHigh - 335.26)).toBeLessThan(0.02);
   });
 
-  it('agrees with the linear propagation on a near-linear model, as JCGM 101 §8 validation expects', () => {
+  it('agrees with the linear propagation on a near-linear model, as JCGM 101 validation of the GUM framework expects', () => {
     const linear = propagateUncertainty(workedExample());
     const mc = propagateMonteCarlo(workedExample(), { draws: 200_000, seed: 3 });
     expect(Math.abs(mc.standardDeviation / linear.standardUncertainty - 1)).toBeLessThan(0.01);
