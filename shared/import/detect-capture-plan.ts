@@ -410,14 +410,15 @@ function classifyCell(field: string, options: ReadSampleFieldOptions): Cell {
 
 /** Lines that look like rows of numbers: few characters outside digits, signs, exponents and delimiters. */
 function numericLooking(lines: string[]): string[] {
+  // The last 400 such lines are enough, and data sits at the end of a head: walk backwards.
   const out: string[] = [];
-  for (const line of lines) {
-    const t = line.trim();
+  for (let i = lines.length - 1; i >= 0 && out.length < 400; i--) {
+    const t = lines[i].trim();
     if (t === '' || !/\d/.test(t)) continue;
     const other = t.replace(/[0-9eE+\-.,;\t "]/g, '').length;
     if (other / t.length <= 0.2) out.push(t);
   }
-  return out.slice(-400);
+  return out.reverse();
 }
 
 function detectDelimiter(lines: string[]): Delimiter {

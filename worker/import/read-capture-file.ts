@@ -93,7 +93,7 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
   ready.catch(() => undefined);
   const fd = openSync(path, 'r');
   try {
-    const head = new Uint8Array(Math.min(size, options.headBytes ?? 1 << 20));
+    const head = new Uint8Array(Math.min(size, options.headBytes ?? 256 << 10));
     readSync(fd, head, 0, head.length, 0);
     let cut = head.length;
     while (cut > 0 && head[cut - 1] !== 10) cut--;

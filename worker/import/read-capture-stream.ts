@@ -11,7 +11,7 @@ import { headTimeHint } from './head-time-hint.ts';
 import { lineStartOffset } from './line-start-offset.ts';
 
 export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
-  /** Bytes read before the layout must be clear; a file with no data rows in them is refused. @default 1 MiB */
+  /** Bytes read before the layout must be clear; a file with no data rows in them is refused. @default 256 KiB */
   headBytes?: number;
   /** Longest line accepted in the data; a longer one means the file is not a capture. @default 1 MiB */
   maxLineBytes?: number;
@@ -36,7 +36,7 @@ export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
  */
 export async function readCaptureStream(source: AsyncIterable<Uint8Array>, options: ReadCaptureStreamOptions = {}): Promise<ImportedCapture> {
   const {
-    headBytes = 1 << 20,
+    headBytes = 256 << 10,
     maxLineBytes = 1 << 20,
     footerBytes = 64 << 10,
     maxTextBytes = 256 << 20,
