@@ -1,5 +1,5 @@
 import { closeSync, openSync, readSync } from 'node:fs';
-import { open, stat } from 'node:fs/promises';
+import { stat } from 'node:fs/promises';
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
@@ -62,18 +62,20 @@ async function readSequentially(path: string, size: number, options: ReadCapture
   return readCaptureStream(open(), { ...options, sizeHint: size, reopen: trackTimes ? open : undefined });
 }
 
-/** The file's bytes in 1 MiB blocks read into one reused buffer (each block is valid until the next is asked for). */
+/** The file's bytes in 1 MiB blocks read into one reused buffer (each block is valid until the next is asked for).
+ * Reads are synchronous on purpose: from the page cache a block takes ~0.2 ms, and an awaited read left the
+ * thread idle for a fifth of the run (measured with --cpu-prof on the 10 M-row capture). */
 async function* fileChunks(path: string): AsyncGenerator<Uint8Array> {
-  const handle = await open(path, 'r');
+  const fd = openSync(path, 'r');
   try {
     const buffer = new Uint8Array(1 << 20);
     for (;;) {
-      const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
+      const bytesRead = readSync(fd, buffer, 0, buffer.length, null);
       if (bytesRead === 0) return;
       yield buffer.subarray(0, bytesRead);
     }
   } finally {
-    await handle.close();
+    closeSync(fd);
   }
 }
 
