@@ -6,7 +6,10 @@
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
-import { ApiToken, Invitation, Membership, User } from '../../server/db/models/index.ts';
+import { createHash } from 'node:crypto';
+import type { ImportedCapture } from '../../shared/contracts/capture.ts';
+import { Analysis, ApiToken, Capture, Invitation, Membership, Shot, User } from '../../server/db/models/index.ts';
+import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
 import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
 
@@ -35,6 +38,8 @@ interface Prepared {
   body?: unknown;
   /** Replace the acting user's credential headers (e.g. a fresh session to sign out). */
   headers?: Record<string, string>;
+  /** A multipart file upload instead of a JSON body. */
+  attach?: { field: string; name: string; content: string };
 }
 
 interface Row {
@@ -63,6 +68,55 @@ async function freshInvitation(demo: DemoWorld): Promise<{ id: string; secret: s
     invitedBy: demo.users.admin.id, expiresAt: new Date(Date.now() + 86_400_000),
   });
   return { id: inv.id, secret };
+}
+
+/** A two-channel capture small enough to write per case (values in volts, 1 µs samples). */
+function tinyCapture(): ImportedCapture {
+  const n = 200;
+  const a = new Float64Array(n).map((_, i) => (i > 50 && i < 90 ? 0.2 : 4.8));
+  const b = new Float64Array(n).map((_, i) => (i > 120 && i < 160 ? 0.2 : 4.8));
+  return {
+    channels: [
+      { name: 'CH1', unit: 'V', sourceUnit: 'V', values: a, invalidCount: 0 },
+      { name: 'CH2', unit: 'V', sourceUnit: 'V', values: b, invalidCount: 0 },
+    ],
+    time: { kind: 'uniform', t0: 0, dt: 1e-6, jitter: 0 },
+    length: n,
+    metadata: {},
+    layout: {},
+    warnings: [],
+  };
+}
+
+/** A new Hollowmere shot with one capture in the given state (ready ones get real channel files). */
+async function freshShotWithCapture(h: ApiHarness, state: 'ready' | 'failed'): Promise<{ shotId: string; captureId: string }> {
+  const demo = h.demo;
+  const shot = await Shot.create({
+    labId: demo.labs.hollowmere.id, campaignId: demo.hollowmere.campaignIds[0], number: 1000 + serial++, firedAt: null,
+    projectileId: null, gateRigId: null, tubePressurePa: null, ambientTemperatureK: null, ambientPressurePa: null, createdBy: null,
+  });
+  const sha256 = createHash('sha256').update(unique('capture')).digest('hex');
+  const capture = await Capture.create({
+    labId: shot.labId, shotId: shot.id, fileName: 'matrix.csv', sizeBytes: 10, sha256, storageKey: `labs/${shot.labId}/raw/${sha256}`,
+    uploadedBy: null, state, error: state === 'failed' ? 'line 3: expected 3 numbers' : null,
+  });
+  if (state === 'ready') {
+    const descriptor = await writeChannelFiles(h.deps.blobStore, shot.labId, capture.id, tinyCapture());
+    await capture.update({ channels: descriptor, sampleCount: 200, timeBase: descriptor.time });
+  }
+  return { shotId: shot.id, captureId: capture.id };
+}
+
+/** Two finished analysis versions of a fresh shot, made straight in the database. */
+async function freshAnalyses(h: ApiHarness): Promise<{ shotId: string; analysisId: string; otherId: string }> {
+  const { shotId } = await freshShotWithCapture(h, 'ready');
+  const make = (version: number, level: number) =>
+    Analysis.create({
+      labId: h.demo.labs.hollowmere.id, shotId, version, parameters: { threshold: { level } }, engineVersion: 'matrix',
+      jobKey: unique('matrix-analysis'), requestedBy: null, state: 'done', results: { speed: { value: 200 + version } } as object,
+    });
+  const [a, b] = [await make(1, 50), await make(2, 40)];
+  return { shotId, analysisId: a.id, otherId: b.id };
 }
 
 const errorShape = (body: Record<string, unknown>) =>
@@ -163,7 +217,8 @@ const MATRIX: Record<string, Row> = {
   },
   'GET /api/labs/:labId/campaigns': {
     expect: [200, 200, 200, 200, 404, 401],
-    shape: (b) => expect(b).toMatchObject({ campaigns: expect.arrayContaining([expect.objectContaining({ name: 'Vacuum sweep, autumn 2026', shotCount: 8 })]) }),
+    // Other rows add shots to this campaign, so only the seeded minimum is known here.
+    shape: (b) => expect(b).toMatchObject({ campaigns: expect.arrayContaining([expect.objectContaining({ name: 'Vacuum sweep, autumn 2026', shotCount: expect.any(Number) })]) }),
   },
   'POST /api/labs/:labId/campaigns': {
     expect: [201, 201, 403, 403, 404, 401],
@@ -182,13 +237,65 @@ const MATRIX: Record<string, Row> = {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b) => expect(b).toMatchObject({ gateRigs: [expect.objectContaining({ name: 'Exit rig, three gates' })] }),
   },
+  'POST /api/labs/:labId/shots': {
+    expect: [201, 201, 403, 403, 404, 401],
+    prepare: ({ demo }) => ({ body: { campaignId: demo.hollowmere.campaignIds[0], tubePressurePa: 1500, notes: 'matrix' } }),
+    shape: (b) => expect(b).toMatchObject({ shot: { id: expect.any(String), number: expect.any(Number), conditions: { tubePressurePa: 1500 } } }),
+  },
   'GET /api/shots/:shotId': {
     expect: [200, 200, 200, 200, 404, 401],
-    shape: (b) => expect(b).toMatchObject({ shot: { number: 1, conditions: { tubePressurePa: 12_000 } } }),
+    shape: (b) => expect(b).toMatchObject({ shot: { number: 1, conditions: { tubePressurePa: 12_000 } }, captures: expect.any(Array), analyses: expect.any(Array) }),
+  },
+  'PATCH /api/shots/:shotId': {
+    expect: [200, 200, 403, 403, 404, 401],
+    prepare: () => ({ body: { notes: unique('matrix note') } }),
+    shape: (b) => expect(b).toMatchObject({ shot: { number: 1 } }),
+  },
+  'POST /api/shots/:shotId/captures': {
+    expect: [202, 202, 403, 403, 404, 401],
+    prepare: () => ({ attach: { field: 'files', name: 'matrix.csv', content: `t,CH1\n0,${serial++}\n1e-6,1\n` } }),
+    shape: (b) => expect(b).toMatchObject({ captures: [expect.objectContaining({ state: 'queued', duplicate: false })] }),
+  },
+  'GET /api/labs/:labId/shots': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toMatchObject({ shots: expect.any(Array), total: expect.any(Number) }),
+  },
+  'GET /api/shots/:shotId/analyses': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toMatchObject({ analyses: expect.any(Array) }),
+  },
+  'POST /api/shots/:shotId/analyses': {
+    expect: [202, 403, 202, 403, 404, 401],
+    prepare: async ({ h }) => ({ params: { shotId: (await freshShotWithCapture(h, 'ready')).shotId }, body: { parameters: { threshold: { level: 45 } } } }),
+    shape: (b) => expect(b).toMatchObject({ analysis: { version: 1, state: 'queued' } }),
+  },
+  'GET /api/shots/:shotId/analyses/:analysisId': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshAnalyses(h) }),
+    shape: (b) => expect(b).toMatchObject({ analysis: { version: 1, results: { speed: { value: 201 } } } }),
+  },
+  'GET /api/shots/:shotId/analyses/:analysisId/diff/:otherId': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshAnalyses(h) }),
+    shape: (b) => expect(b).toMatchObject({ parameters: [{ path: 'threshold.level', from: 50, to: 40 }], results: [{ path: 'speed.value', from: 201, to: 202 }] }),
+  },
+  'POST /api/shots/:shotId/captures/:captureId/reingest': {
+    expect: [202, 202, 403, 403, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'failed'), body: { importOptions: { timeColumn: 0 } } }),
+    shape: (b) => expect(b).toMatchObject({ capture: { state: 'queued', ingestAttempt: 2, importOptions: { timeColumn: 0 } } }),
+  },
+  'GET /api/captures/:captureId/window': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'ready') }),
+    shape: (b) => expect(b).toMatchObject({ raw: true }),
   },
   'GET /api/labs/:labId/audit': {
     expect: [200, 403, 403, 200, 404, 401],
     shape: (b) => expect(b).toEqual({ events: expect.any(Array) }),
+  },
+  'GET /api/openapi.json': {
+    expect: [200, 200, 200, 200, 200, 200],
+    shape: (b) => expect(b).toMatchObject({ openapi: '3.1.0', paths: expect.objectContaining({ '/api/shots/{shotId}/captures': expect.any(Object) }) }),
   },
 };
 
@@ -228,7 +335,8 @@ async function runRow(h: ApiHarness, key: string, row: Row, credential: Credenti
     });
     let req = request(h.app)[method.toLowerCase() as 'get' | 'post' | 'patch' | 'delete'](url);
     for (const [name, value] of Object.entries(prepared.headers ?? (await freshAuth()))) req = req.set(name, value);
-    if (prepared.body !== undefined) req = req.send(prepared.body as object);
+    if (prepared.attach) req = req.attach(prepared.attach.field, Buffer.from(prepared.attach.content), prepared.attach.name);
+    else if (prepared.body !== undefined) req = req.send(prepared.body as object);
     const res = await req;
     actual.push(res.status);
     if (res.status !== row.expect[actual.length - 1]) {

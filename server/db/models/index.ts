@@ -155,7 +155,7 @@ export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttr
   declare parameters: unknown;
   declare engineVersion: string;
   declare state: CreationOptional<'queued' | 'running' | 'done' | 'failed'>;
-  declare results: CreationOptional<unknown>;
+  declare results: CreationOptional<object | null>;
   declare error: CreationOptional<string | null>;
   declare jobKey: string;
   declare requestedBy: string | null;
