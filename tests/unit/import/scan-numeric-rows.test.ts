@@ -61,6 +61,22 @@ describe('scanNumericRows number parsing', () => {
     }), { numRuns: 400 });
   });
 
+  it('When rows hold several numbers with any delimiter, then each field reads back bit-identical to parseFloat', () => {
+    const delimiters = [[',', 44], [';', 59], ['\t', 9], [' ', -1]] as const;
+    const field = fc.oneof(
+      fc.double({ noNaN: true, noDefaultInfinity: true }).map((x) => x.toExponential(9)),
+      fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e6, max: 1e6 }).map((x) => x.toFixed(7)),
+      fc.stringMatching(/^-?\d{1,12}\.\d{1,18}$/),
+    );
+    fc.assert(fc.property(fc.constantFrom(...delimiters), fc.array(fc.tuple(field, field, field), { minLength: 1, maxLength: 8 }), ([text, byte], rows) => {
+      const bytes = encoder.encode(rows.map((r) => r.join(text)).join('\n') + '\n');
+      const out = { values: [new Float64Array(rows.length), new Float64Array(rows.length), new Float64Array(rows.length)], times: null, invalidCounts: [0, 0, 0] };
+      const stop = scanNumericRows(bytes, 0, bytes.length, spec({ delimiter: byte, slots: [0, 1, 2], requiredFields: 3, factors: [1, 1, 1], expected: 3 }), out, { row: 0, line: 1, lastTime: NaN, nextIndex: NaN });
+      expect(stop).toBeNull();
+      rows.forEach((r, i) => r.forEach((f, k) => expect(Object.is(out.values[k][i], expected(f)), `${f}`).toBe(true)));
+    }), { numRuns: 300 });
+  });
+
   it('When numbers use a decimal comma, then they read as parseFloat of the same number with a point', () => {
     const s = spec({ delimiter: 59, decimal: 44 });
     fc.assert(fc.property(fc.array(fc.double({ noNaN: true, noDefaultInfinity: true, min: -1e6, max: 1e6 }), { minLength: 1, maxLength: 10 }), (xs) => {
