@@ -98,7 +98,7 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     const head = new Uint8Array(Math.min(size, options.headBytes ?? 256 << 10));
     readSync(fd, head, 0, head.length, 0);
     let cut = head.length;
-    while (cut > 0 && head[cut - 1] !== 10) cut--;
+    while (cut > 0 && head[cut - 1] !== 10 && head[cut - 1] !== 13) cut--;
     if (cut === 0) return null;
     const decoded = decodeCaptureBytes(head.subarray(0, cut), { encoding: options.encoding });
     if (decoded.encoding === 'utf-16le' || decoded.encoding === 'utf-16be') return null;

@@ -8,6 +8,7 @@ import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
 import { countLineEnds } from '../../../../worker/import/count-line-ends.ts';
 import { readCaptureFile } from '../../../../worker/import/read-capture-file.ts';
 import { checkAgainstTruth } from '../../import/check-against-truth.ts';
+import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'gatepost-import-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -95,6 +96,31 @@ describe('readCaptureFile', () => {
     const capture = await readCaptureFile(save('uneven.csv', nonuniform), { threads: 2, headBytes: 4096 });
     expect(capture.time.kind).toBe('explicit');
     expect(capture.time.kind === 'explicit' && capture.time.t[15_000]).toBeCloseTo(2e-3, 15);
+  });
+});
+
+describe('readCaptureFile on fixtures split across two threads', () => {
+  // CR line ends, Latin-1 with a decimal comma, and a footer with sentinels: the split must not change a number.
+  for (const name of ['two-header-rows.tsv', 'decimal-comma-latin1.csv', 'sentinels-footer.csv']) {
+    it(`When ${name} is read by two threads, then it matches the generator`, async () => {
+      const capture = await readCaptureFile(join(CAPTURES_DIR, name), { threads: 2, headBytes: 2048 });
+      expect(capture.layout.reader).toBe('two threads');
+      checkAgainstTruth(capture, readManifest()[name]);
+    });
+  }
+});
+
+describe('readCaptureFile falls back to the text path', () => {
+  it('When the data fields are quoted or the file is UTF-16, then the text path reads it', async () => {
+    const quoted = await readCaptureFile(save('quoted.csv', '"Time (s)","CH1 (V)"\n"0","1.5"\n"1e-6","2.5"\n"2e-6","3.5"\n'), { threads: 2 });
+    expect(quoted.layout.reader).toBe('text');
+    expect(Array.from(quoted.channels[0].values)).toEqual([1.5, 2.5, 3.5]);
+    const text = '\ufeffTime (s),CH1 (V)\n0,1.5\n1e-6,2.5\n2e-6,3.5\n';
+    const utf16 = new Uint8Array(text.length * 2);
+    for (let i = 0; i < text.length; i++) [utf16[2 * i], utf16[2 * i + 1]] = [text.charCodeAt(i) & 0xff, text.charCodeAt(i) >> 8];
+    const wide = await readCaptureFile(save('utf16.csv', utf16));
+    expect(wide.layout).toMatchObject({ reader: 'text', encoding: 'utf-16le' });
+    expect(Array.from(wide.channels[0].values)).toEqual([1.5, 2.5, 3.5]);
   });
 });
 
