@@ -56,6 +56,19 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     consumed += r.value.length;
     return r.value;
   };
+  // The general text path needs the whole file in memory, up to a limit.
+  const readRest = async (head: Uint8Array): Promise<Uint8Array> => {
+    const parts = [head];
+    let total = head.length;
+    for (let chunk = await next(); chunk !== null; chunk = await next()) {
+      total += chunk.length;
+      if (total > maxTextBytes) {
+        throw new ImportError(`this file needs the general text reader (quoted fields or UTF-16) and is larger than its limit of ${formatBytes(maxTextBytes)}; export it without quotes, as UTF-8`);
+      }
+      parts.push(chunk.slice());
+    }
+    return concat(parts, total);
+  };
   try {
     // The head: enough bytes to see the preamble, the header and the first rows.
     const headParts: Uint8Array[] = [];
@@ -68,6 +81,10 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     }
     const head = concat(headParts, headLength);
     if (head.length === 0) throw new ImportError('the file is empty: there is no text in it');
+    // UTF-16 (a BOM of FF FE or FE FF) has two-byte line ends; the byte scanner cannot take it, the text path can.
+    const wide = options.encoding === 'utf-16le' || options.encoding === 'utf-16be'
+      || (options.encoding === undefined && head.length >= 2 && ((head[0] === 0xff && head[1] === 0xfe) || (head[0] === 0xfe && head[1] === 0xff)));
+    if (wide) return parseScopeCsv(await readRest(head), options);
     let cut = head.length;
     if (!done) {
       cut = lastLineEnd(head);
@@ -80,20 +97,7 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     const fast = decoded.encoding !== 'utf-16le' && decoded.encoding !== 'utf-16be' && !dataLines.some((l) => l.includes('"'));
     const lineEnding = decoded.text.includes('\r\n') ? 'CRLF' : decoded.text.includes('\n') ? 'LF' : 'CR';
     const sourceInfo = { encoding: decoded.encoding, bom: decoded.bom, lineEnding };
-    if (!fast) {
-      // The general text path needs the whole file in memory.
-      const parts = [head];
-      let total = head.length;
-      for (let chunk = await next(); chunk !== null; chunk = await next()) {
-        chunk = chunk.slice();
-        total += chunk.length;
-        if (total > maxTextBytes) {
-          throw new ImportError(`this file needs the general text reader (quoted fields or UTF-16) and is larger than its limit of ${formatBytes(maxTextBytes)}; export it without quotes, as UTF-8`);
-        }
-        parts.push(chunk);
-      }
-      return parseScopeCsv(concat(parts, total), options);
-    }
+    if (!fast) return parseScopeCsv(await readRest(head), options);
 
     const spec = scanSpecFromPlan(plan);
     const dataOffset = lineStartOffset(head, plan.dataStartLine);
