@@ -48,8 +48,59 @@ function channelIndexOf(files: ChannelFiles, wanted: string): number {
   throw badRequest(`Please correct the request: channel: this capture has no channel "${wanted}"; it has ${list || 'no channels'}.`);
 }
 
+/** The live preview reads whole channels; beyond this many samples (32 MB a channel) it would burden the browser. */
+const MAX_PREVIEW_SAMPLES = 8_000_000;
+
+const samplesQuerySchema = z.object({
+  /** Channel index or name, or "time" for the time column of an unevenly sampled capture. */
+  channel: z.string().trim().min(1).default('0'),
+});
+
+/** The channel files of a capture of the caller's lab that has been read; 409 while it is not. */
+async function readyFiles(req: Request, deps: Deps): Promise<ChannelFiles> {
+  const capture = await Capture.findOne({ where: { id: req.params.captureId as string, labId: req.lab!.id }, attributes: ['id', 'state', 'error', 'channels'] });
+  if (!capture) throw notFound('No such capture.');
+  if (capture.state === 'failed') throw conflict(`This capture could not be read: ${capture.error ?? 'unknown reason'}`);
+  if (capture.state !== 'ready') throw conflict('This capture is still being read; try again in a moment.');
+  const parsed = channelFilesSchema.safeParse(capture.channels);
+  if (!parsed.success) {
+    deps.logger.error({ captureId: capture.id, issues: parsed.error.issues }, 'capture channel files descriptor is invalid');
+    throw new AppError(500, 'internal', 'The stored channel files of this capture are damaged.');
+  }
+  return parsed.data;
+}
+
 export function captureRoutes(deps: Deps): RouteDef[] {
   return [
+    {
+      method: 'get',
+      path: '/api/captures/:captureId/samples',
+      access: { kind: 'lab', permission: 'lab:read', labOf: labOfCapture },
+      summary: "One channel's samples as little-endian Float32 (channel=time: an explicit time column as Float64), for the browser's live preview",
+      query: samplesQuerySchema,
+      async handler(req, res) {
+        const query = res.locals.query as z.infer<typeof samplesQuerySchema>;
+        const files = await readyFiles(req, deps);
+        let key: string;
+        let bytes: number;
+        if (query.channel === 'time') {
+          if (files.time.kind !== 'explicit') throw badRequest('This capture is evenly sampled: its times are t0 + i·dt from the capture record, not a column.');
+          key = files.time.key;
+          bytes = files.length * 8;
+        } else {
+          const channel = files.channels[channelIndexOf(files, query.channel)];
+          key = channel.samplesKey;
+          bytes = channel.length * 4;
+        }
+        if (files.length > MAX_PREVIEW_SAMPLES) {
+          throw new AppError(413, 'too_large', `This record has ${files.length.toLocaleString('en')} samples; the live preview reads records of up to ${MAX_PREVIEW_SAMPLES.toLocaleString('en')}. Recompute on the server instead.`);
+        }
+        res.set({ 'Content-Type': 'application/octet-stream', 'Content-Length': String(bytes), 'X-Sample-Count': String(files.length), 'Cache-Control': 'private, max-age=3600' });
+        const stream = deps.blobStore.openRead(key);
+        stream.on('error', (err) => res.destroy(err));
+        stream.pipe(res);
+      },
+    },
     {
       method: 'get',
       path: '/api/captures/:captureId/window',
