@@ -289,6 +289,10 @@ const MATRIX: Record<string, Row> = {
     prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'ready') }),
     shape: (b) => expect(b).toMatchObject({ raw: true }),
   },
+  'GET /api/captures/:captureId/samples': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'ready') }),
+  },
   'GET /api/labs/:labId/audit': {
     expect: [200, 403, 403, 200, 404, 401],
     shape: (b) => expect(b).toEqual({ events: expect.any(Array) }),
