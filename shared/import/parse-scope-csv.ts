@@ -45,7 +45,7 @@ function readBodyLines(lines: string[], plan: CapturePlan, source: Record<string
     if (fields.every((f) => f.trim() === '')) continue;
     const lineNo = i + 1;
     if (fields.length < plan.requiredFields) {
-      throw new ImportError(`expected ${expected} numbers, found ${describeShortRow(fields, plan)} (a short row)`, lineNo);
+      throw new ImportError(`expected ${expected} numbers, found ${fields.length} field${fields.length === 1 ? '' : 's'} (a short row)`, lineNo);
     }
     for (let col = width; col < fields.length; col++) {
       if (fields[col].trim() !== '') {
@@ -103,9 +103,4 @@ function readBodyLines(lines: string[], plan: CapturePlan, source: Record<string
 function clip(field: string): string {
   const t = field.trim();
   return t.length > 40 ? `${t.slice(0, 40)}…` : t;
-}
-
-function describeShortRow(fields: string[], plan: CapturePlan): string {
-  const numbers = fields.filter((f) => readSampleField(f, plan.fieldOptions) !== undefined).length;
-  return `${numbers} number${numbers === 1 ? '' : 's'} in ${fields.length} field${fields.length === 1 ? '' : 's'}`;
 }

@@ -145,7 +145,7 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     };
     const state: ScanState = { row: 0, line: plan.dataStartLine, lastTime: NaN, nextIndex: NaN };
     const stop0 = scanFileRange(fd, dataOffset, split, spec, out, state);
-    if (stop0 !== null) throw stop0.error as ImportError;
+    if (stop0 !== null) throw stop0.error ?? new Error('the first part of the file held more rows than lines');
     const reply = await ready;
     if (reply.failure !== null) throw new Error(`the import worker failed: ${reply.failure}`);
     let footerText: string | null = null;

@@ -62,7 +62,7 @@ describe('parseScopeCsv errors a person can act on', () => {
   });
 
   it('When a row is short or long, then it names the line and what it found', () => {
-    expect(importError(`t,a,b\n${rows(5)}5e-6,0.1\n${rows(3, 6)}`).message).toBe('line 7: expected 3 numbers, found 2 numbers in 2 fields (a short row)');
+    expect(importError(`t,a,b\n${rows(5)}5e-6,0.1\n${rows(3, 6)}`).message).toBe('line 7: expected 3 numbers, found 2 fields (a short row)');
     expect(importError(`t,a,b\n${rows(5)}5e-6,0.1,0.2,0.3\n${rows(3, 6)}`).message).toBe("line 7: expected 3 columns as in the rows above, found 4 (extra value '0.3')");
   });
 
