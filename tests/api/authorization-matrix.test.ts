@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
 import { createHash } from 'node:crypto';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { Analysis, ApiToken, Capture, Invitation, Membership, Shot, User } from '../../server/db/models/index.ts';
+import { Analysis, ApiToken, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
 import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
@@ -233,9 +233,36 @@ const MATRIX: Record<string, Row> = {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b) => expect(b).toMatchObject({ projectiles: expect.arrayContaining([expect.objectContaining({ diameterM: 0.04, massKg: 0.0027 })]) }),
   },
+  'POST /api/labs/:labId/projectiles': {
+    expect: [201, 403, 201, 403, 404, 401],
+    prepare: () => ({ body: { name: unique('Matrix ball'), diameterM: 0.04, diameterToleranceM: 0.0001, massKg: 0.0027, massToleranceKg: 0.00005 } }),
+    shape: (b) => expect(b).toMatchObject({ projectile: { id: expect.any(String), diameterM: 0.04, massKg: 0.0027 } }),
+  },
+  'PATCH /api/labs/:labId/projectiles/:projectileId': {
+    expect: [200, 403, 200, 403, 404, 401],
+    prepare: async ({ demo }) => {
+      const p = await Projectile.create({ labId: demo.labs.hollowmere.id, name: unique('Matrix ball'), diameterM: 0.04, diameterToleranceM: 0.0001, massKg: 0.0027, massToleranceKg: 0.00005 });
+      return { params: { projectileId: p.id }, body: { diameterToleranceM: 0.0002 } };
+    },
+    shape: (b) => expect(b).toMatchObject({ projectile: { diameterToleranceM: 0.0002 } }),
+  },
   'GET /api/labs/:labId/gate-rigs': {
     expect: [200, 200, 200, 200, 404, 401],
-    shape: (b) => expect(b).toMatchObject({ gateRigs: [expect.objectContaining({ name: 'Exit rig, three gates' })] }),
+    // Other rows add rigs, so only the seeded one is known here.
+    shape: (b) => expect(b).toMatchObject({ gateRigs: expect.arrayContaining([expect.objectContaining({ name: 'Exit rig, three gates' })]) }),
+  },
+  'POST /api/labs/:labId/gate-rigs': {
+    expect: [201, 403, 201, 403, 404, 401],
+    prepare: () => ({ body: { name: unique('Matrix rig'), gates: [{ label: 'A', position_m: 0, position_uncertainty_m: 0.0005 }, { label: 'B', position_m: 0.2, position_uncertainty_m: 0.0005 }], beamWidthM: 0.001, sensorType: 'photodiode' } }),
+    shape: (b) => expect(b).toMatchObject({ gateRig: { id: expect.any(String), gates: [expect.objectContaining({ label: 'A' }), expect.objectContaining({ position_m: 0.2 })] } }),
+  },
+  'PATCH /api/labs/:labId/gate-rigs/:gateRigId': {
+    expect: [200, 403, 200, 403, 404, 401],
+    prepare: async ({ demo }) => {
+      const r = await GateRig.create({ labId: demo.labs.hollowmere.id, name: unique('Matrix rig'), gates: [{ label: 'A', position_m: 0, position_uncertainty_m: 0.0005 }], beamWidthM: 0.001, sensorType: 'photodiode' });
+      return { params: { gateRigId: r.id }, body: { beamWidthM: 0.002 } };
+    },
+    shape: (b) => expect(b).toMatchObject({ gateRig: { beamWidthM: 0.002 } }),
   },
   'POST /api/labs/:labId/shots': {
     expect: [201, 201, 403, 403, 404, 401],

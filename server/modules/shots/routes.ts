@@ -1,8 +1,8 @@
 import type { Request } from 'express';
 import { z } from 'zod';
-import { Op, UniqueConstraintError } from 'sequelize';
+import { col, literal, Op, UniqueConstraintError, type Order } from 'sequelize';
 import { createShotBody, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../shared/contracts/shots.ts';
-import { Analysis, Campaign, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
+import { Analysis, Campaign, Capture, GateRig, Projectile, Review, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
@@ -16,7 +16,21 @@ const shotListQuery = z.object({
   status: z.string().transform((s) => s.split(',')).pipe(z.array(z.enum(['draft', 'processing', 'analysed', 'in_review', 'approved', 'returned', 'failed']))).optional(),
   limit: z.coerce.number().int().min(1).max(200).default(50),
   offset: z.coerce.number().int().min(0).default(0),
+  /** `field` or `field:asc|desc`; without it, newest first (as before). */
+  sort: z.string().regex(/^(number|firedAt|tubePressure|speed|status)(:(asc|desc))?$/, 'sort must be one of number, firedAt, tubePressure, speed, status, optionally followed by :asc or :desc (e.g. speed:desc)').optional(),
+  /** Words to find in the notes or the seal type (case-insensitive). */
+  q: z.string().trim().max(200).optional(),
 });
+
+/** The current analysis's speed as a number, or NULL when there is none (a missed speed, a failed or queued analysis). */
+const SPEED_SQL = `(SELECT CASE WHEN jsonb_typeof(a.results #> '{speed,value}') = 'number' THEN (a.results #>> '{speed,value}')::float8 END
+  FROM analyses a WHERE a.id = "Shot"."current_analysis_id" AND a.lab_id = "Shot"."lab_id")`;
+/** Statuses in the order a shot moves through them, so sorting by status reads like the workflow. */
+const STATUS_ORDER_SQL = `CASE "Shot"."status" WHEN 'draft' THEN 0 WHEN 'processing' THEN 1 WHEN 'failed' THEN 2 WHEN 'analysed' THEN 3
+  WHEN 'in_review' THEN 4 WHEN 'returned' THEN 5 WHEN 'approved' THEN 6 ELSE 7 END`;
+const SORT_COLUMNS = { number: col('Shot.number'), firedAt: col('Shot.fired_at'), tubePressure: col('Shot.tube_pressure_pa'), speed: literal(SPEED_SQL), status: literal(STATUS_ORDER_SQL) };
+
+const finiteOrNull = (x: unknown) => (typeof x === 'number' && Number.isFinite(x) ? x : null);
 
 /** Routes addressed by a shot id find their lab from the shot itself. */
 export async function labOfShot(req: Request): Promise<string | null> {
@@ -142,16 +156,60 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/shots',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: "Search the lab's shots (by campaign, status), newest first, paginated",
+      summary: "Search the lab's shots (by campaign, status, words in notes or seal type), sorted, paginated; each with its current speed ± U and latest review decision",
       query: shotListQuery,
       async handler(req, res) {
         const q = res.locals.query as z.infer<typeof shotListQuery>;
         const { limit, offset } = q;
-        const where: Record<string, unknown> = { labId: req.lab!.id };
+        const where: Record<string | symbol, unknown> = { labId: req.lab!.id };
         if (q.campaignId) where.campaignId = q.campaignId;
         if (q.status) where.status = { [Op.in]: q.status };
-        const { rows, count } = await Shot.findAndCountAll({ where, order: [['createdAt', 'DESC'], ['number', 'DESC']], limit, offset });
-        res.json({ shots: rows.map(shotSummary), total: count, limit, offset });
+        if (q.q) {
+          // LIKE's own wildcards typed by a person are meant literally.
+          const pattern = `%${q.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+          where[Op.or] = [{ notes: { [Op.iLike]: pattern } }, { sealType: { [Op.iLike]: pattern } }];
+        }
+        let order: Order = [['createdAt', 'DESC'], ['number', 'DESC']];
+        if (q.sort) {
+          const [field, dir = 'asc'] = q.sort.split(':') as [keyof typeof SORT_COLUMNS, string];
+          // Empty values (no speed yet, no pressure logged) stay at the bottom either way; ties by shot number, then id.
+          order = [[SORT_COLUMNS[field], `${dir.toUpperCase()} NULLS LAST`], [col('Shot.number'), dir.toUpperCase()], [col('Shot.id'), 'ASC']];
+        }
+        const { rows, count } = await Shot.findAndCountAll({ where, order, limit, offset });
+        // Only the speed part of each current analysis is read: full results can be large.
+        const analysisIds = rows.map((s) => s.currentAnalysisId).filter((id): id is string => id != null);
+        const speeds = new Map<string, Record<string, unknown> | null>();
+        if (analysisIds.length > 0) {
+          const found = (await Analysis.findAll({
+            where: { id: { [Op.in]: analysisIds }, labId: req.lab!.id },
+            attributes: ['id', [literal(`results -> 'speed'`), 'speed']],
+            raw: true,
+          })) as unknown as { id: string; speed: Record<string, unknown> | null }[];
+          for (const a of found) speeds.set(a.id, a.speed);
+        }
+        const reviews = rows.length === 0 ? [] : await Review.findAll({
+          where: { shotId: { [Op.in]: rows.map((s) => s.id) }, labId: req.lab!.id },
+          attributes: ['shotId', 'decision', 'createdAt'],
+          order: [['createdAt', 'DESC'], ['id', 'DESC']],
+        });
+        const latestReview = new Map<string, Review>();
+        for (const r of reviews) if (!latestReview.has(r.shotId)) latestReview.set(r.shotId, r);
+        res.json({
+          shots: rows.map((s) => {
+            const speed = s.currentAnalysisId ? speeds.get(s.currentAnalysisId) : null;
+            const value = finiteOrNull(speed?.value);
+            const review = latestReview.get(s.id);
+            return {
+              ...shotSummary(s),
+              speed: value == null ? null : {
+                value, uncertainty: finiteOrNull(speed?.uncertainty), method: typeof speed?.method === 'string' ? speed.method : null,
+                basis: typeof speed?.basis === 'string' ? speed.basis : null,
+              },
+              review: review ? { decision: review.decision, decidedAt: review.createdAt } : null,
+            };
+          }),
+          total: count, limit, offset,
+        });
       },
     },
   ];
