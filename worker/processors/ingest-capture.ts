@@ -53,8 +53,11 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
 
   const shot = await settleShot(capture.shotId);
   if (shot) {
-    const ready = await readyCaptures(shot.id);
+    // Pending first, then ready: once nothing is pending, the ready set read afterwards is final, so two ingests
+    // finishing together compute the same key. Read the other way round, one could key a stale ready set (itself
+    // only) while the other capture turned ready in between, and the shot got two automatic analyses.
     const pending = await Capture.count({ where: { shotId: shot.id, state: { [Op.in]: ['queued', 'reading'] } } });
+    const ready = pending === 0 ? await readyCaptures(shot.id) : [];
     if (pending === 0 && ready.length > 0) {
       // Keyed by exactly which capture attempts it reads: two ingests finishing together make one analysis.
       const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
