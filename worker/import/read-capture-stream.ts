@@ -103,16 +103,32 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     const dataOffset = lineStartOffset(head, plan.dataStartLine);
     const headRows = Math.max(1, lines.length - plan.dataStartLine + 1);
     const bytesPerRow = Math.max(1, (cut - dataOffset) / headRows);
-    let capacity = sizeHint !== undefined ? Math.ceil((sizeHint - dataOffset) / bytesPerRow * 1.05) + 1024 : Math.max(4096, headRows * 4);
+    // With the size known, reserve the most rows the bytes could hold (a row is at least one digit and one
+    // delimiter or line end per field) in resizable buffers: untouched pages cost no memory, nothing is ever
+    // copied to grow, and the buffers are cut to the rows read at the end. Else grow by doubling.
+    const most = sizeHint !== undefined ? Math.ceil((sizeHint - dataOffset) / (2 * spec.requiredFields)) + 1 : 0;
+    const reserve = most > 0 && most * 8 <= MAX_RESERVE_BYTES;
+    let capacity = reserve ? most : sizeHint !== undefined ? Math.ceil(((sizeHint - dataOffset) / bytesPerRow) * 1.05) + 1024 : Math.max(4096, headRows * 4);
+    const array = () => (reserve ? new Float64Array(resizableBuffer(capacity * 8)) : new Float64Array(capacity));
     const hint = options.reopen !== undefined ? headTimeHint(plan, lines) : null;
     const out: ScanOutput = {
-      values: plan.channels.map(() => new Float64Array(capacity)),
-      times: plan.timeMode === 'column' && hint === null ? new Float64Array(capacity) : null,
+      values: plan.channels.map(array),
+      times: plan.timeMode === 'column' && hint === null ? array() : null,
       hull: hint === null ? null : new TimeGridHull(hint.t0, hint.dtHint),
       invalidCounts: plan.channels.map(() => 0),
     };
     const finish = async (footerText: string | null): Promise<ImportedCapture> => {
       const source = { ...sourceInfo, reader: 'stream', bytesRead: consumed };
+      if (reserve) {
+        const cut = (v: Float64Array) => {
+          const buffer = v.buffer as ArrayBuffer & { resizable?: boolean; resize?: (n: number) => void };
+          if (buffer.resizable !== true || buffer.resize === undefined) return v.subarray(0, state.row);
+          buffer.resize(state.row * 8);
+          return new Float64Array(buffer, 0, state.row);
+        };
+        out.values = out.values.map(cut);
+        if (out.times !== null) out.times = cut(out.times);
+      }
       if (out.hull === null || out.hull === undefined || state.row < 2) return finishCapture({ plan, out, rows: state.row, footerText, source });
       const t0 = out.hull.t0;
       const dt = (state.lastTime - t0) / (state.row - 1);
@@ -185,6 +201,15 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     if (!done) await iterator.return?.();
   }
 }
+
+/** An ArrayBuffer that can shrink later (ES2024 resizable buffers, in Node 20; the TS lib here is ES2023). */
+function resizableBuffer(bytes: number): ArrayBuffer {
+  const Resizable = ArrayBuffer as unknown as new (length: number, options: { maxByteLength: number }) => ArrayBuffer;
+  return new Resizable(bytes, { maxByteLength: bytes });
+}
+
+/** Largest reservation per array (virtual memory only); beyond it the arrays grow by copying instead. */
+const MAX_RESERVE_BYTES = 2 ** 34;
 
 function grow(out: ScanOutput, capacity: number): void {
   out.values = out.values.map((v) => {
