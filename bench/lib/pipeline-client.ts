@@ -63,7 +63,7 @@ export async function signIn(baseUrl: string, email: string, password: string, o
     post: (path, body, headers = {}) => send('POST', path, JSON.stringify(body), { 'content-type': 'application/json', ...headers }),
     upload: (shotId, files) => {
       const form = new FormData();
-      for (const f of files) form.append('files', new Blob([f.bytes], { type: 'text/csv' }), f.name);
+      for (const f of files) form.append('files', new Blob([f.bytes as Uint8Array<ArrayBuffer>], { type: 'text/csv' }), f.name);
       return send('POST', `/api/shots/${shotId}/captures`, form);
     },
   };
