@@ -103,13 +103,15 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     const dataOffset = lineStartOffset(head, plan.dataStartLine);
     const headRows = Math.max(1, lines.length - plan.dataStartLine + 1);
     const bytesPerRow = Math.max(1, (cut - dataOffset) / headRows);
-    // With the size known, reserve the most rows the bytes could hold (a row is at least one digit and one
-    // delimiter or line end per field) in resizable buffers: untouched pages cost no memory, nothing is ever
-    // copied to grow, and the buffers are cut to the rows read at the end. Else grow by doubling.
+    // With the size known, buffers sized from the head's bytes per row (+5 %) that may grow in place up to the
+    // most rows the bytes could hold (a row is at least one digit and one delimiter or line end per field), and
+    // are cut to the rows read at the end: nothing is copied to grow, no slack is left behind values.buffer.
+    // (Reserving the most from the start cost RSS: V8 zeroes the cut-off tail when a buffer shrinks.)
     const most = sizeHint !== undefined ? Math.ceil((sizeHint - dataOffset) / (2 * spec.requiredFields)) + 1 : 0;
     const reserve = most > 0 && most * 8 <= MAX_RESERVE_BYTES;
-    let capacity = reserve ? most : sizeHint !== undefined ? Math.ceil(((sizeHint - dataOffset) / bytesPerRow) * 1.05) + 1024 : Math.max(4096, headRows * 4);
-    const array = () => (reserve ? new Float64Array(resizableBuffer(capacity * 8)) : new Float64Array(capacity));
+    let capacity = sizeHint !== undefined ? Math.ceil(((sizeHint - dataOffset) / bytesPerRow) * 1.05) + 1024 : Math.max(4096, headRows * 4);
+    if (reserve) capacity = Math.min(capacity, most);
+    const array = () => (reserve ? new Float64Array(resizableBuffer(capacity * 8, most * 8)) : new Float64Array(capacity));
     const hint = options.reopen !== undefined ? headTimeHint(plan, lines) : null;
     const out: ScanOutput = {
       values: plan.channels.map(array),
@@ -162,7 +164,8 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
       }
       let stop = stopAt > 0 ? scanNumericRows(work, 0, stopAt, spec, out, state) : null;
       while (stop !== null && stop.kind === 'full') {
-        capacity = Math.ceil(capacity * (sizeHint !== undefined ? 1.25 : 2));
+        if (reserve && capacity >= most) throw new ImportError('the file grew while it was being read; read it again when the scope has finished writing it');
+        capacity = reserve ? Math.min(most, Math.ceil(capacity * 1.25)) : capacity * 2;
         grow(out, capacity);
         stop = scanNumericRows(work, stop.offset, stopAt, spec, out, state);
       }
@@ -203,25 +206,28 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
 }
 
 /** An ArrayBuffer that can shrink later (ES2024 resizable buffers, in Node 20; the TS lib here is ES2023). */
-function resizableBuffer(bytes: number): ArrayBuffer {
+function resizableBuffer(bytes: number, maxBytes: number): ArrayBuffer {
   const Resizable = ArrayBuffer as unknown as new (length: number, options: { maxByteLength: number }) => ArrayBuffer;
-  return new Resizable(bytes, { maxByteLength: bytes });
+  return new Resizable(bytes, { maxByteLength: maxBytes });
 }
 
 /** Largest reservation per array (virtual memory only); beyond it the arrays grow by copying instead. */
 const MAX_RESERVE_BYTES = 2 ** 34;
 
+/** Makes room for `capacity` rows: in place for resizable buffers, else by copying into bigger arrays. */
 function grow(out: ScanOutput, capacity: number): void {
-  out.values = out.values.map((v) => {
+  const resized = (v: Float64Array): Float64Array => {
+    const buffer = v.buffer as ArrayBuffer & { resizable?: boolean; resize?: (n: number) => void };
+    if (buffer.resizable === true && buffer.resize !== undefined) {
+      buffer.resize(capacity * 8);
+      return new Float64Array(buffer, 0, capacity);
+    }
     const bigger = new Float64Array(capacity);
     bigger.set(v);
     return bigger;
-  });
-  if (out.times !== null) {
-    const bigger = new Float64Array(capacity);
-    bigger.set(out.times);
-    out.times = bigger;
-  }
+  };
+  out.values = out.values.map(resized);
+  if (out.times !== null) out.times = resized(out.times);
 }
 
 function concat(parts: Uint8Array[], length: number): Uint8Array {

@@ -91,6 +91,17 @@ describe('readCaptureFile', () => {
     expect(error.message).toBe(`line ${splitLine.toLocaleString('en-US')}: the sample index ${k + 1} does not follow ${k - 1} (indices must count up by one)`);
   });
 
+  it('When later rows are much shorter than the head suggested, then the arrays grow in place and keep no slack', async () => {
+    const long = Array.from({ length: 200 }, (_, i) => `${(i * 1e-6).toExponential(15)},${(0.123456789012345 + i).toFixed(15)}`);
+    const short = Array.from({ length: 20_000 }, (_, i) => `${200 + i}e-6,${i % 10}`);
+    const text = `Time (s),CH1 (V)\n${long.join('\n')}\n${short.join('\n')}\n`;
+    const capture = await readCaptureFile(save('grow.csv', text), { threads: 1, headBytes: 2048 });
+    const reference = parseScopeCsv(new TextEncoder().encode(text));
+    expect(capture.length).toBe(20_200);
+    expect(capture.channels[0].values).toEqual(reference.channels[0].values);
+    expect(capture.channels[0].values.buffer.byteLength).toBe(20_200 * 8);
+  });
+
   it('When the times are unevenly spaced, then the reader keeps them (read again with times)', async () => {
     const nonuniform = 'Time (s),CH1 (V)\n' + Array.from({ length: 20_000 }, (_, i) => `${i < 10_000 ? i : 2 * i - 10_000}e-7,${i % 3}`).join('\n') + '\n';
     const capture = await readCaptureFile(save('uneven.csv', nonuniform), { threads: 2, headBytes: 4096 });
