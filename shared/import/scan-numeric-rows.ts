@@ -1,6 +1,6 @@
 import { ImportError } from './import-error.ts';
 import type { CapturePlan } from './detect-capture-plan.ts';
-import { readSampleField } from './read-sample-field.ts';
+import { readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
 import type { TimeGridHull } from './time-grid-hull.ts';
 
 /** Column roles for the scanner, one per column of the file. */
@@ -185,39 +185,26 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
           }
         }
       }
-      // Find the end of the field.
+      // Fields the fast parse did not take: out of line, so the hot loop stays small for the optimizer.
       let fieldEnd = p;
       if (!parsed) {
-        fieldEnd = fieldStart;
-        for (;;) {
-          const c = bytes[fieldEnd];
-          if (c === 10 || c === 13 || (whitespace ? c === 32 || c === 9 : c === delimiter)) break;
-          fieldEnd++;
-        }
-        p = fieldEnd;
-        if (slot !== SLOT_IGNORE || col >= width) {
-          const text = latin1.decode(bytes.subarray(fieldStart, fieldEnd));
-          if (col >= width) {
-            if (text.trim() !== '') return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${width} columns as in the rows above, found more (extra value '${clip(text)}')`);
-          } else {
-            const v = readSampleField(text, fieldOptions);
-            if (v === undefined) {
-              if (text.trim() === '' && restIsEmpty(bytes, lineStart, end, delimiter)) {
-                // A line of only delimiters counts as blank, as in the text path.
-                p = skipToEol(bytes, fieldStart, end);
-                blank = true;
-                break;
-              }
-              state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
-              return {
-                kind: 'text',
-                offset: lineStart,
-                error: new ImportError(`expected ${spec.expected} numbers, found '${clip(text)}'${slot === SLOT_TIME ? ' in the time column' : slot === SLOT_INDEX ? ' in the index column' : ''}`, line),
-              };
-            }
-            value = v;
-            parsed = true;
-          }
+        const odd = readOddField(bytes, fieldStart, lineStart, end, delimiter, whitespace, slot !== SLOT_IGNORE || col >= width, col >= width, fieldOptions);
+        p = fieldEnd = odd.end;
+        if (odd.kind === ODD_VALUE) {
+          value = odd.value;
+          parsed = true;
+        } else if (odd.kind === ODD_BLANK) {
+          blank = true;
+          break;
+        } else if (odd.kind === ODD_EXTRA) {
+          return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${width} columns as in the rows above, found more (extra value '${clip(odd.text)}')`);
+        } else if (odd.kind === ODD_TEXT) {
+          state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
+          return {
+            kind: 'text',
+            offset: lineStart,
+            error: new ImportError(`expected ${spec.expected} numbers, found '${clip(odd.text)}'${slot === SLOT_TIME ? ' in the time column' : slot === SLOT_INDEX ? ' in the index column' : ''}`, line),
+          };
         }
       } else if (value !== 0 && Math.abs(value) >= minSentinel && numericSentinels.has(value)) {
         value = NaN;
@@ -275,6 +262,35 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   }
   state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
   return null;
+}
+
+const ODD_SKIP = 0;
+const ODD_VALUE = 1;
+const ODD_BLANK = 2;
+const ODD_EXTRA = 3;
+const ODD_TEXT = 4;
+
+/** Finds the end of a field the fast parse did not take and says what it is: skipped (an ignored column), a
+ * value (long mantissas, huge exponents, sentinels: through readSampleField, as the text path), the first empty
+ * field of a line of only delimiters (blank), a non-empty field past the row's width, or text. */
+function readOddField(
+  bytes: Uint8Array, fieldStart: number, lineStart: number, end: number, delimiter: number, whitespace: boolean,
+  read: boolean, extra: boolean, fieldOptions: ReadSampleFieldOptions,
+): { end: number; kind: number; value: number; text: string } {
+  let fieldEnd = fieldStart;
+  for (;;) {
+    const c = bytes[fieldEnd];
+    if (c === 10 || c === 13 || (whitespace ? c === 32 || c === 9 : c === delimiter)) break;
+    fieldEnd++;
+  }
+  if (!read) return { end: fieldEnd, kind: ODD_SKIP, value: 0, text: '' };
+  const text = latin1.decode(bytes.subarray(fieldStart, fieldEnd));
+  if (extra) return { end: fieldEnd, kind: text.trim() === '' ? ODD_SKIP : ODD_EXTRA, value: 0, text };
+  const v = readSampleField(text, fieldOptions);
+  if (v !== undefined) return { end: fieldEnd, kind: ODD_VALUE, value: v, text };
+  // A line of only delimiters counts as blank, as in the text path.
+  if (text.trim() === '' && restIsEmpty(bytes, lineStart, end, delimiter)) return { end: skipToEol(bytes, fieldStart, end), kind: ODD_BLANK, value: 0, text };
+  return { end: fieldEnd, kind: ODD_TEXT, value: 0, text };
 }
 
 // Outside the scan loop on purpose: a closure over row/line would move them out of registers in V8.
