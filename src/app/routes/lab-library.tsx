@@ -1,3 +1,4 @@
+import { can } from '../../../shared/contracts/roles.ts';
 import { PageHeader } from '../../components/ui/primitives.tsx';
 import { LibraryView } from '../../features/library/components/library-view.tsx';
 import { useLab } from '../lab-context.ts';
@@ -7,7 +8,7 @@ export function Component() {
   return (
     <>
       <PageHeader title="Projectiles & rigs" subtitle="Sizes, masses and gate positions with their tolerances: they feed every speed and its uncertainty." />
-      <LibraryView labId={membership.labId} />
+      <LibraryView labId={membership.labId} canWrite={can(membership.role, 'library:write')} />
     </>
   );
 }

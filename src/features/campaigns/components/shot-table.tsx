@@ -1,0 +1,209 @@
+import { useEffect, useState } from 'react';
+import { Link, useNavigate, useSearchParams } from 'react-router-dom';
+import { Badge, Button, EmptyState, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
+import { formatCelsius, formatDateTime, formatKpa, formatMeasurement, formatDate } from '../../../lib/format.ts';
+import { SHOT_SORT_FIELDS, useShotList, type ShotListParams, type ShotListRow, type ShotSortField, type SortDirection } from '../api/shot-list.ts';
+
+export const PAGE_SIZE = 25;
+
+export const STATUS_LABELS: Record<string, { label: string; tone: 'neutral' | 'signal' | 'good' | 'bad' }> = {
+  draft: { label: 'Awaiting files', tone: 'neutral' },
+  processing: { label: 'Processing', tone: 'signal' },
+  analysed: { label: 'Analysed', tone: 'neutral' },
+  in_review: { label: 'In review', tone: 'signal' },
+  approved: { label: 'Signed off', tone: 'good' },
+  returned: { label: 'Returned', tone: 'bad' },
+  failed: { label: 'Failed', tone: 'bad' },
+};
+
+/** How the speed was obtained, in a few words. */
+function methodLabel(speed: NonNullable<ShotListRow['speed']>): string {
+  if (speed.method === 'occlusion' || speed.basis === 'occlusion') return 'occlusion, one gate';
+  if (speed.basis === 'fit') return 'time of flight, fit';
+  if (speed.basis === 'pair') return 'time of flight, two gates';
+  return speed.method === 'flight' ? 'time of flight' : (speed.method ?? '');
+}
+
+/** Most columns read best smallest first; speeds are compared fastest first. */
+const FIRST_DIRECTION: Record<ShotSortField, SortDirection> = { number: 'desc', firedAt: 'desc', tubePressure: 'asc', speed: 'desc', status: 'asc' };
+
+/** Sort, filter, search and page live in the address, so a view can be bookmarked or sent to a colleague. */
+export function useShotTableParams(campaignId: string) {
+  const [search, setSearch] = useSearchParams();
+  const sortParam = search.get('sort') as ShotSortField | null;
+  const sort: ShotSortField = sortParam && (SHOT_SORT_FIELDS as readonly string[]).includes(sortParam) ? sortParam : 'number';
+  const direction: SortDirection = search.get('dir') === 'asc' ? 'asc' : search.get('dir') === 'desc' ? 'desc' : FIRST_DIRECTION[sort];
+  const page = Math.max(1, Number.parseInt(search.get('page') ?? '1', 10) || 1);
+  const params: ShotListParams = {
+    campaignId, sort, direction, status: search.get('status') ?? '', q: search.get('q') ?? '', limit: PAGE_SIZE, offset: (page - 1) * PAGE_SIZE,
+  };
+  const update = (changes: Record<string, string | null>, resetPage = true) => {
+    const next = new URLSearchParams(search);
+    for (const [k, v] of Object.entries(changes)) {
+      if (v === null || v === '') next.delete(k);
+      else next.set(k, v);
+    }
+    if (resetPage) next.delete('page');
+    setSearch(next, { replace: true });
+  };
+  return { params, page, update };
+}
+
+function SortHeader({ field, label, params, onSort, align = 'left', className = '' }: {
+  field: ShotSortField; label: string; params: ShotListParams; onSort: (f: ShotSortField) => void; align?: 'left' | 'right'; className?: string;
+}) {
+  const active = params.sort === field;
+  const arrow = active ? (params.direction === 'asc' ? '▲' : '▼') : '↕';
+  return (
+    <th scope="col" aria-sort={active ? (params.direction === 'asc' ? 'ascending' : 'descending') : 'none'} className={`px-3 py-2 font-medium ${align === 'right' ? 'text-right' : ''} ${className}`}>
+      <button
+        type="button"
+        onClick={() => onSort(field)}
+        className={`inline-flex items-center gap-1 rounded uppercase tracking-wide hover:text-harbour-800 focus-visible:outline-2 focus-visible:outline-signal-400 ${active ? 'text-harbour-800' : ''}`}
+      >
+        {label}
+        <span aria-hidden className={`text-[10px] ${active ? 'text-signal-600' : 'text-harbour-300'}`}>{arrow}</span>
+      </button>
+    </th>
+  );
+}
+
+function SearchBox({ value, onChange }: { value: string; onChange: (q: string) => void }) {
+  const [text, setText] = useState(value);
+  // A request per keystroke would refetch the table while the person is still typing.
+  useEffect(() => {
+    if (text === value) return;
+    const t = setTimeout(() => onChange(text), 300);
+    return () => clearTimeout(t);
+  }, [text, value, onChange]);
+  return (
+    <input
+      type="search"
+      aria-label="Search notes and seal type"
+      placeholder="Search notes and seal type"
+      value={text}
+      onChange={(e) => setText(e.target.value)}
+      className="block w-full rounded-md border-0 bg-white px-3 py-2 text-sm ring-1 ring-harbour-200 placeholder:text-harbour-300 focus:ring-2 focus:ring-harbour-600 sm:w-72"
+    />
+  );
+}
+
+export function ShotTable({ labId, campaignId, canWrite }: { labId: string; campaignId: string; canWrite: boolean }) {
+  const navigate = useNavigate();
+  const { params, page, update } = useShotTableParams(campaignId);
+  const list = useShotList(labId, params);
+  // A new key empties the search box when the search is cleared from outside it.
+  const [searchKey, setSearchKey] = useState(0);
+  const clear = () => {
+    setSearchKey((k) => k + 1);
+    update({ q: null, status: null });
+  };
+  const filtered = params.q !== '' || params.status !== '';
+  const onSort = (field: ShotSortField) =>
+    update({ sort: field, dir: params.sort === field ? (params.direction === 'asc' ? 'desc' : 'asc') : FIRST_DIRECTION[field] });
+  const shotUrl = (id: string) => `/labs/${labId}/shots/${id}`;
+  const total = list.data?.total ?? 0;
+  const pages = Math.max(1, Math.ceil(total / PAGE_SIZE));
+
+  return (
+    <div className="space-y-4">
+      <div className="flex flex-wrap items-center gap-3">
+        <SearchBox key={searchKey} value={params.q} onChange={(q) => update({ q })} />
+        <select
+          aria-label="Status"
+          value={params.status}
+          onChange={(e) => update({ status: e.target.value })}
+          className="block rounded-md border-0 bg-white px-3 py-2 text-sm ring-1 ring-harbour-200 focus:ring-2 focus:ring-harbour-600"
+        >
+          <option value="">Every status</option>
+          {Object.entries(STATUS_LABELS).map(([value, s]) => <option key={value} value={value}>{s.label}</option>)}
+        </select>
+        {filtered && <Button variant="ghost" onClick={clear}>Clear</Button>}
+        {list.isFetching && !list.isPending && <span role="status" className="text-xs text-harbour-500">Updating…</span>}
+      </div>
+
+      {list.isPending && <Loading what="Loading the shots" />}
+      {list.isError && <ErrorNote error={list.error} />}
+      {list.data && list.data.shots.length === 0 && (
+        filtered ? (
+          <EmptyState title={params.q ? `No shots match “${params.q}”${params.status ? ' with that status' : ''}` : 'No shots with that status'}>
+            <p>Search looks in each shot's notes and seal type.</p>
+            <Button variant="secondary" className="mt-3" onClick={clear}>Clear the search and filter</Button>
+          </EmptyState>
+        ) : (
+          <EmptyState title="No shots in this campaign yet">
+            {canWrite
+              ? 'Log the first one with “New shot”; then drop its scope files on the shot’s page.'
+              : 'Shots appear here as experimenters log them.'}
+          </EmptyState>
+        )
+      )}
+      {list.data && list.data.shots.length > 0 && (
+        <>
+          <div className="-mx-5 overflow-x-auto">
+            <table className="min-w-full text-sm" aria-label="Shots">
+              <thead className="text-left text-xs uppercase tracking-wide text-harbour-500">
+                <tr>
+                  <SortHeader field="number" label="Shot" params={params} onSort={onSort} className="pl-5" />
+                  <SortHeader field="firedAt" label="Fired" params={params} onSort={onSort} />
+                  <SortHeader field="tubePressure" label="Tube" params={params} onSort={onSort} align="right" />
+                  <th scope="col" className="px-3 py-2 font-medium">Seal · ambient</th>
+                  <SortHeader field="speed" label="Speed ± U" params={params} onSort={onSort} align="right" />
+                  <SortHeader field="status" label="Status" params={params} onSort={onSort} />
+                  <th scope="col" className="px-3 py-2 pr-5 font-medium">Review</th>
+                </tr>
+              </thead>
+              <tbody className="divide-y divide-harbour-100">
+                {list.data.shots.map((s) => {
+                  const status = STATUS_LABELS[s.status] ?? { label: s.status, tone: 'neutral' as const };
+                  return (
+                    <tr key={s.id} onClick={() => navigate(shotUrl(s.id))} className="cursor-pointer align-top hover:bg-harbour-50">
+                      <td className="py-2 pr-3 pl-5 font-medium tabular-nums">
+                        <Link to={shotUrl(s.id)} onClick={(e) => e.stopPropagation()} className="text-harbour-800 hover:underline">#{s.number}</Link>
+                      </td>
+                      <td className="px-3 py-2 whitespace-nowrap tabular-nums text-harbour-700">{formatDateTime(s.firedAt)}</td>
+                      <td className="px-3 py-2 text-right whitespace-nowrap tabular-nums">{formatKpa(s.conditions.tubePressurePa)}</td>
+                      <td className="px-3 py-2 text-harbour-700">
+                        <span className="block">{s.conditions.sealType || '—'}</span>
+                        <span className="block text-xs tabular-nums text-harbour-500">
+                          {formatCelsius(s.conditions.ambientTemperatureK)} · {formatKpa(s.conditions.ambientPressurePa, 4)}
+                        </span>
+                      </td>
+                      <td className="px-3 py-2 text-right whitespace-nowrap tabular-nums">
+                        {s.speed ? (
+                          <>
+                            <span className="block font-medium text-harbour-900">{formatMeasurement(s.speed.value, s.speed.uncertainty, 'm/s')}</span>
+                            <span className="block text-xs text-harbour-500">{methodLabel(s.speed)}{s.speed.uncertainty != null && ', k = 2'}</span>
+                          </>
+                        ) : <span className="text-harbour-300">—</span>}
+                      </td>
+                      <td className="px-3 py-2"><Badge tone={status.tone}>{status.label}</Badge></td>
+                      <td className="px-3 py-2 pr-5 whitespace-nowrap">
+                        {s.review ? (
+                          <>
+                            <Badge tone={s.review.decision === 'approved' ? 'good' : 'bad'}>{s.review.decision === 'approved' ? 'Approved' : 'Sent back'}</Badge>
+                            <span className="block text-xs text-harbour-500">{formatDate(s.review.decidedAt)}</span>
+                          </>
+                        ) : <span className="text-harbour-300">—</span>}
+                      </td>
+                    </tr>
+                  );
+                })}
+              </tbody>
+            </table>
+          </div>
+          <nav aria-label="Pages" className="flex flex-wrap items-center justify-between gap-3 text-sm text-harbour-600">
+            <span className="tabular-nums">
+              Shots {params.offset + 1}–{params.offset + list.data.shots.length} of {total}
+            </span>
+            <span className="flex items-center gap-2">
+              <Button variant="secondary" disabled={page <= 1} onClick={() => update({ page: String(page - 1) }, false)}>Previous</Button>
+              <span className="tabular-nums">Page {page} of {pages}</span>
+              <Button variant="secondary" disabled={page >= pages} onClick={() => update({ page: String(page + 1) }, false)}>Next</Button>
+            </span>
+          </nav>
+        </>
+      )}
+    </div>
+  );
+}
