@@ -14,6 +14,7 @@ export const router = createBrowserRouter([
       { index: true, element: <Navigate to="campaigns" replace /> },
       { path: 'campaigns', lazy: () => import('./routes/lab-campaigns.tsx') },
       { path: 'campaigns/:campaignId', lazy: () => import('./routes/lab-campaign.tsx') },
+      { path: 'shots/:shotId', lazy: () => import('./routes/lab-shot.tsx') },
       { path: 'library', lazy: () => import('./routes/lab-library.tsx') },
       { path: 'people', lazy: () => import('./routes/lab-people.tsx') },
       { path: 'audit', lazy: () => import('./routes/lab-audit.tsx') },

@@ -17,13 +17,13 @@ export function onUnauthorized(listener: Listener): () => void {
   return () => unauthorizedListeners.delete(listener);
 }
 
-async function request<T>(method: string, path: string, body?: unknown): Promise<T> {
+async function request<T>(method: string, path: string, body?: unknown, extraHeaders: Record<string, string> = {}): Promise<T> {
   let response: Response;
   try {
     response = await fetch(path, {
       method,
       credentials: 'same-origin',
-      headers: body === undefined ? { Accept: 'application/json' } : { Accept: 'application/json', 'Content-Type': 'application/json' },
+      headers: { ...(body === undefined ? { Accept: 'application/json' } : { Accept: 'application/json', 'Content-Type': 'application/json' }), ...extraHeaders },
       body: body === undefined ? undefined : JSON.stringify(body),
     });
   } catch {
@@ -51,10 +51,67 @@ async function request<T>(method: string, path: string, body?: unknown): Promise
   return json as T;
 }
 
+function errorFromXhr(xhr: XMLHttpRequest): ApiError {
+  let body: ApiErrorBody | undefined;
+  try {
+    body = JSON.parse(xhr.responseText) as ApiErrorBody;
+  } catch {
+    // not JSON: reported by status below
+  }
+  const error = new ApiError(xhr.status, body?.error?.code ?? 'http_error', body?.error?.message ?? `The server answered ${xhr.status}.`, body?.error?.details);
+  if (xhr.status === 401) unauthorizedListeners.forEach((l) => l(error));
+  return error;
+}
+
+/**
+ * A multipart upload with progress (fetch cannot report upload progress, XMLHttpRequest can).
+ * `onProgress` gets the fraction sent, 0 to 1.
+ */
+function upload<T>(path: string, form: FormData, onProgress?: (fraction: number) => void, signal?: AbortSignal): Promise<T> {
+  return new Promise<T>((resolve, reject) => {
+    const xhr = new XMLHttpRequest();
+    xhr.open('POST', path);
+    xhr.setRequestHeader('Accept', 'application/json');
+    xhr.upload.onprogress = (e) => {
+      if (e.lengthComputable) onProgress?.(e.loaded / e.total);
+    };
+    xhr.onload = () => {
+      if (xhr.status >= 200 && xhr.status < 300) {
+        try {
+          resolve(JSON.parse(xhr.responseText) as T);
+        } catch {
+          reject(new ApiError(xhr.status, 'bad_response', 'The server answered with something that is not JSON.'));
+        }
+      } else reject(errorFromXhr(xhr));
+    };
+    xhr.onerror = () => reject(new ApiError(0, 'network', 'The upload was interrupted. Check the connection and try again.'));
+    xhr.onabort = () => reject(new ApiError(0, 'aborted', 'Upload cancelled.'));
+    signal?.addEventListener('abort', () => xhr.abort());
+    xhr.send(form);
+  });
+}
+
+/** Binary data (raw samples), as an ArrayBuffer. */
+async function binary(path: string): Promise<ArrayBuffer> {
+  let response: Response;
+  try {
+    response = await fetch(path, { credentials: 'same-origin' });
+  } catch {
+    throw new ApiError(0, 'network', 'Gatepost cannot be reached. Check the connection and try again.');
+  }
+  if (!response.ok) {
+    const body = (await response.json().catch(() => undefined)) as ApiErrorBody | undefined;
+    throw new ApiError(response.status, body?.error?.code ?? 'http_error', body?.error?.message ?? `The server answered ${response.status}.`);
+  }
+  return response.arrayBuffer();
+}
+
 /** The one API client: every feature's requests go through it, so errors are handled in one way. */
 export const api = {
+  upload,
+  binary,
   get: <T>(path: string) => request<T>('GET', path),
-  post: <T>(path: string, body?: unknown) => request<T>('POST', path, body ?? {}),
+  post: <T>(path: string, body?: unknown, headers?: Record<string, string>) => request<T>('POST', path, body ?? {}, headers),
   patch: <T>(path: string, body: unknown) => request<T>('PATCH', path, body),
   delete: <T = void>(path: string) => request<T>('DELETE', path),
 };

@@ -1,0 +1,42 @@
+import { useQuery } from '@tanstack/react-query';
+import { useParams } from 'react-router-dom';
+import { can } from '../../../shared/contracts/roles.ts';
+import { campaignQueryOptions } from '../../features/campaigns/api/campaigns.ts';
+import { gateRigsQueryOptions, projectilesQueryOptions } from '../../features/library/api/library.ts';
+import { ShotPage } from '../../features/shots/components/shot-page.tsx';
+import { shotQueryOptions } from '../../features/shots/api/shot.ts';
+import { useLab } from '../lab-context.ts';
+
+/** The shot workspace; the route gathers the lab's names (campaign, projectile, rig) the page shows. */
+export function Component() {
+  const { membership } = useLab();
+  const { shotId = '' } = useParams();
+  const labId = membership.labId;
+  const shot = useQuery(shotQueryOptions(shotId));
+  const campaignId = shot.data?.shot.campaignId;
+  const campaign = useQuery({ ...campaignQueryOptions(labId, campaignId ?? ''), enabled: !!campaignId });
+  const projectiles = useQuery(projectilesQueryOptions(labId));
+  const rigs = useQuery(gateRigsQueryOptions(labId));
+  const projectile = projectiles.data?.projectiles.find((p) => p.id === shot.data?.shot.projectileId);
+  const rig = rigs.data?.gateRigs.find((r) => r.id === shot.data?.shot.gateRigId);
+  return (
+    <ShotPage
+      shotId={shotId}
+      campaignName={campaign.data?.campaign.name ?? null}
+      campaignPath={campaignId ? `/labs/${labId}/campaigns/${campaignId}` : `/labs/${labId}/campaigns`}
+      projectileName={projectile?.name ?? null}
+      rigName={rig?.name ?? null}
+      rigLabels={(rig?.gates ?? []).map((g) => ({ position: g.position_m, label: g.label }))}
+      canUpload={can(membership.role, 'shots:write')}
+      canRecompute={can(membership.role, 'analyses:write')}
+      aside={
+        <details className="max-w-xs rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40">
+          <summary className="cursor-pointer font-medium">Launcher safety</summary>
+          <p className="mt-1">Rated backstop and a clear exclusion zone; never fire at people. Shield evacuated tubes and wear eye and hearing protection. Your lab’s rules and trained supervision govern.</p>
+        </details>
+      }
+    />
+  );
+}
+
+export { RouteError as ErrorBoundary } from './route-error.tsx';

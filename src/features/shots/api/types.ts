@@ -1,0 +1,67 @@
+import type { AnalysisOptions } from '../../../../shared/contracts/analysis.ts';
+import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
+
+export interface ChannelFileInfo { index: number; name: string; unit: string; sourceUnit: string; invalidCount: number; length: number }
+
+export interface CaptureInfo {
+  id: string;
+  fileName: string;
+  sizeBytes: number;
+  sha256: string;
+  state: 'queued' | 'reading' | 'ready' | 'failed';
+  progress: number;
+  error: string | null;
+  warnings: string[];
+  layout: Record<string, unknown> | null;
+  channels: { length: number; time: { kind: 'uniform'; t0: number; dt: number; jitter: number } | { kind: 'explicit'; first: number | null; last: number | null }; channels: ChannelFileInfo[] } | null;
+  sampleCount: number | null;
+  importOptions: Record<string, unknown>;
+  ingestAttempt: number;
+  uploadedAt: string;
+}
+
+export interface AnalysisSummary {
+  id: string;
+  version: number;
+  state: 'queued' | 'running' | 'done' | 'failed';
+  progress: number;
+  error: string | null;
+  engineVersion: string;
+  requestedBy: string | null;
+  createdAt: string;
+  startedAt: string | null;
+  completedAt: string | null;
+}
+
+export interface AnalysisFull extends AnalysisSummary {
+  parameters: AnalysisOptions;
+  captureIds: string[];
+  results: ShotAnalysis | null;
+}
+
+export interface ShotInfo {
+  id: string;
+  campaignId: string;
+  number: number;
+  firedAt: string | null;
+  status: string;
+  projectileId: string | null;
+  gateRigId: string | null;
+  conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
+  notes: string;
+  currentAnalysisId: string | null;
+}
+
+export interface ShotDetail {
+  shot: ShotInfo;
+  captures: CaptureInfo[];
+  analyses: AnalysisSummary[];
+  currentAnalysis: AnalysisFull | null;
+}
+
+export interface DiffEntry { path: string; kind: 'added' | 'removed' | 'changed'; from?: unknown; to?: unknown }
+export interface VersionDiff { from: AnalysisSummary; to: AnalysisSummary; engineChanged: boolean; parameters: DiffEntry[]; results: DiffEntry[] }
+
+export type TraceWindow =
+  | { raw: false; t0: number; dt: number; min: (number | null)[]; max: (number | null)[]; channel: { name: string; unit: string } }
+  | { raw: true; t: number[]; v: (number | null)[]; channel: { name: string; unit: string } };

@@ -1,0 +1,128 @@
+import { useState, type FormEvent } from 'react';
+import { importOverridesSchema, type ImportOverrides } from '../../../../shared/contracts/shots.ts';
+import { Badge, Button, ErrorNote, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { formatSeconds } from '../../../lib/format.ts';
+import { useReingest } from '../api/captures.ts';
+import type { CaptureInfo } from '../api/types.ts';
+
+const STATE = {
+  queued: { label: 'waiting to be read', tone: 'neutral' },
+  reading: { label: 'reading', tone: 'signal' },
+  ready: { label: 'read', tone: 'good' },
+  failed: { label: 'could not be read', tone: 'bad' },
+} as const;
+
+const kib = (bytes: number) => (bytes < 1024 * 1024 ? `${(bytes / 1024).toFixed(1)} KiB` : `${(bytes / 1024 / 1024).toFixed(1)} MiB`);
+
+/** Overrides for a file the importer misread: which column is time, the channel names, units, time base. */
+function FixReading({ shotId, capture, onDone }: { shotId: string; capture: CaptureInfo; onDone: () => void }) {
+  const reingest = useReingest(shotId);
+  const o = capture.importOptions as ImportOverrides;
+  const [timeColumn, setTimeColumn] = useState(o.timeColumn == null ? '' : String(o.timeColumn + 1));
+  const [names, setNames] = useState((o.channelNames ?? []).join(', '));
+  const [units, setUnits] = useState((o.channelUnits ?? []).join(', '));
+  const [timeUnit, setTimeUnit] = useState<string>(o.timeUnit ?? '');
+  const [delimiter, setDelimiter] = useState<string>(o.delimiter ?? '');
+  const [decimalComma, setDecimalComma] = useState<string>(o.decimalComma == null ? '' : String(o.decimalComma));
+  const [dataStart, setDataStart] = useState(o.dataStartLine ? String(o.dataStartLine) : '');
+  const [dtUs, setDtUs] = useState(o.dt ? String(o.dt * 1e6) : '');
+  const [t0Us, setT0Us] = useState(o.t0 != null ? String(o.t0 * 1e6) : '');
+  const [problem, setProblem] = useState<string>();
+
+  const submit = (e: FormEvent) => {
+    e.preventDefault();
+    const list = (s: string) => s.split(',').map((x) => x.trim()).filter(Boolean);
+    const candidate: Record<string, unknown> = {};
+    if (timeColumn === 'none') candidate.timeColumn = null;
+    else if (timeColumn) candidate.timeColumn = Number(timeColumn) - 1;
+    if (names.trim()) candidate.channelNames = list(names);
+    if (units.trim()) candidate.channelUnits = list(units);
+    if (timeUnit) candidate.timeUnit = timeUnit;
+    if (delimiter) candidate.delimiter = delimiter;
+    if (decimalComma) candidate.decimalComma = decimalComma === 'true';
+    if (dataStart) candidate.dataStartLine = Number(dataStart);
+    // The form takes µs (what people read off a scope); the importer takes seconds.
+    if (dtUs) candidate.dt = Number(dtUs) * 1e-6;
+    if (t0Us) candidate.t0 = Number(t0Us) * 1e-6;
+    const parsed = importOverridesSchema.safeParse(candidate);
+    if (!parsed.success) return setProblem(parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; '));
+    setProblem(undefined);
+    reingest.mutate({ captureId: capture.id, importOptions: parsed.data }, { onSuccess: onDone });
+  };
+
+  return (
+    <form onSubmit={submit} className="mt-3 grid gap-3 rounded-md bg-harbour-50 p-4 sm:grid-cols-3" noValidate>
+      <p className="text-sm text-harbour-700 sm:col-span-3">Leave a field empty to let Gatepost detect it. Columns count from 1.</p>
+      <TextField label="Time column" value={timeColumn} onChange={(e) => setTimeColumn(e.target.value)} placeholder="e.g. 1, or none" />
+      <TextField label="Channel names" value={names} onChange={(e) => setNames(e.target.value)} placeholder="Gate A, Gate B" hint="In column order, comma-separated" />
+      <TextField label="Channel units" value={units} onChange={(e) => setUnits(e.target.value)} placeholder="V, mV" />
+      <SelectField label="Time unit" value={timeUnit} onChange={(e) => setTimeUnit(e.target.value)}>
+        <option value="">detect</option>
+        <option value="s">s</option><option value="ms">ms</option><option value="us">µs</option><option value="ns">ns</option>
+      </SelectField>
+      <SelectField label="Delimiter" value={delimiter} onChange={(e) => setDelimiter(e.target.value)}>
+        <option value="">detect</option>
+        <option value=",">comma</option><option value=";">semicolon</option><option value={'\t'}>tab</option><option value="whitespace">spaces</option>
+      </SelectField>
+      <SelectField label="Decimal comma" value={decimalComma} onChange={(e) => setDecimalComma(e.target.value)}>
+        <option value="">detect</option><option value="true">yes (1,5)</option><option value="false">no (1.5)</option>
+      </SelectField>
+      <TextField label="First data line" value={dataStart} onChange={(e) => setDataStart(e.target.value)} inputMode="numeric" />
+      <TextField label="Sample interval (µs)" value={dtUs} onChange={(e) => setDtUs(e.target.value)} hint="Only for files without a time column" />
+      <TextField label="First sample time (µs)" value={t0Us} onChange={(e) => setT0Us(e.target.value)} hint="Negative = before the trigger" />
+      {(problem || reingest.isError) && <div className="sm:col-span-3"><ErrorNote error={reingest.error ?? new Error(problem)} /></div>}
+      <div className="flex gap-2 sm:col-span-3">
+        <Button type="submit" disabled={reingest.isPending}>Read again with these settings</Button>
+        <Button variant="ghost" onClick={onDone}>Cancel</Button>
+      </div>
+    </form>
+  );
+}
+
+export function CaptureList({ shotId, captures, canEdit }: { shotId: string; captures: CaptureInfo[]; canEdit: boolean }) {
+  const [fixing, setFixing] = useState<string | null>(null);
+  if (captures.length === 0) return null;
+  return (
+    <ul className="divide-y divide-harbour-100" data-testid="capture-list">
+      {captures.map((c) => {
+        const state = STATE[c.state];
+        const files = c.channels;
+        return (
+          <li key={c.id} className="py-3">
+            <div className="flex flex-wrap items-center justify-between gap-2">
+              <span className="min-w-0">
+                <span className="font-medium">{c.fileName}</span>{' '}
+                <span className="text-sm text-harbour-500">{kib(c.sizeBytes)} · sha256 {c.sha256.slice(0, 10)}…</span>
+              </span>
+              <span className="flex items-center gap-2">
+                <Badge tone={state.tone}>{state.label}</Badge>
+                {canEdit && (c.state === 'failed' || c.state === 'ready') && fixing !== c.id && (
+                  <Button variant="ghost" className="!py-1 text-xs" onClick={() => setFixing(c.id)}>
+                    {c.state === 'failed' ? 'Fix how it is read' : 'Change how it is read'}
+                  </Button>
+                )}
+              </span>
+            </div>
+            {(c.state === 'queued' || c.state === 'reading') && (
+              <div className="mt-2 h-1.5 rounded bg-harbour-100" role="progressbar" aria-label={`Reading ${c.fileName}`} aria-valuenow={c.progress} aria-valuemin={0} aria-valuemax={100}>
+                <div className="h-1.5 rounded bg-harbour-500 transition-all" style={{ width: `${Math.max(3, c.progress)}%` }} />
+              </div>
+            )}
+            {c.state === 'ready' && files && (
+              <p className="mt-1 text-sm text-harbour-600">
+                {files.channels.map((ch) => `${ch.name}${ch.sourceUnit && ch.sourceUnit !== ch.unit ? ` (${ch.sourceUnit} → ${ch.unit})` : ''}`).join(', ')} ·{' '}
+                {(c.sampleCount ?? 0).toLocaleString('en')} samples ·{' '}
+                {files.time.kind === 'uniform' ? `every ${formatSeconds(files.time.dt)} from ${formatSeconds(files.time.t0)}` : 'uneven sample times'}
+              </p>
+            )}
+            {c.warnings.length > 0 && (
+              <ul className="mt-1 list-disc pl-5 text-sm text-signal-800">{c.warnings.map((w, i) => <li key={i}>{w}</li>)}</ul>
+            )}
+            {c.state === 'failed' && c.error && <div className="mt-2"><ErrorNote error={new Error(c.error)} /></div>}
+            {fixing === c.id && <FixReading shotId={shotId} capture={c} onDone={() => setFixing(null)} />}
+          </li>
+        );
+      })}
+    </ul>
+  );
+}

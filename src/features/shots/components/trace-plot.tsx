@@ -1,0 +1,284 @@
+import { keepPreviousData, useQuery } from '@tanstack/react-query';
+import { useEffect, useRef, useState } from 'react';
+import uPlot from 'uplot';
+import 'uplot/dist/uPlot.min.css';
+import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
+import { formatSeconds } from '../../../lib/format.ts';
+import { fetchWindow } from '../api/captures.ts';
+import type { ExpectedWindow } from '../lib/expected-windows.ts';
+import { timeTicks } from '../lib/time-axis.ts';
+
+export interface TimeRange { from: number; to: number }
+
+export interface TracePlotProps {
+  captureId: string;
+  channelIndex: number;
+  title: string;
+  range: TimeRange;
+  onRange: (range: TimeRange) => void;
+  channel: ChannelResult | null;
+  gates: GateResult[];
+  expected: ExpectedWindow[];
+  gateLabel: (position: number) => string;
+  /** Whether the annotations come from the browser's preview rather than a stored version. */
+  preview: boolean;
+  height?: number;
+}
+
+const TRACE = '#244863';
+const BAND = 'rgba(36, 72, 99, 0.18)';
+const SIGNAL = '#c47a12';
+const SIGNAL_FILL = 'rgba(242, 165, 65, 0.09)';
+const EXPECT_FILL = 'rgba(77, 118, 148, 0.12)';
+const MISSED = '#b42318';
+
+interface Annotations { channel: ChannelResult | null; gates: GateResult[]; expected: ExpectedWindow[]; gateLabel: (p: number) => string; preview: boolean; title: string }
+
+/** Draws levels, threshold band, crossings, pulse brackets, gate labels, expected windows and missed-gate notes. */
+function drawAnnotations(u: uPlot, a: Annotations) {
+  const ctx = u.ctx;
+  const { left, top, width, height } = u.bbox;
+  const px = (t: number) => u.valToPos(t, 'x', true);
+  const py = (v: number) => u.valToPos(v, 'y', true);
+  const dpr = devicePixelRatio || 1;
+  const font = (size: number, weight = 400) => `${weight} ${Math.round(size * dpr)}px "IBM Plex Sans", sans-serif`;
+  ctx.save();
+  // uPlot leaves its axis text alignment on the context.
+  ctx.textAlign = 'left';
+  ctx.textBaseline = 'alphabetic';
+  ctx.beginPath();
+  ctx.rect(left, top, width, height);
+  ctx.clip();
+
+  for (const w of a.expected) {
+    const x0 = Math.max(left, px(w.early));
+    const x1 = Math.min(left + width, px(w.late));
+    if (x1 > x0) {
+      ctx.fillStyle = EXPECT_FILL;
+      ctx.fillRect(x0, top, Math.max(1, x1 - x0), height);
+      ctx.fillStyle = '#365d7a';
+      ctx.font = font(10);
+      ctx.fillText(`expected at ${a.gateLabel(w.position)} (v ± U)`, x0 + 3 * dpr, top + height - 6 * dpr);
+    }
+  }
+
+  const ch = a.channel;
+  if (ch) {
+    const dashed = (y: number, color: string, label: string) => {
+      ctx.strokeStyle = color;
+      ctx.setLineDash([4 * dpr, 4 * dpr]);
+      ctx.lineWidth = dpr;
+      ctx.beginPath();
+      ctx.moveTo(left, py(y));
+      ctx.lineTo(left + width, py(y));
+      ctx.stroke();
+      ctx.setLineDash([]);
+      ctx.fillStyle = color;
+      ctx.font = font(10);
+      ctx.fillText(label, left + width - ctx.measureText(label).width - 4 * dpr, py(y) - 3 * dpr);
+    };
+    const blockedHigh = ch.polarity === 'rising';
+    dashed(ch.levels.high, '#4d7694', `${blockedHigh ? 'blocked' : 'clear'} ${ch.levels.high.toFixed(3)} V`);
+    dashed(ch.levels.low, '#4d7694', `${blockedHigh ? 'clear' : 'blocked'} ${ch.levels.low.toFixed(3)} V`);
+    if (ch.threshold) {
+      const yTop = py(Math.max(ch.threshold.highArm, ch.threshold.lowArm));
+      const yBottom = py(Math.min(ch.threshold.highArm, ch.threshold.lowArm));
+      ctx.fillStyle = SIGNAL_FILL;
+      ctx.fillRect(left, yTop, width, Math.max(1, yBottom - yTop));
+      ctx.strokeStyle = SIGNAL;
+      ctx.lineWidth = 1.5 * dpr;
+      ctx.beginPath();
+      ctx.moveTo(left, py(ch.threshold.level));
+      ctx.lineTo(left + width, py(ch.threshold.level));
+      ctx.stroke();
+      ctx.fillStyle = SIGNAL;
+      ctx.font = font(10, 500);
+      ctx.fillText(`threshold ${ch.threshold.level.toFixed(3)} V`, left + 4 * dpr, py(ch.threshold.level) - 4 * dpr);
+    }
+    for (const tr of ch.transitions) {
+      const x = px(tr.time);
+      if (x < left || x > left + width) continue;
+      ctx.strokeStyle = SIGNAL;
+      ctx.lineWidth = dpr;
+      ctx.beginPath();
+      ctx.moveTo(x, top);
+      ctx.lineTo(x, top + height);
+      ctx.stroke();
+      if (ch.threshold) {
+        ctx.fillStyle = SIGNAL;
+        ctx.beginPath();
+        ctx.arc(x, py(ch.threshold.level), 3.5 * dpr, 0, 2 * Math.PI);
+        ctx.fill();
+      }
+      ctx.fillStyle = '#7a4a06';
+      ctx.font = font(10);
+      const label = formatSeconds(tr.time, 5);
+      ctx.fillText(label, x + 3 * dpr, top + height - (tr.direction === 'falling' ? 20 : 32) * dpr);
+    }
+    const bracketY = top + 6 * dpr;
+    for (const p of ch.pulses) {
+      const x0 = px(p.start);
+      const x1 = px(p.end);
+      if (x1 < left || x0 > left + width) continue;
+      ctx.strokeStyle = '#16324a';
+      ctx.lineWidth = 1.5 * dpr;
+      ctx.beginPath();
+      ctx.moveTo(x0, bracketY + 5 * dpr);
+      ctx.lineTo(x0, bracketY);
+      ctx.lineTo(x1, bracketY);
+      ctx.lineTo(x1, bracketY + 5 * dpr);
+      ctx.stroke();
+      ctx.fillStyle = '#16324a';
+      ctx.font = font(11, 500);
+      const label = `width ${formatSeconds(p.width, 4)}`;
+      const tw = ctx.measureText(label).width;
+      ctx.fillText(label, Math.max(left + 2 * dpr, (x0 + x1) / 2 - tw / 2), bracketY + 17 * dpr);
+    }
+    if (ch.status === 'missed') {
+      ctx.fillStyle = MISSED;
+      ctx.font = font(12, 600);
+      ctx.fillText(`Missed: ${ch.reason ?? 'no pulse found'}`, left + 8 * dpr, top + height / 2);
+      if (ch.candidate) {
+        const x = px(ch.candidate.time);
+        ctx.strokeStyle = MISSED;
+        ctx.lineWidth = 1.5 * dpr;
+        ctx.beginPath();
+        ctx.arc(x, top + height / 2 + 18 * dpr, 6 * dpr, 0, 2 * Math.PI);
+        ctx.stroke();
+        ctx.font = font(11);
+        ctx.fillText(ch.candidate.message, Math.min(x + 10 * dpr, left + width - 260 * dpr), top + height / 2 + 22 * dpr);
+      }
+    }
+  }
+  ctx.restore();
+
+  // Gate labels sit outside the clip, over the plot's top-left corner.
+  ctx.save();
+  ctx.textAlign = 'left';
+  ctx.textBaseline = 'alphabetic';
+  const labels = a.gates.map((g) => `${a.gateLabel(g.position)} · ${(g.position * 1000).toFixed(1)} mm${g.status === 'missed' ? ' · missed' : ''}`);
+  ctx.fillStyle = '#0d2133';
+  ctx.font = font(12, 600);
+  ctx.fillText([a.title, ...labels].join('   '), left + 6 * dpr, top - 8 * dpr);
+  if (a.preview) {
+    ctx.fillStyle = SIGNAL;
+    ctx.font = font(11, 600);
+    const t = 'PREVIEW';
+    ctx.fillText(t, left + width - ctx.measureText(t).width - 4 * dpr, top - 8 * dpr);
+  }
+  ctx.restore();
+}
+
+/** One channel's trace from min/max windows of the server, refined as the range narrows, down to raw samples. */
+export function TracePlot(props: TracePlotProps) {
+  const { captureId, channelIndex, range, onRange, height = 190 } = props;
+  const box = useRef<HTMLDivElement>(null);
+  const plot = useRef<uPlot | null>(null);
+  const [width, setWidth] = useState(0);
+  const annotations = useRef<Annotations>({ channel: null, gates: [], expected: [], gateLabel: String, preview: false, title: '' });
+  annotations.current = { channel: props.channel, gates: props.gates, expected: props.expected, gateLabel: props.gateLabel, preview: props.preview, title: props.title };
+  const onRangeRef = useRef(onRange);
+  onRangeRef.current = onRange;
+
+  const points = Math.max(100, Math.min(4000, Math.round(width)));
+  const windowQuery = useQuery({
+    queryKey: ['captures', captureId, 'window', channelIndex, range.from, range.to, points],
+    queryFn: () => fetchWindow(captureId, channelIndex, range.from, range.to, points),
+    enabled: width > 0,
+    placeholderData: keepPreviousData,
+    staleTime: Infinity,
+  });
+
+  useEffect(() => {
+    const el = box.current;
+    if (!el) return;
+    const ro = new ResizeObserver(([entry]) => setWidth(Math.floor(entry.contentRect.width)));
+    ro.observe(el);
+    return () => ro.disconnect();
+  }, []);
+
+  useEffect(() => {
+    if (!box.current || width === 0) return;
+    const opts: uPlot.Options = {
+      width,
+      height,
+      padding: [26, 8, 0, 0],
+      legend: { show: false },
+      cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
+      // The vertical range follows the channel's state levels, so zooming into a flat stretch does not blow the
+      // noise up to full height; without levels it follows the data.
+      scales: {
+        x: { time: false },
+        y: {
+          range: (_u, dataMin, dataMax) => {
+            const ch = annotations.current.channel;
+            if (ch && ch.levels.amplitude > 0) {
+              const pad = 0.12 * ch.levels.amplitude;
+              return [Math.min(ch.levels.low - pad, dataMin), Math.max(ch.levels.high + pad, dataMax)];
+            }
+            const pad = (dataMax - dataMin) * 0.08 || 0.1;
+            return [dataMin - pad, dataMax + pad];
+          },
+        },
+      },
+      axes: [
+        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (u, splits) => timeTicks(splits, (u.scales.x.max ?? 1) - (u.scales.x.min ?? 0)) },
+        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 56, values: (_u, splits) => splits.map((v) => `${v.toFixed(2)} V`) },
+      ],
+      series: [{}, { stroke: TRACE, width: 1 }, { stroke: TRACE, width: 1 }],
+      bands: [{ series: [2, 1], fill: BAND }],
+      hooks: {
+        draw: [(u) => drawAnnotations(u, annotations.current)],
+        setSelect: [
+          (u) => {
+            if (u.select.width < 4) return;
+            const from = u.posToVal(u.select.left, 'x');
+            const to = u.posToVal(u.select.left + u.select.width, 'x');
+            u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
+            onRangeRef.current({ from, to });
+          },
+        ],
+      },
+    };
+    const u = new uPlot(opts, [[], [], []], box.current);
+    plot.current = u;
+    return () => {
+      u.destroy();
+      plot.current = null;
+    };
+  }, [width, height]);
+
+  const data = windowQuery.data;
+  useEffect(() => {
+    const u = plot.current;
+    if (!u || !data) return;
+    let xs: number[];
+    let lo: (number | null)[];
+    let hi: (number | null)[];
+    if (data.raw) {
+      xs = data.t;
+      lo = data.v;
+      hi = data.v;
+    } else {
+      xs = data.min.map((_, j) => data.t0 + (j + 0.5) * data.dt);
+      lo = data.min;
+      hi = data.max;
+    }
+    u.setData([xs, lo, hi] as uPlot.AlignedData, true);
+    u.setScale('x', { min: range.from, max: range.to });
+  }, [data, range.from, range.to, width]);
+
+  useEffect(() => {
+    plot.current?.redraw(false);
+  }, [props.channel, props.gates, props.expected, props.preview]);
+
+  const raw = data?.raw === true;
+  return (
+    <div className="relative">
+      <div ref={box} className="w-full" data-testid={`trace-${channelIndex}`} data-raw={raw ? 'true' : 'false'} />
+      <p className="absolute right-2 top-0 text-[10px] text-harbour-500">
+        {windowQuery.isFetching ? 'refining…' : raw ? 'raw samples' : 'min/max per column'}
+      </p>
+    </div>
+  );
+}

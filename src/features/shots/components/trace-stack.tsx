@@ -1,0 +1,145 @@
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
+import { Button, EmptyState } from '../../../components/ui/primitives.tsx';
+import type { CaptureInfo } from '../api/types.ts';
+import { expectedWindows } from '../lib/expected-windows.ts';
+import { TracePlot, type TimeRange } from './trace-plot.tsx';
+
+export interface PlottedChannel { captureId: string; index: number; name: string }
+
+/** Channel names as the analysis sees them once one-file-per-channel captures are combined (same rule as the server). */
+export function plottedChannels(captures: CaptureInfo[]): PlottedChannel[] {
+  const seen = new Set<string>();
+  const out: PlottedChannel[] = [];
+  for (const c of captures) {
+    if (c.state !== 'ready' || !c.channels) continue;
+    for (const ch of c.channels.channels) {
+      out.push({ captureId: c.id, index: ch.index, name: seen.has(ch.name) ? `${ch.name} (${c.fileName})` : ch.name });
+      seen.add(ch.name);
+    }
+  }
+  return out;
+}
+
+function extentOf(captures: CaptureInfo[]): TimeRange | null {
+  let from = Infinity;
+  let to = -Infinity;
+  for (const c of captures) {
+    const files = c.channels;
+    if (c.state !== 'ready' || !files || files.length === 0) continue;
+    const [a, b] = files.time.kind === 'uniform'
+      ? [files.time.t0, files.time.t0 + (files.length - 1) * files.time.dt]
+      : [files.time.first ?? 0, files.time.last ?? 0];
+    from = Math.min(from, a);
+    to = Math.max(to, b);
+  }
+  return Number.isFinite(from) && to > from ? { from, to } : null;
+}
+
+/**
+ * Every channel on one shared time axis. Drag across a trace to zoom; the mouse wheel zooms around the pointer;
+ * with the traces focused, + and − zoom, ← and → pan, 0 or Esc resets. Each zoom fetches finer windows from the
+ * server, down to the raw samples.
+ */
+export function TraceStack({ captures, results, preview, gateLabel, onRangeChange }: {
+  captures: CaptureInfo[];
+  results: ShotAnalysis | null;
+  preview: boolean;
+  gateLabel: (position: number) => string;
+  onRangeChange?: (range: TimeRange | null) => void;
+}) {
+  const channels = useMemo(() => plottedChannels(captures), [captures]);
+  const extent = useMemo(() => extentOf(captures), [captures]);
+  const [range, setRangeState] = useState<TimeRange | null>(null);
+  const current = range ?? extent;
+  const box = useRef<HTMLDivElement>(null);
+
+  const setRange = useCallback((r: TimeRange | null) => {
+    if (r && extent) {
+      // Never narrower than a few nanoseconds, never wider than the record.
+      const span = Math.max(r.to - r.from, 1e-9);
+      const from = Math.max(extent.from, r.from);
+      const to = Math.min(extent.to, from + span);
+      r = to - from >= (extent.to - extent.from) * 0.999 ? null : { from, to };
+    }
+    setRangeState(r);
+    onRangeChange?.(r);
+  }, [extent, onRangeChange]);
+
+  const zoom = useCallback((factor: number, centre?: number) => {
+    if (!current) return;
+    const c = centre ?? (current.from + current.to) / 2;
+    setRange({ from: c - (c - current.from) * factor, to: c + (current.to - c) * factor });
+  }, [current, setRange]);
+
+  const pan = useCallback((fraction: number) => {
+    if (!current || !extent) return;
+    const span = current.to - current.from;
+    let from = current.from + fraction * span;
+    from = Math.min(Math.max(from, extent.from), extent.to - span);
+    setRange({ from, to: from + span });
+  }, [current, extent, setRange]);
+
+  useEffect(() => {
+    const el = box.current;
+    if (!el || !current) return;
+    const onWheel = (e: WheelEvent) => {
+      const plotEl = (e.target as HTMLElement).closest('.u-over') as HTMLElement | null;
+      if (!plotEl) return;
+      e.preventDefault();
+      const rect = plotEl.getBoundingClientRect();
+      const t = current.from + ((e.clientX - rect.left) / rect.width) * (current.to - current.from);
+      zoom(e.deltaY < 0 ? 0.8 : 1.25, t);
+    };
+    el.addEventListener('wheel', onWheel, { passive: false });
+    return () => el.removeEventListener('wheel', onWheel);
+  }, [current, zoom]);
+
+  const windows = useMemo(() => expectedWindows(results), [results]);
+  if (!current || channels.length === 0) {
+    return <EmptyState title="No traces yet">Drop the scope's CSV files above; the traces appear here once they have been read.</EmptyState>;
+  }
+
+  return (
+    <div
+      ref={box}
+      tabIndex={0}
+      aria-label="Traces. Drag to zoom; + and − zoom; arrow keys pan; 0 resets."
+      className="space-y-2 rounded-md outline-none focus-visible:ring-2 focus-visible:ring-signal-400"
+      onKeyDown={(e) => {
+        if (e.key === '+' || e.key === '=') zoom(0.5);
+        else if (e.key === '-' || e.key === '_') zoom(2);
+        else if (e.key === 'ArrowLeft') pan(-0.2);
+        else if (e.key === 'ArrowRight') pan(0.2);
+        else if (e.key === '0' || e.key === 'Escape') setRange(null);
+        else return;
+        e.preventDefault();
+      }}
+    >
+      <div className="flex flex-wrap items-center gap-2 text-xs text-harbour-600">
+        <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => zoom(0.5)} aria-label="Zoom in">Zoom in</Button>
+        <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => zoom(2)} aria-label="Zoom out">Zoom out</Button>
+        <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => setRange(null)} disabled={!range}>Reset</Button>
+        <span>Drag across a trace to zoom; wheel zooms; with the traces focused, ← → pan and 0 resets.</span>
+      </div>
+      {channels.map((ch) => {
+        const result = results?.channels.find((c) => c.name === ch.name) ?? null;
+        return (
+          <TracePlot
+            key={`${ch.captureId}-${ch.index}`}
+            captureId={ch.captureId}
+            channelIndex={ch.index}
+            title={ch.name}
+            range={current}
+            onRange={setRange}
+            channel={result}
+            gates={results?.gates.filter((g) => g.channel === ch.name) ?? []}
+            expected={windows.filter((w) => w.channel === ch.name)}
+            gateLabel={gateLabel}
+            preview={preview}
+          />
+        );
+      })}
+    </div>
+  );
+}
