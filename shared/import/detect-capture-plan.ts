@@ -295,7 +295,13 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     else if (headerRows > 0 && (TIME_NAME.test(name) || unitIsTime)) timeColumn = first;
     else if (headerRows === 0 && increasing && values.every((v, k) => k === 0 || v === values[k - 1] + 1)
              && values.every(Number.isInteger) && (meta.dt !== null || options.dt !== undefined)) indexColumn = first;
-    else if (headerRows === 0 && increasing) timeColumn = first;
+    else if (headerRows === 0 && increasing) {
+      // Without a header an increasing first column is a time column, unless the metadata gives a sample
+      // interval its steps do not match (then every column is a channel of samples).
+      const dtKnown = options.dt ?? meta.dt;
+      const step = values[1] - values[0];
+      if (dtKnown === null || Math.abs(step - dtKnown) <= 0.01 * dtKnown) timeColumn = first;
+    }
   }
 
   // The time base.

@@ -67,6 +67,14 @@ describe('detection and its overrides', () => {
     expect(capture.time.kind === 'uniform' && Math.abs(capture.time.t0 - -4e-5)).toBeLessThan(1e-18);
   });
 
+  it('When there is no header and the first column does not step by the sample interval, then every column is a channel', () => {
+    const capture = parseScopeCsv(bytes('Sample interval,1e-6\nStart time,-2e-6\n0.1,0.2,0.3\n0.4,0.5,0.6\n0.7,0.8,0.9\n'));
+    expect(capture.channels.map((c) => c.name)).toEqual(['CH1', 'CH2', 'CH3']);
+    expect(capture.time).toEqual({ kind: 'uniform', t0: -2e-6, dt: 1e-6, jitter: 0 });
+    const timed = parseScopeCsv(bytes('Sample interval,1e-6\n0,0.2\n1e-6,0.5\n2e-6,0.8\n'));
+    expect(timed.layout.timeMode).toBe('column');
+  });
+
   it('When the samples have no start time, then t0 = 0 is assumed and said', () => {
     const capture = parseScopeCsv(bytes('Sample interval,1e-6\n0.1\n0.2\n0.3\n'));
     expect(capture.time).toEqual({ kind: 'uniform', t0: 0, dt: 1e-6, jitter: 0 });
