@@ -183,6 +183,79 @@ describe('When two worker processes share the queue', () => {
   }, 180_000);
 });
 
+/** The throwaway Redis of scripts/with-services.sh, shut down and started again with the settings it ran with. */
+function throwawayRedis() {
+  const port = new URL(process.env.GATEPOST_TEST_REDIS_URL!).port;
+  const cli = (...args: string[]) => execFileSync('redis-cli', ['-h', '127.0.0.1', '-p', port, ...args], { encoding: 'utf8', timeout: 5_000, stdio: ['ignore', 'pipe', 'ignore'] });
+  // CONFIG GET answers name/value lines; these are the settings the server was started with.
+  const config = (name: string) => cli('config', 'get', name).split('\n')[1] ?? '';
+  const settings = { dir: config('dir'), pidfile: config('pidfile'), logfile: config('logfile'), save: config('save'), appendonly: config('appendonly') };
+  const running = () => {
+    try {
+      return cli('ping').trim() === 'PONG';
+    } catch {
+      return false;
+    }
+  };
+  return {
+    running,
+    stop: () => {
+      // No persistence in tests: whatever was queued in Redis is gone, as after a crash of a Redis without a disk.
+      cli('shutdown', 'nosave');
+    },
+    start: async () => {
+      if (running()) return;
+      execFileSync('redis-server', [
+        '--bind', '127.0.0.1', '--port', port, '--daemonize', 'yes', '--pidfile', settings.pidfile, '--logfile', settings.logfile,
+        '--dir', settings.dir, '--save', settings.save, '--appendonly', settings.appendonly,
+      ]);
+      await pollUntil(async () => (running() ? true : undefined), { timeoutMs: 20_000, what: 'Redis to answer again' });
+    },
+  };
+}
+
+describe('When Redis is briefly down while a file is uploaded', () => {
+  it('then the upload is kept (202 for a token client), and once Redis is back the sweep queues it and it is analysed', async () => {
+    const shotId = await newShot(exitRigId);
+    // Sessions are checked against Redis (revoked sign-ins); API tokens only against PostgreSQL, so a script with
+    // a token can still upload while Redis is away.
+    const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'redis outage script' });
+    expect(created.status).toBe(201);
+    const bearer = { authorization: `Bearer ${created.body.secret}` };
+    const redis = throwawayRedis();
+    const csv = simulatedCsv({ speed: 295, seed: 91 });
+    let captureId: string;
+    try {
+      redis.stop();
+      await pollUntil(async () => (redis.running() ? undefined : true), { timeoutMs: 10_000, what: 'Redis to stop' });
+      const session = await experimenter.get<{ error: { code: string; message: string } }>(`/api/shots/${shotId}`);
+      expect(session.status).toBe(503);
+      expect(session.body.error.code).toBe('service_unavailable');
+      const form = new FormData();
+      form.append('files', new Blob([csv.bytes as Uint8Array<ArrayBuffer>]), 'during-redis-outage.csv');
+      const started = Date.now();
+      const up = await fetch(`${app.baseUrl}/api/shots/${shotId}/captures`, { method: 'POST', headers: bearer, body: form, signal: AbortSignal.timeout(30_000) });
+      const body = (await up.json()) as { captures: { id: string; state: string }[] };
+      expect(up.status, JSON.stringify(body)).toBe(202);
+      expect(Date.now() - started).toBeLessThan(10_000);
+      captureId = body.captures[0].id;
+      // The row is the record of work to do; no job reached Redis.
+      expect((await Capture.findByPk(captureId, { rejectOnEmpty: true })).state).toBe('queued');
+    } finally {
+      await redis.start();
+    }
+    const shot = await settled(shotId, 60_000);
+    expect(shot.captures).toEqual([expect.objectContaining({ id: captureId, state: 'ready' })]);
+    expect(shot.analyses).toHaveLength(1);
+    const speed = shot.currentAnalysis!.results!.speed!;
+    expect(Math.abs(speed.value - 295)).toBeLessThanOrEqual(speed.uncertainty);
+    expect(app.worker!.hasExited()).toBe(false);
+    expect(app.worker!.output()).toContain('sweep re-queued work');
+    // The session works again without signing in anew.
+    expect((await experimenter.get(`/api/shots/${shotId}`)).status).toBe(200);
+  }, 120_000);
+});
+
 /** The throwaway cluster of scripts/with-services.sh, stopped and started again the way it was started. */
 function throwawayCluster() {
   const tmp = process.env.GATEPOST_TEST_TMP_DIR;
