@@ -1,8 +1,8 @@
 import { useForm } from 'react-hook-form';
 import { Link, useNavigate } from 'react-router-dom';
 import { createShotBody, type CreateShotBody } from '../../../../shared/contracts/shots.ts';
-import { Button, ErrorNote, SelectField, TextField } from '../../../components/ui/primitives.tsx';
-import { useGateRigs, useProjectiles } from '../../library/api/library.ts';
+import { Button, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { useGateRigs, useProjectiles, type GateRigRow, type ProjectileRow } from '../../library/api/library.ts';
 import { siFormResolver } from '../../library/utils/si-form-resolver.ts';
 import { useCreateShot } from '../api/create-shot.ts';
 import type { ShotListRow } from '../api/shot-list.ts';
@@ -34,16 +34,26 @@ function localDateTime(d: Date): string {
   return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(d.getHours())}:${pad(d.getMinutes())}`;
 }
 
-export function NewShotForm({ labId, campaignId, previous, onCancel }: {
+interface NewShotFormProps {
   labId: string;
   campaignId: string;
   /** The campaign's latest shot: its seal, projectile and rig are usually the next shot's too. */
   previous: ShotListRow | null;
   onCancel: () => void;
-}) {
+}
+
+export function NewShotForm(props: NewShotFormProps) {
+  const projectiles = useProjectiles(props.labId);
+  const rigs = useGateRigs(props.labId);
+  // A select keeps its default only if the option exists when the field registers: wait for the library.
+  if (projectiles.isPending || rigs.isPending) return <Loading what="Loading the library" />;
+  if (projectiles.isError) return <ErrorNote error={projectiles.error} />;
+  if (rigs.isError) return <ErrorNote error={rigs.error} />;
+  return <NewShotFields {...props} projectiles={projectiles.data.projectiles} rigs={rigs.data.gateRigs} />;
+}
+
+function NewShotFields({ labId, campaignId, previous, onCancel, projectiles, rigs }: NewShotFormProps & { projectiles: ProjectileRow[]; rigs: GateRigRow[] }) {
   const navigate = useNavigate();
-  const projectiles = useProjectiles(labId);
-  const rigs = useGateRigs(labId);
   const create = useCreateShot(labId);
   const { register, handleSubmit, formState: { errors, isSubmitting } } = useForm<NewShotValues, unknown, CreateShotBody>({
     defaultValues: {
@@ -84,8 +94,8 @@ export function NewShotForm({ labId, campaignId, previous, onCancel }: {
     }
   });
 
-  const noProjectiles = projectiles.data?.projectiles.length === 0;
-  const noRigs = rigs.data?.gateRigs.length === 0;
+  const noProjectiles = projectiles.length === 0;
+  const noRigs = rigs.length === 0;
 
   return (
     <form onSubmit={submit} noValidate aria-label="New shot" className="space-y-5">
@@ -108,16 +118,16 @@ export function NewShotForm({ labId, campaignId, previous, onCancel }: {
           <TextField label="Seal type" placeholder="e.g. Polyester film, 50 µm" error={errors.sealType?.message} {...register('sealType')} />
         </div>
         <div className="sm:col-span-2">
-          <SelectField label="Projectile" {...register('projectileId')} disabled={projectiles.isPending}>
+          <SelectField label="Projectile" {...register('projectileId')}>
             <option value="">— not recorded —</option>
-            {projectiles.data?.projectiles.map((p) => <option key={p.id} value={p.id}>{p.name}</option>)}
+            {projectiles.map((p) => <option key={p.id} value={p.id}>{p.name}</option>)}
           </SelectField>
           {errors.projectileId && <p className="mt-1 text-xs text-red-700">{errors.projectileId.message}</p>}
         </div>
         <div className="sm:col-span-2">
-          <SelectField label="Gate rig" {...register('gateRigId')} disabled={rigs.isPending}>
+          <SelectField label="Gate rig" {...register('gateRigId')}>
             <option value="">— not recorded —</option>
-            {rigs.data?.gateRigs.map((r) => <option key={r.id} value={r.id}>{r.name} ({r.gates.length} gate{r.gates.length === 1 ? '' : 's'})</option>)}
+            {rigs.map((r) => <option key={r.id} value={r.id}>{r.name} ({r.gates.length} gate{r.gates.length === 1 ? '' : 's'})</option>)}
           </SelectField>
           {errors.gateRigId && <p className="mt-1 text-xs text-red-700">{errors.gateRigId.message}</p>}
         </div>
