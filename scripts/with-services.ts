@@ -95,7 +95,7 @@ const signalExitCode = (signal: NodeJS.Signals): number => 128 + (constants.sign
 
 async function main(): Promise<number> {
   const startedAt = performance.now();
-  await ensureDebianPackages(['postgresql', 'redis-server', 'chromium'], say);
+  await ensureDebianPackages(['postgresql', 'redis-server', 'chromium', 'poppler-utils'], say);
   await sweepAbandonedRuns();
   folder = mkdtempSync(join(tmpdir(), FOLDER_PREFIX));
   writeFileSync(join(folder, OWNER_FILE), String(process.pid));

@@ -15,7 +15,7 @@ export class ServiceError extends Error {
   }
 }
 
-export type DebianPackage = 'postgresql' | 'redis-server' | 'chromium';
+export type DebianPackage = 'postgresql' | 'redis-server' | 'chromium' | 'poppler-utils';
 
 /** Where Debian's `chromium` package puts the browser. */
 export const CHROMIUM_PATH = '/usr/bin/chromium';
@@ -96,6 +96,8 @@ const PACKAGE_PRESENT: Record<DebianPackage, () => boolean> = {
   postgresql: () => findPostgresBinDir() !== null,
   'redis-server': () => findOnPath('redis-server') !== null && findOnPath('redis-cli') !== null,
   chromium: () => existsSync(CHROMIUM_PATH),
+  // pdftoppm renders the shot report's PDF pages to PNG in the API tests.
+  'poppler-utils': () => findOnPath('pdftoppm') !== null,
 };
 
 let aptListsUpdated = false;
