@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/api-client.ts';
 import type { ImportOverrides } from '../../../../shared/contracts/shots.ts';
-import type { CaptureInfo, TraceWindow } from './types.ts';
+import type { CaptureInfo } from './types.ts';
 import { shotKeys } from './shot.ts';
 
 export interface UploadedCapture { id: string; fileName: string; state: string; duplicate: boolean }
@@ -11,11 +11,6 @@ export function uploadCapture(shotId: string, file: File, onProgress: (fraction:
   const form = new FormData();
   form.append('files', file, file.name);
   return api.upload<{ captures: UploadedCapture[] }>(`/api/shots/${shotId}/captures`, form, onProgress);
-}
-
-export function fetchWindow(captureId: string, channel: number, from: number, to: number, points: number): Promise<TraceWindow> {
-  const q = new URLSearchParams({ channel: String(channel), from: String(from), to: String(to), points: String(Math.round(points)) });
-  return api.get<TraceWindow>(`/api/captures/${captureId}/window?${q}`);
 }
 
 /** One channel's full-precision-enough samples (Float32) for the browser's live preview. */

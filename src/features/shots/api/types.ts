@@ -62,6 +62,4 @@ export interface ShotDetail {
 export interface DiffEntry { path: string; kind: 'added' | 'removed' | 'changed'; from?: unknown; to?: unknown }
 export interface VersionDiff { from: AnalysisSummary; to: AnalysisSummary; engineChanged: boolean; parameters: DiffEntry[]; results: DiffEntry[] }
 
-export type TraceWindow =
-  | { raw: false; t0: number; dt: number; min: (number | null)[]; max: (number | null)[]; channel: { name: string; unit: string } }
-  | { raw: true; t: number[]; v: (number | null)[]; channel: { name: string; unit: string } };
+export type { TraceWindow } from '../../../lib/trace-window.ts';

@@ -2,7 +2,7 @@ import { useEffect, useMemo, useRef, useState } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
-import { timeTicks } from '../lib/time-axis.ts';
+import { timeTicks } from '../../../lib/time-axis.ts';
 
 /**
  * Gate position against entry time, with the speed's line and its ±U band: the fitted constant-deceleration

@@ -4,9 +4,9 @@ import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
 import { formatSeconds } from '../../../lib/format.ts';
-import { fetchWindow } from '../api/captures.ts';
+import { fetchWindow, traceWindowKey } from '../../../lib/trace-window.ts';
 import type { ExpectedWindow } from '../lib/expected-windows.ts';
-import { timeTicks } from '../lib/time-axis.ts';
+import { timeTicks } from '../../../lib/time-axis.ts';
 
 export interface TimeRange { from: number; to: number }
 
@@ -182,7 +182,7 @@ export function TracePlot(props: TracePlotProps) {
 
   const points = Math.max(100, Math.min(4000, Math.round(width)));
   const windowQuery = useQuery({
-    queryKey: ['captures', captureId, 'window', channelIndex, range.from, range.to, points],
+    queryKey: traceWindowKey(captureId, channelIndex, range.from, range.to, points),
     queryFn: () => fetchWindow(captureId, channelIndex, range.from, range.to, points),
     enabled: width > 0,
     placeholderData: keepPreviousData,
