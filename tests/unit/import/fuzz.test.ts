@@ -76,7 +76,7 @@ describe('importer fuzzing (fast-check)', () => {
         if (!(error instanceof ImportError)) throw error;
       }
       if (streamed !== null) checkOutcome(() => streamed as ImportedCapture, bytes);
-    }), { numRuns: 300 });
+    }), { numRuns: 200 });
   });
 
   it('When the fuzzing is done, then the heap has not grown without bound', () => {

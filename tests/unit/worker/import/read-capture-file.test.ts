@@ -13,8 +13,8 @@ import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
 const dir = mkdtempSync(join(tmpdir(), 'gatepost-import-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-/** A 30 000-row capture (a stand-in ramp and square wave) in the plain-time layout, with its truth. */
-function written(n = 30_000) {
+/** An 8000-row capture (a stand-in square and sine wave) in the plain-time layout, with its truth. */
+function written(n = 8000) {
   const a = Float64Array.from({ length: n }, (_, i) => (i % 1000 < 500 ? 4.8 : 0.2));
   const b = Float64Array.from({ length: n }, (_, i) => Math.sin(i / 100));
   return writeCaptureLayout('plain-time', { t0: -1e-3, dt: 1e-7, channels: [{ name: 'Gate A', values: a }, { name: 'Gate B', values: b }] });
@@ -62,17 +62,17 @@ describe('readCaptureFile', () => {
     const text = new TextDecoder().decode(bytes);
     const lines = text.split('\n');
     lines.splice(100, 0, '');
-    lines.splice(25_000, 0, '', '');
+    lines.splice(6000, 0, '', '');
     const withBlanks = `${lines.join('\n')}End of record\nSaved by,bench PC\n`;
     const capture = await readCaptureFile(save('blanks.csv', withBlanks), { threads: 2, headBytes: 4096 });
     const reference = parseScopeCsv(new TextEncoder().encode(withBlanks));
-    expect(capture.length).toBe(30_000);
+    expect(capture.length).toBe(8000);
     expect(capture.channels[1].values).toEqual(reference.channels[1].values);
     expect(capture.metadata).toEqual(reference.metadata);
 
-    lines.splice(27_000, 1, '2.6e-3,ERR,0.5');
+    lines.splice(7000, 1, '-3e-4,ERR,0.5');
     const error = await rejection(readCaptureFile(save('bad.csv', lines.join('\n')), { threads: 2, headBytes: 4096 }));
-    expect(error.message).toBe("line 27,001: expected 3 numbers, found 'ERR'");
+    expect(error.message).toBe("line 7,001: expected 3 numbers, found 'ERR'");
   });
 
   it('When a sample index skips exactly where the file is split between threads, then the skip is still found', async () => {
