@@ -506,21 +506,17 @@ describe('security headers', () => {
   });
 
   it('When the public URL is HTTPS, then the session cookie is Secure and HSTS and upgrade-insecure-requests are sent', async () => {
-    // Arrange: a second app on the same database and Redis, configured as served over HTTPS by a proxy.
-    const https = await createApiHarness({ config: { publicUrl: 'https://gatepost.hollowmere.example' } });
-    try {
-      const analyst = demo.users.analyst;
-      // Act
-      const health = await request(https.app).get('/api/health');
-      const signIn = await request(https.app).post('/api/auth/login').send({ email: analyst.email, password: analyst.password });
-      // Assert: helmet's default HSTS is max-age=31536000; includeSubDomains (helmetjs.github.io, "Reference").
-      expect(health.headers['strict-transport-security']).toBe('max-age=31536000; includeSubDomains');
-      expect(health.headers['content-security-policy']).toContain('upgrade-insecure-requests');
-      expect(signIn.status).toBe(200);
-      expect(setCookieFor(signIn.headers, SESSION_COOKIE)).toMatch(/; Secure/);
-    } finally {
-      await https.close();
-    }
+    // Arrange: a second app on the same connections, configured as served over HTTPS by a proxy.
+    const https = h.appWithConfig({ publicUrl: 'https://gatepost.hollowmere.example' });
+    const analyst = demo.users.analyst;
+    // Act
+    const health = await request(https).get('/api/health');
+    const signIn = await request(https).post('/api/auth/login').send({ email: analyst.email, password: analyst.password });
+    // Assert: helmet's default HSTS is max-age=31536000; includeSubDomains (helmetjs.github.io, "Reference").
+    expect(health.headers['strict-transport-security']).toBe('max-age=31536000; includeSubDomains');
+    expect(health.headers['content-security-policy']).toContain('upgrade-insecure-requests');
+    expect(signIn.status).toBe(200);
+    expect(setCookieFor(signIn.headers, SESSION_COOKIE)).toMatch(/; Secure/);
   });
 });
 

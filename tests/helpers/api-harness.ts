@@ -73,6 +73,8 @@ export interface ApiHarness {
   sessionCookie(userId: string): string;
   /** Builds a second app on the same database and Redis with another mailer (e.g. one whose server is down). */
   appWithMailer(mailer: Mailer): Express;
+  /** Builds a second app on the same connections with some settings changed (e.g. an HTTPS public URL). */
+  appWithConfig(overrides: Partial<Config>): Express;
   close(): Promise<void>;
 }
 
@@ -97,8 +99,16 @@ export async function freeLoopbackPort(): Promise<number> {
   });
 }
 
+// Sequelize models are bound to one connection pool per process (initModels), so a second harness would re-bind
+// them and leave them on a closed pool when it closes. One harness per test file; use appWith…() for variants.
+let liveHarness = false;
+
 /** Starts the fake SMTP server and builds the app against the test PostgreSQL and Redis. */
 export async function createApiHarness(options: ApiHarnessOptions = {}): Promise<ApiHarness> {
+  if (liveHarness) {
+    throw new Error('an API harness is already open in this test file: close it first, or use appWithConfig()/appWithMailer()');
+  }
+  liveHarness = true;
   const databaseUrl = requireEnv('GATEPOST_TEST_DATABASE_URL');
   const redisUrl = requireEnv('GATEPOST_TEST_REDIS_URL');
   // maxRetriesPerRequest: null keeps the test client patient; the app's own client settings are not under test here.
@@ -210,6 +220,9 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
       extraMailers.push(other);
       return buildApp({ ...deps, mailer: other });
     },
+    appWithConfig(overrides) {
+      return buildApp({ ...deps, config: { ...config, ...overrides } });
+    },
     async close() {
       await queues.close();
       mailer.close();
@@ -218,6 +231,7 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
       await sequelize.close();
       await redis.quit();
       rmSync(blobDir, { recursive: true, force: true });
+      liveHarness = false;
     },
   };
   return harness;
