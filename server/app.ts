@@ -18,7 +18,9 @@ import { healthRoutes } from './modules/health/routes.ts';
 import { invitationRoutes } from './modules/invitations/routes.ts';
 import { labRoutes } from './modules/labs/routes.ts';
 import { libraryRoutes } from './modules/library/routes.ts';
+import { notificationRoutes } from './modules/notifications/routes.ts';
 import { outboxRoutes } from './modules/outbox/routes.ts';
+import { reviewRoutes } from './modules/reviews/routes.ts';
 import { shotRoutes } from './modules/shots/routes.ts';
 import { tokenRoutes } from './modules/tokens/routes.ts';
 
@@ -39,6 +41,8 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...analysisRoutes(deps),
     ...captureRoutes(deps),
     ...auditRoutes(),
+    ...reviewRoutes(deps),
+    ...notificationRoutes(),
   ];
   routes.push({
     method: 'get',

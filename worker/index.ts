@@ -1,9 +1,10 @@
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { Worker, type Job } from 'bullmq';
+import { Worker, type Job, type Queue } from 'bullmq';
 import { Op } from 'sequelize';
 import { loadConfig, ConfigError, type Config } from '../server/config.ts';
-import { Analysis, Capture } from '../server/db/models/index.ts';
+import { Analysis, Capture, Shot } from '../server/db/models/index.ts';
+import { createNotifyQueue, notifyPeople } from '../server/modules/notifications/notify-people.ts';
 import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
 import { closeWorkerContext, workerContext } from './context.ts';
 import { redisConnection } from './queues.ts';
@@ -17,6 +18,7 @@ const here = path.dirname(fileURLToPath(import.meta.url));
 const processorFiles = {
   [QUEUE_NAMES.ingest]: path.join(here, 'processors/ingest-capture.boot.mjs'),
   [QUEUE_NAMES.analysis]: path.join(here, 'processors/analyse-shot.boot.mjs'),
+  [QUEUE_NAMES.notify]: path.join(here, 'processors/notify.boot.mjs'),
 };
 
 /** After the last retry of a transient fault, the row says so instead of staying "queued" for ever. */
@@ -28,9 +30,31 @@ async function recordFinalFailure(queue: string, job: Job | undefined, err: Erro
   const message = `${err.message} (gave up after ${job.attemptsMade} attempt${job.attemptsMade === 1 ? '' : 's'})`;
   if (queue === QUEUE_NAMES.ingest) {
     await Capture.update({ state: 'failed', progress: 100, error: unrecoverable ? err.message : message }, { where: { id: job.data.captureId, state: { [Op.ne]: 'ready' } } });
-  } else {
+    const capture = await Capture.findByPk(job.data.captureId, { attributes: ['id', 'labId', 'shotId', 'uploadedBy', 'state', 'fileName'] });
+    if (capture?.state === 'failed') {
+      await notifyPeople(notifyQueue(), {
+        kind: 'jobFailed', labId: capture.labId, shotId: capture.shotId, eventId: String(job.id),
+        recipientIds: [capture.uploadedBy], error: `${capture.fileName}: ${err.message}`,
+      });
+    }
+  } else if (queue === QUEUE_NAMES.analysis) {
     await Analysis.update({ state: 'failed', progress: 100, error: unrecoverable ? err.message : message, completedAt: new Date() }, { where: { id: job.data.analysisId, state: { [Op.ne]: 'done' } } });
+    const analysis = await Analysis.findByPk(job.data.analysisId, { attributes: ['id', 'labId', 'shotId', 'requestedBy', 'state', 'version'] });
+    if (analysis?.state === 'failed') {
+      // An automatic analysis has no requester: the person who logged the shot hears of it instead.
+      const shot = analysis.requestedBy ? null : await Shot.findByPk(analysis.shotId, { attributes: ['createdBy'] });
+      await notifyPeople(notifyQueue(), {
+        kind: 'jobFailed', labId: analysis.labId, shotId: analysis.shotId, eventId: String(job.id),
+        recipientIds: [analysis.requestedBy ?? shot?.createdBy], error: `analysis version ${analysis.version}: ${err.message}`,
+      });
+    }
   }
+}
+
+let notifyQueueInstance: Queue | undefined;
+function notifyQueue(): Queue {
+  notifyQueueInstance ??= createNotifyQueue(redisConnection(loadConfig().redisUrl));
+  return notifyQueueInstance;
 }
 
 /**
@@ -94,6 +118,7 @@ async function main() {
     const force = setTimeout(() => process.exit(1), 30_000);
     force.unref();
     await Promise.allSettled(workers.map((w) => w.close()));
+    await notifyQueueInstance?.close().catch(() => {});
     await closeWorkerContext();
     process.exit(0);
   };

@@ -10,9 +10,11 @@ export const QUEUE_NAMES = {
   ingest: 'gatepost-ingest',
   /** Run the analysis engine for one analysis version. */
   analysis: 'gatepost-analysis',
+  /** Send one notification e-mail (retried when the mail server hiccups; never part of a request). */
+  notify: 'gatepost-notify',
 } as const;
 
-export const JOB_NAMES = { ingest: 'ingest-capture', analysis: 'analyse-shot' } as const;
+export const JOB_NAMES = { ingest: 'ingest-capture', analysis: 'analyse-shot', notify: 'send-notification' } as const;
 
 export const ingestJobData = z.object({ captureId: z.uuid(), attempt: z.number().int().min(1) });
 export type IngestJobData = z.infer<typeof ingestJobData>;
@@ -22,3 +24,19 @@ export type AnalysisJobData = z.infer<typeof analysisJobData>;
 
 export const ingestJobId = (d: IngestJobData) => `ingest-${d.captureId}-${d.attempt}`;
 export const analysisJobId = (d: AnalysisJobData) => `analysis-${d.analysisId}`;
+
+/**
+ * One e-mail to one person about one event. `eventId` names the event (a review request, a decision, a failed job),
+ * so the job id is the same however often the event is reported: one mail per person per event.
+ */
+export const notifyJobData = z.object({
+  kind: z.enum(['reviewRequested', 'approved', 'returned', 'jobFailed']),
+  recipientId: z.uuid(),
+  labId: z.uuid(),
+  shotId: z.uuid(),
+  eventId: z.string().min(1).max(200),
+  /** What failed, for jobFailed: the importer's or the engine's message. */
+  error: z.string().max(2000).optional(),
+});
+export type NotifyJobData = z.infer<typeof notifyJobData>;
+export const notifyJobId = (d: NotifyJobData) => `notify-${d.kind}-${d.eventId}-${d.recipientId}`;

@@ -25,7 +25,11 @@ export const PERMISSIONS = {
   'shots:write': ['admin', 'experimenter'],
   'analyses:write': ['admin', 'analyst'],
   'library:write': ['admin', 'analyst'],
+  /** Send a shot with a finished analysis for review. */
+  'reviews:request': ['admin', 'experimenter', 'analyst'],
   'reviews:decide': ['reviewer'],
+  /** See the review queue of the lab. */
+  'reviews:queue': ['admin', 'reviewer'],
   'audit:read': ['admin', 'reviewer'],
 } as const satisfies Record<string, readonly Role[]>;
 

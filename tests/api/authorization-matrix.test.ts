@@ -119,6 +119,20 @@ async function freshAnalyses(h: ApiHarness): Promise<{ shotId: string; analysisI
   return { shotId, analysisId: a.id, otherId: b.id };
 }
 
+/** A new Hollowmere shot whose current analysis (version 1) is done, in the given review state (issue 7 rows). */
+async function freshAnalysedShot(h: ApiHarness, status: 'analysed' | 'in_review' = 'analysed'): Promise<{ shotId: string }> {
+  const shot = await Shot.create({
+    labId: h.demo.labs.hollowmere.id, campaignId: h.demo.hollowmere.campaignIds[0], number: 1000 + serial++, firedAt: null,
+    projectileId: null, gateRigId: null, tubePressurePa: null, ambientTemperatureK: null, ambientPressurePa: null, createdBy: null,
+  });
+  const analysis = await Analysis.create({
+    labId: shot.labId, shotId: shot.id, version: 1, parameters: {}, engineVersion: 'matrix', jobKey: unique('matrix-review'),
+    requestedBy: null, state: 'done', results: { speed: { value: 201, uncertainty: 0.4, method: 'flight' } } as object,
+  });
+  await shot.update({ status, currentAnalysisId: analysis.id, reviewAnalysisId: status === 'in_review' ? analysis.id : null });
+  return { shotId: shot.id };
+}
+
 const errorShape = (body: Record<string, unknown>) =>
   expect(body).toEqual({ error: expect.objectContaining({ code: expect.any(String), message: expect.any(String) }) });
 
@@ -323,6 +337,46 @@ const MATRIX: Record<string, Row> = {
   'GET /api/labs/:labId/audit': {
     expect: [200, 403, 403, 200, 404, 401],
     shape: (b) => expect(b).toEqual({ events: expect.any(Array) }),
+  },
+  'POST /api/shots/:shotId/review-requests': {
+    expect: [201, 201, 201, 403, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshAnalysedShot(h), body: { message: 'matrix' } }),
+    shape: (b) => expect(b).toMatchObject({ request: { analysisVersion: 1, message: 'matrix' }, shot: { status: 'in_review' } }),
+  },
+  'GET /api/labs/:labId/review-queue': {
+    expect: [200, 403, 403, 200, 404, 401],
+    shape: (b) => expect(b).toEqual({ shots: expect.any(Array) }),
+  },
+  'POST /api/shots/:shotId/reviews': {
+    expect: [403, 403, 403, 201, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshAnalysedShot(h, 'in_review'), body: { decision: 'approved' } }),
+    shape: (b) => expect(b).toMatchObject({ review: { decision: 'approved', analysisVersion: 1 }, shot: { status: 'approved' } }),
+  },
+  'GET /api/shots/:shotId/reviews': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toMatchObject({ status: expect.any(String), history: expect.any(Array) }),
+  },
+  'GET /api/shots/:shotId/comments': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toEqual({ comments: expect.any(Array) }),
+  },
+  'POST /api/shots/:shotId/comments': {
+    expect: [201, 201, 201, 201, 404, 401],
+    prepare: () => ({ body: { body: unique('matrix comment') } }),
+    shape: (b) => expect(b).toMatchObject({ comment: { body: expect.stringMatching(/^matrix comment/), replyTo: null } }),
+  },
+  'GET /api/shots/:shotId/audit': {
+    expect: [200, 403, 403, 200, 404, 401],
+    shape: (b) => expect(b).toEqual({ events: expect.any(Array) }),
+  },
+  'GET /api/me/notifications': {
+    expect: [200, 200, 200, 200, 200, 401],
+    shape: (b) => expect(b).toEqual({ preferences: { reviewRequested: expect.any(Boolean), approved: expect.any(Boolean), returned: expect.any(Boolean), jobFailed: expect.any(Boolean) } }),
+  },
+  'PATCH /api/me/notifications': {
+    expect: [200, 200, 200, 200, 200, 401],
+    prepare: () => ({ body: { jobFailed: true } }),
+    shape: (b) => expect(b).toMatchObject({ preferences: { jobFailed: true } }),
   },
   'GET /api/openapi.json': {
     expect: [200, 200, 200, 200, 200, 200],

@@ -7,6 +7,7 @@ import { analysisJobData } from '../../shared/contracts/jobs.ts';
 import { combineCaptures } from '../../shared/import/combine-captures.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
+import { recordAudit } from '../../server/lib/audit.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 
@@ -46,21 +47,29 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
     throw err;
   }
 
-  await sequelize.transaction(async (transaction) => {
+  const withdrawn = await sequelize.transaction(async (transaction) => {
     const [updated] = await Analysis.update(
       { state: 'done', progress: 100, results: JSON.parse(JSON.stringify(results)), completedAt: new Date(), error: null },
       { where: { id: analysis.id, state: { [Op.ne]: 'done' } }, transaction },
     );
-    if (updated === 0) return;
+    if (updated === 0) return null;
     const shot = await Shot.findByPk(analysis.shotId, { transaction, lock: transaction.LOCK.UPDATE });
-    if (!shot) return;
-    // A signed-off shot keeps its approved version as current; later versions wait for a new review.
-    if (shot.status === 'approved' || shot.status === 'in_review') return;
+    if (!shot) return null;
     const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction }) : null;
-    if (!current || current.version < analysis.version) {
-      await shot.update({ currentAnalysisId: analysis.id, status: 'analysed' }, { transaction });
-    }
+    if (current && current.version >= analysis.version) return null;
+    // A newer version becomes current whatever the review state, and needs a review of its own: an approval of an
+    // older version stays on record (shots.approved_analysis_id, the reviews table); a pending request about an
+    // older version is withdrawn, so a reviewer never signs off numbers that are no longer the shot's.
+    const wasInReview = shot.status === 'in_review' ? shot.reviewAnalysisId : null;
+    await shot.update({ currentAnalysisId: analysis.id, status: 'analysed', reviewAnalysisId: null }, { transaction });
+    return wasInReview ? { labId: shot.labId, shotId: shot.id, reviewedAnalysisId: wasInReview } : null;
   });
+  if (withdrawn) {
+    await recordAudit({
+      labId: withdrawn.labId, actorId: null, action: 'review.withdrawn', targetType: 'shot', targetId: withdrawn.shotId,
+      details: { reason: `analysis version ${analysis.version} finished while an older version was in review`, reviewedAnalysisId: withdrawn.reviewedAnalysisId },
+    });
+  }
   await job.updateProgress(100);
   return { analysisId: analysis.id, state: 'done' };
 }

@@ -119,6 +119,10 @@ export class Shot extends Model<InferAttributes<Shot>, InferCreationAttributes<S
   declare notes: CreationOptional<string>;
   declare status: CreationOptional<ShotStatus>;
   declare currentAnalysisId: CreationOptional<string | null>;
+  /** The version a pending review request is about (null when none is pending). */
+  declare reviewAnalysisId: CreationOptional<string | null>;
+  /** The version a reviewer signed off last (it stays on record when a later version becomes current). */
+  declare approvedAnalysisId: CreationOptional<string | null>;
   declare createdBy: string | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -174,7 +178,37 @@ export class Review extends Model<InferAttributes<Review>, InferCreationAttribut
   declare reviewerId: string | null;
   declare decision: 'approved' | 'returned';
   declare comment: CreationOptional<string>;
+  declare requestId: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
+}
+
+export class ReviewRequest extends Model<InferAttributes<ReviewRequest>, InferCreationAttributes<ReviewRequest>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare shotId: string;
+  declare analysisId: string;
+  declare requestedBy: string | null;
+  declare message: CreationOptional<string>;
+  declare createdAt: CreationOptional<Date>;
+}
+
+export class ShotComment extends Model<InferAttributes<ShotComment>, InferCreationAttributes<ShotComment>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare shotId: string;
+  declare authorId: string | null;
+  declare body: string;
+  declare replyTo: string | null;
+  declare createdAt: CreationOptional<Date>;
+}
+
+export class NotificationPreference extends Model<InferAttributes<NotificationPreference>, InferCreationAttributes<NotificationPreference>> {
+  declare userId: string;
+  declare reviewRequested: CreationOptional<boolean>;
+  declare approved: CreationOptional<boolean>;
+  declare returned: CreationOptional<boolean>;
+  declare jobFailed: CreationOptional<boolean>;
+  declare updatedAt: CreationOptional<Date>;
 }
 
 export class AuditEvent extends Model<InferAttributes<AuditEvent>, InferCreationAttributes<AuditEvent>> {
@@ -242,7 +276,7 @@ export function initModels(sequelize: Sequelize): void {
       id, labId: uuid(), campaignId: uuid(), number: { type: DataTypes.INTEGER, allowNull: false }, firedAt: date(),
       projectileId: uuid(true), gateRigId: uuid(true), tubePressurePa: double(true), sealType: textOr(''),
       ambientTemperatureK: double(true), ambientPressurePa: double(true), notes: textOr(''), status: textOr('draft'),
-      currentAnalysisId: uuid(true), createdBy: uuid(true), ...stamps,
+      currentAnalysisId: uuid(true), reviewAnalysisId: uuid(true), approvedAnalysisId: uuid(true), createdBy: uuid(true), ...stamps,
     },
     opts('shots'),
   );
@@ -273,9 +307,25 @@ export function initModels(sequelize: Sequelize): void {
   Review.init(
     {
       id, labId: uuid(), shotId: uuid(), analysisId: uuid(), reviewerId: uuid(true), decision: text(), comment: textOr(''),
-      createdAt: DataTypes.DATE,
+      requestId: uuid(true), createdAt: DataTypes.DATE,
     },
     opts('reviews', { updatedAt: false }),
+  );
+  ReviewRequest.init(
+    { id, labId: uuid(), shotId: uuid(), analysisId: uuid(), requestedBy: uuid(true), message: textOr(''), createdAt: DataTypes.DATE },
+    opts('review_requests', { updatedAt: false }),
+  );
+  ShotComment.init(
+    { id, labId: uuid(), shotId: uuid(), authorId: uuid(true), body: text(), replyTo: uuid(true), createdAt: DataTypes.DATE },
+    opts('shot_comments', { updatedAt: false }),
+  );
+  const on = { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true };
+  NotificationPreference.init(
+    {
+      userId: { type: DataTypes.UUID, primaryKey: true }, reviewRequested: on, approved: on, returned: on, jobFailed: on,
+      updatedAt: DataTypes.DATE,
+    },
+    opts('notification_preferences', { createdAt: false }),
   );
   AuditEvent.init(
     {

@@ -129,6 +129,9 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       body: updateShotBody,
       async handler(req, res) {
         const shot = await shotInLab(req);
+        // Sign-off rule (issue 7): conditions and files change only while the shot is not approved. An analyst may still
+        // recompute an approved shot; the new version becomes current, the shot goes back to `analysed` (editable
+        // again) and needs a new review, while the approval of the old version stays on record.
         if (shot.status === 'approved') throw conflict('This shot is signed off; its conditions can no longer change.');
         const body = req.body as UpdateShotBody;
         await checkLibraryRefs(shot.labId, body);

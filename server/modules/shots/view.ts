@@ -18,6 +18,9 @@ export function shotSummary(s: Shot) {
     },
     notes: s.notes,
     currentAnalysisId: s.currentAnalysisId,
+    /** The version waiting for review, and the version signed off last (it stays on record after a recomputation). */
+    reviewAnalysisId: s.reviewAnalysisId ?? null,
+    approvedAnalysisId: s.approvedAnalysisId ?? null,
   };
 }
 
