@@ -22,6 +22,8 @@ export interface TracePlotProps {
   gateLabel: (position: number) => string;
   /** Whether the annotations come from the browser's preview rather than a stored version. */
   preview: boolean;
+  /** Position of this plot in the stack (for tests and keyboard users). */
+  ordinal: number;
   height?: number;
 }
 
@@ -275,7 +277,7 @@ export function TracePlot(props: TracePlotProps) {
   const raw = data?.raw === true;
   return (
     <div className="relative">
-      <div ref={box} className="w-full" data-testid={`trace-${channelIndex}`} data-raw={raw ? 'true' : 'false'} />
+      <div ref={box} className="w-full" data-testid={`trace-${props.ordinal}`} data-raw={raw ? 'true' : 'false'} />
       <p className="absolute right-2 top-0 text-[10px] text-harbour-500">
         {windowQuery.isFetching ? 'refining…' : raw ? 'raw samples' : 'min/max per column'}
       </p>

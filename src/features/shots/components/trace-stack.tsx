@@ -2,39 +2,11 @@ import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import { Button, EmptyState } from '../../../components/ui/primitives.tsx';
 import type { CaptureInfo } from '../api/types.ts';
+import { captureExtent as extentOf, plottedChannels, type PlottedChannel } from '../../../lib/plotted-channels.ts';
 import { expectedWindows } from '../lib/expected-windows.ts';
 import { TracePlot, type TimeRange } from './trace-plot.tsx';
 
-export interface PlottedChannel { captureId: string; index: number; name: string }
-
-/** Channel names as the analysis sees them once one-file-per-channel captures are combined (same rule as the server). */
-export function plottedChannels(captures: CaptureInfo[]): PlottedChannel[] {
-  const seen = new Set<string>();
-  const out: PlottedChannel[] = [];
-  for (const c of captures) {
-    if (c.state !== 'ready' || !c.channels) continue;
-    for (const ch of c.channels.channels) {
-      out.push({ captureId: c.id, index: ch.index, name: seen.has(ch.name) ? `${ch.name} (${c.fileName})` : ch.name });
-      seen.add(ch.name);
-    }
-  }
-  return out;
-}
-
-function extentOf(captures: CaptureInfo[]): TimeRange | null {
-  let from = Infinity;
-  let to = -Infinity;
-  for (const c of captures) {
-    const files = c.channels;
-    if (c.state !== 'ready' || !files || files.length === 0) continue;
-    const [a, b] = files.time.kind === 'uniform'
-      ? [files.time.t0, files.time.t0 + (files.length - 1) * files.time.dt]
-      : [files.time.first ?? 0, files.time.last ?? 0];
-    from = Math.min(from, a);
-    to = Math.max(to, b);
-  }
-  return Number.isFinite(from) && to > from ? { from, to } : null;
-}
+export { plottedChannels, type PlottedChannel };
 
 /**
  * Every channel on one shared time axis. Drag across a trace to zoom; the mouse wheel zooms around the pointer;
@@ -122,7 +94,7 @@ export function TraceStack({ captures, results, preview, gateLabel, onRangeChang
         <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => setRange(null)} disabled={!range}>Reset</Button>
         <span>Drag across a trace to zoom; wheel zooms; with the traces focused, ← → pan and 0 resets.</span>
       </div>
-      {channels.map((ch) => {
+      {channels.map((ch, ordinal) => {
         const result = results?.channels.find((c) => c.name === ch.name) ?? null;
         return (
           <TracePlot
@@ -137,6 +109,7 @@ export function TraceStack({ captures, results, preview, gateLabel, onRangeChang
             expected={windows.filter((w) => w.channel === ch.name)}
             gateLabel={gateLabel}
             preview={preview}
+            ordinal={ordinal}
           />
         );
       })}

@@ -1,0 +1,140 @@
+// The shot workspace in Chromium against the real API and worker: two one-channel scope files dropped on a new
+// shot, reading and analysing watched, the speed shown, a crossing zoomed down to raw samples, the gate mapping and
+// the threshold changed with the in-browser preview, a recomputation stored as version 2 and compared with version 1.
+// The captures come from fixtures/generate.ts (simulated shot: 312 m/s, gates 0 and 100 mm apart).
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
+import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+
+const FIXTURES = path.resolve(import.meta.dirname, '../../fixtures/captures');
+const manifest = JSON.parse(readFileSync(path.join(FIXTURES, 'manifest.json'), 'utf8')) as { about: string };
+
+let harness: ApiHarness;
+let app: AppProcesses;
+let shotId: string;
+
+beforeAll(async () => {
+  harness = await createApiHarness();
+  const demo = await harness.resetDatabase();
+  // The demo rig's gates are 150 mm apart; these captures were made with 100 mm: the analyst fixes that below.
+  const rig = await GateRig.findByPk(demo.hollowmere.gateRigIds[0], { rejectOnEmpty: true });
+  const ball = await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true });
+  const shot = await Shot.create({
+    labId: demo.labs.hollowmere.id, campaignId: demo.hollowmere.campaignIds[0], number: 101, firedAt: new Date(),
+    projectileId: ball.id, gateRigId: rig.id, tubePressurePa: 1800, ambientTemperatureK: 293.15,
+    ambientPressurePa: 100_900, createdBy: demo.users.experimenter.id,
+  });
+  shotId = shot.id;
+  app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
+}, 120_000);
+
+afterAll(async () => {
+  await app?.stop();
+  await harness?.close();
+});
+
+describe('shot workspace', () => {
+  it('When files are dropped, analysed, zoomed and recomputed, then each step shows and version 2 differs from version 1', async () => {
+    expect(manifest.about).toContain('Hollowmere');
+    const demo = harness.demo;
+    const shotUrl = `${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${shotId}`;
+
+    // The experimenter drops both files at once.
+    const experimenter = await launchBrowser();
+    try {
+      const page = await experimenter.newPage();
+      await page.goto(`${app.baseUrl}/sign-in`);
+      await page.getByLabel('E-mail').fill(demo.users.experimenter.email);
+      await page.getByLabel('Password').fill(demo.users.experimenter.password);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      await page.waitForURL('**/campaigns');
+      await page.goto(shotUrl);
+      await page.getByText('Drop the scope’s CSV exports here').waitFor();
+      await saveScreenshot(page, 'shot-empty');
+      const files = ['per-channel-gate-a.csv', 'per-channel-gate-b.csv'].map((name) => ({ name, text: readFileSync(path.join(FIXTURES, name), 'latin1') }));
+      await page.getByTestId('drop-zone').evaluate((zone, list) => {
+        const transfer = new DataTransfer();
+        for (const f of list) transfer.items.add(new File([f.text], f.name, { type: 'text/csv' }));
+        zone.dispatchEvent(new DragEvent('dragover', { bubbles: true, cancelable: true, dataTransfer: transfer }));
+        zone.dispatchEvent(new DragEvent('drop', { bubbles: true, cancelable: true, dataTransfer: transfer }));
+      }, files);
+      // Progress: both files listed, then read, then a result.
+      const list = page.getByTestId('capture-list');
+      await list.getByText('per-channel-gate-a.csv').waitFor();
+      await list.getByText('per-channel-gate-b.csv').waitFor();
+      await saveScreenshot(page, 'shot-uploading');
+      await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(2);
+      await page.getByTestId('speed').waitFor({ timeout: 120_000 });
+      await saveScreenshot(page, 'shot-analysed-v1');
+    } finally {
+      await experimenter.close();
+    }
+
+    // The analyst zooms into a crossing, fixes the gate spacing and the threshold, previews, recomputes.
+    const analyst = await launchBrowser();
+    try {
+      const page = await analyst.newPage();
+      await page.goto(`${app.baseUrl}/sign-in`);
+      await page.getByLabel('E-mail').fill(demo.users.analyst.email);
+      await page.getByLabel('Password').fill(demo.users.analyst.password);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      await page.waitForURL('**/campaigns');
+      await page.goto(shotUrl);
+      const v1Speed = await page.getByTestId('speed').textContent();
+      // With the rig's 150 mm the speed is 1.5 × the true 312 m/s: far off, which is what the analyst corrects.
+      expect(v1Speed).toMatch(/^4\d\d(\.\d+)? ± /);
+
+      const trace = page.getByTestId('trace-0');
+      expect(await trace.getAttribute('data-raw')).toBe('false');
+      // Drag across ±20 µs around gate A's first crossing (the record runs from −100 µs over 4000 samples of 0.2 µs),
+      // which is fewer samples than the plot is wide: the server then sends raw samples.
+      const detail = await (await page.request.get(`${app.baseUrl}/api/shots/${shotId}`)).json();
+      const crossing: number = detail.currentAnalysis.results.channels[0].transitions[0].time;
+      const [from, to] = [-100e-6, -100e-6 + 3999 * 0.2e-6];
+      const plot = trace.locator('.u-over');
+      await trace.scrollIntoViewIfNeeded();
+      const box = (await plot.boundingBox())!;
+      const px = (t: number) => box.x + ((t - from) / (to - from)) * box.width;
+      await page.mouse.move(px(crossing - 20e-6), box.y + box.height / 2);
+      await page.mouse.down();
+      await page.mouse.move(px(crossing + 20e-6), box.y + box.height / 2, { steps: 5 });
+      await page.mouse.up();
+      await expect.poll(() => trace.getAttribute('data-raw'), { timeout: 10_000 }).toBe('true');
+      // The keyboard zooms further around the centre: still raw, still on the crossing.
+      await page.getByLabel(/^Traces\./).focus();
+      await page.keyboard.press('+');
+      await expect.poll(() => trace.getAttribute('data-raw')).toBe('true');
+      await page.getByRole('heading', { name: 'Traces' }).scrollIntoViewIfNeeded();
+      await saveScreenshot(page, 'shot-zoomed-raw');
+
+      await page.getByLabel('Position (mm)').nth(1).fill('100');
+      await page.getByLabel('Mode').selectOption('percent');
+      await page.getByLabel('Level (%)').fill('45');
+      await page.getByLabel('Hysteresis ± (%)').fill('30');
+      await page.getByTestId('preview-toggle').check();
+      await expect.poll(() => page.getByTestId('preview-status').textContent(), { timeout: 30_000 }).toMatch(/^Preview: 31\d(\.\d+)? ± /);
+      await saveScreenshot(page, 'shot-preview');
+
+      await page.getByRole('button', { name: 'Recompute and keep as a new version' }).click();
+      await page.getByText('Version 2 queued.').waitFor();
+      await page.getByTestId('preview-toggle').uncheck();
+      const versions = page.getByTestId('versions');
+      await versions.getByText('v2').waitFor({ timeout: 120_000 });
+      await expect.poll(async () => (await versions.textContent()) ?? '', { timeout: 120_000 }).toMatch(/v2\s*current/);
+      await expect.poll(async () => (await page.getByTestId('speed').textContent()) ?? '', { timeout: 30_000 }).toMatch(/^31\d(\.\d+)? ± /);
+      const diff = page.getByTestId('version-diff');
+      await diff.getByText('v1 → v2').waitFor({ timeout: 30_000 });
+      await diff.getByText('threshold.level').waitFor();
+      await diff.getByText('gates[1].position').waitFor();
+      await diff.getByText(/^speed\./).first().waitFor();
+      await diff.scrollIntoViewIfNeeded();
+      await saveScreenshot(page, 'shot-v2-diff');
+    } finally {
+      await analyst.close();
+    }
+  }, 400_000);
+});
