@@ -284,6 +284,27 @@ describe('When a shot gets one file per channel', () => {
     expect(Math.abs(speed.value - 312)).toBeLessThanOrEqual(speed.uncertainty);
   });
 
+  it('then each of several shots whose two files are read at the same time gets exactly one automatic analysis', async () => {
+    // The worker reads two files at once (concurrency 2), so both ingests often finish together; the automatic
+    // analysis is keyed by the set of ready captures, and that set must be the final one for both.
+    const shotIds: string[] = [];
+    for (let i = 0; i < 4; i++) {
+      const shotId = await newShot(experimenter, pairRigId);
+      const up = await experimenter.upload(shotId, [
+        { name: 'per-channel-gate-a.csv', bytes: fixture('per-channel-gate-a.csv') },
+        { name: 'per-channel-gate-b.csv', bytes: fixture('per-channel-gate-b.csv') },
+      ]);
+      expect(up.status).toBe(202);
+      shotIds.push(shotId);
+    }
+    for (const shotId of shotIds) {
+      const { shot } = await settle(shotId);
+      expect(shot.analyses, shotId).toHaveLength(1);
+      expect(await Analysis.count({ where: { shotId } })).toBe(1);
+      expect(shot.currentAnalysis!.captureIds).toHaveLength(2);
+    }
+  });
+
   it('then a file whose time base disagrees gives a failed analysis whose error names that file', async () => {
     const shotId = await newShot(experimenter, pairRigId);
     const up = await experimenter.upload(shotId, [
@@ -337,10 +358,13 @@ describe('When a file cannot be read', () => {
     for (const [name, bytes] of [['ragged.csv', ragged], ['junk.bin', junk]] as const) {
       const c = byName.get(name)!;
       // Not retried: an UnrecoverableError ends the job after its first attempt.
-      const job = await queue.getJob(`ingest-${c.id}-1`);
-      expect(job, name).toBeDefined();
-      expect(job!.attemptsMade, name).toBe(1);
-      expect(await job!.getState()).toBe('failed');
+      // The processor marks the row failed, then throws; BullMQ records the job's end a moment later.
+      const job = await pollUntil(async () => {
+        const j = await queue.getJob(`ingest-${c.id}-1`);
+        return j && (await j.getState()) === 'failed' ? j : undefined;
+      }, { timeoutMs: 10_000, what: `the ingest job of ${name} to be failed` });
+      expect(job.attemptsMade, name).toBe(1);
+      expect(job.failedReason, name).toBe(c.error);
       const stored = path.join(dataDir, 'blobs', 'labs', demo.labs.hollowmere.id, 'raw', c.sha256);
       expect(Buffer.compare(readFileSync(stored), Buffer.from(bytes)), name).toBe(0);
     }
@@ -366,5 +390,21 @@ describe('When a file cannot be read', () => {
     expect(capture.timeBase).toMatchObject({ kind: 'uniform', t0, dt });
     expect(after.analyses).toHaveLength(1);
     expect(after.currentAnalysis!.state).toBe('done');
+  });
+});
+
+describe('When the OpenAPI document is read', () => {
+  it('then it lists every pipeline route with its method', async () => {
+    const res = await fetch(`${app.baseUrl}/api/openapi.json`);
+    expect(res.status).toBe(200);
+    const doc = (await res.json()) as { openapi: string; paths: Record<string, Record<string, unknown>> };
+    expect(doc.openapi).toMatch(/^3\./);
+    const routes: [string, string][] = [
+      ['post', '/api/labs/{labId}/shots'], ['get', '/api/labs/{labId}/shots'], ['get', '/api/shots/{shotId}'], ['patch', '/api/shots/{shotId}'],
+      ['post', '/api/shots/{shotId}/captures'], ['get', '/api/shots/{shotId}/analyses'], ['post', '/api/shots/{shotId}/analyses'],
+      ['get', '/api/shots/{shotId}/analyses/{analysisId}'], ['get', '/api/shots/{shotId}/analyses/{analysisId}/diff/{otherId}'],
+      ['post', '/api/shots/{shotId}/captures/{captureId}/reingest'], ['get', '/api/captures/{captureId}/window'],
+    ];
+    for (const [method, p] of routes) expect(doc.paths[p]?.[method], `${method.toUpperCase()} ${p}`).toBeDefined();
   });
 });
