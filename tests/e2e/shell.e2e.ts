@@ -24,10 +24,10 @@ afterAll(async () => {
 
 /** Written out per role on purpose (not derived from the permission table), so a wrong permission shows here. */
 const NAV_BY_ROLE: Record<Exclude<DemoActor, 'otherLabAdmin'>, string[]> = {
-  admin: ['Campaigns', 'Projectiles & rigs', 'People', 'Audit trail', 'Mail outbox'],
+  admin: ['Campaigns', 'Review queue', 'Projectiles & rigs', 'People', 'Audit trail', 'Mail outbox'],
   experimenter: ['Campaigns', 'Projectiles & rigs', 'People'],
   analyst: ['Campaigns', 'Projectiles & rigs', 'People'],
-  reviewer: ['Campaigns', 'Projectiles & rigs', 'People', 'Audit trail'],
+  reviewer: ['Campaigns', 'Review queue', 'Projectiles & rigs', 'People', 'Audit trail'],
 };
 
 async function signIn(page: Page, email: string, password: string) {

@@ -3,6 +3,7 @@ import { useParams } from 'react-router-dom';
 import { can } from '../../../shared/contracts/roles.ts';
 import { campaignQueryOptions } from '../../features/campaigns/api/campaigns.ts';
 import { gateRigsQueryOptions, projectilesQueryOptions } from '../../features/library/api/library.ts';
+import { ReviewBar } from '../../features/reviews/components/review-bar.tsx';
 import { ShotPage } from '../../features/shots/components/shot-page.tsx';
 import { shotQueryOptions } from '../../features/shots/api/shot.ts';
 import { useLab } from '../lab-context.ts';
@@ -30,10 +31,19 @@ export function Component() {
       canUpload={can(membership.role, 'shots:write')}
       canRecompute={can(membership.role, 'analyses:write')}
       aside={
-        <details className="max-w-xs rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40">
-          <summary className="cursor-pointer font-medium">Launcher safety</summary>
-          <p className="mt-1">Rated backstop and a clear exclusion zone; never fire at people. Shield evacuated tubes and wear eye and hearing protection. Your lab’s rules and trained supervision govern.</p>
-        </details>
+        <ReviewBar
+          shotId={shotId}
+          labId={labId}
+          status={shot.data?.shot.status ?? ''}
+          current={shot.data?.currentAnalysis ? { version: shot.data.currentAnalysis.version, state: shot.data.currentAnalysis.state } : null}
+          canRequest={can(membership.role, 'reviews:request')}
+          canDecide={can(membership.role, 'reviews:decide')}
+        >
+          <details className="rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40">
+            <summary className="cursor-pointer font-medium">Launcher safety</summary>
+            <p className="mt-1">Rated backstop and a clear exclusion zone; never fire at people. Shield evacuated tubes and wear eye and hearing protection. Your lab’s rules and trained supervision govern.</p>
+          </details>
+        </ReviewBar>
       }
     />
   );

@@ -1,0 +1,33 @@
+import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
+import type { CaptureChannels } from '../../../lib/plotted-channels.ts';
+
+/** The parts of GET /api/shots/:shotId the comparison reads. */
+export interface ComparedShot {
+  shot: {
+    id: string;
+    campaignId: string;
+    number: number;
+    firedAt: string | null;
+    status: string;
+    projectileId: string | null;
+    gateRigId: string | null;
+    conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
+  };
+  captures: CaptureChannels[];
+  currentAnalysis: {
+    id: string;
+    version: number;
+    state: string;
+    engineVersion: string;
+    parameters: Record<string, unknown>;
+    results: ShotAnalysis | null;
+  } | null;
+}
+
+/** Names the route looks up for each shot (campaign, projectile, gate rig and its gate labels). */
+export interface ShotNames {
+  campaignName: string | null;
+  projectileName: string | null;
+  rigName: string | null;
+  gateLabels: { position: number; label: string }[];
+}

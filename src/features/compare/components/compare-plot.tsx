@@ -1,0 +1,165 @@
+import { keepPreviousData, useQueries } from '@tanstack/react-query';
+import { useEffect, useMemo, useRef, useState } from 'react';
+import uPlot from 'uplot';
+import 'uplot/dist/uPlot.min.css';
+import { timeTicks } from '../../../lib/time-axis.ts';
+import { fetchWindow, traceWindowKey, type TraceWindow } from '../../../lib/trace-window.ts';
+
+export interface TimeRange { from: number; to: number }
+
+/** One trace on a comparison plot: a capture's channel, shifted so its shot's alignment instant is t = 0. */
+export interface CompareSource {
+  key: string;
+  captureId: string;
+  channelIndex: number;
+  /** The shot's alignment instant, s: the plot shows t − offset. */
+  offset: number;
+  colour: string;
+  label: string;
+}
+
+/** A min/max window as [x, min, max] columns on the shifted time axis. */
+function columns(w: TraceWindow, offset: number): uPlot.AlignedData {
+  if (w.raw) return [w.t.map((t) => t - offset), w.v, w.v];
+  const xs = new Array<number>(w.min.length);
+  for (let j = 0; j < xs.length; j++) xs[j] = w.t0 + (j + 0.5) * w.dt - offset;
+  return [xs, w.min, w.max];
+}
+
+/**
+ * Several traces on one relative time axis (each shot's alignment instant at 0), each drawn as its min/max band in
+ * its own colour. All plots of the comparison share `range`; dragging across one zooms them all.
+ */
+export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
+  title: string;
+  sources: CompareSource[];
+  range: TimeRange;
+  onRange: (r: TimeRange) => void;
+  height?: number;
+}) {
+  const box = useRef<HTMLDivElement>(null);
+  const plot = useRef<uPlot | null>(null);
+  const [width, setWidth] = useState(0);
+  const onRangeRef = useRef(onRange);
+  onRangeRef.current = onRange;
+  const titleRef = useRef(title);
+  titleRef.current = title;
+  // Each trace over the same relative range: points per window ≈ pixel columns.
+  const points = Math.max(100, Math.min(3000, Math.round(width)));
+  const windows = useQueries({
+    queries: sources.map((s) => {
+      const from = range.from + s.offset;
+      const to = range.to + s.offset;
+      return {
+        queryKey: traceWindowKey(s.captureId, s.channelIndex, from, to, points),
+        queryFn: () => fetchWindow(s.captureId, s.channelIndex, from, to, points),
+        enabled: width > 0,
+        placeholderData: keepPreviousData,
+        staleTime: Infinity,
+      };
+    }),
+  });
+
+  useEffect(() => {
+    const el = box.current;
+    if (!el) return;
+    const ro = new ResizeObserver(([entry]) => setWidth(Math.floor(entry.contentRect.width)));
+    ro.observe(el);
+    return () => ro.disconnect();
+  }, []);
+
+  const seriesKey = sources.map((s) => `${s.key}:${s.colour}`).join('|');
+  useEffect(() => {
+    if (!box.current || width === 0) return;
+    const series: uPlot.Series[] = [{}];
+    const bands: uPlot.Band[] = [];
+    sources.forEach((s, i) => {
+      series.push({ label: `${s.label} min`, stroke: s.colour, width: 1, spanGaps: true });
+      series.push({ label: `${s.label} max`, stroke: s.colour, width: 1, spanGaps: true });
+      bands.push({ series: [2 * i + 2, 2 * i + 1], fill: `${s.colour}33` });
+    });
+    const opts: uPlot.Options = {
+      width,
+      height,
+      padding: [22, 8, 0, 0],
+      legend: { show: false },
+      cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
+      scales: { x: { time: false } },
+      axes: [
+        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (u, splits) => timeTicks(splits, (u.scales.x.max ?? 1) - (u.scales.x.min ?? 0)) },
+        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 52, values: (_u, splits) => splits.map((v) => `${v.toFixed(2)} V`) },
+      ],
+      series,
+      bands,
+      hooks: {
+        draw: [
+          (u) => {
+            const ctx = u.ctx;
+            const dpr = devicePixelRatio || 1;
+            ctx.save();
+            ctx.textAlign = 'left';
+            ctx.textBaseline = 'alphabetic';
+            ctx.fillStyle = '#0d2133';
+            ctx.font = `600 ${Math.round(12 * dpr)}px "IBM Plex Sans", sans-serif`;
+            ctx.fillText(titleRef.current, u.bbox.left + 4 * dpr, u.bbox.top - 7 * dpr);
+            // The alignment instant.
+            const x0 = u.valToPos(0, 'x', true);
+            if (x0 >= u.bbox.left && x0 <= u.bbox.left + u.bbox.width) {
+              ctx.strokeStyle = '#c47a12';
+              ctx.setLineDash([3 * dpr, 3 * dpr]);
+              ctx.lineWidth = dpr;
+              ctx.beginPath();
+              ctx.moveTo(x0, u.bbox.top);
+              ctx.lineTo(x0, u.bbox.top + u.bbox.height);
+              ctx.stroke();
+            }
+            ctx.restore();
+          },
+        ],
+        setSelect: [
+          (u) => {
+            if (u.select.width < 4) return;
+            const from = u.posToVal(u.select.left, 'x');
+            const to = u.posToVal(u.select.left + u.select.width, 'x');
+            u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
+            onRangeRef.current({ from, to });
+          },
+        ],
+      },
+    };
+    const empty: uPlot.AlignedData = [[], ...sources.flatMap(() => [[], []])] as unknown as uPlot.AlignedData;
+    const u = new uPlot(opts, empty, box.current);
+    plot.current = u;
+    return () => {
+      u.destroy();
+      plot.current = null;
+    };
+    // The series are rebuilt when the set of traces changes, not on every render.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [width, height, seriesKey]);
+
+  const datas = windows.map((w) => w.data);
+  const data = useMemo(() => {
+    if (datas.some((d) => !d)) return null;
+    const tables = datas.map((d, i) => columns(d!, sources[i].offset));
+    return tables.length === 1 ? tables[0] : uPlot.join(tables);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [...datas, seriesKey]);
+
+  useEffect(() => {
+    const u = plot.current;
+    if (!u || !data) return;
+    u.setData(data, true);
+    u.setScale('x', { min: range.from, max: range.to });
+  }, [data, range.from, range.to, width, seriesKey]);
+
+  const error = windows.find((w) => w.isError)?.error;
+  return (
+    <div className="relative">
+      <div ref={box} className="w-full" data-testid="compare-plot" />
+      <p className="absolute right-2 top-0 text-[10px] text-harbour-500">
+        {error ? `could not load: ${(error as Error).message}` : windows.some((w) => w.isFetching) ? 'refining…' : ''}
+      </p>
+    </div>
+  );
+}

@@ -1,0 +1,36 @@
+/** One analysis parameter across the compared shots. */
+export interface ParameterRow {
+  /** Dotted path into the parameters ("threshold.level", "gates[1].position"). */
+  path: string;
+  /** The value per shot as text ("—" when the shot's analysis does not have it). */
+  values: string[];
+  /** True when not every shot has the same value. */
+  differs: boolean;
+}
+
+function flatten(value: unknown, path: string, out: Map<string, string>) {
+  if (value !== null && typeof value === 'object') {
+    const entries = Array.isArray(value) ? value.map((v, i) => [`[${i}]`, v] as const) : Object.entries(value).map(([k, v]) => [path ? `.${k}` : k, v] as const);
+    if (entries.length === 0) out.set(path, Array.isArray(value) ? '[]' : '{}');
+    for (const [key, v] of entries) flatten(v, `${path}${key}`, out);
+    return;
+  }
+  out.set(path, value === undefined ? '—' : JSON.stringify(value));
+}
+
+/**
+ * Lines the analysis parameters of several shots up path by path, so a reviewer sees at once which settings
+ * differ (a threshold, a smoothing window, a gate position). A missing analysis counts as having no parameters.
+ */
+export function parameterDifferences(parameters: (Record<string, unknown> | null)[]): ParameterRow[] {
+  const flat = parameters.map((p) => {
+    const m = new Map<string, string>();
+    if (p) flatten(p, '', m);
+    return m;
+  });
+  const paths = [...new Set(flat.flatMap((m) => [...m.keys()]))].sort();
+  return paths.map((path) => {
+    const values = flat.map((m) => m.get(path) ?? '—');
+    return { path, values, differs: values.some((v) => v !== values[0]) };
+  });
+}

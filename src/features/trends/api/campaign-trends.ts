@@ -1,0 +1,44 @@
+import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
+import { api } from '../../../lib/api-client.ts';
+import type { TrendGroupStats } from '../../../../shared/contracts/review.ts';
+
+export type GroupBy = 'seal' | 'projectile' | 'none';
+
+/** One analysed shot of the campaign (SI units). */
+export interface TrendPoint {
+  shotId: string;
+  number: number;
+  firedAt: string | null;
+  tubePressurePa: number | null;
+  sealType: string;
+  projectileId: string | null;
+  projectileName: string | null;
+  speed: number | null;
+  uncertainty: number | null;
+  method: string | null;
+  status: string;
+  analysisVersion: number;
+}
+
+export interface CampaignTrends {
+  campaign: { id: string; name: string };
+  groupBy: GroupBy;
+  points: TrendPoint[];
+  groups: TrendGroupStats[];
+}
+
+/** The group a point belongs to, by the same rule as the server's statistics. */
+export const groupKeyOf = (p: TrendPoint, groupBy: GroupBy) => (groupBy === 'seal' ? p.sealType : groupBy === 'projectile' ? p.projectileId ?? '' : 'all');
+
+/** GET /api/labs/:labId/campaigns/:campaignId/trends?groupBy=… */
+export const fetchCampaignTrends = (labId: string, campaignId: string, groupBy: GroupBy) =>
+  api.get<CampaignTrends>(`/api/labs/${labId}/campaigns/${campaignId}/trends?groupBy=${groupBy}`);
+
+export const campaignTrendsQueryOptions = (labId: string, campaignId: string, groupBy: GroupBy) =>
+  queryOptions({
+    queryKey: ['labs', labId, 'campaigns', campaignId, 'trends', groupBy] as const,
+    queryFn: () => fetchCampaignTrends(labId, campaignId, groupBy),
+    placeholderData: keepPreviousData,
+  });
+
+export const useCampaignTrends = (labId: string, campaignId: string, groupBy: GroupBy) => useQuery(campaignTrendsQueryOptions(labId, campaignId, groupBy));

@@ -1,0 +1,205 @@
+import { useMemo, useState } from 'react';
+import { Link } from 'react-router-dom';
+import { launcherModel, type LauncherPrediction } from '../../../../shared/physics/launcher-model.ts';
+import { Card, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { groupKeyOf, useCampaignTrends, type GroupBy, type TrendPoint } from '../api/campaign-trends.ts';
+import { TrendPlot, type ReferenceLine, type TrendSeries } from './trend-plot.tsx';
+
+/** Group colours: the product's harbour and signal first, then hues far enough apart to tell at a glance. */
+const GROUP_COLOURS = ['#244863', '#c47a12', '#2f7d5b', '#8e3b72', '#4d7694', '#a0522d', '#5b6b2f', '#6a4fa3'];
+const MODEL_COLOUR = '#0d2133';
+
+export interface ProjectileChoice { id: string; name: string; massKg: number; diameterM: number }
+
+const ms = (x: number | null) => (x == null ? '—' : `${x.toFixed(1)} m/s`);
+
+/** Reads a positive number typed in lab units; the message names the field and says what is wrong. */
+function positive(text: string, name: string): { value: number | null; error?: string } {
+  const t = text.trim().replace(',', '.');
+  if (t === '') return { value: null, error: `Enter the ${name}.` };
+  const x = Number(t);
+  if (!Number.isFinite(x)) return { value: null, error: `“${text}” is not a number.` };
+  if (!(x > 0)) return { value: null, error: `The ${name} must be greater than 0.` };
+  return { value: x };
+}
+
+function mostCommonProjectile(points: TrendPoint[]): string | null {
+  const counts = new Map<string, number>();
+  for (const p of points) if (p.projectileId) counts.set(p.projectileId, (counts.get(p.projectileId) ?? 0) + 1);
+  let best: string | null = null;
+  for (const [id, n] of counts) if (best == null || n > counts.get(best)!) best = id;
+  return best;
+}
+
+function LauncherInputs({ fields, set, errors }: {
+  fields: Record<'length' | 'bore' | 'mass' | 'ambientKpa' | 'ambientC', string>;
+  set: (k: keyof typeof fields, v: string) => void;
+  errors: Partial<Record<keyof typeof fields, string>>;
+}) {
+  return (
+    <div className="grid grid-cols-2 gap-3 sm:grid-cols-5">
+      <TextField label="Tube length (m)" inputMode="decimal" value={fields.length} onChange={(e) => set('length', e.target.value)} error={errors.length} />
+      <TextField label="Bore (mm)" inputMode="decimal" value={fields.bore} onChange={(e) => set('bore', e.target.value)} error={errors.bore} />
+      <TextField label="Ball mass (g)" inputMode="decimal" value={fields.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} />
+      <TextField label="Outside air (kPa)" inputMode="decimal" value={fields.ambientKpa} onChange={(e) => set('ambientKpa', e.target.value)} error={errors.ambientKpa} />
+      <TextField label="Outside air (°C)" inputMode="decimal" value={fields.ambientC} onChange={(e) => set('ambientC', e.target.value)} error={errors.ambientC} />
+    </div>
+  );
+}
+
+/**
+ * A campaign's speeds against tube vacuum level and shot number, grouped, with ±U bars, per-group statistics and
+ * the zeroth-order launcher model (Ayars & Buchholtz 2004) with its assumptions.
+ */
+export function TrendsView({ labId, campaignId, projectiles }: { labId: string; campaignId: string; projectiles: ProjectileChoice[] }) {
+  const [groupBy, setGroupBy] = useState<GroupBy>('seal');
+  const q = useCampaignTrends(labId, campaignId, groupBy);
+  const points = useMemo(() => q.data?.points ?? [], [q.data]);
+
+  const defaultBall = projectiles.find((p) => p.id === mostCommonProjectile(points)) ?? null;
+  const [edited, setEdited] = useState<Partial<Record<'length' | 'bore' | 'mass' | 'ambientKpa' | 'ambientC', string>>>({});
+  const fields = {
+    length: edited.length ?? '2',
+    bore: edited.bore ?? (defaultBall ? (defaultBall.diameterM * 1000).toFixed(1) : ''),
+    mass: edited.mass ?? (defaultBall ? (defaultBall.massKg * 1000).toFixed(2) : ''),
+    ambientKpa: edited.ambientKpa ?? '101.325',
+    ambientC: edited.ambientC ?? '20',
+  };
+  const set = (k: keyof typeof fields, v: string) => setEdited((e) => ({ ...e, [k]: v }));
+  const length = positive(fields.length, 'tube length');
+  const bore = positive(fields.bore, 'bore');
+  const mass = positive(fields.mass, 'ball mass');
+  const ambient = positive(fields.ambientKpa, 'outside air pressure');
+  const tempC = Number(fields.ambientC.trim().replace(',', '.'));
+  const tempError = fields.ambientC.trim() === '' || !Number.isFinite(tempC) ? 'Enter the outside air temperature in °C.' : tempC <= -273.15 ? 'The temperature must be above absolute zero (−273.15 °C).' : undefined;
+  const errors = { length: length.error, bore: bore.error, mass: mass.error, ambientKpa: ambient.error, ambientC: tempError };
+
+  const model = useMemo(() => {
+    if (length.value == null || bore.value == null || mass.value == null || ambient.value == null || tempError) return null;
+    const base = { tubeLength: length.value, boreDiameter: bore.value / 1000, mass: mass.value / 1000, ambientPressure: ambient.value * 1000, ambientTemperature: tempC + 273.15 };
+    const atVacuum: LauncherPrediction = launcherModel(base);
+    const measured = points.map((p) => p.tubePressurePa).filter((x): x is number => x != null && x > 0);
+    // From a decade below the best vacuum measured (or 0.1 kPa) up to just under the outside pressure.
+    const lowKpa = Math.min(0.1, ...measured.map((x) => x / 1000 / 10));
+    const highKpa = ambient.value * 0.995;
+    const n = 160;
+    const x: number[] = [];
+    const y: number[] = [];
+    for (let i = 0; i < n; i++) {
+      const kpa = lowKpa * (highKpa / lowKpa) ** (i / (n - 1));
+      x.push(kpa);
+      y.push(launcherModel({ ...base, tubePressure: kpa * 1000 }).speed);
+    }
+    return { atVacuum, x, y };
+  }, [length.value, bore.value, mass.value, ambient.value, tempC, tempError, points]);
+
+  const groupLabels = useMemo(() => new Map((q.data?.groups ?? []).map((g, i) => [g.key, { label: g.label, colour: GROUP_COLOURS[i % GROUP_COLOURS.length] }])), [q.data]);
+  const { byPressure, byNumber, leftOff } = useMemo(() => {
+    const pressure = new Map<string, TrendSeries>();
+    const number = new Map<string, TrendSeries>();
+    let skipped = 0;
+    for (const [key, g] of groupLabels) {
+      pressure.set(key, { label: g.label, colour: g.colour, points: [] });
+      number.set(key, { label: g.label, colour: g.colour, points: [] });
+    }
+    for (const p of points) {
+      if (p.speed == null) continue;
+      const key = groupKeyOf(p, groupBy);
+      number.get(key)?.points.push({ x: p.number, y: p.speed, u: p.uncertainty });
+      if (p.tubePressurePa != null && p.tubePressurePa > 0) pressure.get(key)?.points.push({ x: p.tubePressurePa / 1000, y: p.speed, u: p.uncertainty });
+      else skipped++;
+    }
+    return { byPressure: [...pressure.values()], byNumber: [...number.values()], leftOff: skipped };
+  }, [points, groupLabels, groupBy]);
+
+  const references: ReferenceLine[] = useMemo(() => (model ? [
+    { y: model.atVacuum.speedOfSound, label: `speed of sound ${model.atVacuum.speedOfSound.toFixed(1)} m/s`, colour: '#b42318' },
+    { y: model.atVacuum.gasDynamicLimit, label: `gas-dynamic limit ${model.atVacuum.gasDynamicLimit.toFixed(0)} m/s`, colour: '#7a4a06' },
+  ] : []), [model]);
+  const curve = useMemo(() => (model ? { label: 'zeroth-order model', colour: MODEL_COLOUR, x: model.x, y: model.y } : null), [model]);
+
+  if (q.isPending) return <Loading what="Loading the campaign's shots" />;
+  if (q.isError) return <ErrorNote error={q.error} />;
+  const withSpeed = points.filter((p) => p.speed != null).length;
+
+  return (
+    <div className="space-y-6">
+      <div className="flex flex-wrap items-end gap-4">
+        <div className="w-56">
+          <SelectField label="Group by" value={groupBy} onChange={(e) => setGroupBy(e.target.value as GroupBy)}>
+            <option value="seal">Seal type</option>
+            <option value="projectile">Projectile</option>
+            <option value="none">No grouping</option>
+          </SelectField>
+        </div>
+        <ul className="flex flex-wrap gap-x-4 gap-y-1 pb-2 text-sm" aria-label="Groups">
+          {[...groupLabels.values()].map((g) => (
+            <li key={g.label} className="inline-flex items-center gap-1.5"><span className="h-3 w-3 rounded-full" style={{ background: g.colour }} aria-hidden />{g.label}</li>
+          ))}
+          {model && <li className="inline-flex items-center gap-1.5"><span className="h-0 w-5 border-t-2 border-dashed" style={{ borderColor: MODEL_COLOUR }} aria-hidden />model</li>}
+        </ul>
+      </div>
+      {withSpeed === 0 && <p className="text-sm text-harbour-500">No shot of this campaign has an analysed speed yet. <Link className="underline" to={`/labs/${labId}/campaigns/${campaignId}`}>Back to the campaign</Link>.</p>}
+
+      <div className="grid gap-6 xl:grid-cols-2">
+        <Card title="Speed against tube vacuum level">
+          <TrendPlot xLabel="tube pressure before the shot (kPa, log scale)" logX series={byPressure} curve={curve} references={references} testId="trend-vacuum" />
+          <p className="mt-2 text-xs text-harbour-500">
+            Bars are ±U (k = 2).{leftOff > 0 ? ` ${leftOff} shot${leftOff === 1 ? '' : 's'} without a logged tube pressure left off this plot.` : ''}
+            {model && model.atVacuum.gasDynamicLimit > Math.max(...byPressure.flatMap((s) => s.points.map((p) => p.y + (p.u ?? 0))), model.atVacuum.speedOfSound) * 1.3 ? ` Gas-dynamic limit ${model.atVacuum.gasDynamicLimit.toFixed(0)} m/s is far above the plot.` : ''}
+          </p>
+        </Card>
+        <Card title="Speed against shot number">
+          <TrendPlot xLabel="shot number" series={byNumber} references={references.slice(0, 1)} testId="trend-number" />
+          <p className="mt-2 text-xs text-harbour-500">Bars are ±U (k = 2).</p>
+        </Card>
+      </div>
+
+      <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+        <Card title="Spread per group">
+          <table className="w-full text-sm" aria-label="Statistics per group">
+            <thead className="text-left text-xs font-semibold uppercase tracking-wide text-harbour-600">
+              <tr><th className="py-1.5 pr-2">Group</th><th className="px-2 text-right">Shots</th><th className="px-2 text-right">Mean</th><th className="px-2 text-right">SD</th><th className="pl-2 text-right">Extreme spread</th></tr>
+            </thead>
+            <tbody className="divide-y divide-harbour-100 tabular-nums">
+              {(q.data.groups ?? []).map((g) => (
+                <tr key={g.key}>
+                  <td className="py-1.5 pr-2"><span className="mr-1.5 inline-block h-2.5 w-2.5 rounded-full" style={{ background: groupLabels.get(g.key)?.colour }} aria-hidden />{g.label}</td>
+                  <td className="px-2 text-right">{g.count}</td>
+                  <td className="px-2 text-right">{ms(g.mean)}</td>
+                  <td className="px-2 text-right">{ms(g.standardDeviation)}</td>
+                  <td className="pl-2 text-right">{ms(g.extremeSpread)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+          <p className="mt-2 text-xs text-harbour-500">SD is the sample standard deviation (n − 1), shown from two shots up; extreme spread is fastest − slowest.</p>
+        </Card>
+
+        <Card title="Launcher model">
+          <div className="space-y-3">
+            <LauncherInputs fields={fields} set={set} errors={errors} />
+            {defaultBall && edited.mass == null && <p className="text-xs text-harbour-500">Bore and mass start from {defaultBall.name}, the campaign’s most used projectile.</p>}
+            {model && (
+              <p className="text-sm text-harbour-800" data-testid="model-summary">
+                v = √(2·P₀·A·L/m): <strong>{model.atVacuum.speed.toFixed(1)} m/s</strong> into a hard vacuum (P₀ = {(model.atVacuum.pressureDifference / 1000).toFixed(1)} kPa).
+                Speed of sound {model.atVacuum.speedOfSound.toFixed(1)} m/s; gas-dynamic limit 2c₀/(γ−1) = {model.atVacuum.gasDynamicLimit.toFixed(0)} m/s.
+                {' '}The model reaches the speed of sound at L = {model.atVacuum.soundSpeedLength.toFixed(2)} m{length.value != null && length.value > model.atVacuum.soundSpeedLength ? ', shorter than this tube: expect the measured speeds well below the curve' : ''}.
+              </p>
+            )}
+            <div className="rounded-md bg-harbour-50 px-3 py-2 text-xs text-harbour-700 ring-1 ring-harbour-100">
+              <p className="font-medium text-harbour-800">What the curve assumes</p>
+              <ul className="mt-1 list-disc space-y-0.5 pl-4">
+                <li>No friction and no leak past the ball.</li>
+                <li>No air left ahead of the ball beyond the logged tube pressure (which only lowers P₀ = outside − tube).</li>
+                <li>The seal opens instantly and the full outside pressure pushes the ball all the way.</li>
+                <li>It ignores the air that must rush in behind the ball, so it over-predicts, most for long tubes; real open-tube launchers stay below the speed of sound.</li>
+              </ul>
+              <p className="mt-1">Zeroth-order model of Ayars &amp; Buchholtz, Am. J. Phys. 72(7) 961 (2004); speed of sound c = √(γRT), U.S. Standard Atmosphere 1976.</p>
+            </div>
+          </div>
+        </Card>
+      </div>
+    </div>
+  );
+}
