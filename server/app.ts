@@ -13,6 +13,7 @@ import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
 import { authRoutes } from './modules/auth/routes.ts';
 import { campaignRoutes } from './modules/campaigns/routes.ts';
+import { exportRoutes } from './modules/exports/routes.ts';
 import { captureRoutes } from './modules/captures/routes.ts';
 import { healthRoutes } from './modules/health/routes.ts';
 import { invitationRoutes } from './modules/invitations/routes.ts';
@@ -20,9 +21,11 @@ import { labRoutes } from './modules/labs/routes.ts';
 import { libraryRoutes } from './modules/library/routes.ts';
 import { notificationRoutes } from './modules/notifications/routes.ts';
 import { outboxRoutes } from './modules/outbox/routes.ts';
+import { reportRoutes } from './modules/reports/routes.ts';
 import { reviewRoutes } from './modules/reviews/routes.ts';
 import { shotRoutes } from './modules/shots/routes.ts';
 import { tokenRoutes } from './modules/tokens/routes.ts';
+import { trendRoutes } from './modules/trends/routes.ts';
 
 const API_VERSION = '0.1.0';
 
@@ -43,6 +46,9 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...auditRoutes(),
     ...reviewRoutes(deps),
     ...notificationRoutes(),
+    ...exportRoutes(),
+    ...reportRoutes(deps),
+    ...trendRoutes(),
   ];
   routes.push({
     method: 'get',

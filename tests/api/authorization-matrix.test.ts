@@ -378,6 +378,22 @@ const MATRIX: Record<string, Row> = {
     prepare: () => ({ body: { jobFailed: true } }),
     shape: (b) => expect(b).toMatchObject({ preferences: { jobFailed: true } }),
   },
+  'GET /api/labs/:labId/campaigns/:campaignId/export': {
+    // CSV by default (the body is a file; tests/api/export.test.ts reads it).
+    expect: [200, 200, 200, 200, 404, 401],
+  },
+  'GET /api/shots/:shotId/export': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshAnalysedShot(h) }),
+  },
+  'GET /api/shots/:shotId/report.pdf': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshAnalysedShot(h) }),
+  },
+  'GET /api/labs/:labId/campaigns/:campaignId/trends': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toMatchObject({ groupBy: 'none', points: expect.any(Array), groups: expect.any(Array) }),
+  },
   'GET /api/openapi.json': {
     expect: [200, 200, 200, 200, 200, 200],
     shape: (b) => expect(b).toMatchObject({ openapi: '3.1.0', paths: expect.objectContaining({ '/api/shots/{shotId}/captures': expect.any(Object) }) }),

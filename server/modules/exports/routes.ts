@@ -1,0 +1,62 @@
+import type { Response } from 'express';
+import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
+import { exportQuery, type ExportQuery } from '../../../shared/contracts/review.ts';
+import { Analysis, Campaign, Shot } from '../../db/models/index.ts';
+import { recordAudit } from '../../lib/audit.ts';
+import { clientIp } from '../../lib/client-ip.ts';
+import { conflict, notFound } from '../../lib/errors.ts';
+import type { RouteDef } from '../../lib/routes.ts';
+import { labOfShot } from '../shots/routes.ts';
+import { CAMPAIGN_COLUMNS, campaignRows, SHOT_COLUMNS, shotRows } from './rows.ts';
+import { fileSlug, toCsv, type CsvValue } from './to-csv.ts';
+
+function send<K extends string>(res: Response, format: 'csv' | 'json', fileBase: string, columns: readonly (readonly [K, string])[], rows: Record<K, CsvValue>[], meta: object) {
+  res.attachment(`${fileBase}.${format}`);
+  if (format === 'json') {
+    res.type('application/json').send(JSON.stringify({ ...meta, rows }, null, 2));
+    return;
+  }
+  res.type('text/csv; charset=utf-8').send(toCsv(columns.map(([, label]) => label), rows.map((r) => columns.map(([key]) => r[key]))));
+}
+
+export function exportRoutes(): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/api/labs/:labId/campaigns/:campaignId/export',
+      access: { kind: 'lab', permission: 'lab:read' },
+      summary: "The campaign's shots and results as a CSV or JSON file (one row per shot; lab units: kPa, °C)",
+      query: exportQuery,
+      response: { status: 200, description: 'A CSV (text/csv) or JSON file, as an attachment' },
+      async handler(req, res) {
+        const { format } = res.locals.query as ExportQuery;
+        const campaign = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
+        if (!campaign) throw notFound('No such campaign.');
+        const rows = await campaignRows(campaign);
+        await recordAudit({ labId: campaign.labId, actorId: req.auth!.userId, action: 'campaign.exported', targetType: 'campaign', targetId: campaign.id, details: { format, shots: rows.length }, ip: clientIp(req) });
+        send(res, format, `${fileSlug(campaign.name)}-shots`, CAMPAIGN_COLUMNS, rows, { campaign: { id: campaign.id, name: campaign.name }, exportedAt: new Date().toISOString() });
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/shots/:shotId/export',
+      access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
+      summary: "The current analysis's gate crossings, pulses and speed lines as a CSV or JSON file (SI units)",
+      query: exportQuery,
+      response: { status: 200, description: 'A CSV (text/csv) or JSON file, as an attachment' },
+      async handler(req, res) {
+        const { format } = res.locals.query as ExportQuery;
+        const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
+        if (!shot) throw notFound('No such shot.');
+        const analysis = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
+        if (!analysis || analysis.state !== 'done') throw conflict('This shot has no finished analysis to export yet.');
+        const campaign = await Campaign.findByPk(shot.campaignId, { attributes: ['name'] });
+        const rows = shotRows(analysis.results as Partial<ShotAnalysis> | null);
+        await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.exported', targetType: 'shot', targetId: shot.id, details: { format, version: analysis.version }, ip: clientIp(req) });
+        send(res, format, `${fileSlug(campaign?.name ?? 'campaign')}-shot-${shot.number}-v${analysis.version}`, SHOT_COLUMNS, rows, {
+          shot: { id: shot.id, number: shot.number, campaign: campaign?.name ?? null }, analysisVersion: analysis.version, exportedAt: new Date().toISOString(),
+        });
+      },
+    },
+  ];
+}

@@ -1,0 +1,316 @@
+import { createRequire } from 'node:module';
+import path from 'node:path';
+import PDFDocument from 'pdfkit';
+import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
+import type { TraceWindow } from '../../traces/read-window.ts';
+
+/** One gate's trace as drawn: the window read from the stored channel files and the current analysis's marks. */
+export interface ReportTrace {
+  gateLabel: string;
+  channel: string;
+  positionM: number;
+  window: TraceWindow | null;
+  /** Crossing level used by the analysis, V (null when the channel was missed). */
+  thresholdV: number | null;
+  pulses: { start: number; end: number; width: number }[];
+  note: string | null;
+}
+
+export interface ShotReportInput {
+  labName: string;
+  campaignName: string;
+  shot: {
+    number: number;
+    firedAt: Date | null;
+    status: string;
+    tubePressurePa: number | null;
+    sealType: string;
+    ambientTemperatureK: number | null;
+    ambientPressurePa: number | null;
+    notes: string;
+  };
+  projectile: { name: string; diameterM: number; massKg: number } | null;
+  gateRigName: string | null;
+  analysis: { version: number; engineVersion: string; completedAt: Date | null; parameters: unknown; results: Partial<ShotAnalysis> | null } | null;
+  /** The time span drawn, s (same for every trace so they line up). */
+  span: { from: number; to: number } | null;
+  traces: ReportTrace[];
+  signOff: { text: string; approved: boolean };
+  generatedAt: Date;
+}
+
+const require = createRequire(import.meta.url);
+// IBM Plex Sans ships as WOFF in @fontsource, which pdfkit's font engine reads; only the Latin subset is embedded,
+// so the report keeps to Latin-1 and General Punctuation characters (no arrows, no Greek).
+const fontDir = path.join(path.dirname(require.resolve('@fontsource/ibm-plex-sans/package.json')), 'files');
+const FONT_REGULAR = path.join(fontDir, 'ibm-plex-sans-latin-400-normal.woff');
+const FONT_BOLD = path.join(fontDir, 'ibm-plex-sans-latin-600-normal.woff');
+
+const INK = '#1f2933';
+const MUTED = '#5f6b7a';
+const TRACE = '#1d4ed8';
+const MARK = '#c2410c';
+const GRID = '#d5dbe3';
+
+const SAFETY = [
+  'Projectiles at hundreds of m/s injure: fire only into a rated backstop, with the exclusion zone clear. Never at people.',
+  'Evacuated tubes can implode: rated tubing, shielding and eye protection. Burst discs and pressurised variants add pressure-vessel hazards.',
+  'The exit makes a loud report: hearing protection for everyone nearby.',
+  "The lab's own safety rules and trained supervision govern every shot; Gatepost only records it.",
+];
+
+/** Rounds U to two significant digits and the value to the same place (GUM, JCGM 100:2008, 7.2.6). */
+export function formatWithUncertainty(value: number | null | undefined, u: number | null | undefined, unit: string): string {
+  if (value == null || !Number.isFinite(value)) return '-';
+  if (u == null || !Number.isFinite(u) || u <= 0) return `${Number(value.toPrecision(6))} ${unit}`.trim();
+  const decimals = 1 - Math.floor(Math.log10(u));
+  if (decimals >= 0) return `${value.toFixed(decimals)} ± ${u.toFixed(decimals)} ${unit}`.trim();
+  // U of 100 or more: round both to U's second significant digit (5657 → 5700), not to the unit.
+  const step = 10 ** -decimals;
+  return `${Math.round(value / step) * step} ± ${Math.round(u / step) * step} ${unit}`.trim();
+}
+
+const fmt = (x: number | null | undefined, digits = 4) => (x == null || !Number.isFinite(x) ? '-' : String(Number(x.toPrecision(digits))));
+
+/** Time in the unit that suits the span drawn. */
+function timeUnit(span: number): { scale: number; unit: string } {
+  if (span < 2e-3) return { scale: 1e6, unit: 'µs' };
+  if (span < 2) return { scale: 1e3, unit: 'ms' };
+  return { scale: 1, unit: 's' };
+}
+
+function flatten(value: unknown, prefix = '', out: [string, string][] = []): [string, string][] {
+  if (value && typeof value === 'object' && !Array.isArray(value)) {
+    for (const [k, v] of Object.entries(value as Record<string, unknown>)) flatten(v, prefix ? `${prefix}.${k}` : k, out);
+  } else if (Array.isArray(value) && value.some((v) => v && typeof v === 'object')) {
+    value.forEach((v, i) => flatten(v, `${prefix}[${i}]`, out));
+  } else {
+    out.push([prefix, Array.isArray(value) ? value.join(', ') : String(value)]);
+  }
+  return out;
+}
+
+/**
+ * The printable shot report as a PDF: conditions, result with U and k, uncertainty budget, the annotated traces
+ * drawn as vector paths, the analysis version and its parameters, the review sign-off and the launcher safety note.
+ */
+export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
+  const doc = new PDFDocument({
+    size: 'A4',
+    margins: { top: 48, bottom: 48, left: 50, right: 50 },
+    info: { Title: `Shot ${input.shot.number}, ${input.campaignName}`, Author: input.labName, Creator: 'Gatepost' },
+    bufferPages: true,
+  });
+  const chunks: Buffer[] = [];
+  doc.on('data', (c: Buffer) => chunks.push(c));
+  const done = new Promise<Buffer>((resolve, reject) => {
+    doc.on('end', () => resolve(Buffer.concat(chunks)));
+    doc.on('error', reject);
+  });
+  doc.registerFont('regular', FONT_REGULAR);
+  doc.registerFont('bold', FONT_BOLD);
+  const left = doc.page.margins.left;
+  const width = doc.page.width - left - doc.page.margins.right;
+
+  const heading = (text: string) => {
+    if (doc.y > doc.page.height - 140) doc.addPage();
+    doc.moveDown(0.6).font('bold').fontSize(12).fillColor(INK).text(text, left, doc.y);
+    doc.moveTo(left, doc.y + 2).lineTo(left + width, doc.y + 2).lineWidth(0.5).strokeColor(GRID).stroke();
+    doc.moveDown(0.4);
+  };
+  const table = (rows: [string, string][], labelWidth = 170) => {
+    for (const [label, value] of rows) {
+      if (doc.y > doc.page.height - 70) doc.addPage();
+      const y = doc.y;
+      doc.font('regular').fontSize(9.5).fillColor(MUTED).text(label, left, y, { width: labelWidth - 8 });
+      const afterLabel = doc.y;
+      doc.fillColor(INK).text(value, left + labelWidth, y, { width: width - labelWidth });
+      doc.y = Math.max(afterLabel, doc.y) + 2;
+    }
+  };
+
+  // Title block.
+  doc.font('bold').fontSize(18).fillColor(INK).text(`Shot ${input.shot.number}`, left, doc.y);
+  doc.font('regular').fontSize(11).fillColor(MUTED).text(`${input.campaignName} - ${input.labName}`);
+  doc.fontSize(8.5).text(`Report generated ${input.generatedAt.toISOString().replace('T', ' ').slice(0, 16)} UTC by Gatepost`);
+
+  const s = input.shot;
+  heading('Conditions');
+  table([
+    ['Fired at', s.firedAt ? `${s.firedAt.toISOString().replace('T', ' ').slice(0, 19)} UTC` : 'not logged'],
+    ['Status', s.status.replace('_', ' ')],
+    ['Tube pressure', s.tubePressurePa == null ? 'not logged' : `${fmt(s.tubePressurePa / 1000)} kPa`],
+    ['Seal', s.sealType || 'not logged'],
+    ['Ambient temperature', s.ambientTemperatureK == null ? 'not logged' : `${(s.ambientTemperatureK - 273.15).toFixed(1)} °C`],
+    ['Ambient pressure', s.ambientPressurePa == null ? 'not logged' : `${(s.ambientPressurePa / 1000).toFixed(1)} kPa`],
+    ['Projectile', input.projectile ? `${input.projectile.name} (${fmt(input.projectile.diameterM * 1000)} mm, ${fmt(input.projectile.massKg * 1000)} g)` : 'not logged'],
+    ['Gate rig', input.gateRigName ?? 'not logged'],
+    ...(s.notes ? [['Notes', s.notes] as [string, string]] : []),
+  ]);
+
+  const results = input.analysis?.results ?? null;
+  const speed = results?.speed ?? null;
+  heading('Result');
+  if (!speed) {
+    doc.font('regular').fontSize(10).fillColor(INK).text(input.analysis ? 'No speed was measured in the current analysis.' : 'This shot has no finished analysis.');
+  } else {
+    doc.font('bold').fontSize(16).fillColor(INK).text(formatWithUncertainty(speed.value, speed.uncertainty, 'm/s'));
+    doc.font('regular').fontSize(9).fillColor(MUTED).text(`Expanded uncertainty U = k·u_c with coverage factor k = ${speed.coverage ?? '-'} (about 95 %); u_c = ${fmt(speed.standardUncertainty, 3)} m/s.`);
+    doc.moveDown(0.3);
+    const derived = results?.derived;
+    table([
+      ['Method', `${speed.method === 'flight' ? 'time of flight' : 'occlusion'} (${speed.basis === 'fit' ? 'constant-deceleration fit' : speed.basis === 'pair' ? 'one gate pair' : 'one gate'})`],
+      ...(results?.fit ? [['Deceleration', formatWithUncertainty(results.fit.deceleration, results.fit.decelerationUncertainty, 'm/s²')] as [string, string]] : []),
+      ['Mach number', derived?.mach ? formatWithUncertainty(derived.mach.value, derived.mach.uncertainty, '') : '-'],
+      ['Kinetic energy', derived?.kineticEnergy ? formatWithUncertainty(derived.kineticEnergy.value, derived.kineticEnergy.uncertainty, 'J') : '-'],
+      ...(results?.flight ?? []).map((f) => [`Flight ${f.from.channel} to ${f.to.channel}`, formatWithUncertainty(f.speed, f.uncertainty, 'm/s')] as [string, string]),
+    ]);
+    heading('Uncertainty budget');
+    const cols = [left, left + 250, left + 380];
+    doc.font('bold').fontSize(9).fillColor(MUTED);
+    const hy = doc.y;
+    doc.text('Source', cols[0], hy).text('Contribution to u_c (m/s)', cols[1], hy).text('Share of variance', cols[2], hy);
+    doc.font('regular').fillColor(INK);
+    for (const line of speed.budget ?? []) {
+      const y = doc.y + 2;
+      doc.text(line.group, cols[0], y, { width: 240 });
+      doc.text(fmt(line.contribution, 3), cols[1], y).text(`${(line.share * 100).toFixed(1)} %`, cols[2], y);
+    }
+  }
+
+  heading('Review sign-off');
+  doc.font(input.signOff.approved ? 'bold' : 'regular').fontSize(10.5).fillColor(input.signOff.approved ? '#166534' : INK).text(input.signOff.text, left, doc.y, { width });
+
+  // Traces: one panel per gate on a shared time axis, so the crossings line up from gate to gate.
+  doc.addPage();
+  heading('Annotated traces');
+  if (!input.span || input.traces.length === 0) {
+    doc.font('regular').fontSize(10).fillColor(INK).text('No traces to draw: the shot has no analysed capture.');
+  } else {
+    const { from, to } = input.span;
+    const tu = timeUnit(to - from);
+    doc.font('regular').fontSize(8.5).fillColor(MUTED).text(
+      `Signal in volts against time in ${tu.unit}. Dashed: the crossing level of the analysis. Orange: the beam blocked (leading edge) and clear again (trailing edge), with the pulse width.`,
+      left, doc.y, { width },
+    );
+    doc.moveDown(0.5);
+    const plotLeft = left + 42;
+    const plotWidth = width - 42;
+    const panelHeight = Math.min(110, (doc.page.height - doc.y - 110) / input.traces.length - 26);
+    const xOf = (t: number) => plotLeft + ((t - from) / (to - from)) * plotWidth;
+    for (const trace of input.traces) {
+      const top = doc.y + 14;
+      doc.font('bold').fontSize(9).fillColor(INK).text(`Gate ${trace.gateLabel}: ${trace.channel} at ${fmt(trace.positionM)} m`, left, doc.y);
+      const values: number[] = [];
+      const w = trace.window;
+      if (w?.raw) for (const v of w.v) if (v != null) values.push(v);
+      if (w && !w.raw) for (let j = 0; j < w.min.length; j++) if (w.min[j] != null) values.push(w.min[j]!, w.max[j]!);
+      let lo = Math.min(...values, trace.thresholdV ?? Infinity);
+      let hi = Math.max(...values, trace.thresholdV ?? -Infinity);
+      if (!Number.isFinite(lo) || !Number.isFinite(hi)) [lo, hi] = [0, 1];
+      if (hi - lo < 1e-9) [lo, hi] = [lo - 0.5, hi + 0.5];
+      const pad = (hi - lo) * 0.1;
+      [lo, hi] = [lo - pad, hi + pad];
+      const yOf = (v: number) => top + panelHeight - ((v - lo) / (hi - lo)) * panelHeight;
+      doc.rect(plotLeft, top, plotWidth, panelHeight).lineWidth(0.5).strokeColor(GRID).stroke();
+      doc.font('regular').fontSize(7).fillColor(MUTED);
+      for (const v of [lo + pad, hi - pad]) {
+        doc.text(`${fmt(v, 3)} V`, left, yOf(v) - 3, { width: 40, align: 'right' });
+        doc.moveTo(plotLeft, yOf(v)).lineTo(plotLeft + plotWidth, yOf(v)).lineWidth(0.3).strokeColor(GRID).stroke();
+      }
+      doc.save().rect(plotLeft, top, plotWidth, panelHeight).clip();
+      if (w?.raw) {
+        let pen = false;
+        for (let i = 0; i < w.t.length; i++) {
+          const v = w.v[i];
+          if (v == null) {
+            pen = false;
+            continue;
+          }
+          if (pen) doc.lineTo(xOf(w.t[i]), yOf(v));
+          else doc.moveTo(xOf(w.t[i]), yOf(v));
+          pen = true;
+        }
+        doc.lineWidth(0.8).strokeColor(TRACE).stroke();
+      } else if (w) {
+        // Min/max columns: each drawn as a vertical stroke from min to max, joined to the next column, so a fast
+        // edge inside one column still shows its full swing.
+        let pen = false;
+        for (let j = 0; j < w.min.length; j++) {
+          const mn = w.min[j];
+          const mx = w.max[j];
+          if (mn == null || mx == null) {
+            pen = false;
+            continue;
+          }
+          const x = xOf(w.t0 + (j + 0.5) * w.dt);
+          if (pen) doc.lineTo(x, yOf(mx));
+          else doc.moveTo(x, yOf(mx));
+          doc.lineTo(x, yOf(mn));
+          pen = true;
+        }
+        doc.lineWidth(0.8).strokeColor(TRACE).stroke();
+      }
+      if (trace.thresholdV != null) {
+        doc.moveTo(plotLeft, yOf(trace.thresholdV)).lineTo(plotLeft + plotWidth, yOf(trace.thresholdV)).dash(3, { space: 2 }).lineWidth(0.6).strokeColor(MUTED).stroke().undash();
+      }
+      for (const p of trace.pulses) {
+        for (const t of [p.start, p.end]) doc.moveTo(xOf(t), top).lineTo(xOf(t), top + panelHeight).lineWidth(0.8).strokeColor(MARK).stroke();
+        const yb = top + 6;
+        doc.moveTo(xOf(p.start), yb).lineTo(xOf(p.end), yb).lineWidth(0.8).strokeColor(MARK).stroke();
+      }
+      doc.restore();
+      doc.font('regular').fontSize(7.5).fillColor(MARK);
+      for (const p of trace.pulses) {
+        const label = `width ${fmt(p.width * tu.scale)} ${tu.unit}`;
+        const x = Math.min(xOf(p.end) + 3, plotLeft + plotWidth - 80);
+        doc.text(label, x, top + 10, { width: 80, lineBreak: false });
+        doc.text(`${fmt(p.start * tu.scale, 6)} ${tu.unit}`, Math.max(plotLeft + 2, xOf(p.start) - 62), top + panelHeight - 10, { width: 60, align: 'right', lineBreak: false });
+      }
+      if (trace.note) doc.fillColor(MUTED).text(trace.note, plotLeft + 4, top + panelHeight - 10, { width: plotWidth - 8, lineBreak: false });
+      doc.y = top + panelHeight + 12;
+    }
+    // Shared time axis under the last panel.
+    doc.font('regular').fontSize(7.5).fillColor(MUTED);
+    const ay = doc.y - 8;
+    for (let i = 0; i <= 4; i++) {
+      const t = from + ((to - from) * i) / 4;
+      doc.text(fmt(t * tu.scale, 5), xOf(t) - 30, ay, { width: 60, align: 'center', lineBreak: false });
+    }
+    doc.text(`time (${tu.unit})`, plotLeft, ay + 10, { width: plotWidth, align: 'center' });
+  }
+
+  heading('Analysis');
+  if (!input.analysis) {
+    doc.font('regular').fontSize(10).fillColor(INK).text('No finished analysis.');
+  } else {
+    const a = input.analysis;
+    table([
+      ['Version', String(a.version)],
+      ['Engine', a.engineVersion],
+      ['Completed', a.completedAt ? `${a.completedAt.toISOString().replace('T', ' ').slice(0, 19)} UTC` : '-'],
+    ]);
+    doc.moveDown(0.3).font('bold').fontSize(9).fillColor(MUTED).text('Parameters (SI units: m, kg, K, s, V; percent where named)', left, doc.y);
+    const params = flatten(a.parameters);
+    table(params.length > 0 ? params : [['(none)', 'engine defaults']], 200);
+    for (const warning of results?.warnings ?? []) doc.font('regular').fontSize(8.5).fillColor(MARK).text(`Note: ${warning}`, left, doc.y, { width });
+  }
+
+  heading('Launcher safety');
+  doc.font('regular').fontSize(8.5).fillColor(INK);
+  for (const line of SAFETY) doc.text(`- ${line}`, left, doc.y, { width });
+
+  const range = doc.bufferedPageRange();
+  for (let i = 0; i < range.count; i++) {
+    doc.switchToPage(range.start + i);
+    const bottom = doc.page.margins.bottom;
+    doc.page.margins.bottom = 0;
+    doc.font('regular').fontSize(7.5).fillColor(MUTED).text(
+      `${input.labName} - ${input.campaignName}, shot ${input.shot.number} - page ${i + 1} of ${range.count}`,
+      left, doc.page.height - 30, { width, align: 'center', lineBreak: false },
+    );
+    doc.page.margins.bottom = bottom;
+  }
+  doc.end();
+  return done;
+}
