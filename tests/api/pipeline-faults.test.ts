@@ -90,6 +90,19 @@ function jobsDone(handles: ChildHandle[]): Map<string, number> {
   return counts;
 }
 
+/**
+ * Waits until each of `ids` has been logged done by one of `handles` (the log line follows the row's final write by
+ * a moment), then a little longer so a late second run would show, and returns the counts.
+ */
+async function jobsDoneSettled(handles: ChildHandle[], ids: string[]): Promise<Map<string, number>> {
+  await pollUntil(async () => {
+    const done = jobsDone(handles);
+    return ids.every((id) => done.has(id)) ? true : undefined;
+  }, { timeoutMs: 10_000, what: `"job done" lines for ${ids.join(', ')}` });
+  await new Promise((resolve) => setTimeout(resolve, 500));
+  return jobsDone(handles);
+}
+
 /** SIGKILL to the worker's whole process group (tsx runs the script in a child node process, with its threads). */
 async function killWorker(worker: ChildHandle): Promise<void> {
   process.kill(-worker.pid, 'SIGKILL');
@@ -140,7 +153,7 @@ describe('When the worker is killed with SIGKILL in the middle of a job', () => 
     const speed = shot.currentAnalysis!.results!.speed!;
     expect(Math.abs(speed.value - BIG_CAPTURE_SHOT.speed)).toBeLessThanOrEqual(speed.uncertainty);
 
-    const done = jobsDone([first, second, third]);
+    const done = await jobsDoneSettled([first, second, third], [`ingest-${captureId}-1`, `analysis-${analysisId}`]);
     expect(done.get(`ingest-${captureId}-1`)).toBe(1);
     expect(done.get(`analysis-${analysisId}`)).toBe(1);
     // The ingest finished in the second worker, the analysis in the third: the killed ones finished nothing of these.
@@ -175,7 +188,7 @@ describe('When two worker processes share the queue', () => {
       expect(Math.abs(speed.value - (280 + 5 * i))).toBeLessThanOrEqual(speed.uncertainty);
       jobIds.push(`ingest-${captureId}-1`, `analysis-${shot.analyses[0].id}`);
     }
-    const done = jobsDone([current, extra]);
+    const done = await jobsDoneSettled([current, extra], jobIds);
     for (const id of jobIds) expect(done.get(id), id).toBe(1);
     const byExtra = jobIds.filter((id) => jobsDone([extra]).has(id)).length;
     console.log(`two workers: ${jobIds.length - byExtra} jobs ran in worker ${current.pid}, ${byExtra} in worker ${extra.pid}`);
