@@ -1,5 +1,6 @@
 // Faults of the upload-to-result pipeline with real processes: a worker killed with SIGKILL in the middle of an
-// ingest and of an analysis, two workers sharing one queue, and PostgreSQL stopped under a running API. The API
+// ingest and of an analysis, two workers sharing one queue, Redis and then PostgreSQL stopped under a running API
+// and worker (each started again the way scripts/with-services.sh started it, in a finally). The API
 // server and the workers are spawned (tests/helpers/app-processes.ts) against the throwaway services of
 // scripts/with-services.sh and spoken to over HTTP only. A short job lock (2 s) makes stalled-job recovery quick:
 // the lock is set by the worker that holds the job, so every worker of this file gets it.
