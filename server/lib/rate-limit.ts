@@ -62,6 +62,35 @@ export class LoginLimiter {
       .exec();
   }
 
+  /**
+   * Counts this attempt before the (slow) password check and says whether it may go ahead. Counting first is what
+   * stops parallel guesses: with check-then-record, ten simultaneous wrong passwords all pass the check before any
+   * failure is recorded. A successful sign-in gives its count back with `release`.
+   */
+  async reserve(email: string, address: string): Promise<LimitState> {
+    const k = this.keys(email, address);
+    const replies = await this.redis
+      .multi()
+      .set(k.account, '0', 'EX', this.windowSeconds, 'NX')
+      .incr(k.account)
+      .set(k.address, '0', 'EX', this.windowSeconds, 'NX')
+      .incr(k.address)
+      .ttl(k.account)
+      .ttl(k.address)
+      .exec();
+    const value = (i: number) => Number(replies?.[i]?.[1] ?? 0);
+    const accountBlocked = value(1) > this.maxFailures;
+    const addressBlocked = value(3) > this.maxFailuresPerAddress;
+    if (!accountBlocked && !addressBlocked) return { blocked: false, retryAfterSeconds: 0 };
+    return { blocked: true, retryAfterSeconds: Math.max(1, accountBlocked ? value(4) : 0, addressBlocked ? value(5) : 0) };
+  }
+
+  /** After a successful sign-in: the account's count starts again; the address gives back this one attempt. */
+  async release(email: string, address: string): Promise<void> {
+    const k = this.keys(email, address);
+    await this.redis.multi().del(k.account).decr(k.address).exec();
+  }
+
   async recordSuccess(email: string): Promise<void> {
     await this.redis.del(`gp:login-fail:acct:${email}`);
   }

@@ -17,6 +17,13 @@ export const demoAccounts: DemoAccount[] = JSON.parse(
 ) as DemoAccount[];
 
 const kPa = 1000;
+
+// The demo accounts share two passwords; hashing each once per process keeps repeated seeding (tests) cheap.
+const hashes = new Map<string, Promise<string>>();
+const demoHash = (password: string) => {
+  if (!hashes.has(password)) hashes.set(password, hashPassword(password));
+  return hashes.get(password)!;
+};
 const celsius = (c: number) => c + 273.15;
 
 /** Seeds the demo labs when they are absent; returns false when they already exist (a second start changes nothing). */
@@ -29,7 +36,7 @@ export async function seedDemo(sequelize: Sequelize): Promise<boolean> {
     const users: Record<string, User> = {};
     for (const account of demoAccounts) {
       const user = await User.create(
-        { email: account.email, name: account.name, passwordHash: await hashPassword(account.password) },
+        { email: account.email, name: account.name, passwordHash: await demoHash(account.password) },
         { transaction },
       );
       users[account.email] = user;

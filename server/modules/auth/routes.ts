@@ -35,7 +35,7 @@ export function authRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const { email, password } = req.body as LoginBody;
         const ip = clientIp(req);
-        const limit = await deps.loginLimiter.check(email, ip);
+        const limit = await deps.loginLimiter.reserve(email, ip);
         if (limit.blocked) {
           res.set('Retry-After', String(limit.retryAfterSeconds));
           const minutes = Math.ceil(limit.retryAfterSeconds / 60);
@@ -47,11 +47,10 @@ export function authRoutes(deps: Deps): RouteDef[] {
         const user = await User.findOne({ where: { email } });
         const ok = user && !user.disabledAt ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
         if (!ok || !user) {
-          await deps.loginLimiter.recordFailure(email, ip);
           await recordAudit({ labId: null, actorId: user?.id ?? null, action: 'auth.login_failed', details: { email }, ip });
           throw new AppError(401, 'invalid_credentials', 'That e-mail and password do not match an account.');
         }
-        await deps.loginLimiter.recordSuccess(email);
+        await deps.loginLimiter.release(email, ip);
         const expiresAt = startSession(res, deps, user.id);
         await recordAudit({ labId: null, actorId: user.id, action: 'auth.login', ip });
         res.json(await meView(user.id, 'session', expiresAt));

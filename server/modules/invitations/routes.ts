@@ -158,12 +158,15 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
         const ip = clientIp(req);
         let user = await User.findOne({ where: { email: invitation.email } });
         if (user) {
-          const limit = await deps.loginLimiter.check(invitation.email, ip);
-          if (limit.blocked) throw tooManyRequests('Too many failed attempts. Try again later.', limit.retryAfterSeconds);
+          const limit = await deps.loginLimiter.reserve(invitation.email, ip);
+          if (limit.blocked) {
+            res.set('Retry-After', String(limit.retryAfterSeconds));
+            throw tooManyRequests('Too many failed attempts. Try again later.', limit.retryAfterSeconds);
+          }
           if (!(await verifyPassword(user.passwordHash, password))) {
-            await deps.loginLimiter.recordFailure(invitation.email, ip);
             throw new AppError(401, 'invalid_credentials', `${invitation.email} already has an account: enter its password to join ${lab.name}.`);
           }
+          await deps.loginLimiter.release(invitation.email, ip);
         } else {
           if (!name) throw new AppError(400, 'bad_request', 'Please correct the request: name: Enter your name.');
           parseInput(newPasswordSchema, password);

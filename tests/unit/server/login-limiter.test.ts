@@ -119,4 +119,29 @@ describe('LoginLimiter', () => {
     expect(() => new LoginLimiter(redis, { windowSeconds: 0 })).toThrow(new RangeError('windowSeconds must be at least 1'));
     expect(() => new LoginLimiter(redis, { maxFailures: Number.NaN })).toThrow(RangeError);
   });
+
+  it('When attempts are reserved before the password check, then the one past maxFailures is refused with the remaining window', async () => {
+    // Arrange
+    const limiter = new LoginLimiter(redis, { maxFailures: 3, windowSeconds: 60 });
+    // Act: three attempts go ahead, the fourth (even if its password would be right) is refused
+    const states = [];
+    for (let i = 0; i < 4; i++) states.push(await limiter.reserve(ACCOUNT, ADDRESS));
+    // Assert
+    expect(states.map((s) => s.blocked)).toEqual([false, false, false, true]);
+    expect(states[3].retryAfterSeconds).toBe(60);
+    expect(await redis.get(accountKey(ACCOUNT))).toBe('4');
+    expect(await redis.ttl(accountKey(ACCOUNT))).toBe(60);
+  });
+
+  it('When a reserved attempt succeeds, then release clears the account and gives the address its attempt back', async () => {
+    // Arrange
+    const limiter = new LoginLimiter(redis, { maxFailures: 3, windowSeconds: 60 });
+    await limiter.reserve(ACCOUNT, ADDRESS);
+    await limiter.reserve(ACCOUNT, ADDRESS);
+    // Act
+    await limiter.release(ACCOUNT, ADDRESS);
+    // Assert
+    expect(await redis.exists(accountKey(ACCOUNT))).toBe(0);
+    expect(await redis.get(addressKey(ADDRESS))).toBe('1');
+  });
 });
