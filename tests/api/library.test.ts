@@ -98,7 +98,7 @@ describe('projectiles', () => {
     // Assert
     expect(res.status).toBe(409);
     expect(res.body.error.message).toContain('used by 1 signed-off shot');
-    expect(res.body.error.message).toContain('diameterM');
+    expect(res.body.error.message).toContain('(diameter)');
     expect(res.body.error.message).toContain('Save your values as a new entry');
     await p.reload();
     expect(p.diameterM).toBe(0.04);
@@ -194,7 +194,7 @@ describe('gate rigs', () => {
     const moved = rig(r.name).gates.map((g, i) => ({ ...g, position_m: i * 0.16 }));
     const res = await request(h.app).patch(`/api/labs/${lab()}/gate-rigs/${r.id}`).set(as('analyst')).send({ gates: moved, beamWidthM: 0.002 });
     expect(res.status).toBe(409);
-    expect(res.body.error.message).toMatch(/^This gate rig is used by 1 signed-off shot, so its measured values \(gates, beamWidthM\) cannot change\. Save your values as a new entry/);
+    expect(res.body.error.message).toMatch(/^This gate rig is used by 1 signed-off shot, so its measured values \(gates, beam width\) cannot change\. Save your values as a new entry/);
     // Key order differs from what PostgreSQL's jsonb returns; it is still the same gates.
     const same = rig(r.name).gates.map((g) => ({ position_uncertainty_m: g.position_uncertainty_m, position_m: g.position_m, label: g.label }));
     const ok = await request(h.app).patch(`/api/labs/${lab()}/gate-rigs/${r.id}`).set(as('analyst')).send({ gates: same, notes: 'Rail re-measured, unchanged' });

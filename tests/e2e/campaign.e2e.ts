@@ -69,7 +69,7 @@ const campaignUrl = () => `${app.baseUrl}/labs/${harness.demo.labs.hollowmere.id
 const shotTable = (page: Page) => page.getByRole('table', { name: 'Shots' });
 /** Shot numbers of the table's rows, top to bottom. */
 const rowNumbers = async (page: Page) =>
-  (await shotTable(page).locator('tbody tr td:first-child').allTextContents()).map((t) => Number(t.replace('#', '')));
+  (await shotTable(page).locator('tbody tr td:first-child a').allTextContents()).map((t) => Number(t.replace('#', '')));
 /** Waits until the table shows exactly these shot numbers (the server answers each change). */
 async function expectRows(page: Page, expected: number[]) {
   await expect.poll(() => rowNumbers(page), { timeout: 10_000 }).toEqual(expected);
@@ -134,6 +134,10 @@ describe('campaign page', () => {
       await saveScreenshot(page, 'campaign-search-foil-laptop');
       await page.getByRole('button', { name: 'Clear', exact: true }).click();
       await expectRows(page, [9, 8, 7, 6, 5, 4, 3, 2, 1]);
+      // The box empties too, and its pending search (debounced 300 ms) does not come back.
+      expect(await page.getByLabel('Search notes and seal type').inputValue()).toBe('');
+      await page.waitForTimeout(600);
+      expect(new URL(page.url()).searchParams.get('q')).toBeNull();
 
       // Tube pressure, lowest first: 0.9 kPa (shot 9), then the demo sweep 1.1 … 12 kPa (shots 8 … 1).
       await page.getByRole('button', { name: /^Tube/ }).click();
@@ -162,6 +166,11 @@ describe('campaign page', () => {
       await signIn(page, harness.demo.users.experimenter);
       await page.goto(campaignUrl());
       await shotTable(page).waitFor();
+      // Narrow screens fold fired time, seal and review into their neighbours, and offer the order as a menu.
+      await page.getByLabel('Sort by').selectOption('speed:desc');
+      await expectRows(page, [5, 4, 3, 2, 1, 9, 8, 7, 6]);
+      const sideways = await shotTable(page).evaluate((t) => t.scrollWidth - t.parentElement!.clientWidth);
+      expect(sideways, 'the shot table scrolls sideways at 820 px').toBeLessThanOrEqual(0);
       await saveScreenshot(page, 'campaign-table-tablet');
       await page.getByRole('button', { name: 'New shot' }).click();
       await page.getByRole('form', { name: 'New shot' }).waitFor();

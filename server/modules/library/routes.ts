@@ -58,12 +58,17 @@ function changedFields(current: Record<string, unknown>, patch: Record<string, u
  * A signed-off shot's numbers were computed from these values: changing them in place would make the library say
  * something else than what the signed-off result used. Names, material and notes may still be corrected.
  */
+const FIELD_WORDS: Record<string, string> = {
+  diameterM: 'diameter', diameterToleranceM: 'diameter tolerance', massKg: 'mass', massToleranceKg: 'mass tolerance',
+  gates: 'gates', beamWidthM: 'beam width', sensorType: 'sensor type',
+};
+
 async function assertNoSignedOffUse(kind: 'projectile' | 'gate rig', column: 'projectileId' | 'gateRigId', id: string, labId: string, fields: string[]) {
   if (fields.length === 0) return;
   const signedOff = await Shot.count({ where: { labId, [column]: id, status: 'approved' } });
   if (signedOff > 0) {
     throw conflict(
-      `This ${kind} is used by ${signedOff} signed-off shot${signedOff === 1 ? '' : 's'}, so its measured values (${fields.join(', ')}) cannot change. ` +
+      `This ${kind} is used by ${signedOff} signed-off shot${signedOff === 1 ? '' : 's'}, so its measured values (${fields.map((f) => FIELD_WORDS[f] ?? f).join(', ')}) cannot change. ` +
         `Save your values as a new entry instead (use a new name), and pick it for new shots.`,
     );
   }

@@ -24,6 +24,17 @@ function methodLabel(speed: NonNullable<ShotListRow['speed']>): string {
   return speed.method === 'flight' ? 'time of flight' : (speed.method ?? '');
 }
 
+const reviewWords = (r: NonNullable<ShotListRow['review']>) => `${r.decision === 'approved' ? 'Approved' : 'Sent back'} ${formatDate(r.decidedAt)}`;
+
+/** Words for each order in the narrow-screen sort menu: [ascending, descending]. */
+const SORT_CHOICES: Record<ShotSortField, [string, string]> = {
+  number: ['Shot number, first shot first', 'Shot number, latest first'],
+  firedAt: ['Time fired, oldest first', 'Time fired, newest first'],
+  tubePressure: ['Tube pressure, best vacuum first', 'Tube pressure, highest first'],
+  speed: ['Speed, slowest first', 'Speed, fastest first'],
+  status: ['Status, awaiting files first', 'Status, signed off first'],
+};
+
 /** Most columns read best smallest first; speeds are compared fastest first. */
 const FIRST_DIRECTION: Record<ShotSortField, SortDirection> = { number: 'desc', firedAt: 'desc', tubePressure: 'asc', speed: 'desc', status: 'asc' };
 
@@ -70,12 +81,26 @@ function SortHeader({ field, label, params, onSort, align = 'left', className = 
 
 function SearchBox({ value, onChange }: { value: string; onChange: (q: string) => void }) {
   const [text, setText] = useState(value);
+  const [seen, setSeen] = useState(value);
+  const [sent, setSent] = useState(value);
+  // The address changed from outside the box (Clear, back button): show that, unless it is what the box just sent
+  // (the person may have typed on since).
+  if (value !== seen) {
+    setSeen(value);
+    if (value !== sent) {
+      setText(value);
+      setSent(value);
+    }
+  }
   // A request per keystroke would refetch the table while the person is still typing.
   useEffect(() => {
-    if (text === value) return;
-    const t = setTimeout(() => onChange(text), 300);
+    if (text === sent) return;
+    const t = setTimeout(() => {
+      setSent(text);
+      onChange(text);
+    }, 300);
     return () => clearTimeout(t);
-  }, [text, value, onChange]);
+  }, [text, sent, onChange]);
   return (
     <input
       type="search"
@@ -92,12 +117,7 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
   const navigate = useNavigate();
   const { params, page, update } = useShotTableParams(campaignId);
   const list = useShotList(labId, params);
-  // A new key empties the search box when the search is cleared from outside it.
-  const [searchKey, setSearchKey] = useState(0);
-  const clear = () => {
-    setSearchKey((k) => k + 1);
-    update({ q: null, status: null });
-  };
+  const clear = () => update({ q: null, status: null });
   const filtered = params.q !== '' || params.status !== '';
   const onSort = (field: ShotSortField) =>
     update({ sort: field, dir: params.sort === field ? (params.direction === 'asc' ? 'desc' : 'asc') : FIRST_DIRECTION[field] });
@@ -108,7 +128,7 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
   return (
     <div className="space-y-4">
       <div className="flex flex-wrap items-center gap-3">
-        <SearchBox key={searchKey} value={params.q} onChange={(q) => update({ q })} />
+        <SearchBox value={params.q} onChange={(q) => update({ q })} />
         <select
           aria-label="Status"
           value={params.status}
@@ -117,6 +137,20 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
         >
           <option value="">Every status</option>
           {Object.entries(STATUS_LABELS).map(([value, s]) => <option key={value} value={value}>{s.label}</option>)}
+        </select>
+        {/* Narrow screens hide some column headers; the order can still be chosen here. */}
+        <select
+          aria-label="Sort by"
+          value={`${params.sort}:${params.direction}`}
+          onChange={(e) => {
+            const [sort, dir] = e.target.value.split(':');
+            update({ sort, dir });
+          }}
+          className="block rounded-md border-0 bg-white px-3 py-2 text-sm ring-1 ring-harbour-200 focus:ring-2 focus:ring-harbour-600 lg:hidden"
+        >
+          {SHOT_SORT_FIELDS.flatMap((f) => (['desc', 'asc'] as const).map((d) => (
+            <option key={`${f}:${d}`} value={`${f}:${d}`}>{SORT_CHOICES[f][d === 'asc' ? 0 : 1]}</option>
+          )))}
         </select>
         {filtered && <Button variant="ghost" onClick={clear}>Clear</Button>}
         {list.isFetching && !list.isPending && <span role="status" className="text-xs text-harbour-500">Updating…</span>}
@@ -145,12 +179,12 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
               <thead className="text-left text-xs uppercase tracking-wide text-harbour-500">
                 <tr>
                   <SortHeader field="number" label="Shot" params={params} onSort={onSort} className="pl-5" />
-                  <SortHeader field="firedAt" label="Fired" params={params} onSort={onSort} />
+                  <SortHeader field="firedAt" label="Fired" params={params} onSort={onSort} className="hidden lg:table-cell" />
                   <SortHeader field="tubePressure" label="Tube" params={params} onSort={onSort} align="right" />
-                  <th scope="col" className="px-3 py-2 font-medium">Seal · ambient</th>
+                  <th scope="col" className="hidden px-3 py-2 font-medium lg:table-cell">Seal · ambient</th>
                   <SortHeader field="speed" label="Speed ± U" params={params} onSort={onSort} align="right" />
                   <SortHeader field="status" label="Status" params={params} onSort={onSort} />
-                  <th scope="col" className="px-3 py-2 pr-5 font-medium">Review</th>
+                  <th scope="col" className="hidden px-3 py-2 pr-5 font-medium lg:table-cell">Review</th>
                 </tr>
               </thead>
               <tbody className="divide-y divide-harbour-100">
@@ -160,25 +194,33 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
                     <tr key={s.id} onClick={() => navigate(shotUrl(s.id))} className="cursor-pointer align-top hover:bg-harbour-50">
                       <td className="py-2 pr-3 pl-5 font-medium tabular-nums">
                         <Link to={shotUrl(s.id)} onClick={(e) => e.stopPropagation()} className="text-harbour-800 hover:underline">#{s.number}</Link>
+                        {/* Below 1024 px the narrower columns fold into their neighbours instead of scrolling sideways. */}
+                        <span className="block text-xs font-normal text-harbour-500 lg:hidden">{formatDateTime(s.firedAt)}</span>
                       </td>
-                      <td className="px-3 py-2 whitespace-nowrap tabular-nums text-harbour-700">{formatDateTime(s.firedAt)}</td>
-                      <td className="px-3 py-2 text-right whitespace-nowrap tabular-nums">{formatKpa(s.conditions.tubePressurePa)}</td>
-                      <td className="px-3 py-2 text-harbour-700">
+                      <td className="hidden px-3 py-2 whitespace-nowrap tabular-nums text-harbour-700 lg:table-cell">{formatDateTime(s.firedAt)}</td>
+                      <td className="px-3 py-2 text-right tabular-nums">
+                        <span className="block whitespace-nowrap">{formatKpa(s.conditions.tubePressurePa)}</span>
+                        <span className="block text-xs text-harbour-600 lg:hidden">{s.conditions.sealType}</span>
+                      </td>
+                      <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">
                         <span className="block">{s.conditions.sealType || '—'}</span>
                         <span className="block text-xs tabular-nums text-harbour-500">
                           {formatCelsius(s.conditions.ambientTemperatureK)} · {formatKpa(s.conditions.ambientPressurePa, 4)}
                         </span>
                       </td>
-                      <td className="px-3 py-2 text-right whitespace-nowrap tabular-nums">
+                      <td className="px-3 py-2 text-right tabular-nums">
                         {s.speed ? (
                           <>
-                            <span className="block font-medium text-harbour-900">{formatMeasurement(s.speed.value, s.speed.uncertainty, 'm/s')}</span>
+                            <span className="block font-medium whitespace-nowrap text-harbour-900">{formatMeasurement(s.speed.value, s.speed.uncertainty, 'm/s')}</span>
                             <span className="block text-xs text-harbour-500">{methodLabel(s.speed)}{s.speed.uncertainty != null && ', k = 2'}</span>
                           </>
                         ) : <span className="text-harbour-300">—</span>}
                       </td>
-                      <td className="px-3 py-2"><Badge tone={status.tone}>{status.label}</Badge></td>
-                      <td className="px-3 py-2 pr-5 whitespace-nowrap">
+                      <td className="px-3 py-2 pr-5 lg:pr-3">
+                        <Badge tone={status.tone}>{status.label}</Badge>
+                        {s.review && <span className="mt-1 block text-xs whitespace-nowrap text-harbour-500 lg:hidden">{reviewWords(s.review)}</span>}
+                      </td>
+                      <td className="hidden px-3 py-2 pr-5 whitespace-nowrap lg:table-cell">
                         {s.review ? (
                           <>
                             <Badge tone={s.review.decision === 'approved' ? 'good' : 'bad'}>{s.review.decision === 'approved' ? 'Approved' : 'Sent back'}</Badge>

@@ -101,7 +101,7 @@ export function GateRigForm({ labId, rig, onDone }: { labId: string; rig?: GateR
         <p className="text-xs text-harbour-500">Positions along the path from the rig's origin; each must lie further along than the one before.</p>
         <ol className="mt-2 space-y-2">
           {gates.fields.map((field, i) => (
-            <li key={field.id} className="grid grid-cols-[2rem_1fr_1fr_1fr_auto] items-start gap-2 rounded-md bg-harbour-50 p-2" aria-label={`Gate ${i + 1}`}>
+            <li key={field.id} className="grid grid-cols-[1.5rem_minmax(4rem,0.6fr)_1fr_1fr_auto] items-start gap-2 rounded-md bg-harbour-50 p-2" aria-label={`Gate ${i + 1}`}>
               <span className="pt-8 text-right text-sm tabular-nums text-harbour-500">{i + 1}.</span>
               <TextField label="Label" error={errors.gates?.[i]?.label?.message} {...register(`gates.${i}.label`)} />
               <TextField label="Position (mm)" inputMode="decimal" error={errors.gates?.[i]?.positionMm?.message} {...register(`gates.${i}.positionMm`)} />

@@ -22,7 +22,8 @@ export function LibraryView({ labId, canWrite }: { labId: string; canWrite: bool
       {!canWrite && (
         <p className="text-sm text-harbour-500">Analysts and lab admins keep the library up to date; ask one of them if a value is wrong.</p>
       )}
-      <div className="grid gap-6 xl:grid-cols-2">
+      {/* Side by side to browse; one column while a form is open, so a rig's gate rows get the room they need. */}
+      <div className={`grid gap-6 ${editing ? '' : 'xl:grid-cols-2'}`}>
         <Card
           title="Projectiles"
           actions={canWrite && !editing ? <Button variant="secondary" onClick={() => setEditing({ kind: 'projectile', id: null })}>Add projectile</Button> : undefined}
