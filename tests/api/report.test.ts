@@ -22,9 +22,10 @@ beforeAll(async () => {
 afterAll(() => h?.close());
 
 const as = (who: 'admin' | 'experimenter' | 'analyst' | 'reviewer') => ({ Cookie: h.sessionCookie(h.demo.users[who].id) });
-const binary = (res: NodeJS.ReadableStream, cb: (err: Error | null, body: Buffer) => void) => {
+/** supertest keeps unknown content types out of `body`: collect the PDF's bytes ourselves. */
+const binary = (res: { on(event: string, listener: (chunk: Buffer) => void): unknown }, cb: (err: Error | null, body: unknown) => void) => {
   const chunks: Buffer[] = [];
-  res.on('data', (c: Buffer) => chunks.push(c));
+  res.on('data', (c) => chunks.push(c));
   res.on('end', () => cb(null, Buffer.concat(chunks)));
 };
 
