@@ -1,7 +1,7 @@
 /**
  * A small HTTP client of the upload-to-result pipeline, shared by the pipeline API tests (tests/api/pipeline*.test.ts)
- * and the benchmarks (bench/pipeline.ts, bench/api.ts): sign in, log a shot, upload files, poll until the work is
- * done. It speaks only HTTP to a running API server, like a script of a lab would.
+ * and the benchmarks (bench/pipeline.ts, bench/api.ts): sign in, send JSON, upload files, poll until the work is
+ * done; and a simulated capture with its truth. It speaks only HTTP to a running API server, as a lab script would.
  */
 import { writeCaptureLayout, type WrittenCapture } from '../../fixtures/lib/write-capture-layout.ts';
 import { simulateShot, type SimulateShotOptions, type SimulatedShot } from '../../shared/simulate/simulate-shot.ts';
