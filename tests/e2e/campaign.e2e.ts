@@ -4,7 +4,7 @@
 // at a 1280-pixel laptop width and an 820-pixel tablet width go to .test-artifacts/screenshots/ to be looked at.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
-import { Analysis, Projectile, Review, Shot } from '../../server/db/models/index.ts';
+import { Analysis, Campaign, Projectile, Review, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness, type DemoUser } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
@@ -192,6 +192,40 @@ describe('campaign page', () => {
       await page.getByText('No shots in this campaign yet').waitFor();
       await page.getByText('Log the first one with “New shot”').waitFor();
       await saveScreenshot(page, 'campaign-empty-laptop');
+    } finally {
+      await context.close();
+    }
+  });
+});
+
+describe('campaign pages of shots', () => {
+  it('When a campaign has 30 shots, then the table shows 25 and the next page the other 5, from the server', async () => {
+    const demo = harness.demo;
+    const campaign = await Campaign.create({ labId: demo.labs.hollowmere.id, name: 'Long series', description: 'Thirty shots', startedOn: '2026-11-30', createdBy: null });
+    for (let n = 1; n <= 30; n++) {
+      await Shot.create({
+        labId: demo.labs.hollowmere.id, campaignId: campaign.id, number: n, firedAt: null, projectileId: null, gateRigId: null,
+        tubePressurePa: 1000 + n, ambientTemperatureK: null, ambientPressurePa: null, createdBy: null,
+      });
+    }
+    const context = await launchBrowser({ viewport: LAPTOP });
+    try {
+      const page = await context.newPage();
+      await signIn(page, demo.users.reviewer);
+      await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/campaigns/${campaign.id}`);
+      await page.getByText('Shots 1–25 of 30').waitFor();
+      expect((await rowNumbers(page))[0]).toBe(30);
+      // A reviewer reads the campaign but does not log shots.
+      expect(await page.getByRole('button', { name: 'New shot' }).count()).toBe(0);
+      await page.getByRole('button', { name: 'Next' }).click();
+      await page.getByText('Shots 26–30 of 30').waitFor();
+      await expectRows(page, [5, 4, 3, 2, 1]);
+      expect(new URL(page.url()).searchParams.get('page')).toBe('2');
+      await saveScreenshot(page, 'campaign-page-2-laptop');
+      // A new order starts again at page 1.
+      await page.getByRole('button', { name: /^Shot/ }).click();
+      await page.getByText('Shots 1–25 of 30').waitFor();
+      expect((await rowNumbers(page))[0]).toBe(1);
     } finally {
       await context.close();
     }
