@@ -16,6 +16,8 @@ export interface CompareSource {
   offset: number;
   colour: string;
   label: string;
+  /** The channel's state levels from its analysis, V: the vertical range follows them, so a flat stretch shows flat. */
+  levels?: { low: number; high: number } | null;
 }
 
 /** A min/max window as [x, min, max] columns on the shifted time axis. */
@@ -42,6 +44,8 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
   const [width, setWidth] = useState(0);
   const onRangeRef = useRef(onRange);
   onRangeRef.current = onRange;
+  const sourcesRef = useRef(sources);
+  sourcesRef.current = sources;
   const titleRef = useRef(title);
   titleRef.current = title;
   // Each trace over the same relative range: points per window ≈ pixel columns.
@@ -84,10 +88,25 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
       padding: [22, 8, 0, 0],
       legend: { show: false },
       cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
-      scales: { x: { time: false } },
+      scales: {
+        x: { time: false },
+        y: {
+          range: (_u, dataMin, dataMax) => {
+            const known = sourcesRef.current.map((x) => x.levels).filter((l): l is { low: number; high: number } => l != null && l.high > l.low);
+            if (known.length > 0) {
+              const low = Math.min(...known.map((l) => l.low));
+              const high = Math.max(...known.map((l) => l.high));
+              const pad = 0.12 * (high - low);
+              return [Math.min(low - pad, dataMin), Math.max(high + pad, dataMax)];
+            }
+            const pad = (dataMax - dataMin) * 0.08 || 0.1;
+            return [dataMin - pad, dataMax + pad];
+          },
+        },
+      },
       axes: [
         { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (u, splits) => timeTicks(splits, (u.scales.x.max ?? 1) - (u.scales.x.min ?? 0)) },
-        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 52, values: (_u, splits) => splits.map((v) => `${v.toFixed(2)} V`) },
+        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 60, values: (_u, splits) => splits.map((v) => `${v.toFixed(2)} V`) },
       ],
       series,
       bands,

@@ -66,13 +66,14 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
 
   const channelsPerShot = useMemo(() => shots.map((s) => plottedChannels(s.captures)), [shots]);
   const label = (i: number) => `Shot #${shots[i].shot.number}`;
+  const levelsOf = (i: number, channel: string) => resultsOf(shots[i])?.channels.find((c) => c.name === channel)?.levels ?? null;
 
   const overlays = positions.map((position) => {
     const sources: CompareSource[] = [];
     shots.forEach((s, i) => {
       const gate = resultsOf(s)?.gates.find((g) => Math.abs(g.position - position) < 1e-6);
       const ch = gate ? channelsPerShot[i].find((c) => c.name === gate.channel) : undefined;
-      if (ch) sources.push({ key: `${s.shot.id}-${ch.captureId}-${ch.index}`, captureId: ch.captureId, channelIndex: ch.index, offset: offsets[i], colour: SHOT_COLOURS[i], label: label(i) });
+      if (ch) sources.push({ key: `${s.shot.id}-${ch.captureId}-${ch.index}`, captureId: ch.captureId, channelIndex: ch.index, offset: offsets[i], colour: SHOT_COLOURS[i], label: label(i), levels: levelsOf(i, ch.name) });
     });
     return { position, sources };
   });
@@ -168,7 +169,7 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
                       key={`${ch.captureId}-${ch.index}`}
                       title={ch.name}
                       height={140}
-                      sources={[{ key: `${ch.captureId}-${ch.index}`, captureId: ch.captureId, channelIndex: ch.index, offset: offsets[i], colour: SHOT_COLOURS[i], label: label(i) }]}
+                      sources={[{ key: `${ch.captureId}-${ch.index}`, captureId: ch.captureId, channelIndex: ch.index, offset: offsets[i], colour: SHOT_COLOURS[i], label: label(i), levels: levelsOf(i, ch.name) }]}
                       range={range}
                       onRange={setZoom}
                     />

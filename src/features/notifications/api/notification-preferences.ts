@@ -17,6 +17,16 @@ export function useUpdateNotificationPreferences() {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (body: NotificationPreferencesBody) => api.patch<{ preferences: NotificationPreferences }>('/api/me/notifications', body).then((r) => r.preferences),
+    // The switch moves at once; a refusal puts it back and the card shows why.
+    onMutate: async (body) => {
+      await queryClient.cancelQueries({ queryKey: notificationKeys.preferences });
+      const before = queryClient.getQueryData<NotificationPreferences>(notificationKeys.preferences);
+      if (before) queryClient.setQueryData<NotificationPreferences>(notificationKeys.preferences, { ...before, ...body } as NotificationPreferences);
+      return { before };
+    },
+    onError: (_error, _body, context) => {
+      if (context?.before) queryClient.setQueryData(notificationKeys.preferences, context.before);
+    },
     onSuccess: (preferences) => queryClient.setQueryData(notificationKeys.preferences, preferences),
   });
 }

@@ -54,12 +54,12 @@ export function ReviewQueueView({ labId }: { labId: string }) {
                     className="h-4 w-4 accent-harbour-700"
                   />
                 </td>
-                <td className="px-3 py-2 font-medium">
+                <td className="whitespace-nowrap px-3 py-2 font-medium">
                   <Link to={`/labs/${labId}/shots/${r.shotId}`} className="text-harbour-800 hover:underline">Shot #{r.number}</Link>
                 </td>
                 <td className="px-3 py-2 text-harbour-700">{r.campaignName ?? '—'}</td>
                 <td className="whitespace-nowrap px-3 py-2 text-right tabular-nums">{formatMeasurement(r.speed?.value, r.speed?.uncertainty, 'm/s')}</td>
-                <td className="px-3 py-2 text-harbour-700">{r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : '—'}</td>
+                <td className="whitespace-nowrap px-3 py-2 text-harbour-700">{r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : '—'}</td>
                 <td className="px-3 py-2 text-harbour-700">{r.analysisVersion != null ? `v${r.analysisVersion}` : '—'}</td>
                 <td className="px-3 py-2 text-harbour-700">
                   {r.requestedBy?.name ?? '—'}

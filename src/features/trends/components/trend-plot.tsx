@@ -15,6 +15,8 @@ export interface TrendPlotProps {
   xLabel: string;
   /** Logarithmic x axis (decades of tube pressure). */
   logX?: boolean;
+  /** Whole-number x axis (shot numbers): integer ticks and half a step of room at either end. */
+  integerX?: boolean;
   series: TrendSeries[];
   /** A model curve drawn as a line, in the same units. */
   curve?: { label: string; colour: string; x: number[]; y: number[] } | null;
@@ -28,7 +30,7 @@ export interface TrendPlotProps {
  * reference lines (speed of sound). Reference lines outside the data's range are listed under the plot instead of
  * stretching it (the gas-dynamic limit is several times any measured speed).
  */
-export function TrendPlot({ xLabel, logX = false, series, curve = null, references = [], height = 300, testId }: TrendPlotProps) {
+export function TrendPlot({ xLabel, logX = false, integerX = false, series, curve = null, references = [], height = 300, testId }: TrendPlotProps) {
   const box = useRef<HTMLDivElement>(null);
   const [width, setWidth] = useState(0);
   const latest = useRef({ series, curve, references });
@@ -75,11 +77,16 @@ export function TrendPlot({ xLabel, logX = false, series, curve = null, referenc
       legend: { show: false },
       cursor: { points: { size: 8 } },
       scales: {
-        x: logX ? { time: false, distr: 3, log: 10 } : { time: false },
+        x: logX
+          ? { time: false, distr: 3, log: 10 }
+          : integerX ? { time: false, range: (_u, min, max) => [Math.floor(min) - 0.5, Math.ceil(max) + 0.5] } : { time: false },
         y: { range: () => [Math.max(0, lo - pad), hi + pad] },
       },
       axes: [
-        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, label: xLabel, labelSize: 22 },
+        {
+          stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, label: xLabel, labelSize: 22,
+          ...(integerX ? { incrs: [1, 2, 5, 10, 20, 50, 100, 200, 500, 1000], values: (_u: uPlot, splits: number[]) => splits.map((v) => (Number.isInteger(v) ? String(v) : '')) } : {}),
+        },
         { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 56, label: 'speed (m/s)', labelSize: 22 },
       ],
       series: [
@@ -139,7 +146,7 @@ export function TrendPlot({ xLabel, logX = false, series, curve = null, referenc
     };
     const u = new uPlot(opts, data, box.current);
     return () => u.destroy();
-  }, [width, height, logX, xLabel, series, curve, references]);
+  }, [width, height, logX, integerX, xLabel, series, curve, references]);
 
   const empty = series.every((s) => s.points.length === 0) && !(curve && curve.x.length > 0);
   return (

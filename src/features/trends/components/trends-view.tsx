@@ -37,7 +37,7 @@ function LauncherInputs({ fields, set, errors }: {
   errors: Partial<Record<keyof typeof fields, string>>;
 }) {
   return (
-    <div className="grid grid-cols-2 gap-3 sm:grid-cols-5">
+    <div className="grid grid-cols-2 gap-3 sm:grid-cols-3">
       <TextField label="Tube length (m)" inputMode="decimal" value={fields.length} onChange={(e) => set('length', e.target.value)} error={errors.length} />
       <TextField label="Bore (mm)" inputMode="decimal" value={fields.bore} onChange={(e) => set('bore', e.target.value)} error={errors.bore} />
       <TextField label="Ball mass (g)" inputMode="decimal" value={fields.mass} onChange={(e) => set('mass', e.target.value)} error={errors.mass} />
@@ -150,7 +150,7 @@ export function TrendsView({ labId, campaignId, projectiles }: { labId: string; 
           </p>
         </Card>
         <Card title="Speed against shot number">
-          <TrendPlot xLabel="shot number" series={byNumber} references={references.slice(0, 1)} testId="trend-number" />
+          <TrendPlot xLabel="shot number" integerX series={byNumber} references={references.slice(0, 1)} testId="trend-number" />
           <p className="mt-2 text-xs text-harbour-500">Bars are ±U (k = 2).</p>
         </Card>
       </div>
