@@ -35,7 +35,7 @@ const SORT_CHOICES: Record<ShotSortField, [string, string]> = {
   status: ['Status, awaiting files first', 'Status, signed off first'],
 };
 
-/** Most columns read best smallest first; speeds are compared fastest first. */
+/** First click on a column: latest shots and fastest speeds on top, the best vacuum on top, statuses in workflow order. */
 const FIRST_DIRECTION: Record<ShotSortField, SortDirection> = { number: 'desc', firedAt: 'desc', tubePressure: 'asc', speed: 'desc', status: 'asc' };
 
 /** Sort, filter, search and page live in the address, so a view can be bookmarked or sent to a colleague. */
@@ -158,7 +158,12 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
 
       {list.isPending && <Loading what="Loading the shots" />}
       {list.isError && <ErrorNote error={list.error} />}
-      {list.data && list.data.shots.length === 0 && (
+      {list.data && list.data.shots.length === 0 && total > 0 && (
+        <EmptyState title={`Page ${page} is past the last one`}>
+          <Button variant="secondary" className="mt-3" onClick={() => update({})}>Go to the first page</Button>
+        </EmptyState>
+      )}
+      {list.data && list.data.shots.length === 0 && total === 0 && (
         filtered ? (
           <EmptyState title={params.q ? `No shots match “${params.q}”${params.status ? ' with that status' : ''}` : 'No shots with that status'}>
             <p>Search looks in each shot's notes and seal type.</p>
@@ -204,9 +209,11 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
                       </td>
                       <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">
                         <span className="block">{s.conditions.sealType || '—'}</span>
-                        <span className="block text-xs tabular-nums text-harbour-500">
-                          {formatCelsius(s.conditions.ambientTemperatureK)} · {formatKpa(s.conditions.ambientPressurePa, 4)}
-                        </span>
+                        {(s.conditions.ambientTemperatureK != null || s.conditions.ambientPressurePa != null) && (
+                          <span className="block text-xs tabular-nums text-harbour-500">
+                            {formatCelsius(s.conditions.ambientTemperatureK)} · {formatKpa(s.conditions.ambientPressurePa, 4)}
+                          </span>
+                        )}
                       </td>
                       <td className="px-3 py-2 text-right tabular-nums">
                         {s.speed ? (
