@@ -157,6 +157,10 @@ describe('review', () => {
         await saveScreenshot(page, 'review-compare-zoomed');
 
         await page.goto(shotUrl(shotA));
+        // The shot page offers the same comparison with the campaign's other shots.
+        await reviewBar(page).getByText('Compare with other shots').click();
+        await reviewBar(page).getByRole('group', { name: 'Shots to compare with' }).getByLabel('#202').check();
+        expect(await reviewBar(page).getByRole('link', { name: 'Compare 2 shots' }).getAttribute('href')).toBe(`/labs/${labId}/compare?shots=${shotA},${shotB}`);
         await reviewBar(page).getByRole('button', { name: 'Return with comment' }).click();
         // The comment is required.
         await reviewBar(page).getByRole('button', { name: 'Return version 1' }).click();

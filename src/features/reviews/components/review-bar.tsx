@@ -5,6 +5,7 @@ import { useDecideReview } from '../api/decide-review.ts';
 import { useRequestReview } from '../api/request-review.ts';
 import { useReviewHistory } from '../api/review-history.ts';
 import { CommentThread } from './comment-thread.tsx';
+import { CompareWith } from './compare-with.tsx';
 import { ReviewHistoryList } from './review-history-list.tsx';
 
 export interface ReviewBarProps {
@@ -16,6 +17,8 @@ export interface ReviewBarProps {
   current: { version: number; state: string } | null;
   canRequest: boolean;
   canDecide: boolean;
+  /** Other shots of the campaign, to open beside this one in the comparison. */
+  campaignShots?: { id: string; number: number }[];
   /** Shown under the bar (the launcher safety note). */
   children?: ReactNode;
 }
@@ -165,6 +168,7 @@ export function ReviewBar(props: ReviewBarProps) {
           <a className="font-medium text-harbour-700 underline-offset-2 hover:underline" href={`/api/shots/${shotId}/export?format=json`} download>JSON</a>
           <a className="font-medium text-harbour-700 underline-offset-2 hover:underline" href={`/api/shots/${shotId}/report.pdf`} target="_blank" rel="noreferrer">PDF report</a>
         </div>
+        <CompareWith labId={labId} shotId={shotId} others={(props.campaignShots ?? []).filter((s) => s.id !== shotId)} />
         <details className="group text-sm" open={entries.length > 0}>
           <summary className="cursor-pointer text-xs font-medium text-harbour-700">History and comments</summary>
           <div className="mt-2 space-y-3">
