@@ -99,7 +99,7 @@ describe('When a simulated three-gate capture is uploaded to a shot with the dem
   let settled: ShotDetail;
   let seen: Map<string, string[]>;
 
-  it('then the upload answers at once (202) with the capture queued, and the capture goes queued → reading → ready', async () => {
+  it('then the upload answers at once (202) with the capture queued, and the capture only moves forward, queued → reading → ready', async () => {
     shotId = await newShot(experimenter);
     const up = await experimenter.upload<{ captures: { id: string; state: string; duplicate: boolean; sha256: string }[] }>(shotId, [{ name: 'three-gates.csv', bytes: csv.bytes }]);
     expect(up.status, JSON.stringify(up.body)).toBe(202);
