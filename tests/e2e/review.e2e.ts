@@ -220,6 +220,12 @@ describe('review', () => {
         await page.getByTestId('signed-off').getByText('Signed off: version 2').waitFor();
         await reviewBar(page).getByText(/signed off v2/).first().waitFor();
         expect(await reviewBar(page).getByRole('link', { name: 'PDF report' }).getAttribute('href')).toBe(`/api/shots/${shotA}/report.pdf`);
+        // The shot's own audit trail (reviewers and admins) records the whole round.
+        await reviewBar(page).getByText('Audit trail of this shot').click();
+        const audit = reviewBar(page).getByRole('list', { name: 'Audit trail of this shot' });
+        await audit.getByText('review.approved').waitFor();
+        await audit.getByText('review.returned').waitFor();
+        expect(await audit.getByText('review.requested').count()).toBe(2);
         await both(page, 'review-approved');
         await page.goto(`${app.baseUrl}/labs/${labId}/review-queue`);
         await page.getByRole('heading', { name: 'Review queue' }).waitFor();
@@ -243,6 +249,8 @@ describe('review', () => {
       const stats = page.getByRole('table', { name: 'Statistics per group' });
       await stats.getByText('Mylar burst disc').waitFor();
       await stats.getByText('Packing-tape flap').waitFor();
+      await page.waitForTimeout(500);
+      await saveScreenshot(page, 'trends-by-seal');
       // The ball's 40 mm and 2.7 g come from the projectile; 2 m of tube: √(2·101 325·π·0.02²·2/0.0027) = 434.3 m/s
       // (worked by hand, Ayars & Buchholtz 2004 zeroth order; see tests/unit/physics/launcher-model.test.ts).
       await expect.poll(() => page.getByLabel('Ball mass (g)').inputValue()).toBe('2.70');
@@ -270,6 +278,10 @@ describe('review', () => {
       await page.getByRole('status').filter({ hasText: 'Saved.' }).waitFor();
       await page.reload();
       await expect.poll(() => page.getByLabel('A shot is sent for review').isChecked()).toBe(false);
+      // Each kind is its own switch: the other three stay on.
+      for (const other of ['My shot is signed off', 'My shot is returned with a comment', 'Reading a file or an analysis failed']) {
+        expect(await page.getByLabel(other).isChecked(), other).toBe(true);
+      }
       await both(page, 'notification-settings');
     } finally {
       await context.close();

@@ -38,6 +38,7 @@ export function Component() {
           current={shot.data?.currentAnalysis ? { version: shot.data.currentAnalysis.version, state: shot.data.currentAnalysis.state } : null}
           canRequest={can(membership.role, 'reviews:request')}
           canDecide={can(membership.role, 'reviews:decide')}
+          canReadAudit={can(membership.role, 'audit:read')}
           campaignShots={campaign.data?.shots.map((s) => ({ id: s.id, number: s.number })) ?? []}
         >
           <details className="rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40">

@@ -7,6 +7,7 @@ import { useReviewHistory } from '../api/review-history.ts';
 import { CommentThread } from './comment-thread.tsx';
 import { CompareWith } from './compare-with.tsx';
 import { ReviewHistoryList } from './review-history-list.tsx';
+import { ShotAuditList } from './shot-audit-list.tsx';
 
 export interface ReviewBarProps {
   shotId: string;
@@ -17,6 +18,8 @@ export interface ReviewBarProps {
   current: { version: number; state: string } | null;
   canRequest: boolean;
   canDecide: boolean;
+  /** Admins and reviewers see the shot's audit trail. */
+  canReadAudit?: boolean;
   /** Other shots of the campaign, to open beside this one in the comparison. */
   campaignShots?: { id: string; number: number }[];
   /** Shown under the bar (the launcher safety note). */
@@ -169,6 +172,7 @@ export function ReviewBar(props: ReviewBarProps) {
           <a className="font-medium text-harbour-700 underline-offset-2 hover:underline" href={`/api/shots/${shotId}/report.pdf`} target="_blank" rel="noreferrer">PDF report</a>
         </div>
         <CompareWith labId={labId} shotId={shotId} others={(props.campaignShots ?? []).filter((s) => s.id !== shotId)} />
+        {props.canReadAudit && <ShotAuditList shotId={shotId} status={status} />}
         <details className="group text-sm" open={entries.length > 0}>
           <summary className="cursor-pointer text-xs font-medium text-harbour-700">History and comments</summary>
           <div className="mt-2 space-y-3">
