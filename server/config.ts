@@ -105,3 +105,16 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
   }
   return config;
 }
+
+/** For process entry points: the configuration, or a message naming the bad variables and exit code 2. */
+export function loadConfigOrExit(): Config {
+  try {
+    return loadConfig();
+  } catch (err) {
+    if (err instanceof ConfigError) {
+      console.error(err.message);
+      process.exit(2);
+    }
+    throw err;
+  }
+}

@@ -1,4 +1,4 @@
-import { loadConfig, ConfigError } from './config.ts';
+import { loadConfigOrExit } from './config.ts';
 import { buildApp } from './app.ts';
 import { createLogger } from './lib/logger.ts';
 import { createMailer } from './lib/mailer.ts';
@@ -10,16 +10,7 @@ import { createBlobStore } from './storage/create-blob-store.ts';
 
 /** The API server process: reads config, connects, listens, and shuts down cleanly on SIGINT/SIGTERM. */
 async function main() {
-  let config;
-  try {
-    config = loadConfig();
-  } catch (err) {
-    if (err instanceof ConfigError) {
-      console.error(err.message);
-      process.exit(2);
-    }
-    throw err;
-  }
+  const config = loadConfigOrExit();
   const logger = createLogger(config.logLevel, 'api');
   const sequelize = createSequelize(config.databaseUrl);
   const redis = createRedis(config.redisUrl);

@@ -2,7 +2,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker, type Job, type Queue } from 'bullmq';
 import { Op } from 'sequelize';
-import { loadConfig, ConfigError, type Config } from '../server/config.ts';
+import { loadConfig, loadConfigOrExit, type Config } from '../server/config.ts';
 import { Analysis, Capture, Shot } from '../server/db/models/index.ts';
 import { createNotifyQueue, notifyPeople } from '../server/modules/notifications/notify-people.ts';
 import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
@@ -72,16 +72,7 @@ async function sweep(config: Config) {
 }
 
 async function main() {
-  let config: Config;
-  try {
-    config = loadConfig();
-  } catch (err) {
-    if (err instanceof ConfigError) {
-      console.error(err.message);
-      process.exit(2);
-    }
-    throw err;
-  }
+  const config = loadConfigOrExit();
   const { logger, sequelize } = workerContext();
   await sequelize.authenticate();
   const workers = Object.entries(processorFiles).map(([queue, file]) => {

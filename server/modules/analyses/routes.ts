@@ -1,5 +1,4 @@
 import { randomUUID } from 'node:crypto';
-import type { Request } from 'express';
 import diff from 'microdiff';
 import { z } from 'zod';
 import { Analysis, Capture, Shot } from '../../db/models/index.ts';
@@ -10,15 +9,9 @@ import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { requestAnalysisBody, reingestBody, type ImportOverrides } from '../../../shared/contracts/shots.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
-import { labOfShot } from '../shots/routes.ts';
+import { labOfShot, shotInLab } from '../shots/routes.ts';
 import { analysisSummary, analysisView, captureView } from '../shots/view.ts';
 import { createAnalysisVersion } from './service.ts';
-
-async function shotInLab(req: Request): Promise<Shot> {
-  const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
-  if (!shot) throw notFound('No such shot.');
-  return shot;
-}
 
 async function analysisOfShot(shot: Shot, analysisId: string): Promise<Analysis> {
   const analysis = await Analysis.findOne({ where: { id: analysisId, shotId: shot.id } });

@@ -38,7 +38,8 @@ export async function labOfShot(req: Request): Promise<string | null> {
   return shot?.labId ?? null;
 }
 
-async function shotInLab(req: Request): Promise<Shot> {
+/** The shot of `:shotId` in the caller's lab (the access guard has already placed the caller in that lab). */
+export async function shotInLab(req: Request): Promise<Shot> {
   const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
   if (!shot) throw notFound('No such shot.');
   return shot;

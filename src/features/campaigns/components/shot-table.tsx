@@ -1,4 +1,5 @@
 import { useEffect, useState } from 'react';
+import { SHOT_STATUS, shotStatus } from '../../../lib/shot-status.ts';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { Badge, Button, EmptyState, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
 import { formatCelsius, formatDateTime, formatKpa, formatMeasurement, formatDate } from '../../../lib/format.ts';
@@ -6,15 +7,6 @@ import { SHOT_SORT_FIELDS, useShotList, type ShotListParams, type ShotListRow, t
 
 export const PAGE_SIZE = 25;
 
-export const STATUS_LABELS: Record<string, { label: string; tone: 'neutral' | 'signal' | 'good' | 'bad' }> = {
-  draft: { label: 'Awaiting files', tone: 'neutral' },
-  processing: { label: 'Processing', tone: 'signal' },
-  analysed: { label: 'Analysed', tone: 'neutral' },
-  in_review: { label: 'In review', tone: 'signal' },
-  approved: { label: 'Signed off', tone: 'good' },
-  returned: { label: 'Returned', tone: 'bad' },
-  failed: { label: 'Failed', tone: 'bad' },
-};
 
 /** How the speed was obtained, in a few words. */
 function methodLabel(speed: NonNullable<ShotListRow['speed']>): string {
@@ -136,7 +128,7 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
           className="block rounded-md border-0 bg-white px-3 py-2 text-sm ring-1 ring-harbour-200 focus:ring-2 focus:ring-harbour-600"
         >
           <option value="">Every status</option>
-          {Object.entries(STATUS_LABELS).map(([value, s]) => <option key={value} value={value}>{s.label}</option>)}
+          {Object.entries(SHOT_STATUS).map(([value, s]) => <option key={value} value={value}>{s.label}</option>)}
         </select>
         {/* Narrow screens hide some column headers; the order can still be chosen here. */}
         <select
@@ -194,7 +186,7 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
               </thead>
               <tbody className="divide-y divide-harbour-100">
                 {list.data.shots.map((s) => {
-                  const status = STATUS_LABELS[s.status] ?? { label: s.status, tone: 'neutral' as const };
+                  const status = shotStatus(s.status);
                   return (
                     <tr key={s.id} onClick={() => navigate(shotUrl(s.id))} className="cursor-pointer align-top hover:bg-harbour-50">
                       <td className="py-2 pr-3 pl-5 font-medium tabular-nums">

@@ -4,6 +4,7 @@ import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../../../shared/contracts/analysis.ts';
 import { Badge, Card, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
 import { formatCelsius, formatDateTime, formatKpa } from '../../../lib/format.ts';
+import { shotStatus } from '../../../lib/shot-status.ts';
 import { usePreview } from '../api/preview.ts';
 import { isBusy, useShot } from '../api/shot.ts';
 import { AnalystPanel } from './analyst-panel.tsx';
@@ -15,15 +16,6 @@ import { plottedChannels, TraceStack } from './trace-stack.tsx';
 import { UncertaintyBudget } from './uncertainty-budget.tsx';
 import { VersionHistory } from './version-history.tsx';
 
-const STATUS: Record<string, { label: string; tone: 'neutral' | 'signal' | 'good' | 'bad' }> = {
-  draft: { label: 'Awaiting files', tone: 'neutral' },
-  processing: { label: 'Processing', tone: 'signal' },
-  analysed: { label: 'Analysed', tone: 'neutral' },
-  in_review: { label: 'In review', tone: 'signal' },
-  approved: { label: 'Signed off', tone: 'good' },
-  returned: { label: 'Returned', tone: 'bad' },
-  failed: { label: 'Failed', tone: 'bad' },
-};
 
 export interface ShotPageProps {
   shotId: string;
@@ -58,7 +50,7 @@ export function ShotPage(props: ShotPageProps) {
   if (q.isPending) return <Loading what="Loading the shot" />;
   if (q.isError) return <ErrorNote error={q.error} />;
   const { shot, analyses, currentAnalysis } = q.data;
-  const status = STATUS[shot.status] ?? { label: shot.status, tone: 'neutral' as const };
+  const status = shotStatus(shot.status);
   const frozen = shot.status === 'approved';
   const channelNames = plottedChannels(captures).map((c) => c.name);
 
