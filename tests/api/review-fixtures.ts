@@ -70,12 +70,3 @@ export async function analysedShot(h: ApiHarness, options: AnalysedShotOptions =
   await shot.update({ status: 'analysed', currentAnalysisId: analysis.id });
   return { shotId: shot.id, shotNumber: shot.number, analysisId: analysis.id, captureId: row.id, speed, results: results as { speed: { value: number; uncertainty: number } } };
 }
-
-/** Finishes a newer analysis version the way worker/processors/analyse-shot.ts does, by running that processor. */
-export async function nextVersionRow(h: ApiHarness, shotId: string, version: number) {
-  const first = await Analysis.findOne({ where: { shotId, version: 1 }, rejectOnEmpty: true });
-  return Analysis.create({
-    labId: first.labId, shotId, version, parameters: first.parameters, engineVersion: ENGINE_VERSION, jobKey: `fixture-${shotId}-${version}`,
-    requestedBy: h.demo.users.analyst.id, state: 'queued', captureIds: first.captureIds,
-  });
-}

@@ -20,7 +20,7 @@ beforeAll(async () => {
   ballId = (await Projectile.findOne({ where: { labId, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
   slugId = (await Projectile.create({ labId, name: 'Trend slug', diameterM: 0.01, diameterToleranceM: 0, massKg: 0.002, massToleranceKg: 0 })).id;
   // number, seal, projectile, speed (m/s), U (m/s), analysis state
-  const table: [number, string, string, number | null, string][] = [
+  const table: [number, string, string, number | null, 'done' | 'failed'][] = [
     [1, 'Mylar', ballId, 300, 'done'],
     [2, 'Mylar', ballId, 302, 'done'],
     [3, 'Mylar', slugId, 307, 'done'],

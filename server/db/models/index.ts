@@ -319,10 +319,11 @@ export function initModels(sequelize: Sequelize): void {
     { id, labId: uuid(), shotId: uuid(), authorId: uuid(true), body: text(), replyTo: uuid(true), createdAt: DataTypes.DATE },
     opts('shot_comments', { updatedAt: false }),
   );
-  const on = { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true };
+  // A new object per attribute: Sequelize writes the column name into the definition it is given.
+  const on = () => ({ type: DataTypes.BOOLEAN, allowNull: false, defaultValue: true });
   NotificationPreference.init(
     {
-      userId: { type: DataTypes.UUID, primaryKey: true }, reviewRequested: on, approved: on, returned: on, jobFailed: on,
+      userId: { type: DataTypes.UUID, primaryKey: true }, reviewRequested: on(), approved: on(), returned: on(), jobFailed: on(),
       updatedAt: DataTypes.DATE,
     },
     opts('notification_preferences', { createdAt: false }),
