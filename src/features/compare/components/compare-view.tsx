@@ -158,26 +158,6 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
             </div>
           </Card>
 
-          <Card title="Side by side">
-            <div className="grid gap-3" style={{ gridTemplateColumns: `repeat(${shots.length}, minmax(0, 1fr))` }}>
-              {shots.map((s, i) => (
-                <div key={s.shot.id} className="min-w-0 space-y-1" data-testid="compare-column">
-                  <p className="flex items-center gap-1.5 text-sm font-semibold"><span className="h-2.5 w-2.5 rounded-full" style={{ background: SHOT_COLOURS[i] }} aria-hidden />Shot #{s.shot.number}</p>
-                  {channelsPerShot[i].length === 0 && <p className="text-xs text-harbour-500">No traces read yet.</p>}
-                  {channelsPerShot[i].map((ch) => (
-                    <ComparePlot
-                      key={`${ch.captureId}-${ch.index}`}
-                      title={ch.name}
-                      height={140}
-                      sources={[{ key: `${ch.captureId}-${ch.index}`, captureId: ch.captureId, channelIndex: ch.index, offset: offsets[i], colour: SHOT_COLOURS[i], label: label(i), levels: levelsOf(i, ch.name) }]}
-                      range={range}
-                      onRange={setZoom}
-                    />
-                  ))}
-                </div>
-              ))}
-            </div>
-          </Card>
         </div>
 
         <div className="space-y-4">
@@ -226,6 +206,26 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
           </Card>
         </div>
       </div>
+      <Card title="Side by side">
+        <div className={`grid gap-3 sm:grid-cols-2 ${shots.length === 3 ? 'lg:grid-cols-3' : shots.length === 4 ? 'lg:grid-cols-4' : ''}`}>
+          {shots.map((s, i) => (
+            <div key={s.shot.id} className="min-w-0 space-y-1" data-testid="compare-column">
+              <p className="flex items-center gap-1.5 text-sm font-semibold"><span className="h-2.5 w-2.5 rounded-full" style={{ background: SHOT_COLOURS[i] }} aria-hidden />Shot #{s.shot.number}</p>
+              {channelsPerShot[i].length === 0 && <p className="text-xs text-harbour-500">No traces read yet.</p>}
+              {channelsPerShot[i].map((ch) => (
+                <ComparePlot
+                  key={`${ch.captureId}-${ch.index}`}
+                  title={ch.name}
+                  height={140}
+                  sources={[{ key: `${ch.captureId}-${ch.index}`, captureId: ch.captureId, channelIndex: ch.index, offset: offsets[i], colour: SHOT_COLOURS[i], label: label(i), levels: levelsOf(i, ch.name) }]}
+                  range={range}
+                  onRange={setZoom}
+                />
+              ))}
+            </div>
+          ))}
+        </div>
+      </Card>
     </div>
   );
 }

@@ -33,12 +33,12 @@ export function ReviewQueueView({ labId }: { labId: string }) {
             <tr>
               <th className="w-8 px-3 py-2"><span className="sr-only">Compare</span></th>
               <th className="px-3 py-2">Shot</th>
-              <th className="px-3 py-2">Campaign</th>
+              <th className="hidden px-3 py-2 lg:table-cell">Campaign</th>
               <th className="px-3 py-2 text-right">Speed ± U</th>
-              <th className="px-3 py-2">Method</th>
-              <th className="px-3 py-2">Version</th>
+              <th className="hidden px-3 py-2 lg:table-cell">Method</th>
+              <th className="hidden px-3 py-2 lg:table-cell">Version</th>
               <th className="px-3 py-2">Sent by</th>
-              <th className="px-3 py-2">Sent</th>
+              <th className="hidden px-3 py-2 lg:table-cell">Sent</th>
             </tr>
           </thead>
           <tbody className="divide-y divide-harbour-100">
@@ -56,16 +56,20 @@ export function ReviewQueueView({ labId }: { labId: string }) {
                 </td>
                 <td className="whitespace-nowrap px-3 py-2 font-medium">
                   <Link to={`/labs/${labId}/shots/${r.shotId}`} className="text-harbour-800 hover:underline">Shot #{r.number}</Link>
+                  {/* Below 1024 px the folded columns read as one line under the shot. */}
+                  <p className="text-xs font-normal text-harbour-500 lg:hidden">
+                    {[r.campaignName, r.analysisVersion != null ? `v${r.analysisVersion}` : null, r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : null, formatDateTime(r.requestedAt)].filter(Boolean).join(' · ')}
+                  </p>
                 </td>
-                <td className="px-3 py-2 text-harbour-700">{r.campaignName ?? '—'}</td>
+                <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">{r.campaignName ?? '—'}</td>
                 <td className="whitespace-nowrap px-3 py-2 text-right tabular-nums">{formatMeasurement(r.speed?.value, r.speed?.uncertainty, 'm/s')}</td>
-                <td className="whitespace-nowrap px-3 py-2 text-harbour-700">{r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : '—'}</td>
-                <td className="px-3 py-2 text-harbour-700">{r.analysisVersion != null ? `v${r.analysisVersion}` : '—'}</td>
+                <td className="hidden whitespace-nowrap px-3 py-2 text-harbour-700 lg:table-cell">{r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : '—'}</td>
+                <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">{r.analysisVersion != null ? `v${r.analysisVersion}` : '—'}</td>
                 <td className="px-3 py-2 text-harbour-700">
                   {r.requestedBy?.name ?? '—'}
                   {r.message && <p className="max-w-xs whitespace-pre-wrap text-xs text-harbour-500">“{r.message}”</p>}
                 </td>
-                <td className="whitespace-nowrap px-3 py-2 text-harbour-600">{formatDateTime(r.requestedAt)}</td>
+                <td className="hidden whitespace-nowrap px-3 py-2 text-harbour-600 lg:table-cell">{formatDateTime(r.requestedAt)}</td>
               </tr>
             ))}
           </tbody>
