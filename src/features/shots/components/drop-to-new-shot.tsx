@@ -1,0 +1,64 @@
+import { useQueryClient } from '@tanstack/react-query';
+import { useState, type DragEvent } from 'react';
+import { useNavigate } from 'react-router-dom';
+import { api } from '../../../lib/api-client.ts';
+import { ErrorNote } from '../../../components/ui/primitives.tsx';
+import { uploadCapture } from '../api/captures.ts';
+
+interface LatestShot { shots: { projectileId: string | null; gateRigId: string | null; conditions: { sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null } }[] }
+
+/**
+ * Files dropped on a campaign log its next shot: numbered after the last one, with the last shot's projectile, rig,
+ * seal and room conditions (to be corrected on the shot page), then uploaded; the page then opens the new shot.
+ */
+export function DropToNewShot({ labId, campaignId }: { labId: string; campaignId: string }) {
+  const navigate = useNavigate();
+  const queryClient = useQueryClient();
+  const [over, setOver] = useState(false);
+  const [status, setStatus] = useState<string | null>(null);
+  const [error, setError] = useState<Error | null>(null);
+
+  const onDrop = async (e: DragEvent) => {
+    e.preventDefault();
+    setOver(false);
+    const files = [...e.dataTransfer.files];
+    if (files.length === 0) return;
+    setError(null);
+    try {
+      setStatus('Logging the next shot…');
+      const latest = await api.get<LatestShot>(`/api/labs/${labId}/shots?campaignId=${campaignId}&limit=1&sort=number:desc`);
+      const last = latest.shots[0];
+      const { shot } = await api.post<{ shot: { id: string; number: number } }>(`/api/labs/${labId}/shots`, {
+        campaignId,
+        projectileId: last?.projectileId ?? null,
+        gateRigId: last?.gateRigId ?? null,
+        sealType: last?.conditions.sealType || undefined,
+        ambientTemperatureK: last?.conditions.ambientTemperatureK ?? null,
+        ambientPressurePa: last?.conditions.ambientPressurePa ?? null,
+        firedAt: new Date().toISOString(),
+        notes: 'Logged by dropping files on the campaign; check the conditions.',
+      });
+      for (let i = 0; i < files.length; i++) {
+        await uploadCapture(shot.id, files[i], (f) => setStatus(`Shot #${shot.number}: sending ${files[i].name} (${Math.round(f * 100)} %)`));
+      }
+      void queryClient.invalidateQueries({ queryKey: ['labs', labId] });
+      navigate(`/labs/${labId}/shots/${shot.id}`);
+    } catch (err) {
+      setError(err as Error);
+      setStatus(null);
+    }
+  };
+
+  return (
+    <div
+      onDragOver={(e) => { e.preventDefault(); setOver(true); }}
+      onDragLeave={() => setOver(false)}
+      onDrop={(e) => void onDrop(e)}
+      data-testid="campaign-drop"
+      className={`rounded-lg border-2 border-dashed px-5 py-3 text-sm transition-colors ${over ? 'border-signal-400 bg-signal-100/50' : 'border-harbour-200 text-harbour-600'}`}
+    >
+      <p role="status">{status ?? 'Just fired? Drop the scope files here to log the next shot with the last shot’s set-up.'}</p>
+      {error && <div className="mt-2"><ErrorNote error={error} /></div>}
+    </div>
+  );
+}
