@@ -144,6 +144,19 @@ describe('notification e-mails through the worker', () => {
     const history = await call<{ history: { type: string; decision?: string; analysisVersion: number }[] }>('reviewer', 'GET', `/api/shots/${shotId}/reviews`);
     expect(history.body.history.filter((e) => e.decision === 'approved').map((e) => e.analysisVersion)).toEqual([1]);
     expect((await call('analyst', 'POST', `/api/shots/${shotId}/review-requests`, {})).status).toBe(201);
+
+    // A recomputation that finishes while version 2 waits for review withdraws that request: the reviewer can no
+    // longer sign off numbers that are not the shot's current ones.
+    expect((await call('analyst', 'POST', `/api/shots/${shotId}/analyses`, { parameters: { ...first.parameters, threshold: { unit: 'percent', level: 55, hysteresis: 10 } } })).status).toBe(202);
+    const v3 = await analysed(shotId, 3);
+    expect(v3.shot).toMatchObject({ status: 'analysed', currentAnalysisId: v3.analyses.find((a) => a.version === 3)!.id, approvedAnalysisId: version1 });
+    const late = await call<{ error: { message: string } }>('reviewer', 'POST', `/api/shots/${shotId}/reviews`, { decision: 'approved' });
+    expect(late.status).toBe(409);
+    expect(late.body.error.message).toContain('not waiting for review');
+    const audit = await call<{ events: { action: string; actor: string | null; details: { reviewedAnalysisId?: string } }[] }>('reviewer', 'GET', `/api/shots/${shotId}/audit`);
+    expect(audit.body.events.filter((e) => e.action === 'review.withdrawn')).toEqual([
+      expect.objectContaining({ actor: null, details: expect.objectContaining({ reviewedAnalysisId: version2 }) }),
+    ]);
   }, 90_000);
 
   it('When a capture cannot be read, then its uploader is told once the job has failed for good', async () => {

@@ -72,17 +72,13 @@ export async function notifySafely(
   waitMs = 2_000,
 ): Promise<void> {
   const work = (async () => notifyPeople(queue, typeof event === 'function' ? await event() : event))();
+  // Logged once, whether it fails within the wait or after it.
+  const settled = work.then(() => undefined, (err: Error) => log(err));
   let timer: NodeJS.Timeout | undefined;
   const timeout = new Promise<void>((resolve) => {
     timer = setTimeout(resolve, waitMs);
     timer.unref();
   });
-  try {
-    await Promise.race([work, timeout]);
-  } catch (err) {
-    log(err as Error);
-  } finally {
-    clearTimeout(timer);
-  }
-  work.catch(log);
+  await Promise.race([settled, timeout]);
+  clearTimeout(timer);
 }
