@@ -23,6 +23,7 @@ export function CampaignShots({ labId, campaignId, canWrite }: { labId: string; 
         actions={
           <div className="flex items-center gap-3">
             <Link to=".." relative="path" className="text-sm font-medium text-harbour-600 hover:underline">All campaigns</Link>
+            <Link to={`/labs/${labId}/campaigns/${campaignId}/trends`} className="text-sm font-medium text-harbour-600 hover:underline">Trends</Link>
             {canWrite && !creating && <Button onClick={() => setCreating(true)}>New shot</Button>}
           </div>
         }
