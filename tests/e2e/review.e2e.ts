@@ -220,6 +220,13 @@ describe('review', () => {
         await page.getByTestId('signed-off').getByText('Signed off: version 2').waitFor();
         await reviewBar(page).getByText(/signed off v2/).first().waitFor();
         expect(await reviewBar(page).getByRole('link', { name: 'PDF report' }).getAttribute('href')).toBe(`/api/shots/${shotA}/report.pdf`);
+        // The export links answer with the formats they promise (content checked by the API tests).
+        for (const [name, type] of [['CSV', 'text/csv'], ['JSON', 'application/json'], ['PDF report', 'application/pdf']] as const) {
+          const href = await reviewBar(page).getByRole('link', { name, exact: true }).getAttribute('href');
+          const res = await page.request.get(`${app.baseUrl}${href}`);
+          expect(res.status(), `${name}: ${href}`).toBe(200);
+          expect(res.headers()['content-type'], name).toContain(type);
+        }
         // The shot's own audit trail (reviewers and admins) records the whole round.
         await reviewBar(page).getByText('Audit trail of this shot').click();
         const audit = reviewBar(page).getByRole('list', { name: 'Audit trail of this shot' });
@@ -242,7 +249,9 @@ describe('review', () => {
   it('When the trends page opens, then both plots, the group statistics and the launcher model with its assumptions show', async () => {
     const { context, page } = await signedIn('analyst');
     try {
-      await page.goto(`${app.baseUrl}/labs/${labId}/campaigns/${campaignId}/trends`);
+      await page.goto(`${app.baseUrl}/labs/${labId}/campaigns/${campaignId}`);
+      await page.getByRole('link', { name: 'Trends', exact: true }).click();
+      await page.waitForURL(`**/campaigns/${campaignId}/trends`);
       await page.getByRole('heading', { name: 'Trends' }).waitFor();
       await page.getByTestId('trend-vacuum').locator('canvas').waitFor();
       await page.getByTestId('trend-number').locator('canvas').waitFor();
@@ -256,6 +265,10 @@ describe('review', () => {
       await expect.poll(() => page.getByLabel('Ball mass (g)').inputValue()).toBe('2.70');
       await expect.poll(() => page.getByTestId('model-summary').textContent()).toContain('434.3 m/s');
       await page.getByText('What the curve assumes').waitFor();
+      const csvHref = await page.getByRole('link', { name: 'CSV', exact: true }).getAttribute('href');
+      const csv = await page.request.get(`${app.baseUrl}${csvHref}`);
+      expect(csv.status()).toBe(200);
+      expect(csv.headers()['content-type']).toContain('text/csv');
       await page.getByLabel('Tube length (m)').fill('0');
       await page.getByText('The tube length must be greater than 0.').waitFor();
       await page.getByLabel('Tube length (m)').fill('2');
