@@ -54,8 +54,8 @@ export function ReviewQueueView({ labId }: { labId: string }) {
                     className="h-4 w-4 accent-harbour-700"
                   />
                 </td>
-                <td className="whitespace-nowrap px-3 py-2 font-medium">
-                  <Link to={`/labs/${labId}/shots/${r.shotId}`} className="text-harbour-800 hover:underline">Shot #{r.number}</Link>
+                <td className="px-3 py-2 font-medium">
+                  <Link to={`/labs/${labId}/shots/${r.shotId}`} className="whitespace-nowrap text-harbour-800 hover:underline">Shot #{r.number}</Link>
                   {/* Below 1024 px the folded columns read as one line under the shot. */}
                   <p className="text-xs font-normal text-harbour-500 lg:hidden">
                     {[r.campaignName, r.analysisVersion != null ? `v${r.analysisVersion}` : null, r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : null, formatDateTime(r.requestedAt)].filter(Boolean).join(' · ')}
@@ -65,7 +65,7 @@ export function ReviewQueueView({ labId }: { labId: string }) {
                 <td className="whitespace-nowrap px-3 py-2 text-right tabular-nums">{formatMeasurement(r.speed?.value, r.speed?.uncertainty, 'm/s')}</td>
                 <td className="hidden whitespace-nowrap px-3 py-2 text-harbour-700 lg:table-cell">{r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : '—'}</td>
                 <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">{r.analysisVersion != null ? `v${r.analysisVersion}` : '—'}</td>
-                <td className="px-3 py-2 text-harbour-700">
+                <td className="min-w-[11rem] px-3 py-2 text-harbour-700">
                   {r.requestedBy?.name ?? '—'}
                   {r.message && <p className="max-w-xs whitespace-pre-wrap text-xs text-harbour-500">“{r.message}”</p>}
                 </td>
