@@ -5,7 +5,7 @@
 import { parse } from 'csv-parse/sync';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { AuditEvent, Campaign, Shot } from '../../server/db/models/index.ts';
+import { Analysis, AuditEvent, Campaign, Review, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
 import { analysedShot, GATE_POSITIONS } from './review-fixtures.ts';
 
@@ -22,7 +22,14 @@ beforeAll(async () => {
   campaignId = (await Campaign.create({ labId, name: 'Export check, winter 2026', startedOn: '2026-12-01', createdBy: null })).id;
   first = await analysedShot(h, { campaignId, number: 1, sealType: HOSTILE, tubePressurePa: 2000 });
   // −5 °C (268.15 K): a negative number that must stay a number.
-  await Shot.update({ ambientTemperatureK: 268.15 }, { where: { id: first.shotId } });
+  await Shot.update({ ambientTemperatureK: 268.15, status: 'approved', approvedAnalysisId: first.analysisId }, { where: { id: first.shotId } });
+  await Review.create({ labId, shotId: first.shotId, analysisId: first.analysisId, reviewerId: h.demo.users.reviewer.id, decision: 'approved' });
+  // Shot 8: version 1 was approved, then version 2 became current: the approval does not cover version 2.
+  const second = await analysedShot(h, { campaignId, number: 8, sealType: 'Mylar, 23 µm' });
+  await Review.create({ labId, shotId: second.shotId, analysisId: second.analysisId, reviewerId: h.demo.users.reviewer.id, decision: 'approved' });
+  const v1 = await Analysis.findByPk(second.analysisId, { rejectOnEmpty: true });
+  const v2 = await Analysis.create({ labId, shotId: second.shotId, version: 2, parameters: v1.parameters, engineVersion: v1.engineVersion, jobKey: `export-v2-${second.shotId}`, requestedBy: null, state: 'done', results: v1.results, captureIds: v1.captureIds });
+  await Shot.update({ currentAnalysisId: v2.id, approvedAnalysisId: v1.id, status: 'analysed' }, { where: { id: second.shotId } });
   const plain = (number: number, sealType: string) =>
     Shot.create({ labId, campaignId, number, firedAt: null, projectileId: null, gateRigId: null, tubePressurePa: null, sealType, ambientTemperatureK: null, ambientPressurePa: null, createdBy: null });
   await plain(2, '+cmd|calc');
@@ -47,24 +54,26 @@ describe('campaign export', () => {
     const rows = rowsOf(res.text);
     expect(rows[0]).toEqual([
       'Shot', 'Fired at (UTC)', 'Tube pressure (kPa)', 'Seal', 'Ambient temperature (°C)', 'Ambient pressure (kPa)', 'Projectile',
-      'Speed (m/s)', 'U (m/s)', 'k', 'Method', 'Mach', 'Status', 'Review decision', 'Analysis version',
+      'Speed (m/s)', 'U (m/s)', 'k', 'Method', 'Mach', 'Status', 'Review decision (this version)', 'Analysis version',
     ]);
-    expect(rows.length).toBe(1 + 7);
+    expect(rows.length).toBe(1 + 8);
     const r1 = rows[1];
     const speed = first.results.speed as { value: number; uncertainty: number };
     // 2000 Pa = 2 kPa; 268.15 K − 273.15 = −5 °C (SI Brochure, 0 °C = 273.15 K); 101 325 Pa = 101.325 kPa.
     expect(r1).toEqual([
       '1', '2026-10-14T09:30:00.000Z', '2', `'${HOSTILE}`, '-5', '101.325', 'Table-tennis ball, 40 mm',
-      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'analysed', '', '1',
+      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'approved', 'approved', '1',
     ]);
-    expect(rows.slice(2).map((r) => [r[0], r[3], r[7], r[12]])).toEqual([
-      ['2', "'+cmd|calc", '', 'draft'],
-      ['3', "'-2+3", '', 'draft'],
-      ['4', "'@SUM(A1:A9)", '', 'draft'],
-      ['5', "'\tindented", '', 'draft'],
-      ['6', "'\rreturn", '', 'draft'],
-      ['7', 'Mylar, 23 µm', '', 'draft'],
+    expect(rows.slice(2).map((r) => [r[0], r[3], r[7], r[12], r[13]])).toEqual([
+      ['2', "'+cmd|calc", '', 'draft', ''],
+      ['3', "'-2+3", '', 'draft', ''],
+      ['4', "'@SUM(A1:A9)", '', 'draft', ''],
+      ['5', "'\tindented", '', 'draft', ''],
+      ['6', "'\rreturn", '', 'draft', ''],
+      ['7', 'Mylar, 23 µm', '', 'draft', ''],
+      ['8', 'Mylar, 23 µm', expect.stringMatching(/^\d+\.\d+$/), 'analysed', ''],
     ]);
+    expect(rows[8][14]).toBe('2');
     // On the wire: the negative number is bare (numeric in a spreadsheet); the hostile text is quoted and prefixed.
     const line1 = res.text.split('\r\n')[1];
     expect(line1).toContain(',-5,101.325,');
@@ -78,9 +87,10 @@ describe('campaign export', () => {
     expect(res.headers['content-disposition']).toBe('attachment; filename=export-check-winter-2026-shots.json');
     const body = JSON.parse(res.text);
     expect(body.campaign).toEqual({ id: campaignId, name: 'Export check, winter 2026' });
-    expect(body.rows).toHaveLength(7);
+    expect(body.rows).toHaveLength(8);
     // JSON carries data, not spreadsheet cells: the text is not prefixed there.
-    expect(body.rows[0]).toMatchObject({ number: 1, sealType: HOSTILE, ambientTemperatureC: -5, tubePressureKpa: 2, coverageFactor: 2, analysisVersion: 1 });
+    expect(body.rows[0]).toMatchObject({ number: 1, sealType: HOSTILE, ambientTemperatureC: -5, tubePressureKpa: 2, coverageFactor: 2, analysisVersion: 1, reviewDecision: 'approved' });
+    expect(body.rows[7]).toMatchObject({ number: 8, status: 'analysed', reviewDecision: null, analysisVersion: 2 });
     expect((await request(h.app).get(`/api/labs/${h.demo.labs.hollowmere.id}/campaigns/${campaignId}/export?format=xlsx`).set(as('reviewer'))).status).toBe(400);
   });
 });

@@ -10,7 +10,7 @@ export const CAMPAIGN_COLUMNS = [
   ['number', 'Shot'], ['firedAt', 'Fired at (UTC)'], ['tubePressureKpa', 'Tube pressure (kPa)'], ['sealType', 'Seal'],
   ['ambientTemperatureC', 'Ambient temperature (°C)'], ['ambientPressureKpa', 'Ambient pressure (kPa)'], ['projectile', 'Projectile'],
   ['speedMps', 'Speed (m/s)'], ['uncertaintyMps', 'U (m/s)'], ['coverageFactor', 'k'], ['method', 'Method'], ['mach', 'Mach'],
-  ['status', 'Status'], ['reviewDecision', 'Review decision'], ['analysisVersion', 'Analysis version'],
+  ['status', 'Status'], ['reviewDecision', 'Review decision (this version)'], ['analysisVersion', 'Analysis version'],
 ] as const;
 export type CampaignRow = Record<(typeof CAMPAIGN_COLUMNS)[number][0], CsvValue>;
 
@@ -21,10 +21,11 @@ export async function campaignRows(campaign: Campaign): Promise<CampaignRow[]> {
   const [analyses, projectiles, reviews] = await Promise.all([
     Analysis.findAll({ where: { id: ids, labId: campaign.labId }, attributes: ['id', 'version', 'results'] }),
     Projectile.findAll({ where: { labId: campaign.labId }, attributes: ['id', 'name'] }),
-    Review.findAll({ where: { shotId: shots.map((s) => s.id) }, attributes: ['shotId', 'decision', 'createdAt'], order: [['createdAt', 'DESC'], ['id', 'DESC']] }),
+    Review.findAll({ where: { analysisId: ids, labId: campaign.labId }, attributes: ['analysisId', 'decision', 'createdAt'], order: [['createdAt', 'DESC'], ['id', 'DESC']] }),
   ]);
+  // The decision about the version exported: an approval of an older version does not cover a recomputed result.
   const latest = new Map<string, string>();
-  for (const r of reviews) if (!latest.has(r.shotId)) latest.set(r.shotId, r.decision);
+  for (const r of reviews) if (!latest.has(r.analysisId)) latest.set(r.analysisId, r.decision);
   return shots.map((s) => {
     const a = analyses.find((x) => x.id === s.currentAnalysisId);
     const results = (a?.results ?? null) as Partial<ShotAnalysis> | null;
@@ -43,7 +44,7 @@ export async function campaignRows(campaign: Campaign): Promise<CampaignRow[]> {
       method: speed ? `${speed.method} (${speed.basis})` : null,
       mach: results?.derived?.mach?.value ?? null,
       status: s.status,
-      reviewDecision: latest.get(s.id) ?? null,
+      reviewDecision: (s.currentAnalysisId && latest.get(s.currentAnalysisId)) || null,
       analysisVersion: a?.version ?? null,
     };
   });
