@@ -633,7 +633,10 @@ describe('lab isolation', () => {
       const url = route.path.replace(/:(\w+)/g, (_, name: string) => own[name] ?? ((madeUp = true), crypto.randomUUID()));
       const res = await request(h.app).get(url).set('Cookie', cookie);
       // Assert
-      expect(res.status, `${url}: ${JSON.stringify(res.body).slice(0, 300)}`).toBe(madeUp ? 404 : 200);
+      // The seeded shots have no analysis yet: exporting one is refused with 409 (and still tells nothing of Sandgate).
+      const needsAnalysis = /^\/api\/shots\/:shotId\/(export|report\.pdf)$/.test(route.path);
+      const expected = madeUp ? [404] : needsAnalysis ? [200, 409] : [200];
+      expect(expected, `${url}: ${res.status} ${JSON.stringify(res.body).slice(0, 300)}`).toContain(res.status);
       expect(leaks(res.body), url).toEqual([]);
     }
   });
