@@ -203,9 +203,15 @@ describe('review', () => {
       const { context, page } = await signedIn('experimenter');
       try {
         await page.goto(shotUrl(shotA));
+        // An answer to the reviewer's comment threads under it.
+        await reviewBar(page).getByRole('button', { name: 'Answer' }).click();
+        await reviewBar(page).getByLabel(`Answer to ${harness.demo.users.reviewer.name}`).fill('Spacing fixed in version 2.');
+        await reviewBar(page).getByRole('button', { name: 'Post answer' }).click();
+        await reviewBar(page).getByRole('list', { name: 'Comments' }).locator('ul').getByText('Spacing fixed in version 2.').waitFor();
         await reviewBar(page).getByRole('button', { name: 'Send for review' }).click();
         await reviewBar(page).getByRole('button', { name: 'Send', exact: true }).click();
         await reviewBar(page).getByText('Version 2 is waiting for review').waitFor();
+        await both(page, 'review-sent-again');
       } finally {
         await context.close();
       }
