@@ -34,10 +34,9 @@ export function Component() {
       </>
     );
   }
-  const failed = shots.find((q) => q.isError);
-  if (failed) return <>{header}<ErrorNote error={failed.error} /></>;
-  if (shots.some((q) => q.isPending)) return <>{header}<Loading what="Loading the shots" /></>;
-  const data = shots.map((q) => q.data!);
+  if (shots.error) return <>{header}<ErrorNote error={shots.error} /></>;
+  if (!shots.data) return <>{header}<Loading what="Loading the shots" /></>;
+  const data = shots.data;
   const names: ShotNames[] = data.map((d) => {
     const rig = rigs.data?.gateRigs.find((r) => r.id === d.shot.gateRigId);
     return {
