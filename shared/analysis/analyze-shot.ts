@@ -65,6 +65,9 @@ function linear(inputs: ModelInput[], evaluate: (x: Float64Array) => number) {
  * (JCGM 101:2008); a flight/occlusion cross-check; Mach number (c = √(γRT), USSA 1976), kinetic energy and
  * momentum. Pure: the capture is not modified, the result is plain JSON.
  */
+/** Which pulse instant times the flight: both like edges averaged (mid-time), or one edge alone. */
+const EDGE = { both: 'mid', leading: 'leading', trailing: 'trailing' } as const;
+
 export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsInput = {}): ShotAnalysis {
   const parsed = analysisOptionsSchema.safeParse(options);
   if (!parsed.success) throw new RangeError(`invalid analysis options: ${z.prettifyError(parsed.error)}`);
@@ -295,6 +298,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     timebaseAccuracyPpm: opts.timebaseAccuracyPpm,
     projectileLength: length ?? Number.NaN,
     lengthTolerance: opts.projectile.lengthTolerance,
+    timingEdge: EDGE[opts.edges],
   });
   const { inputs } = model;
   const x0 = new Float64Array(inputs.length);
@@ -306,7 +310,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
       if (fired[j].pulse.start + fired[j].pulse.end === fired[i].pulse.start + fired[i].pulse.end) {
         throw new RangeError(`the gates at ${fired[i].position} m and ${fired[j].position} m show the very same pulse: check the gate map`);
       }
-      const r = linear(inputs, model.flight(i, j, 'mid'));
+      const r = linear(inputs, model.flight(i, j, EDGE[opts.edges]));
       flight.push({
         from: { channel: fired[i].channel, position: fired[i].position },
         to: { channel: fired[j].channel, position: fired[j].position },
@@ -355,7 +359,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
 
   let primary: { method: 'flight' | 'occlusion'; basis: 'fit' | 'pair' | 'occlusion'; evaluate: (x: Float64Array) => number } | null = null;
   if (model.fitSpeed !== null && fitUsable) primary = { method: 'flight', basis: 'fit', evaluate: model.fitSpeed };
-  else if (fired.length >= 2) primary = { method: 'flight', basis: 'pair', evaluate: model.flight(0, 1, 'mid') };
+  else if (fired.length >= 2) primary = { method: 'flight', basis: 'pair', evaluate: model.flight(0, 1, EDGE[opts.edges]) };
   else if (fired.length === 1 && model.occlusion !== null) primary = { method: 'occlusion', basis: 'occlusion', evaluate: model.occlusion(0) };
   let speed: SpeedResult | null = null;
   if (primary !== null) {

@@ -18,7 +18,11 @@ export interface BuildShotModelOptions {
   projectileLength?: number;
   /** Half-width of the rectangular tolerance of the length, m. @default 0 */
   lengthTolerance?: number;
+  /** Which instant of each pulse times the fit: its mid-time, its leading or its trailing edge. @default 'mid' */
+  timingEdge?: TimingEdge;
 }
+
+export type TimingEdge = 'mid' | 'leading' | 'trailing';
 
 type Output = (x: Float64Array) => number;
 
@@ -47,7 +51,7 @@ const rect = (halfWidth: number): number => halfWidth / Math.sqrt(3);
  * Instants are taken at the mesial level; mid-times (entry + exit)/2 average two like-edge flight times.
  */
 export function buildShotModel(gates: FiredGate[], options: BuildShotModelOptions = {}): ShotModel {
-  const { positionTolerance = 0, timebaseAccuracyPpm = 0, projectileLength = Number.NaN, lengthTolerance = 0 } = options;
+  const { positionTolerance = 0, timebaseAccuracyPpm = 0, projectileLength = Number.NaN, lengthTolerance = 0, timingEdge = 'mid' } = options;
   const inputs: ModelInput[] = [];
   for (const g of gates) {
     const label = `${g.channel} @ ${g.position} m`;
@@ -77,10 +81,12 @@ export function buildShotModel(gates: FiredGate[], options: BuildShotModelOption
   const midAt = (x: Float64Array, k: number): number => 0.5 * (entryAt(x, k) + exitAt(x, k));
   const positionAt = (x: Float64Array, k: number): number => x[PER_GATE * k];
 
-  const flight = (i: number, j: number, edge: 'mid' | 'leading' | 'trailing'): Output => {
-    const at = edge === 'mid' ? midAt : edge === 'leading' ? entryAt : exitAt;
+  const instantAt = (edge: TimingEdge) => (edge === 'mid' ? midAt : edge === 'leading' ? entryAt : exitAt);
+  const flight = (i: number, j: number, edge: TimingEdge): Output => {
+    const at = instantAt(edge);
     return (x) => (positionAt(x, j) - positionAt(x, i)) / (at(x, j) - at(x, i));
   };
+  const timeAt = instantAt(timingEdge);
 
   let fitSpeed: Output | null = null;
   let fitDeceleration: Output | null = null;
@@ -89,21 +95,23 @@ export function buildShotModel(gates: FiredGate[], options: BuildShotModelOption
     const n = gates.length;
     const x0 = new Float64Array(inputs.length);
     for (let i = 0; i < inputs.length; i++) x0[i] = inputs[i].value;
-    const roughSpeed = Math.abs(flight(0, n - 1, 'mid')(x0));
-    // Weights 1/σ² in position: the gate's own tolerance plus its mid-time uncertainty times the speed.
+    const roughSpeed = Math.abs(flight(0, n - 1, timingEdge)(x0));
+    // Weights 1/σ² in position: the gate's own tolerance plus its timing instant's uncertainty times the speed.
     // Fixed at the estimates, as in the weighted fit itself, so the model stays a fixed function of its inputs.
     const weights = new Float64Array(n);
     for (let k = 0; k < n; k++) {
       const { entry, exit } = gates[k].pulse;
-      const uMid = 0.5 * Math.sqrt(entry.jitter ** 2 + exit.jitter ** 2 + (entry.interpolationHalfWidth ** 2 + exit.interpolationHalfWidth ** 2) / 3);
-      weights[k] = 1 / Math.max(rect(positionTolerance) ** 2 + (roughSpeed * uMid) ** 2, 1e-30);
+      const uEdge = (e: typeof entry) => Math.sqrt(e.jitter ** 2 + e.interpolationHalfWidth ** 2 / 3);
+      const uTime = timingEdge === 'leading' ? uEdge(entry) : timingEdge === 'trailing' ? uEdge(exit)
+        : 0.5 * Math.sqrt(entry.jitter ** 2 + exit.jitter ** 2 + (entry.interpolationHalfWidth ** 2 + exit.interpolationHalfWidth ** 2) / 3);
+      weights[k] = 1 / Math.max(rect(positionTolerance) ** 2 + (roughSpeed * uTime) ** 2, 1e-30);
     }
-    const tRef = midAt(x0, 0);
+    const tRef = timeAt(x0, 0);
     const times = new Float64Array(n);
     const positions = new Float64Array(n);
     const fit = (x: Float64Array) => {
       for (let k = 0; k < n; k++) {
-        times[k] = midAt(x, k);
+        times[k] = timeAt(x, k);
         positions[k] = positionAt(x, k);
       }
       return fitConstantDeceleration(times, positions, weights, tRef);
@@ -112,7 +120,7 @@ export function buildShotModel(gates: FiredGate[], options: BuildShotModelOption
     fitDeceleration = (x) => fit(x).deceleration;
     fitSpeedAt = (k) => (x) => {
       const f = fit(x);
-      return f.speed - f.deceleration * (midAt(x, k) - tRef);
+      return f.speed - f.deceleration * (timeAt(x, k) - tRef);
     };
   }
 

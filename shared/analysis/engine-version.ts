@@ -1,3 +1,4 @@
 /** Version of the analysis engine, stored with every result so a recomputation can say what changed.
  * Bump it whenever a change can alter a number in a ShotAnalysis. */
-export const ENGINE_VERSION = '1.0.0';
+// 1.1.0: the `edges` option (flight timed by mid-times, leading or trailing edges); default results unchanged.
+export const ENGINE_VERSION = '1.1.0';

@@ -41,6 +41,10 @@ export const analysisOptionsSchema = z.object({
     })
     .prefault({}),
   threshold: thresholdSchema.prefault({}),
+  /** Which like edges time the flight between gates: "both" uses each pulse's mid-time (the mean of its leading and
+   * trailing edges, halving interpolation and noise); "leading" or "trailing" uses one edge only, for when the other
+   * is disturbed (a sabot or debris following the ball, a sensor that recovers slowly). */
+  edges: z.enum(['both', 'leading', 'trailing']).default('both'),
   /** "falling": a blocked beam pulls the output low; "auto": the state the trace spends less time in is blocked. */
   polarity: z.enum(['auto', 'falling', 'rising']).default('auto'),
   /** Savitzky–Golay smoothing before transition detection (the raw trace is kept); null = none. */

@@ -100,6 +100,11 @@ export function AnalystPanel({ shotId, base, channelNames, canRecompute, onPrevi
           </div>
         ))}
         <Button variant="secondary" className="!py-1 text-xs" onClick={() => change({ gates: [...form.gates, { channel: channelNames[0] ?? 'CH1', positionMm: '' }] })}>Add a gate</Button>
+        <SelectField label="Edges that time the flight" value={form.edges} onChange={(e) => change({ edges: e.target.value as ParametersForm['edges'] })}>
+          <option value="both">both edges (pulse mid-times)</option>
+          <option value="leading">leading edges only</option>
+          <option value="trailing">trailing edges only</option>
+        </SelectField>
         <p className="text-xs text-harbour-500">Two gates on one channel: give the channel twice; its pulses are taken in time order.</p>
         <TextField label="Gate position tolerance ± (mm)" inputMode="decimal" value={form.positionToleranceMm} onChange={(e) => change({ positionToleranceMm: e.target.value })} />
       </Section>

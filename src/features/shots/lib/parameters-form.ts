@@ -9,6 +9,7 @@ export interface ParametersForm {
   level: string;
   hysteresis: string;
   polarity: 'auto' | 'falling' | 'rising';
+  edges: 'both' | 'leading' | 'trailing';
   smoothing: boolean;
   smoothingWindow: string;
   smoothingOrder: string;
@@ -34,6 +35,7 @@ export function formFromParameters(p: AnalysisOptions): ParametersForm {
     level: String(p.threshold.level),
     hysteresis: String(p.threshold.hysteresis),
     polarity: p.polarity,
+    edges: p.edges ?? 'both',
     smoothing: p.smoothing != null,
     smoothingWindow: String(p.smoothing?.windowSize ?? 11),
     smoothingOrder: String(p.smoothing?.polynomial ?? 2),
@@ -62,6 +64,7 @@ export function parametersFromForm(f: ParametersForm, base: AnalysisOptions): An
         ? { unit: 'percent', level: 50, hysteresis: 40 }
         : { unit: f.thresholdMode, level: num(f.level) ?? 50, hysteresis: num(f.hysteresis) ?? 0 },
     polarity: f.polarity,
+    edges: f.edges,
     smoothing: f.smoothing ? { windowSize: num(f.smoothingWindow) ?? 11, polynomial: num(f.smoothingOrder) ?? 2 } : null,
     levels: { ...base.levels, method: f.levelsMethod },
     gates: f.gates.length > 0 ? f.gates.map((x) => ({ channel: x.channel, position: mm(x.positionMm) ?? 0 })) : undefined,
