@@ -1,4 +1,3 @@
-import type { Request } from 'express';
 import { Op } from 'sequelize';
 import {
   commentBody, reviewDecisionBody, reviewRequestBody,
@@ -11,15 +10,9 @@ import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { notifyQueueOn, notifySafely, reviewersOf } from '../notifications/notify-people.ts';
-import { labOfShot } from '../shots/routes.ts';
+import { labOfShot, shotInLab } from '../shots/routes.ts';
 import { shotSummary } from '../shots/view.ts';
 import { namesOf, person } from './people.ts';
-
-async function shotInLab(req: Request): Promise<Shot> {
-  const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
-  if (!shot) throw notFound('No such shot.');
-  return shot;
-}
 
 const finiteOrNull = (x: unknown) => (typeof x === 'number' && Number.isFinite(x) ? x : null);
 
