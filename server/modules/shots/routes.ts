@@ -69,6 +69,9 @@ export async function shotDetail(shot: Shot) {
     Capture.findAll({ where: { shotId: shot.id }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']] }),
     Analysis.findAll({ where: { shotId: shot.id }, order: [['version', 'DESC']], attributes: { exclude: ['results', 'parameters'] } }),
   ]);
+  // Read the shot again after its versions: the worker finishes a version and moves the shot's pointer in one
+  // transaction, so a version seen as done here is never shown beside the shot as it was before that commit.
+  await shot.reload();
   const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
   return {
     shot: shotSummary(shot),
