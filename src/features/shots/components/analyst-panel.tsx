@@ -1,4 +1,4 @@
-import { useState, type ReactNode } from 'react';
+import { useEffect, useRef, useState, type ReactNode } from 'react';
 import type { AnalysisOptions, AnalysisOptionsInput } from '../../../../shared/contracts/analysis.ts';
 import { analysisOptionsSchema } from '../../../../shared/contracts/analysis.ts';
 import { Button, ErrorNote, SelectField, TextField } from '../../../components/ui/primitives.tsx';
@@ -34,6 +34,10 @@ export function AnalystPanel({ shotId, base, channelNames, canRecompute, onPrevi
   const [previewOn, setPreviewOn] = useState(false);
   const recompute = useRecompute(shotId);
   const [key, setKey] = useState(() => crypto.randomUUID());
+  // The panel is rebuilt when a new version becomes current: its preview must not outlive it.
+  const onPreviewRef = useRef(onPreview);
+  onPreviewRef.current = onPreview;
+  useEffect(() => () => onPreviewRef.current(null), []);
 
   const parsed = analysisOptionsSchema.safeParse(parametersFromForm(form, base));
   const problem = parsed.success ? null : parsed.error.issues.map((i) => `${i.path.join('.') || 'parameters'}: ${i.message}`).join('; ');
