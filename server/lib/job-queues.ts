@@ -1,4 +1,5 @@
 import { Queue } from 'bullmq';
+import type { Logger } from './logger.ts';
 import {
   analysisJobId, ingestJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData, type IngestJobData,
 } from '../../shared/contracts/jobs.ts';
@@ -14,6 +15,12 @@ const defaultJobOptions = {
 export interface JobQueues {
   addIngest(data: IngestJobData): Promise<void>;
   addAnalysis(data: AnalysisJobData): Promise<void>;
+  /**
+   * Queue now if Redis answers, else leave it to the worker's sweep: the capture or analysis row already records
+   * the work, so a failed add is logged, never thrown at the person who asked.
+   */
+  addIngestOrDefer(data: IngestJobData, logger: Logger): Promise<void>;
+  addAnalysisOrDefer(data: AnalysisJobData, logger: Logger): Promise<void>;
   close(): Promise<void>;
 }
 
@@ -37,13 +44,25 @@ export function createJobQueues(redisUrl: string): JobQueues {
   // Errors surface on the add() calls; without a listener ioredis would log each reconnect attempt as unhandled.
   ingest.on('error', () => {});
   analysis.on('error', () => {});
+  const addIngest = async (data: IngestJobData) => {
+    await ingest.add(JOB_NAMES.ingest, data, { jobId: ingestJobId(data) });
+  };
+  const addAnalysis = async (data: AnalysisJobData) => {
+    await analysis.add(JOB_NAMES.analysis, data, { jobId: analysisJobId(data) });
+  };
+  const orDefer = <T extends object>(add: (d: T) => Promise<void>, what: string) => async (data: T, logger: Logger) => {
+    try {
+      await add(data);
+    } catch (err) {
+      const fields: Record<string, unknown> = { err: (err as Error).message, ...data };
+      logger.warn(fields, `${what} job not queued now; the worker sweep will queue it`);
+    }
+  };
   return {
-    async addIngest(data) {
-      await ingest.add(JOB_NAMES.ingest, data, { jobId: ingestJobId(data) });
-    },
-    async addAnalysis(data) {
-      await analysis.add(JOB_NAMES.analysis, data, { jobId: analysisJobId(data) });
-    },
+    addIngest,
+    addAnalysis,
+    addIngestOrDefer: orDefer(addIngest, 'ingest'),
+    addAnalysisOrDefer: orDefer(addAnalysis, 'analysis'),
     async close() {
       await Promise.allSettled([ingest.close(), analysis.close()]);
     },

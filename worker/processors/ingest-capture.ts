@@ -63,11 +63,7 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
       const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
       const parameters = await defaultParameters(shot, combinedChannelNames(ready));
       const { analysis } = await createAnalysisVersion(sequelize, { shotId: shot.id, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shot.id}-${key}` });
-      try {
-        await queues.addAnalysis({ analysisId: analysis.id });
-      } catch (err) {
-        logger.warn({ err: (err as Error).message, analysisId: analysis.id }, 'analysis job not queued now; the sweep will queue it');
-      }
+      await queues.addAnalysisOrDefer({ analysisId: analysis.id }, logger);
     }
   }
   return { captureId: capture.id, state: 'ready' };

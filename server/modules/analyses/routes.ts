@@ -80,11 +80,7 @@ export function analysisRoutes(deps: Deps): RouteDef[] {
         if (created) {
           await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'analysis.requested', targetType: 'shot', targetId: shot.id, details: { version: analysis.version }, ip: clientIp(req) });
         }
-        try {
-          await deps.queues.addAnalysis({ analysisId: analysis.id });
-        } catch (err) {
-          deps.logger.warn({ err: (err as Error).message, analysisId: analysis.id }, 'analysis job not queued now; the worker sweep will queue it');
-        }
+        await deps.queues.addAnalysisOrDefer({ analysisId: analysis.id }, deps.logger);
         res.status(created ? 202 : 200).json({ analysis: analysisSummary(analysis) });
       },
     },
@@ -126,11 +122,7 @@ export function analysisRoutes(deps: Deps): RouteDef[] {
         const { importOptions } = req.body as { importOptions: ImportOverrides };
         await capture.update({ importOptions, ingestAttempt: capture.ingestAttempt + 1, state: 'queued', progress: 0, error: null });
         await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'capture.reingest', targetType: 'shot', targetId: shot.id, details: { captureId: capture.id, importOptions }, ip: clientIp(req) });
-        try {
-          await deps.queues.addIngest({ captureId: capture.id, attempt: capture.ingestAttempt });
-        } catch (err) {
-          deps.logger.warn({ err: (err as Error).message, captureId: capture.id }, 'ingest job not queued now; the worker sweep will queue it');
-        }
+        await deps.queues.addIngestOrDefer({ captureId: capture.id, attempt: capture.ingestAttempt }, deps.logger);
         res.status(202).json({ capture: captureView(capture) });
       },
     },

@@ -94,11 +94,7 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
           labId: shot.labId, actorId: req.auth!.userId, action: 'capture.uploaded', targetType: 'shot', targetId: shot.id,
           details: { captureId: capture.id, file: capture.fileName, bytes: Number(capture.sizeBytes), sha256: capture.sha256 }, ip: clientIp(req),
         });
-        try {
-          await deps.queues.addIngest({ captureId: capture.id, attempt: capture.ingestAttempt });
-        } catch (err) {
-          deps.logger.warn({ err: (err as Error).message, captureId: capture.id }, 'ingest job not queued now; the worker sweep will queue it');
-        }
+        await deps.queues.addIngestOrDefer({ captureId: capture.id, attempt: capture.ingestAttempt }, deps.logger);
       }
     }
     return views;

@@ -1,5 +1,6 @@
 import { keepPreviousData, useQueries } from '@tanstack/react-query';
-import { useEffect, useMemo, useRef, useState } from 'react';
+import { useElementWidth } from '../../../lib/use-element-width.ts';
+import { useEffect, useMemo, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import { timeTicks } from '../../../lib/time-axis.ts';
@@ -39,9 +40,8 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
   onRange: (r: TimeRange) => void;
   height?: number;
 }) {
-  const box = useRef<HTMLDivElement>(null);
+  const [box, width] = useElementWidth();
   const plot = useRef<uPlot | null>(null);
-  const [width, setWidth] = useState(0);
   const onRangeRef = useRef(onRange);
   onRangeRef.current = onRange;
   const sourcesRef = useRef(sources);
@@ -64,13 +64,6 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
     }),
   });
 
-  useEffect(() => {
-    const el = box.current;
-    if (!el) return;
-    const ro = new ResizeObserver(([entry]) => setWidth(Math.floor(entry.contentRect.width)));
-    ro.observe(el);
-    return () => ro.disconnect();
-  }, []);
 
   const seriesKey = sources.map((s) => `${s.key}:${s.colour}`).join('|');
   useEffect(() => {

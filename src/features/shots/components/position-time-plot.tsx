@@ -1,4 +1,5 @@
-import { useEffect, useMemo, useRef, useState } from 'react';
+import { useEffect, useMemo } from 'react';
+import { useElementWidth } from '../../../lib/use-element-width.ts';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
@@ -9,16 +10,8 @@ import { timeTicks } from '../../../lib/time-axis.ts';
  * curve x = v·τ − a·τ²/2 when three or more gates fired, else the straight line x = v·τ.
  */
 export function PositionTimePlot({ results }: { results: ShotAnalysis | null }) {
-  const box = useRef<HTMLDivElement>(null);
-  const [width, setWidth] = useState(0);
+  const [box, width] = useElementWidth();
 
-  useEffect(() => {
-    const el = box.current;
-    if (!el) return;
-    const ro = new ResizeObserver(([entry]) => setWidth(Math.floor(entry.contentRect.width)));
-    ro.observe(el);
-    return () => ro.disconnect();
-  }, []);
 
   const fired = useMemo(
     () => results?.gates.filter((g) => g.status === 'ok' && g.pulses.length > 0).sort((a, b) => a.position - b.position) ?? [],
@@ -64,7 +57,7 @@ export function PositionTimePlot({ results }: { results: ShotAnalysis | null }) 
       box.current,
     );
     return () => u.destroy();
-  }, [width, speed, fired, results]);
+  }, [box, width, speed, fired, results]);
 
   if (!speed || fired.length === 0) return <p className="text-sm text-harbour-500">Drawn once a speed is known.</p>;
   return (

@@ -1,5 +1,6 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
-import { useEffect, useRef, useState } from 'react';
+import { useElementWidth } from '../../../lib/use-element-width.ts';
+import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
@@ -174,9 +175,8 @@ function drawAnnotations(u: uPlot, a: Annotations) {
 /** One channel's trace from min/max windows of the server, refined as the range narrows, down to raw samples. */
 export function TracePlot(props: TracePlotProps) {
   const { captureId, channelIndex, range, onRange, height = 190 } = props;
-  const box = useRef<HTMLDivElement>(null);
+  const [box, width] = useElementWidth();
   const plot = useRef<uPlot | null>(null);
-  const [width, setWidth] = useState(0);
   const annotations = useRef<Annotations>({ channel: null, gates: [], expected: [], gateLabel: String, preview: false, title: '' });
   annotations.current = { channel: props.channel, gates: props.gates, expected: props.expected, gateLabel: props.gateLabel, preview: props.preview, title: props.title };
   const onRangeRef = useRef(onRange);
@@ -191,13 +191,6 @@ export function TracePlot(props: TracePlotProps) {
     staleTime: Infinity,
   });
 
-  useEffect(() => {
-    const el = box.current;
-    if (!el) return;
-    const ro = new ResizeObserver(([entry]) => setWidth(Math.floor(entry.contentRect.width)));
-    ro.observe(el);
-    return () => ro.disconnect();
-  }, []);
 
   useEffect(() => {
     if (!box.current || width === 0) return;
@@ -248,7 +241,7 @@ export function TracePlot(props: TracePlotProps) {
       u.destroy();
       plot.current = null;
     };
-  }, [width, height]);
+  }, [box, width, height]);
 
   const data = windowQuery.data;
   useEffect(() => {

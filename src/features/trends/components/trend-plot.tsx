@@ -1,4 +1,5 @@
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useRef } from 'react';
+import { useElementWidth } from '../../../lib/use-element-width.ts';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 
@@ -31,18 +32,10 @@ export interface TrendPlotProps {
  * stretching it (the gas-dynamic limit is several times any measured speed).
  */
 export function TrendPlot({ xLabel, logX = false, integerX = false, series, curve = null, references = [], height = 300, testId }: TrendPlotProps) {
-  const box = useRef<HTMLDivElement>(null);
-  const [width, setWidth] = useState(0);
+  const [box, width] = useElementWidth();
   const latest = useRef({ series, curve, references });
   latest.current = { series, curve, references };
 
-  useEffect(() => {
-    const el = box.current;
-    if (!el) return;
-    const ro = new ResizeObserver(([entry]) => setWidth(Math.floor(entry.contentRect.width)));
-    ro.observe(el);
-    return () => ro.disconnect();
-  }, []);
 
   useEffect(() => {
     if (!box.current || width === 0) return;
@@ -146,7 +139,7 @@ export function TrendPlot({ xLabel, logX = false, integerX = false, series, curv
     };
     const u = new uPlot(opts, data, box.current);
     return () => u.destroy();
-  }, [width, height, logX, integerX, xLabel, series, curve, references]);
+  }, [box, width, height, logX, integerX, xLabel, series, curve, references]);
 
   const empty = series.every((s) => s.points.length === 0) && !(curve && curve.x.length > 0);
   return (
