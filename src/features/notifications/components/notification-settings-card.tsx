@@ -1,3 +1,4 @@
+import { useState } from 'react';
 import { NOTIFICATION_KINDS, type NotificationKind } from '../../../../shared/contracts/review.ts';
 import { Card, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
 import { useNotificationPreferences, useUpdateNotificationPreferences } from '../api/notification-preferences.ts';
@@ -13,6 +14,18 @@ const KIND_TEXT: Record<NotificationKind, { label: string; hint: string }> = {
 export function NotificationSettingsCard() {
   const q = useNotificationPreferences();
   const update = useUpdateNotificationPreferences();
+  // The switch must move in the same event as the click (a controlled checkbox whose value arrives a tick later is
+  // put back by React); it shows the server's answer again once the save has settled.
+  const [moving, setMoving] = useState<Partial<Record<NotificationKind, boolean>>>({});
+  const change = (kind: NotificationKind, on: boolean) => {
+    setMoving((m) => ({ ...m, [kind]: on }));
+    update.mutate({ [kind]: on }, {
+      onSettled: () => setMoving((m) => {
+        const { [kind]: _done, ...rest } = m;
+        return rest;
+      }),
+    });
+  };
   return (
     <Card title="E-mail notifications">
       {q.isPending && <Loading what="Loading your notification settings" />}
@@ -26,8 +39,8 @@ export function NotificationSettingsCard() {
               <input
                 type="checkbox"
                 className="mt-0.5 h-4 w-4 accent-harbour-700"
-                checked={q.data[kind]}
-                onChange={(e) => update.mutate({ [kind]: e.target.checked })}
+                checked={moving[kind] ?? q.data[kind]}
+                onChange={(e) => change(kind, e.target.checked)}
               />
               <span>
                 <span className="font-medium text-harbour-800">{KIND_TEXT[kind].label}</span>
