@@ -123,9 +123,11 @@ describe('notification e-mails through the worker', () => {
     const approved = await call<{ review: { id: string } }>('reviewer', 'POST', `/api/shots/${shotId}/reviews`, { decision: 'approved' });
     expect(approved.status).toBe(201);
     // The job ran and chose not to send: the person turned this kind off.
+    // finishedOn and returnvalue are written together when the job completes and read together by getJob, so a
+    // job fetched while still active (returnvalue null) is never taken for a finished one.
     const job = await pollUntil(async () => {
       const j = await notifyQueue.getJob(`notify-approved-${approved.body.review.id}-${h.demo.users.experimenter.id}`);
-      return j && (await j.isCompleted()) ? j : undefined;
+      return j?.finishedOn ? j : undefined;
     }, { timeoutMs: 20_000, what: 'the approval notification job' });
     expect(job.returnvalue).toEqual({ sent: false });
     const mails = await readFakeOutbox(h.redis);
