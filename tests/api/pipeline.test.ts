@@ -359,11 +359,14 @@ describe('When a file cannot be read', () => {
     for (const [name, bytes] of [['ragged.csv', ragged], ['junk.bin', junk]] as const) {
       const c = byName.get(name)!;
       // Not retried: an UnrecoverableError ends the job after its first attempt.
-      // The processor marks the row failed, then throws; BullMQ records the job's end a moment later.
+      // The processor marks the row failed, then throws; BullMQ records the job's end a moment later, writing
+      // finishedOn, failedReason and attemptsMade in one step (asking getState() of a job object fetched earlier
+      // would pair a fresh state with stale fields).
       const job = await pollUntil(async () => {
         const j = await queue.getJob(`ingest-${c.id}-1`);
-        return j && (await j.getState()) === 'failed' ? j : undefined;
+        return j?.finishedOn ? j : undefined;
       }, { timeoutMs: 10_000, what: `the ingest job of ${name} to be failed` });
+      expect(await job.getState(), name).toBe('failed');
       expect(job.attemptsMade, name).toBe(1);
       expect(job.failedReason, name).toBe(c.error);
       const stored = path.join(dataDir, 'blobs', 'labs', demo.labs.hollowmere.id, 'raw', c.sha256);
