@@ -1,12 +1,13 @@
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { Worker, type Job, type Queue } from 'bullmq';
+import { Worker, type Queue } from 'bullmq';
 import { Op } from 'sequelize';
 import { loadConfig, loadConfigOrExit, type Config } from '../server/config.ts';
-import { Analysis, Capture, Shot } from '../server/db/models/index.ts';
-import { createNotifyQueue, notifyPeople } from '../server/modules/notifications/notify-people.ts';
+import { Analysis, Capture } from '../server/db/models/index.ts';
+import { createNotifyQueue } from '../server/modules/notifications/notify-people.ts';
 import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
 import { closeWorkerContext, workerContext } from './context.ts';
+import { isFinalFailure, recordFinalFailure } from './final-failure.ts';
 import { redisConnection } from './queues.ts';
 
 /**
@@ -21,36 +22,6 @@ const processorFiles = {
   [QUEUE_NAMES.notify]: path.join(here, 'processors/notify.boot.mjs'),
 };
 
-/** After the last retry of a transient fault, the row says so instead of staying "queued" for ever. */
-async function recordFinalFailure(queue: string, job: Job | undefined, err: Error) {
-  if (!job) return;
-  const attempts = job.opts.attempts ?? 1;
-  const unrecoverable = err.name === 'UnrecoverableError';
-  if (!unrecoverable && job.attemptsMade < attempts) return;
-  const message = `${err.message} (gave up after ${job.attemptsMade} attempt${job.attemptsMade === 1 ? '' : 's'})`;
-  if (queue === QUEUE_NAMES.ingest) {
-    await Capture.update({ state: 'failed', progress: 100, error: unrecoverable ? err.message : message }, { where: { id: job.data.captureId, state: { [Op.ne]: 'ready' } } });
-    const capture = await Capture.findByPk(job.data.captureId, { attributes: ['id', 'labId', 'shotId', 'uploadedBy', 'state', 'fileName'] });
-    if (capture?.state === 'failed') {
-      await notifyPeople(notifyQueue(), {
-        kind: 'jobFailed', labId: capture.labId, shotId: capture.shotId, eventId: String(job.id),
-        recipientIds: [capture.uploadedBy], error: `${capture.fileName}: ${err.message}`,
-      });
-    }
-  } else if (queue === QUEUE_NAMES.analysis) {
-    await Analysis.update({ state: 'failed', progress: 100, error: unrecoverable ? err.message : message, completedAt: new Date() }, { where: { id: job.data.analysisId, state: { [Op.ne]: 'done' } } });
-    const analysis = await Analysis.findByPk(job.data.analysisId, { attributes: ['id', 'labId', 'shotId', 'requestedBy', 'state', 'version'] });
-    if (analysis?.state === 'failed') {
-      // An automatic analysis has no requester: the person who logged the shot hears of it instead.
-      const shot = analysis.requestedBy ? null : await Shot.findByPk(analysis.shotId, { attributes: ['createdBy'] });
-      await notifyPeople(notifyQueue(), {
-        kind: 'jobFailed', labId: analysis.labId, shotId: analysis.shotId, eventId: String(job.id),
-        recipientIds: [analysis.requestedBy ?? shot?.createdBy], error: `analysis version ${analysis.version}: ${err.message}`,
-      });
-    }
-  }
-}
-
 let notifyQueueInstance: Queue | undefined;
 function notifyQueue(): Queue {
   notifyQueueInstance ??= createNotifyQueue(redisConnection(loadConfig().redisUrl));
@@ -58,17 +29,45 @@ function notifyQueue(): Queue {
 }
 
 /**
- * Re-queues work whose job never reached Redis (the API saved the row, then Redis was away). Job ids are
- * deterministic, so a job that does exist is not added twice.
+ * Mends what a fault between the API, Redis and PostgreSQL can leave behind. Work whose job never reached Redis
+ * (the API saved the row, then Redis was away) is queued again; job ids are deterministic, so a job that does exist
+ * is not added twice. Work whose job has failed for good while its row still says "queued", "reading" or "running"
+ * (the final write was lost: the database was away when the job gave up) gets that write now.
  */
 async function sweep(config: Config) {
   const { queues, logger } = workerContext();
   const before = new Date(Date.now() - Math.min(10_000, config.sweepIntervalMs));
-  const captures = await Capture.findAll({ where: { state: 'queued', updatedAt: { [Op.lt]: before } }, attributes: ['id', 'ingestAttempt'], limit: 500 });
-  for (const c of captures) await queues.addIngest({ captureId: c.id, attempt: c.ingestAttempt });
-  const analyses = await Analysis.findAll({ where: { state: 'queued', createdAt: { [Op.lt]: before } }, attributes: ['id'], limit: 500 });
-  for (const a of analyses) await queues.addAnalysis({ analysisId: a.id });
-  if (captures.length + analyses.length > 0) logger.info({ captures: captures.length, analyses: analyses.length }, 'sweep re-queued work');
+  let requeued = 0;
+  let mended = 0;
+  const captures = await Capture.findAll({
+    where: { state: { [Op.in]: ['queued', 'reading'] }, updatedAt: { [Op.lt]: before } }, attributes: ['id', 'state', 'ingestAttempt'], limit: 500,
+  });
+  for (const c of captures) {
+    const data = { captureId: c.id, attempt: c.ingestAttempt };
+    const failed = await queues.failedIngest(data);
+    if (failed) {
+      await recordFinalFailure(QUEUE_NAMES.ingest, failed, failed.failedReason, notifyQueue);
+      mended += 1;
+    } else if (c.state === 'queued') {
+      await queues.addIngest(data);
+      requeued += 1;
+    }
+  }
+  const analyses = await Analysis.findAll({
+    where: { state: { [Op.in]: ['queued', 'running'] }, createdAt: { [Op.lt]: before } }, attributes: ['id', 'state'], limit: 500,
+  });
+  for (const a of analyses) {
+    const failed = await queues.failedAnalysis({ analysisId: a.id });
+    if (failed) {
+      await recordFinalFailure(QUEUE_NAMES.analysis, failed, failed.failedReason, notifyQueue);
+      mended += 1;
+    } else if (a.state === 'queued') {
+      await queues.addAnalysis({ analysisId: a.id });
+      requeued += 1;
+    }
+  }
+  if (requeued > 0) logger.info({ requeued }, 'sweep re-queued work');
+  if (mended > 0) logger.info({ mended }, 'sweep recorded failures whose first write was lost');
 }
 
 async function main() {
@@ -86,7 +85,9 @@ async function main() {
     });
     worker.on('failed', (job, err) => {
       logger.warn({ queue, job: job?.id, attempt: job?.attemptsMade, err: err.message }, 'job failed');
-      recordFinalFailure(queue, job, err).catch((e: Error) => logger.error({ err: e.message }, 'could not record the failure'));
+      if (!job || !isFinalFailure(job, err)) return;
+      // If this write is lost (the database is away), the sweep makes it later from the job's own record.
+      recordFinalFailure(queue, job, err.message, notifyQueue).catch((e: Error) => logger.error({ err: e.message }, 'could not record the failure; the sweep will'));
     });
     worker.on('completed', (job) => logger.info({ queue, job: job.id }, 'job done'));
     worker.on('error', (err) => logger.error({ queue, err: err.message }, 'worker error'));

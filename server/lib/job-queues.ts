@@ -1,4 +1,4 @@
-import { Queue } from 'bullmq';
+import { Queue, type Job } from 'bullmq';
 import type { Logger } from './logger.ts';
 import {
   analysisJobId, ingestJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData, type IngestJobData,
@@ -21,6 +21,12 @@ export interface JobQueues {
    */
   addIngestOrDefer(data: IngestJobData, logger: Logger): Promise<void>;
   addAnalysisOrDefer(data: AnalysisJobData, logger: Logger): Promise<void>;
+  /**
+   * The job of this work if BullMQ holds it as failed for good (its retries spent, or unrecoverable), else null.
+   * The worker's sweep uses it for rows whose final "failed" write was lost.
+   */
+  failedIngest(data: IngestJobData): Promise<Job | null>;
+  failedAnalysis(data: AnalysisJobData): Promise<Job | null>;
   close(): Promise<void>;
 }
 
@@ -58,9 +64,16 @@ export function createJobQueues(redisUrl: string): JobQueues {
       logger.warn(fields, `${what} job not queued now; the worker sweep will queue it`);
     }
   };
+  // finishedOn and failedReason are written in one step when a job ends, so one read of the job tells both.
+  const failedFor = async (queue: Queue, jobId: string) => {
+    const job = await queue.getJob(jobId);
+    return job?.finishedOn && job.failedReason ? job : null;
+  };
   return {
     addIngest,
     addAnalysis,
+    failedIngest: (data) => failedFor(ingest, ingestJobId(data)),
+    failedAnalysis: (data) => failedFor(analysis, analysisJobId(data)),
     addIngestOrDefer: orDefer(addIngest, 'ingest'),
     addAnalysisOrDefer: orDefer(addAnalysis, 'analysis'),
     async close() {

@@ -8,8 +8,10 @@ import { execFileSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
+import { Queue } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Analysis, Capture, GateRig, Projectile } from '../../server/db/models/index.ts';
+import { Analysis, Capture, GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
+import { ingestJobId, notifyJobId, QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
 import { BIG_CAPTURE_SHOT, ensureBigCapture } from '../../bench/lib/big-capture.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { spawnChild, type ChildHandle } from '../../scripts/lib/processes.ts';
@@ -358,4 +360,44 @@ describe('When PostgreSQL goes down under the running API', () => {
     const speed = shot.currentAnalysis!.results!.speed!;
     expect(Math.abs(speed.value - 310)).toBeLessThanOrEqual(speed.uncertainty);
   }, 120_000);
+});
+
+describe('When a job gave up for good but writing that down was lost (the database was away at that moment)', () => {
+  it('then the sweep writes it from the job\'s own record: the capture says why, the shot stops processing, one mail', async () => {
+    const shotId = await newShot(exitRigId);
+    const up = await experimenter.upload<{ captures: { id: string }[] }>(shotId, [{ name: 'lost-write.csv', bytes: new TextEncoder().encode('not,a scope\nfile,at all\n') }]);
+    expect(up.status).toBe(202);
+    const captureId = up.body.captures[0].id;
+    const connection = { host: new URL(h.config.redisUrl).hostname, port: Number(new URL(h.config.redisUrl).port) };
+    const ingest = new Queue(QUEUE_NAMES.ingest, { connection });
+    const notify = new Queue(QUEUE_NAMES.notify, { connection });
+    try {
+      const jobId = ingestJobId({ captureId, attempt: 1 });
+      const mailJobId = notifyJobId({ kind: 'jobFailed', eventId: jobId, recipientId: demo.users.experimenter.id, labId: '', shotId: '' });
+      // The worker's own handling ends with the uploader's mail queued: wait for it, so nothing of it runs later.
+      await pollUntil(async () => (await notify.getJob(mailJobId)) ?? undefined, { timeoutMs: 20_000, what: 'the failure mail to be queued' });
+      const failed = (await detail(shotId));
+      expect(failed.shot.status).toBe('failed');
+      const reason = failed.captures[0].error!;
+      expect(reason.length).toBeGreaterThan(10);
+      expect((await ingest.getJob(jobId))?.failedReason).toBe(reason);
+
+      // What a lost write leaves: BullMQ has the job failed for good, the rows still say it is being read.
+      await Capture.update({ state: 'reading', progress: 10, error: null }, { where: { id: captureId } });
+      await Shot.update({ status: 'processing' }, { where: { id: shotId } });
+      const mended = await pollUntil(async () => {
+        const d = await detail(shotId);
+        return d.captures[0].state === 'failed' ? d : undefined;
+      }, { timeoutMs: 20_000, what: 'the sweep to record the failure' });
+      expect(mended.captures[0].error).toBe(reason);
+      await pollUntil(async () => ((await detail(shotId)).shot.status === 'failed' ? true : undefined), { timeoutMs: 5_000, what: 'the shot to be failed again' });
+      expect(workers.some((w) => w.output().includes('sweep recorded failures whose first write was lost'))).toBe(true);
+      // The mail's job id is the failed job's: the uploader is told once, not once more by the sweep.
+      const mails = (await notify.getJobs(['waiting', 'delayed', 'active', 'completed', 'failed', 'prioritized'])).filter((j) => j.data.eventId === jobId);
+      expect(mails.map((j) => j.id)).toEqual([mailJobId]);
+    } finally {
+      await ingest.close();
+      await notify.close();
+    }
+  }, 60_000);
 });

@@ -10,6 +10,7 @@ import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
 import { recordAudit } from '../../server/lib/audit.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
+import { settleShotFromAnalysis } from '../settle-shot.ts';
 
 /**
  * Analysis job: run the engine on the captures the version names, with its stored parameters, and store the
@@ -41,7 +42,7 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   } catch (err) {
     if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || err instanceof Error && err.name === 'ZodError') {
       await analysis.update({ state: 'failed', progress: 100, error: err.message, completedAt: new Date() });
-      await settleShot(analysis.shotId);
+      await settleShotFromAnalysis(analysis.shotId);
       throw new UnrecoverableError(err.message);
     }
     throw err;
@@ -72,9 +73,4 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   }
   await job.updateProgress(100);
   return { analysisId: analysis.id, state: 'done' };
-}
-
-async function settleShot(shotId: string): Promise<void> {
-  const shot = await Shot.findByPk(shotId);
-  if (shot && shot.status === 'processing' && !shot.currentAnalysisId) await shot.update({ status: 'failed' });
 }

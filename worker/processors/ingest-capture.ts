@@ -3,11 +3,12 @@ import { UnrecoverableError, type Job } from 'bullmq';
 import { Op } from 'sequelize';
 import { ingestJobData } from '../../shared/contracts/jobs.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
-import { Capture, Shot } from '../../server/db/models/index.ts';
+import { Capture } from '../../server/db/models/index.ts';
 import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../../server/modules/analyses/service.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
+import { settleShotFromCaptures } from '../settle-shot.ts';
 
 /**
  * Ingest job: read a stored capture file, write its channels and trace pyramids, record what was detected, and
@@ -30,7 +31,7 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
     if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError) {
       // A file that cannot be read stays stored and says why; retrying cannot change its bytes.
       await capture.update({ state: 'failed', progress: 100, error: err.message });
-      await settleShot(capture.shotId);
+      await settleShotFromCaptures(capture.shotId);
       throw new UnrecoverableError(err.message);
     }
     throw err;
@@ -51,7 +52,7 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
   });
   await job.updateProgress(100);
 
-  const shot = await settleShot(capture.shotId);
+  const shot = await settleShotFromCaptures(capture.shotId);
   if (shot) {
     // Pending first, then ready: once nothing is pending, the ready set read afterwards is final, so two ingests
     // finishing together compute the same key. Read the other way round, one could key a stale ready set (itself
@@ -67,15 +68,4 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
     }
   }
   return { captureId: capture.id, state: 'ready' };
-}
-
-/** A shot whose captures all failed is marked failed; returns the shot. */
-async function settleShot(shotId: string): Promise<Shot | null> {
-  const shot = await Shot.findByPk(shotId);
-  if (!shot) return null;
-  const states = (await Capture.findAll({ where: { shotId }, attributes: ['state'] })).map((c) => c.state);
-  if (states.length > 0 && states.every((s) => s === 'failed') && shot.status === 'processing') {
-    await shot.update({ status: 'failed' });
-  }
-  return shot;
 }
