@@ -1,8 +1,9 @@
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useMemo, useRef, useState } from 'react';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import { Button, EmptyState } from '../../../components/ui/primitives.tsx';
 import type { CaptureInfo } from '../api/types.ts';
 import { captureExtent as extentOf, plottedChannels, type PlottedChannel } from '../../../lib/plotted-channels.ts';
+import { clampToRecord, useRangeZoom } from '../../../lib/range-zoom.ts';
 import { expectedWindows } from '../lib/expected-windows.ts';
 import { TracePlot, type TimeRange } from './trace-plot.tsx';
 
@@ -27,45 +28,13 @@ export function TraceStack({ captures, results, preview, gateLabel, onRangeChang
   const box = useRef<HTMLDivElement>(null);
 
   const setRange = useCallback((r: TimeRange | null) => {
-    if (r && extent) {
-      // Never narrower than a few nanoseconds, never wider than the record.
-      const span = Math.max(r.to - r.from, 1e-9);
-      const from = Math.max(extent.from, r.from);
-      const to = Math.min(extent.to, from + span);
-      r = to - from >= (extent.to - extent.from) * 0.999 ? null : { from, to };
-    }
+    // Never narrower than a few nanoseconds, never wider than the record.
+    if (r && extent) r = clampToRecord(r, extent);
     setRangeState(r);
     onRangeChange?.(r);
   }, [extent, onRangeChange]);
-
-  const zoom = useCallback((factor: number, centre?: number) => {
-    if (!current) return;
-    const c = centre ?? (current.from + current.to) / 2;
-    setRange({ from: c - (c - current.from) * factor, to: c + (current.to - c) * factor });
-  }, [current, setRange]);
-
-  const pan = useCallback((fraction: number) => {
-    if (!current || !extent) return;
-    const span = current.to - current.from;
-    let from = current.from + fraction * span;
-    from = Math.min(Math.max(from, extent.from), extent.to - span);
-    setRange({ from, to: from + span });
-  }, [current, extent, setRange]);
-
-  useEffect(() => {
-    const el = box.current;
-    if (!el || !current) return;
-    const onWheel = (e: WheelEvent) => {
-      const plotEl = (e.target as HTMLElement).closest('.u-over') as HTMLElement | null;
-      if (!plotEl) return;
-      e.preventDefault();
-      const rect = plotEl.getBoundingClientRect();
-      const t = current.from + ((e.clientX - rect.left) / rect.width) * (current.to - current.from);
-      zoom(e.deltaY < 0 ? 0.8 : 1.25, t);
-    };
-    el.addEventListener('wheel', onWheel, { passive: false });
-    return () => el.removeEventListener('wheel', onWheel);
-  }, [current, zoom]);
+  const reset = useCallback(() => setRange(null), [setRange]);
+  const { zoom, onKeyDown } = useRangeZoom({ box, current, setRange, reset, record: extent });
 
   const windows = useMemo(() => expectedWindows(results), [results]);
   if (!current || channels.length === 0) {
@@ -78,15 +47,7 @@ export function TraceStack({ captures, results, preview, gateLabel, onRangeChang
       tabIndex={0}
       aria-label="Traces. Drag to zoom; + and − zoom; arrow keys pan; 0 resets."
       className="space-y-2 rounded-md outline-none focus-visible:ring-2 focus-visible:ring-signal-400"
-      onKeyDown={(e) => {
-        if (e.key === '+' || e.key === '=') zoom(0.5);
-        else if (e.key === '-' || e.key === '_') zoom(2);
-        else if (e.key === 'ArrowLeft') pan(-0.2);
-        else if (e.key === 'ArrowRight') pan(0.2);
-        else if (e.key === '0' || e.key === 'Escape') setRange(null);
-        else return;
-        e.preventDefault();
-      }}
+      onKeyDown={onKeyDown}
     >
       <div className="flex flex-wrap items-center gap-2 text-xs text-harbour-600">
         <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => zoom(0.5)} aria-label="Zoom in">Zoom in</Button>
