@@ -1,9 +1,10 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useRef, useState } from 'react';
 import { Link } from 'react-router-dom';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import { Button, Card } from '../../../components/ui/primitives.tsx';
 import { formatCelsius, formatDateTime, formatKpa, formatMeasurement, formatSeconds } from '../../../lib/format.ts';
 import { captureExtent, plottedChannels } from '../../../lib/plotted-channels.ts';
+import { clampToRecord, useRangeZoom } from '../../../lib/range-zoom.ts';
 import type { ComparedShot, ShotNames } from '../api/types.ts';
 import { alignmentOf, type AlignAt } from '../lib/alignment.ts';
 import { parameterDifferences } from '../lib/parameter-differences.ts';
@@ -38,6 +39,19 @@ function defaultRange(shots: ComparedShot[], offsets: number[]): TimeRange {
   return extent ? { from: extent.from - offsets[0], to: extent.to - offsets[0] } : { from: -1e-3, to: 1e-3 };
 }
 
+/** Every shot's record on the relative axis (each shifted by its alignment instant), joined; null when none is read. */
+function recordsSpan(shots: ComparedShot[], offsets: number[]): TimeRange | null {
+  let from = Infinity;
+  let to = -Infinity;
+  shots.forEach((s, i) => {
+    const e = captureExtent(s.captures);
+    if (!e) return;
+    from = Math.min(from, e.from - offsets[i]);
+    to = Math.max(to, e.to - offsets[i]);
+  });
+  return Number.isFinite(from) && to > from ? { from, to } : null;
+}
+
 function gateName(names: ShotNames[], position: number): string {
   for (const n of names) {
     const g = n.gateLabels.find((x) => Math.abs(x.position - position) < 1e-6);
@@ -56,8 +70,16 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
   const alignments = useMemo(() => shots.map((s) => alignmentOf(resultsOf(s), alignAt)), [shots, alignAt]);
   const offsets = alignments.map((a) => a.instant);
   const initial = useMemo(() => defaultRange(shots, alignments.map((a) => a.instant)), [shots, alignments]);
-  const [zoom, setZoom] = useState<TimeRange | null>(null);
+  const record = useMemo(() => recordsSpan(shots, alignments.map((a) => a.instant)), [shots, alignments]);
+  const [zoom, setZoomState] = useState<TimeRange | null>(null);
   const range = zoom ?? initial;
+  // Zooms stay inside the shots' records; zooming out to all of them shows all of them (not the starting range).
+  const setZoom = useCallback((r: TimeRange) => setZoomState(record ? clampToRecord(r, record) ?? record : r), [record]);
+  const reset = useCallback(() => setZoomState(null), []);
+  const root = useRef<HTMLDivElement>(null);
+  const { zoom: zoomBy, onKeyDown } = useRangeZoom({ box: root, current: range, setRange: setZoom, reset, record });
+  const plotsLabel = 'Plots. Drag to zoom all of them; + and − zoom; arrow keys pan; 0 resets.';
+  const plotsClass = 'rounded-md outline-none focus-visible:ring-2 focus-visible:ring-signal-400';
 
   const positions = useMemo(() => {
     const all = shots.flatMap((s) => (resultsOf(s)?.gates ?? []).map((g) => g.position));
@@ -81,11 +103,6 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
   const params = parameterDifferences(shots.map((s) => s.currentAnalysis?.parameters ?? null));
   const differing = params.filter((p) => p.differs).length;
   const [onlyDiffering, setOnlyDiffering] = useState(true);
-  const span = range.to - range.from;
-  const zoomBy = (factor: number) => {
-    const c = (range.from + range.to) / 2;
-    setZoom({ from: c - (span * factor) / 2, to: c + (span * factor) / 2 });
-  };
 
   const rows: { label: string; values: string[] }[] = [
     { label: 'Speed ± U (k = 2)', values: shots.map((s) => formatMeasurement(resultsOf(s)?.speed?.value, resultsOf(s)?.speed?.uncertainty, 'm/s')) },
@@ -118,7 +135,7 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
   );
 
   return (
-    <div className="space-y-4">
+    <div ref={root} className="space-y-4">
       <div className="flex flex-wrap items-end gap-3 rounded-lg bg-white px-4 py-3 shadow-sm ring-1 ring-harbour-100">
         <label className="text-sm">
           <span className="block font-medium text-harbour-800">Align at</span>
@@ -126,7 +143,7 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
             aria-label="Align at"
             className="mt-1 rounded-md border-0 bg-white py-1.5 pl-2 pr-8 text-sm ring-1 ring-harbour-200 focus:ring-2 focus:ring-harbour-600"
             value={alignAt === 'first' ? 'first' : String(alignAt)}
-            onChange={(e) => { setAlignAt(e.target.value === 'first' ? 'first' : Number(e.target.value)); setZoom(null); }}
+            onChange={(e) => { setAlignAt(e.target.value === 'first' ? 'first' : Number(e.target.value)); reset(); }}
           >
             <option value="first">First gate’s crossing</option>
             {positions.map((p) => <option key={p} value={String(p)}>{gateName(names, p)}</option>)}
@@ -135,11 +152,14 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
         <div className="flex gap-2">
           <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => zoomBy(0.5)}>Zoom in</Button>
           <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => zoomBy(2)}>Zoom out</Button>
-          <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={() => setZoom(null)} disabled={!zoom}>Reset</Button>
+          <Button variant="secondary" className="!px-2 !py-1 text-xs" onClick={reset} disabled={!zoom}>Reset</Button>
         </div>
-        <p className="text-xs text-harbour-600" data-testid="compare-range">
-          Showing {formatSeconds(range.from, 4)} to {formatSeconds(range.to, 4)} from the alignment instant (dashed line). Drag across any plot to zoom all of them.
-        </p>
+        <div className="space-y-0.5 text-xs text-harbour-600">
+          <p data-testid="compare-range">
+            Showing {formatSeconds(range.from, 4)} to {formatSeconds(range.to, 4)} from the alignment instant (dashed line).
+          </p>
+          <p>Drag across any plot to zoom all of them; wheel zooms; with the plots focused, ← → pan and 0 resets.</p>
+        </div>
       </div>
 
       <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
@@ -153,7 +173,7 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
               ))}
             </div>
             {overlays.length === 0 && <p className="text-sm text-harbour-500">No gate positions: none of these shots has a finished analysis.</p>}
-            <div className="space-y-2">
+            <div className={`space-y-2 ${plotsClass}`} tabIndex={overlays.length > 0 ? 0 : undefined} aria-label={plotsLabel} onKeyDown={onKeyDown}>
               {overlays.map((o) => <ComparePlot key={o.position} title={gateName(names, o.position)} sources={o.sources} range={range} onRange={setZoom} />)}
             </div>
           </Card>
@@ -207,7 +227,7 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
         </div>
       </div>
       <Card title="Side by side">
-        <div className={`grid gap-3 sm:grid-cols-2 ${shots.length === 3 ? 'lg:grid-cols-3' : shots.length === 4 ? 'lg:grid-cols-4' : ''}`}>
+        <div tabIndex={0} aria-label={plotsLabel} onKeyDown={onKeyDown} className={`grid gap-3 sm:grid-cols-2 ${plotsClass} ${shots.length === 3 ? 'lg:grid-cols-3' : shots.length === 4 ? 'lg:grid-cols-4' : ''}`}>
           {shots.map((s, i) => (
             <div key={s.shot.id} className="min-w-0 space-y-1" data-testid="compare-column">
               <p className="flex items-center gap-1.5 text-sm font-semibold"><span className="h-2.5 w-2.5 rounded-full" style={{ background: SHOT_COLOURS[i] }} aria-hidden />Shot #{s.shot.number}</p>
