@@ -156,6 +156,21 @@ describe('review', () => {
         await page.waitForTimeout(1500);
         await saveScreenshot(page, 'review-compare-zoomed');
 
+        // The wheel over a plot zooms the shared range around the pointer; with the plots focused, → pans and 0 resets
+        // to the range the view opened with for this alignment.
+        const dragged = await page.getByTestId('compare-range').textContent();
+        await page.mouse.move(box.x + box.width * 0.4, box.y + box.height / 2);
+        await page.mouse.wheel(0, -240);
+        await expect.poll(() => page.getByTestId('compare-range').textContent()).not.toBe(dragged);
+        const wheeled = await page.getByTestId('compare-range').textContent();
+        await page.getByLabel(/^Plots\. Drag to zoom/).first().focus();
+        await page.keyboard.press('ArrowRight');
+        await expect.poll(() => page.getByTestId('compare-range').textContent()).not.toBe(wheeled);
+        await page.waitForTimeout(1000);
+        await saveScreenshot(page, 'review-compare-wheel');
+        await page.keyboard.press('0');
+        await expect.poll(() => page.getByTestId('compare-range').textContent()).toBe(before);
+
         await page.goto(shotUrl(shotA));
         // The shot page offers the same comparison with the campaign's other shots.
         await reviewBar(page).getByText('Compare with other shots').click();
