@@ -38,12 +38,31 @@ export const apiTokenBody = z.object({
 });
 export type ApiTokenBody = z.infer<typeof apiTokenBody>;
 
-export const campaignBody = z.object({
+const campaignFields = {
   name: z.string().trim().min(1, 'Name the campaign.').max(200),
-  description: z.string().max(5000).default(''),
-  startedOn: z.iso.date().nullable().optional(),
+  description: z.string().max(5000),
+  startedOn: z.iso.date().nullable(),
+  /** The launcher tube's length, m (null: not logged). */
+  tubeLengthM: z.number('The tube length must be a number (m).').positive('The tube length must be greater than 0.').max(100, 'The tube length looks wrong (over 100 m).').nullable(),
+  /** The launcher tube's bore (inner diameter), m. */
+  boreM: z.number('The bore must be a number (m).').positive('The bore must be greater than 0.').max(1, 'The bore looks wrong (over 1 m).').nullable(),
+};
+
+export const campaignBody = z.object({
+  name: campaignFields.name,
+  description: campaignFields.description.default(''),
+  startedOn: campaignFields.startedOn.optional(),
+  tubeLengthM: campaignFields.tubeLengthM.optional(),
+  boreM: campaignFields.boreM.optional(),
 });
 export type CampaignBody = z.infer<typeof campaignBody>;
+
+/** A correction: any subset of the fields. */
+export const campaignPatchBody = z
+  .object(campaignFields)
+  .partial()
+  .refine((b) => Object.keys(b).length > 0, 'Nothing to change: send at least one field.');
+export type CampaignPatchBody = z.infer<typeof campaignPatchBody>;
 
 export interface MembershipView {
   labId: string;

@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
 import { createHash } from 'node:crypto';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { Analysis, ApiToken, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
+import { Analysis, ApiToken, Campaign, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
 import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
@@ -242,6 +242,14 @@ const MATRIX: Record<string, Row> = {
   'GET /api/labs/:labId/campaigns/:campaignId': {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b) => expect(b).toMatchObject({ campaign: { name: 'Vacuum sweep, autumn 2026' }, shots: expect.any(Array) }),
+  },
+  'PATCH /api/labs/:labId/campaigns/:campaignId': {
+    expect: [200, 200, 403, 403, 404, 401],
+    prepare: async ({ demo }) => {
+      const c = await Campaign.create({ labId: demo.labs.hollowmere.id, name: unique('Matrix campaign to correct'), startedOn: null, createdBy: null });
+      return { params: { campaignId: c.id }, body: { tubeLengthM: 1.8, boreM: 0.0406 } };
+    },
+    shape: (b) => expect(b).toMatchObject({ campaign: { tubeLengthM: 1.8, boreM: 0.0406, shotCount: 0 } }),
   },
   'GET /api/labs/:labId/projectiles': {
     expect: [200, 200, 200, 200, 404, 401],

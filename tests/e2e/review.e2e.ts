@@ -11,7 +11,7 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { pollUntil, signIn as apiSignIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
-import { Projectile } from '../../server/db/models/index.ts';
+import { Campaign, Projectile } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness, type DemoActor } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
@@ -281,10 +281,17 @@ describe('review', () => {
       await stats.getByText('Packing-tape flap').waitFor();
       await page.waitForTimeout(500);
       await saveScreenshot(page, 'trends-by-seal');
-      // The ball's 40 mm and 2.7 g come from the projectile; 2 m of tube: √(2·101 325·π·0.02²·2/0.0027) = 434.3 m/s
-      // (worked by hand, Ayars & Buchholtz 2004 zeroth order; see tests/unit/physics/launcher-model.test.ts).
+      // The campaign's launcher (2 m of 40.5 mm bore, demo seed), the ball's 2.7 g, and the shots' logged outside air
+      // (100.9 kPa): √(2·100 900·π·0.02025²·2/0.0027) = 438.8 m/s (worked by hand, Ayars & Buchholtz 2004 zeroth
+      // order; see tests/unit/physics/launcher-model.test.ts).
       await expect.poll(() => page.getByLabel('Ball mass (g)').inputValue()).toBe('2.70');
-      await expect.poll(() => page.getByTestId('model-summary').textContent()).toContain('434.3 m/s');
+      expect(await page.getByLabel('Tube length (m)').inputValue()).toBe('2');
+      expect(await page.getByLabel('Bore (mm)').inputValue()).toBe('40.5');
+      expect(await page.getByLabel('Outside air (kPa)').inputValue()).toBe('100.9');
+      await expect.poll(() => page.getByTestId('model-summary').textContent()).toContain('438.8 m/s');
+      await expect(page.getByTestId('launcher-sources').textContent()).resolves.toContain('Tube length and bore are the campaign’s launcher.');
+      // An analyst tries other values but does not change the campaign.
+      expect(await page.getByRole('button', { name: /as this campaign’s launcher$/ }).count()).toBe(0);
       await page.getByText('What the curve assumes').waitFor();
       const csvHref = await page.getByRole('link', { name: 'CSV', exact: true }).getAttribute('href');
       const csv = await page.request.get(`${app.baseUrl}${csvHref}`);
@@ -297,6 +304,45 @@ describe('review', () => {
       await stats.getByText('All shots').waitFor();
       await page.waitForTimeout(500);
       await both(page, 'trends');
+    } finally {
+      await context.close();
+    }
+  }, 120_000);
+
+  it('When an experimenter types the launcher of a campaign that has none, then it is kept with the campaign', async () => {
+    const { context, page } = await signedIn('experimenter');
+    try {
+      const sealCampaign = `${app.baseUrl}/labs/${labId}/campaigns/${harness.demo.hollowmere.campaignIds[1]}/trends`;
+      await page.goto(sealCampaign);
+      await page.getByRole('heading', { name: 'Trends' }).waitFor();
+      await page.getByText('This campaign has no launcher logged yet.').waitFor();
+      await page.getByText('Enter the tube length.').waitFor();
+      await page.getByLabel('Tube length (m)').fill('1,8');
+      await page.getByLabel('Bore (mm)').fill('40.6');
+      await page.getByLabel('Ball mass (g)').fill('2.7');
+      const keep = page.getByRole('button', { name: 'Keep 1.8 m × 40.6 mm as this campaign’s launcher' });
+      await both(page, 'trends-launcher-unsaved');
+      await keep.click();
+      await page.getByRole('status').filter({ hasText: 'Saved with the campaign.' }).waitFor();
+      await page.reload();
+      await expect.poll(() => page.getByLabel('Tube length (m)').inputValue()).toBe('1.8');
+      expect(await page.getByLabel('Bore (mm)').inputValue()).toBe('40.6');
+      expect(await keep.count()).toBe(0);
+      const row = await Campaign.findByPk(harness.demo.hollowmere.campaignIds[1], { rejectOnEmpty: true });
+      expect([row.tubeLengthM, row.boreM]).toEqual([1.8, 0.0406]);
+
+      // A new campaign can log its launcher from the start; the list shows it.
+      await page.goto(`${app.baseUrl}/labs/${labId}/campaigns`);
+      await page.getByRole('button', { name: 'New campaign' }).click();
+      await page.getByLabel('Name').fill('Long tube trial');
+      await page.getByLabel('Tube length (m)').fill('3');
+      await page.getByLabel('Bore (mm)').fill('4l');
+      await page.getByRole('button', { name: 'Create campaign' }).click();
+      await page.getByText('Bore: “4l” is not a number.').waitFor();
+      await page.getByLabel('Bore (mm)').fill('41');
+      await saveScreenshot(page, 'campaign-new-with-launcher');
+      await page.getByRole('button', { name: 'Create campaign' }).click();
+      await page.getByRole('link', { name: /Long tube trial/ }).getByText('tube 3 m, bore 41.0 mm').waitFor();
     } finally {
       await context.close();
     }

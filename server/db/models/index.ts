@@ -65,6 +65,9 @@ export class Campaign extends Model<InferAttributes<Campaign>, InferCreationAttr
   declare name: string;
   declare description: CreationOptional<string>;
   declare startedOn: string | null;
+  /** The launcher tube's length and bore, m; null when not logged. */
+  declare tubeLengthM: CreationOptional<number | null>;
+  declare boreM: CreationOptional<number | null>;
   declare createdBy: string | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -257,7 +260,10 @@ export function initModels(sequelize: Sequelize): void {
     opts('invitations', { updatedAt: false }),
   );
   Campaign.init(
-    { id, labId: uuid(), name: text(), description: textOr(''), startedOn: { type: DataTypes.DATEONLY }, createdBy: uuid(true), ...stamps },
+    {
+      id, labId: uuid(), name: text(), description: textOr(''), startedOn: { type: DataTypes.DATEONLY },
+      tubeLengthM: double(true), boreM: double(true), createdBy: uuid(true), ...stamps,
+    },
     opts('campaigns'),
   );
   Projectile.init(

@@ -77,7 +77,7 @@ export async function seedDemo(sequelize: Sequelize): Promise<boolean> {
     const sweep = await Campaign.create({
       labId: hollowmere.id, name: 'Vacuum sweep, autumn 2026',
       description: 'Exit speed against tube pressure, one seal type, same ball batch.',
-      startedOn: '2026-10-12', createdBy: experimenter.id,
+      startedOn: '2026-10-12', tubeLengthM: 2, boreM: 0.0405, createdBy: experimenter.id,
     }, { transaction });
     await Campaign.create({
       labId: hollowmere.id, name: 'Seal comparison',

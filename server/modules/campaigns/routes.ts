@@ -1,4 +1,4 @@
-import { campaignBody, type CampaignBody } from '../../../shared/contracts/auth.ts';
+import { campaignBody, campaignPatchBody, type CampaignBody, type CampaignPatchBody } from '../../../shared/contracts/auth.ts';
 import { Campaign, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
@@ -6,6 +6,11 @@ import { conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { shotSummary } from '../shots/view.ts';
 import { UniqueConstraintError, fn, col } from 'sequelize';
+
+/** What every campaign route answers for one campaign. */
+function campaignView(c: Campaign, shotCount: number) {
+  return { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, tubeLengthM: c.tubeLengthM ?? null, boreM: c.boreM ?? null, shotCount };
+}
 
 export function campaignRoutes(): RouteDef[] {
   return [
@@ -24,9 +29,7 @@ export function campaignRoutes(): RouteDef[] {
         })) as unknown as { campaignId: string; n: string }[];
         const byCampaign = new Map(counts.map((c) => [c.campaignId, Number(c.n)]));
         res.json({
-          campaigns: campaigns.map((c) => ({
-            id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, shotCount: byCampaign.get(c.id) ?? 0,
-          })),
+          campaigns: campaigns.map((c) => campaignView(c, byCampaign.get(c.id) ?? 0)),
         });
       },
     },
@@ -40,10 +43,11 @@ export function campaignRoutes(): RouteDef[] {
         const body = req.body as CampaignBody;
         try {
           const c = await Campaign.create({
-            labId: req.lab!.id, name: body.name, description: body.description, startedOn: body.startedOn ?? null, createdBy: req.auth!.userId,
+            labId: req.lab!.id, name: body.name, description: body.description, startedOn: body.startedOn ?? null,
+            tubeLengthM: body.tubeLengthM ?? null, boreM: body.boreM ?? null, createdBy: req.auth!.userId,
           });
           await recordAudit({ labId: req.lab!.id, actorId: req.auth!.userId, action: 'campaign.created', targetType: 'campaign', targetId: c.id, details: { name: c.name }, ip: clientIp(req) });
-          res.status(201).json({ campaign: { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, shotCount: 0 } });
+          res.status(201).json({ campaign: campaignView(c, 0) });
         } catch (err) {
           if (err instanceof UniqueConstraintError) throw conflict(`This lab already has a campaign named "${body.name}".`);
           throw err;
@@ -60,9 +64,30 @@ export function campaignRoutes(): RouteDef[] {
         if (!c) throw notFound('No such campaign in this lab.');
         const shots = await Shot.findAll({ where: { campaignId: c.id, labId: req.lab!.id }, order: [['number', 'ASC']] });
         res.json({
-          campaign: { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, shotCount: shots.length },
+          campaign: campaignView(c, shots.length),
           shots: shots.map(shotSummary),
         });
+      },
+    },
+    {
+      method: 'patch',
+      path: '/api/labs/:labId/campaigns/:campaignId',
+      access: { kind: 'lab', permission: 'campaigns:write' },
+      summary: "Correct a campaign's name, description, start date or launcher (tube length and bore)",
+      body: campaignPatchBody,
+      async handler(req, res) {
+        const c = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
+        if (!c) throw notFound('No such campaign in this lab.');
+        const changes = req.body as CampaignPatchBody;
+        const before = Object.fromEntries(Object.keys(changes).map((k) => [k, (c.get(k) as unknown) ?? null]));
+        try {
+          await c.update(changes);
+        } catch (err) {
+          if (err instanceof UniqueConstraintError) throw conflict(`This lab already has a campaign named "${changes.name}".`);
+          throw err;
+        }
+        await recordAudit({ labId: c.labId, actorId: req.auth!.userId, action: 'campaign.updated', targetType: 'campaign', targetId: c.id, details: { before, after: changes }, ip: clientIp(req) });
+        res.json({ campaign: campaignView(c, await Shot.count({ where: { campaignId: c.id, labId: c.labId } })) });
       },
     },
   ];

@@ -31,6 +31,7 @@ export function trendRoutes(): RouteDef[] {
           const speed = (a.results as Partial<ShotAnalysis> | null)?.speed ?? null;
           points.push({
             shotId: s.id, number: s.number, firedAt: s.firedAt, tubePressurePa: s.tubePressurePa, sealType: s.sealType,
+            ambientPressurePa: s.ambientPressurePa, ambientTemperatureK: s.ambientTemperatureK,
             projectileId: s.projectileId, projectileName: projectiles.find((p) => p.id === s.projectileId)?.name ?? null,
             speed: speed?.value ?? null, uncertainty: speed?.uncertainty ?? null, method: speed?.method ?? null,
             status: s.status, analysisVersion: a.version,
@@ -46,7 +47,7 @@ export function trendRoutes(): RouteDef[] {
         }
         const stats: TrendGroupStats[] = [...groups.entries()].map(([key, g]) => ({ key, label: g.label, ...summarizeSpeeds(g.speeds) }));
         res.json({
-          campaign: { id: campaign.id, name: campaign.name },
+          campaign: { id: campaign.id, name: campaign.name, tubeLengthM: campaign.tubeLengthM ?? null, boreM: campaign.boreM ?? null },
           groupBy: q.groupBy,
           points,
           groups: stats,

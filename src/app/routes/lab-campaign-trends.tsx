@@ -1,3 +1,4 @@
+import { can } from '../../../shared/contracts/roles.ts';
 import { useQuery } from '@tanstack/react-query';
 import { Link, useParams } from 'react-router-dom';
 import { PageHeader } from '../../components/ui/primitives.tsx';
@@ -21,6 +22,7 @@ export function Component() {
       <TrendsView
         labId={labId}
         campaignId={campaignId}
+        canEditCampaign={can(membership.role, 'campaigns:write')}
         projectiles={(projectiles.data?.projectiles ?? []).map((p) => ({ id: p.id, name: p.name, massKg: p.massKg, diameterM: p.diameterM }))}
       />
     </>

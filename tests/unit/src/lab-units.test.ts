@@ -1,6 +1,6 @@
 // Conversions of the new-shot form, checked against the definitions of the units (not against the code's output).
 import { describe, expect, it } from 'vitest';
-import { celsiusToKelvin, fromPascal, parseLabNumber, toPascal } from '../../../src/features/campaigns/utils/lab-units.ts';
+import { celsiusToKelvin, fromPascal, millimetresToMetres, parseLabNumber, toPascal } from '../../../src/features/campaigns/utils/lab-units.ts';
 
 describe('pressure units', () => {
   it('When 760 Torr are converted, then they are one standard atmosphere, 101 325 Pa (ISO 2533; torr = atm/760)', () => {
@@ -44,5 +44,13 @@ describe('parseLabNumber', () => {
     expect(parseLabNumber('1.2.3')).toBeNaN();
     expect(parseLabNumber('1,234,5')).toBeNaN();
     expect(parseLabNumber('abc')).toBeNaN();
+  });
+  it('When millimetres become metres, then the stored number is the decimal one typed (40.6 mm → 0.0406 m, no 0.0406000…04)', () => {
+    // 40.6 / 1000 in binary floating point is 0.040600000000000004 (IEEE 754 double; printed by Node).
+    expect(40.6 / 1000).not.toBe(0.0406);
+    expect(millimetresToMetres(40.6)).toBe(0.0406);
+    expect(millimetresToMetres(40.5)).toBe(0.0405);
+    expect(millimetresToMetres(0.3)).toBe(0.0003);
+    expect(millimetresToMetres(1234.5678)).toBe(1.2345678);
   });
 });

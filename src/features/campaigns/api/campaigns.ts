@@ -1,9 +1,14 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/api-client.ts';
-import type { CampaignBody } from '../../../../shared/contracts/auth.ts';
+import type { CampaignBody, CampaignPatchBody } from '../../../../shared/contracts/auth.ts';
 import { labKeys } from '../../labs/api/members.ts';
 
-export interface CampaignRow { id: string; name: string; description: string; startedOn: string | null; shotCount: number }
+export interface CampaignRow {
+  id: string; name: string; description: string; startedOn: string | null;
+  /** The launcher tube, m; null when not logged. */
+  tubeLengthM: number | null; boreM: number | null;
+  shotCount: number;
+}
 export interface ShotRow {
   id: string; number: number; firedAt: string | null; status: string;
   conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
@@ -26,6 +31,15 @@ export function useCreateCampaign(labId: string) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (body: CampaignBody) => api.post<{ campaign: CampaignRow }>(`/api/labs/${labId}/campaigns`, body),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: labKeys.campaigns(labId) }),
+  });
+}
+
+/** Corrects a campaign; its list, its page and its trends (keyed under the campaign) are fetched again. */
+export function useUpdateCampaign(labId: string, campaignId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (body: CampaignPatchBody) => api.patch<{ campaign: CampaignRow }>(`/api/labs/${labId}/campaigns/${campaignId}`, body),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: labKeys.campaigns(labId) }),
   });
 }

@@ -4,16 +4,26 @@ import { campaignBody } from '../../../../shared/contracts/auth.ts';
 import { Button, Card, EmptyState, ErrorNote, Loading, TextField } from '../../../components/ui/primitives.tsx';
 import { formatDate } from '../../../lib/format.ts';
 import { useCampaigns, useCreateCampaign } from '../api/campaigns.ts';
+import { millimetresToMetres, parseLabNumber } from '../utils/lab-units.ts';
+
+const mm = (x: number | null) => (x == null ? null : millimetresToMetres(x));
 
 function NewCampaignForm({ labId, onDone }: { labId: string; onDone: () => void }) {
   const create = useCreateCampaign(labId);
   const [name, setName] = useState('');
   const [description, setDescription] = useState('');
   const [startedOn, setStartedOn] = useState('');
+  const [tubeLength, setTubeLength] = useState('');
+  const [boreMm, setBoreMm] = useState('');
   const [problem, setProblem] = useState<string>();
   const submit = (e: FormEvent) => {
     e.preventDefault();
-    const parsed = campaignBody.safeParse({ name, description, startedOn: startedOn || null });
+    for (const [label, text] of [['Tube length', tubeLength], ['Bore', boreMm]]) {
+      if (Number.isNaN(parseLabNumber(text))) return setProblem(`${label}: “${text}” is not a number.`);
+    }
+    const parsed = campaignBody.safeParse({
+      name, description, startedOn: startedOn || null, tubeLengthM: parseLabNumber(tubeLength), boreM: mm(parseLabNumber(boreMm)),
+    });
     if (!parsed.success) return setProblem(parsed.error.issues[0].message);
     setProblem(undefined);
     create.mutate(parsed.data, { onSuccess: onDone });
@@ -24,6 +34,10 @@ function NewCampaignForm({ labId, onDone }: { labId: string; onDone: () => void 
       <TextField label="Started on" type="date" value={startedOn} onChange={(e) => setStartedOn(e.target.value)} />
       <div className="sm:col-span-2">
         <TextField label="Purpose" value={description} onChange={(e) => setDescription(e.target.value)} placeholder="What the campaign is meant to find out" />
+      </div>
+      <div className="grid grid-cols-2 gap-4 sm:col-span-2 sm:grid-cols-4">
+        <TextField label="Tube length (m)" inputMode="decimal" value={tubeLength} onChange={(e) => setTubeLength(e.target.value)} hint="Optional" />
+        <TextField label="Bore (mm)" inputMode="decimal" value={boreMm} onChange={(e) => setBoreMm(e.target.value)} hint="Optional" />
       </div>
       {(problem || create.isError) && <div className="sm:col-span-2"><ErrorNote error={create.error ?? new Error(problem)} /></div>}
       <div className="flex gap-2 sm:col-span-2">
@@ -61,6 +75,7 @@ export function CampaignList({ labId, canCreate }: { labId: string; canCreate: b
                 </span>
                 <span className="text-sm tabular-nums text-harbour-500">
                   {c.shotCount} shot{c.shotCount === 1 ? '' : 's'} · since {formatDate(c.startedOn)}
+                  {c.tubeLengthM != null && ` · tube ${c.tubeLengthM} m${c.boreM != null ? `, bore ${(c.boreM * 1000).toFixed(1)} mm` : ''}`}
                 </span>
               </Link>
             </li>

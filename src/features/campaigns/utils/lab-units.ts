@@ -10,6 +10,9 @@ export type PressureUnit = keyof typeof PRESSURE_UNITS;
 export const toPascal = (value: number, unit: PressureUnit) => value * PRESSURE_UNITS[unit];
 export const fromPascal = (pa: number, unit: PressureUnit) => pa / PRESSURE_UNITS[unit];
 
+/** mm → m, to 12 significant digits, so a typed 40.6 mm is stored as 0.0406 m and not 0.040600000000000004. */
+export const millimetresToMetres = (mm: number) => Number((mm / 1000).toPrecision(12));
+
 /** 0 °C = 273.15 K exactly (SI Brochure, 9th edition). */
 export const celsiusToKelvin = (c: number) => c + 273.15;
 export const kelvinToCelsius = (k: number) => k - 273.15;

@@ -11,6 +11,9 @@ export interface TrendPoint {
   firedAt: string | null;
   tubePressurePa: number | null;
   sealType: string;
+  /** The outside air logged with the shot, Pa and K. */
+  ambientPressurePa: number | null;
+  ambientTemperatureK: number | null;
   projectileId: string | null;
   projectileName: string | null;
   speed: number | null;
@@ -21,7 +24,8 @@ export interface TrendPoint {
 }
 
 export interface CampaignTrends {
-  campaign: { id: string; name: string };
+  /** With the campaign's launcher tube (m; null when not logged). */
+  campaign: { id: string; name: string; tubeLengthM: number | null; boreM: number | null };
   groupBy: GroupBy;
   points: TrendPoint[];
   groups: TrendGroupStats[];

@@ -1,7 +1,9 @@
 import { useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
 import { launcherModel, type LauncherPrediction } from '../../../../shared/physics/launcher-model.ts';
-import { Card, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { Button, Card, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { useUpdateCampaign } from '../../campaigns/api/campaigns.ts';
+import { millimetresToMetres } from '../../campaigns/utils/lab-units.ts';
 import { groupKeyOf, useCampaignTrends, type GroupBy, type TrendPoint } from '../api/campaign-trends.ts';
 import { TrendPlot, type ReferenceLine, type TrendSeries } from './trend-plot.tsx';
 
@@ -31,6 +33,17 @@ function mostCommonProjectile(points: TrendPoint[]): string | null {
   return best;
 }
 
+/** The middle value (the mean of the middle two for an even count) of the logged values; null when none. */
+function medianOf(values: (number | null)[]): number | null {
+  const xs = values.filter((x): x is number => x != null && Number.isFinite(x)).sort((a, b) => a - b);
+  if (xs.length === 0) return null;
+  const mid = xs.length >> 1;
+  return xs.length % 2 === 1 ? xs[mid] : (xs[mid - 1] + xs[mid]) / 2;
+}
+
+/** A number for a text field without float noise (0.0405 m → "40.5" mm, not "40.50000000000001"). */
+const plain = (x: number) => String(Number(x.toPrecision(10)));
+
 function LauncherInputs({ fields, set, errors }: {
   fields: Record<'length' | 'bore' | 'mass' | 'ambientKpa' | 'ambientC', string>;
   set: (k: keyof typeof fields, v: string) => void;
@@ -47,23 +60,45 @@ function LauncherInputs({ fields, set, errors }: {
   );
 }
 
+/** Says where each launcher input came from, so nobody takes a default for a measured value. */
+function LauncherSources({ tube, bore, ball, air }: { tube: 'campaign' | 'none'; bore: 'campaign' | 'ball' | 'none'; ball: string | null; air: number }) {
+  const parts: string[] = [];
+  if (tube === 'campaign' && bore === 'campaign') parts.push('Tube length and bore are the campaign’s launcher.');
+  else if (tube === 'campaign') parts.push('Tube length is the campaign’s launcher.');
+  else parts.push('This campaign has no launcher logged yet.');
+  if (bore === 'ball' && ball) parts.push(`Bore starts from ${ball}.`);
+  if (ball) parts.push(`Mass is that of ${ball}, the campaign’s most used projectile.`);
+  parts.push(air > 0 ? `Outside air: the median of ${air} shot${air === 1 ? '' : 's'}’ logged conditions.` : 'Outside air: no shot logged it; 101.325 kPa and 20 °C assumed.');
+  return <p className="text-xs text-harbour-500" data-testid="launcher-sources">{parts.join(' ')}</p>;
+}
+
 /**
  * A campaign's speeds against tube vacuum level and shot number, grouped, with ±U bars, per-group statistics and
  * the zeroth-order launcher model (Ayars & Buchholtz 2004) with its assumptions.
  */
-export function TrendsView({ labId, campaignId, projectiles }: { labId: string; campaignId: string; projectiles: ProjectileChoice[] }) {
+export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: {
+  labId: string; campaignId: string; projectiles: ProjectileChoice[];
+  /** May this person correct the campaign (and so keep the launcher typed here)? */
+  canEditCampaign: boolean;
+}) {
   const [groupBy, setGroupBy] = useState<GroupBy>('seal');
   const q = useCampaignTrends(labId, campaignId, groupBy);
   const points = useMemo(() => q.data?.points ?? [], [q.data]);
+  const stored = q.data?.campaign ?? null;
+  const saveLauncher = useUpdateCampaign(labId, campaignId);
 
   const defaultBall = projectiles.find((p) => p.id === mostCommonProjectile(points)) ?? null;
+  // The outside air of the campaign's own shots, where they were logged; else the standard atmosphere at sea level
+  // (ISO 2533: 101.325 kPa, 15 °C; 20 °C here as a laboratory's usual room temperature, common practice).
+  const airPa = medianOf(points.map((p) => p.ambientPressurePa));
+  const airK = medianOf(points.map((p) => p.ambientTemperatureK));
   const [edited, setEdited] = useState<Partial<Record<'length' | 'bore' | 'mass' | 'ambientKpa' | 'ambientC', string>>>({});
   const fields = {
-    length: edited.length ?? '2',
-    bore: edited.bore ?? (defaultBall ? (defaultBall.diameterM * 1000).toFixed(1) : ''),
+    length: edited.length ?? (stored?.tubeLengthM != null ? plain(stored.tubeLengthM) : ''),
+    bore: edited.bore ?? (stored?.boreM != null ? plain(stored.boreM * 1000) : defaultBall ? (defaultBall.diameterM * 1000).toFixed(1) : ''),
     mass: edited.mass ?? (defaultBall ? (defaultBall.massKg * 1000).toFixed(2) : ''),
-    ambientKpa: edited.ambientKpa ?? '101.325',
-    ambientC: edited.ambientC ?? '20',
+    ambientKpa: edited.ambientKpa ?? (airPa != null ? plain(airPa / 1000) : '101.325'),
+    ambientC: edited.ambientC ?? (airK != null ? (airK - 273.15).toFixed(1) : '20'),
   };
   const set = (k: keyof typeof fields, v: string) => setEdited((e) => ({ ...e, [k]: v }));
   const length = positive(fields.length, 'tube length');
@@ -184,7 +219,25 @@ export function TrendsView({ labId, campaignId, projectiles }: { labId: string; 
         <Card title="Launcher model">
           <div className="space-y-3">
             <LauncherInputs fields={fields} set={set} errors={errors} />
-            {defaultBall && edited.mass == null && <p className="text-xs text-harbour-500">Bore and mass start from {defaultBall.name}, the campaign’s most used projectile.</p>}
+            <LauncherSources
+              tube={stored?.tubeLengthM != null ? 'campaign' : 'none'}
+              bore={stored?.boreM != null ? 'campaign' : defaultBall ? 'ball' : 'none'}
+              ball={defaultBall?.name ?? null}
+              air={airPa != null || airK != null ? points.filter((p) => p.ambientPressurePa != null || p.ambientTemperatureK != null).length : 0}
+            />
+            {canEditCampaign && length.value != null && bore.value != null && (length.value !== stored?.tubeLengthM || Math.abs(bore.value / 1000 - (stored?.boreM ?? 0)) > 1e-9) && (
+              <div className="flex flex-wrap items-center gap-3">
+                <Button
+                  variant="secondary"
+                  disabled={saveLauncher.isPending}
+                  onClick={() => saveLauncher.mutate({ tubeLengthM: length.value, boreM: millimetresToMetres(bore.value!) }, { onSuccess: () => setEdited(({ length: _l, bore: _b, ...rest }) => rest) })}
+                >
+                  Keep {plain(length.value)} m × {plain(bore.value)} mm as this campaign’s launcher
+                </Button>
+                {saveLauncher.isError && <ErrorNote error={saveLauncher.error} />}
+              </div>
+            )}
+            {saveLauncher.isSuccess && !saveLauncher.isPending && <p role="status" className="text-xs text-harbour-600">Saved with the campaign.</p>}
             {model && (
               <p className="text-sm text-harbour-800" data-testid="model-summary">
                 v = √(2·P₀·A·L/m): <strong>{model.atVacuum.speed.toFixed(1)} m/s</strong> into a hard vacuum (P₀ = {(model.atVacuum.pressureDifference / 1000).toFixed(1)} kPa).
