@@ -1,4 +1,6 @@
 /** Version of the analysis engine, stored with every result so a recomputation can say what changed.
  * Bump it whenever a change can alter a number in a ShotAnalysis. */
 // 1.1.0: the `edges` option (flight timed by mid-times, leading or trailing edges); default results unchanged.
-export const ENGINE_VERSION = '1.1.0';
+// 1.2.0: polarity "auto" takes the state a record starts and ends in as beam-clear (a slow projectile's long pulse
+//        was read inverted); records set up around a short pulse give the same results as 1.1.0.
+export const ENGINE_VERSION = '1.2.0';
