@@ -391,7 +391,9 @@ describe('When a job gave up for good but writing that down was lost (the databa
       }, { timeoutMs: 20_000, what: 'the sweep to record the failure' });
       expect(mended.captures[0].error).toBe(reason);
       await pollUntil(async () => ((await detail(shotId)).shot.status === 'failed' ? true : undefined), { timeoutMs: 5_000, what: 'the shot to be failed again' });
-      expect(workers.some((w) => w.output().includes('sweep recorded failures whose first write was lost'))).toBe(true);
+      // The sweep logs once it has gone through every row, a moment after this row's write.
+      await pollUntil(async () => workers.some((w) => w.output().includes('sweep recorded failures whose first write was lost')) || undefined,
+        { timeoutMs: 10_000, what: 'the sweep to log what it mended' });
       // The mail's job id is the failed job's: the uploader is told once, not once more by the sweep.
       const mails = (await notify.getJobs(['waiting', 'delayed', 'active', 'completed', 'failed', 'prioritized'])).filter((j) => j.data.eventId === jobId);
       expect(mails.map((j) => j.id)).toEqual([mailJobId]);
