@@ -1,11 +1,15 @@
 import { loadConfig } from '../config.ts';
+import { createJobQueues } from '../lib/job-queues.ts';
+import { createLogger } from '../lib/logger.ts';
+import { createBlobStore } from '../storage/create-blob-store.ts';
 import { createMigrator, migrateUp } from './migrator.ts';
+import { attachDemoCaptures } from './seeders/demo-captures.ts';
 import { seedDemo, demoAccounts } from './seeders/demo.ts';
 import { createSequelize } from './sequelize.ts';
 
 /**
  * Database commands: `migrate` (apply pending migrations), `migrate:status`, `migrate:down` (undo the last one),
- * `seed-demo` (the demo labs, only when absent). Usage: npm run db -- <command>
+ * `seed-demo` (the demo labs, only when absent, with the demo sweep's scope files queued). Usage: npm run db -- <command>
  */
 async function main() {
   const command = process.argv[2];
@@ -33,6 +37,16 @@ async function main() {
       case 'seed-demo': {
         const seeded = await seedDemo(sequelize);
         console.log(seeded ? `Seeded the demo labs (${demoAccounts.length} accounts).` : 'Demo labs already present; left as they are.');
+        if (seeded) {
+          // The demo sweep's scope files, read and analysed by the worker once it starts.
+          const queues = createJobQueues(config.redisUrl);
+          try {
+            const n = await attachDemoCaptures({ blobStore: createBlobStore(config), queues, logger: createLogger(config.logLevel, 'seed') });
+            console.log(`Queued ${n} demo scope file(s) for the worker to read and analyse.`);
+          } finally {
+            await queues.close();
+          }
+        }
         break;
       }
       default:

@@ -1,0 +1,75 @@
+// The demo sweep's scope files (server/db/seeders/demo-captures.ts, queued by `npm start` on first start): each is
+// stored like an upload, queued for the worker, read by the importer without any setting, and analysed to the speed
+// the invented scenario put in. The scenario's truth is restated here from its description, not read from the code:
+// v₀ = 318 − 9.2 m/s per kPa of tube pressure at gate A, slowed by air drag a = ½·ρ·v²·C_d·A/m (ρ = 1.2 kg/m³,
+// C_d = 0.5, a 40 mm ball of 2.7 g) taken as constant over the rig; shot 5's gate C only half-darkens.
+import { Queue } from 'bullmq';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { Campaign, Capture, Shot } from '../../server/db/models/index.ts';
+import { attachDemoCaptures } from '../../server/db/seeders/demo-captures.ts';
+import { defaultParameters } from '../../server/modules/analyses/service.ts';
+import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
+import { ingestJobId, QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
+import { readStoredCapture } from '../../worker/read-stored-capture.ts';
+import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+
+let h: ApiHarness;
+let ingest: Queue;
+
+beforeAll(async () => {
+  h = await createApiHarness();
+  await h.resetDatabase();
+  const u = new URL(h.config.redisUrl);
+  ingest = new Queue(QUEUE_NAMES.ingest, { connection: { host: u.hostname, port: Number(u.port) } });
+});
+afterAll(async () => {
+  await ingest?.close();
+  await h?.close();
+});
+
+describe('the demo sweep\'s scope files', () => {
+  it('When the demo is seeded, then each of the 8 shots gets one stored file and a queued ingest, once', async () => {
+    expect(await attachDemoCaptures(h.deps)).toBe(8);
+    expect(await attachDemoCaptures(h.deps)).toBe(0);
+    const sweep = await Campaign.findOne({ where: { name: 'Vacuum sweep, autumn 2026' }, rejectOnEmpty: true });
+    const shots = await Shot.findAll({ where: { campaignId: sweep.id } });
+    expect(shots).toHaveLength(8);
+    for (const shot of shots) {
+      expect(shot.status).toBe('processing');
+      const captures = await Capture.findAll({ where: { shotId: shot.id } });
+      expect(captures.map((c) => c.state)).toEqual(['queued']);
+      expect(await h.deps.blobStore.stat(captures[0].storageKey)).toEqual({ size: Number(captures[0].sizeBytes) });
+      expect(await ingest.getJob(ingestJobId({ captureId: captures[0].id, attempt: 1 }))).toBeDefined();
+    }
+  });
+
+  it('When each file is read and analysed with the shot\'s defaults, then the speed is the scenario\'s within U', async () => {
+    const sweep = await Campaign.findOne({ where: { name: 'Vacuum sweep, autumn 2026' }, rejectOnEmpty: true });
+    const shots = await Shot.findAll({ where: { campaignId: sweep.id }, order: [['number', 'ASC']] });
+    const delimiters = new Set<string>();
+    for (const shot of shots) {
+      const capture = await Capture.findOne({ where: { shotId: shot.id }, rejectOnEmpty: true });
+      const imported = await readStoredCapture(h.deps.blobStore, capture);
+      delimiters.add(String((imported.layout as { delimiter?: string }).delimiter));
+      expect(imported.channels.map((c) => c.name)).toEqual(['Gate A', 'Gate B', 'Gate C']);
+      const analysis = analyzeShot(imported, await defaultParameters(shot, imported.channels.map((c) => c.name)));
+      const v0 = 318 - 9.2 * (shot.tubePressurePa! / 1000);
+      const a = (0.5 * 1.2 * v0 ** 2 * 0.5 * Math.PI * 0.02 ** 2) / 0.0027;
+      const speed = analysis.speed!;
+      if (shot.number === 5) {
+        expect(analysis.gates.map((g) => g.status)).toEqual(['ok', 'ok', 'missed']);
+        expect(analysis.warnings.join(' ')).toMatch(/Gate C: missed .* reached 4\d % of the step/);
+        // Mean speed over A–B (0.15 m) under constant deceleration: t = (v₀ − √(v₀² − 2·a·L))/a, v̄ = L/t.
+        const t = (v0 - Math.sqrt(v0 ** 2 - 2 * a * 0.15)) / a;
+        expect(speed.basis).toBe('pair');
+        expect(Math.abs(speed.value - 0.15 / t), `shot 5: ${speed.value} ± ${speed.uncertainty}`).toBeLessThanOrEqual(speed.uncertainty);
+      } else {
+        expect(analysis.gates.map((g) => g.status)).toEqual(['ok', 'ok', 'ok']);
+        expect(speed.basis).toBe('fit');
+        expect(Math.abs(speed.value - v0), `shot ${shot.number}: ${speed.value} ± ${speed.uncertainty} vs ${v0}`).toBeLessThanOrEqual(speed.uncertainty);
+      }
+    }
+    // More than one export shape among them: the demo shows the importer's detection at work.
+    expect(delimiters.size).toBeGreaterThanOrEqual(3);
+  });
+});
