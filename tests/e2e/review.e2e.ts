@@ -320,6 +320,8 @@ describe('review', () => {
       await page.getByLabel('Tube length (m)').fill('1,8');
       await page.getByLabel('Bore (mm)').fill('40.6');
       await page.getByLabel('Ball mass (g)').fill('2.7');
+      await expect.poll(() => page.getByTestId('launcher-sources').textContent()).toContain('Values typed here are used only on this page.');
+      expect(await page.getByTestId('launcher-sources').textContent()).not.toContain('no launcher logged');
       const keep = page.getByRole('button', { name: 'Keep 1.8 m × 40.6 mm as this campaign’s launcher' });
       await both(page, 'trends-launcher-unsaved');
       await keep.click();

@@ -60,15 +60,20 @@ function LauncherInputs({ fields, set, errors }: {
   );
 }
 
+/** Where one launcher input came from: the campaign, the most used ball, the shots' logs, typed here, or nowhere. */
+type Source = 'campaign' | 'ball' | 'shots' | 'typed' | 'none';
+
 /** Says where each launcher input came from, so nobody takes a default for a measured value. */
-function LauncherSources({ tube, bore, ball, air }: { tube: 'campaign' | 'none'; bore: 'campaign' | 'ball' | 'none'; ball: string | null; air: number }) {
+function LauncherSources({ tube, bore, mass, air, ball, airShots }: { tube: Source; bore: Source; mass: Source; air: Source; ball: string | null; airShots: number }) {
   const parts: string[] = [];
   if (tube === 'campaign' && bore === 'campaign') parts.push('Tube length and bore are the campaign’s launcher.');
   else if (tube === 'campaign') parts.push('Tube length is the campaign’s launcher.');
-  else parts.push('This campaign has no launcher logged yet.');
+  else if (tube === 'none') parts.push('This campaign has no launcher logged yet.');
   if (bore === 'ball' && ball) parts.push(`Bore starts from ${ball}.`);
-  if (ball) parts.push(`Mass is that of ${ball}, the campaign’s most used projectile.`);
-  parts.push(air > 0 ? `Outside air: the median of ${air} shot${air === 1 ? '' : 's'}’ logged conditions.` : 'Outside air: no shot logged it; 101.325 kPa and 20 °C assumed.');
+  if (mass === 'ball' && ball) parts.push(`Mass is that of ${ball}, the campaign’s most used projectile.`);
+  if (air === 'shots') parts.push(`Outside air: the median of ${airShots} shot${airShots === 1 ? '' : 's'}’ logged conditions.`);
+  else if (air === 'none') parts.push('Outside air: no shot logged it; 101.325 kPa and 20 °C assumed.');
+  if ([tube, bore, mass, air].includes('typed')) parts.push('Values typed here are used only on this page.');
   return <p className="text-xs text-harbour-500" data-testid="launcher-sources">{parts.join(' ')}</p>;
 }
 
@@ -220,10 +225,12 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
           <div className="space-y-3">
             <LauncherInputs fields={fields} set={set} errors={errors} />
             <LauncherSources
-              tube={stored?.tubeLengthM != null ? 'campaign' : 'none'}
-              bore={stored?.boreM != null ? 'campaign' : defaultBall ? 'ball' : 'none'}
+              tube={edited.length != null ? 'typed' : stored?.tubeLengthM != null ? 'campaign' : 'none'}
+              bore={edited.bore != null ? 'typed' : stored?.boreM != null ? 'campaign' : defaultBall ? 'ball' : 'none'}
+              mass={edited.mass != null ? 'typed' : defaultBall ? 'ball' : 'none'}
+              air={edited.ambientKpa != null || edited.ambientC != null ? 'typed' : airPa != null || airK != null ? 'shots' : 'none'}
               ball={defaultBall?.name ?? null}
-              air={airPa != null || airK != null ? points.filter((p) => p.ambientPressurePa != null || p.ambientTemperatureK != null).length : 0}
+              airShots={points.filter((p) => p.ambientPressurePa != null || p.ambientTemperatureK != null).length}
             />
             {canEditCampaign && length.value != null && bore.value != null && (length.value !== stored?.tubeLengthM || Math.abs(bore.value / 1000 - (stored?.boreM ?? 0)) > 1e-9) && (
               <div className="flex flex-wrap items-center gap-3">
