@@ -1,5 +1,6 @@
 import { Queue, type Job } from 'bullmq';
 import type { Logger } from './logger.ts';
+import { redisEndpoint } from './redis.ts';
 import {
   analysisJobId, ingestJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData, type IngestJobData,
 } from '../../shared/contracts/jobs.ts';
@@ -31,12 +32,8 @@ export interface JobQueues {
 }
 
 function connectionOf(url: string) {
-  const u = new URL(url);
   return {
-    host: u.hostname,
-    port: Number(u.port || 6379),
-    password: u.password || undefined,
-    db: u.pathname.length > 1 ? Number(u.pathname.slice(1)) : 0,
+    ...redisEndpoint(url),
     // Fail fast in the API: a request must not hang while Redis is away (the worker's sweep queues it later).
     maxRetriesPerRequest: 1,
     enableOfflineQueue: false,

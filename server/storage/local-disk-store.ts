@@ -47,15 +47,19 @@ export class LocalDiskStore implements BlobStore {
     });
   }
 
+  /** The blob's file opened for reading; BlobNotFoundError when there is none. */
+  private async openBlob(key: string) {
+    try {
+      return await open(this.localPathOf(key), 'r');
+    } catch (err) {
+      throw isNotFound(err) ? new BlobNotFoundError(key, { cause: err }) : err;
+    }
+  }
+
   openRead(key: string): Readable {
-    const file = this.localPathOf(key);
+    const openBlob = () => this.openBlob(key);
     async function* chunks() {
-      let fh;
-      try {
-        fh = await open(file, 'r');
-      } catch (err) {
-        throw isNotFound(err) ? new BlobNotFoundError(key, { cause: err }) : err;
-      }
+      const fh = await openBlob();
       try {
         for await (const chunk of fh.createReadStream({ autoClose: false })) yield chunk as Buffer;
       } finally {
@@ -67,13 +71,7 @@ export class LocalDiskStore implements BlobStore {
 
   async readRange(key: string, offset: number, length: number): Promise<Uint8Array> {
     assertRange(offset, length);
-    const file = this.localPathOf(key);
-    let fh;
-    try {
-      fh = await open(file, 'r');
-    } catch (err) {
-      throw isNotFound(err) ? new BlobNotFoundError(key, { cause: err }) : err;
-    }
+    const fh = await this.openBlob(key);
     try {
       // A fresh ArrayBuffer (not Node's shared pool) so callers can view it as Float32Array at offset 0.
       const out = new Uint8Array(length);

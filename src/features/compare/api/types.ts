@@ -1,18 +1,10 @@
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import type { CaptureChannels } from '../../../lib/plotted-channels.ts';
+import type { ShotInfo } from '../../shots/api/types.ts';
 
 /** The parts of GET /api/shots/:shotId the comparison reads. */
 export interface ComparedShot {
-  shot: {
-    id: string;
-    campaignId: string;
-    number: number;
-    firedAt: string | null;
-    status: string;
-    projectileId: string | null;
-    gateRigId: string | null;
-    conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
-  };
+  shot: Omit<ShotInfo, 'notes' | 'currentAnalysisId'>;
   captures: CaptureChannels[];
   currentAnalysis: {
     id: string;

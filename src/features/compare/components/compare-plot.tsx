@@ -1,12 +1,10 @@
-import { keepPreviousData, useQueries } from '@tanstack/react-query';
+import { useQueries } from '@tanstack/react-query';
 import { useElementWidth } from '../../../lib/use-element-width.ts';
 import { useEffect, useMemo, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
-import { timeTicks } from '../../../lib/time-axis.ts';
-import { fetchWindow, traceWindowKey, type TraceWindow } from '../../../lib/trace-window.ts';
-
-export interface TimeRange { from: number; to: number }
+import type { Range } from '../../../lib/range-zoom.ts';
+import { levelsRange, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
 
 /** One trace on a comparison plot: a capture's channel, shifted so its shot's alignment instant is t = 0. */
 export interface CompareSource {
@@ -21,14 +19,6 @@ export interface CompareSource {
   levels?: { low: number; high: number } | null;
 }
 
-/** A min/max window as [x, min, max] columns on the shifted time axis. */
-function columns(w: TraceWindow, offset: number): uPlot.AlignedData {
-  if (w.raw) return [w.t.map((t) => t - offset), w.v, w.v];
-  const xs = new Array<number>(w.min.length);
-  for (let j = 0; j < xs.length; j++) xs[j] = w.t0 + (j + 0.5) * w.dt - offset;
-  return [xs, w.min, w.max];
-}
-
 /**
  * Several traces on one relative time axis (each shot's alignment instant at 0), each drawn as its min/max band in
  * its own colour. All plots of the comparison share `range`; dragging across one zooms them all.
@@ -36,8 +26,8 @@ function columns(w: TraceWindow, offset: number): uPlot.AlignedData {
 export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
   title: string;
   sources: CompareSource[];
-  range: TimeRange;
-  onRange: (r: TimeRange) => void;
+  range: Range;
+  onRange: (r: Range) => void;
   height?: number;
 }) {
   const [box, width] = useElementWidth();
@@ -54,13 +44,7 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
     queries: sources.map((s) => {
       const from = range.from + s.offset;
       const to = range.to + s.offset;
-      return {
-        queryKey: traceWindowKey(s.captureId, s.channelIndex, from, to, points),
-        queryFn: () => fetchWindow(s.captureId, s.channelIndex, from, to, points),
-        enabled: width > 0,
-        placeholderData: keepPreviousData,
-        staleTime: Infinity,
-      };
+      return traceWindowQuery(s.captureId, s.channelIndex, from, to, points, width > 0);
     }),
   });
 
@@ -85,22 +69,14 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
         x: { time: false },
         y: {
           range: (_u, dataMin, dataMax) => {
+            // Every trace's levels together: the lowest low and the highest high.
             const known = sourcesRef.current.map((x) => x.levels).filter((l): l is { low: number; high: number } => l != null && l.high > l.low);
-            if (known.length > 0) {
-              const low = Math.min(...known.map((l) => l.low));
-              const high = Math.max(...known.map((l) => l.high));
-              const pad = 0.12 * (high - low);
-              return [Math.min(low - pad, dataMin), Math.max(high + pad, dataMax)];
-            }
-            const pad = (dataMax - dataMin) * 0.08 || 0.1;
-            return [dataMin - pad, dataMax + pad];
+            const levels = known.length > 0 ? { low: Math.min(...known.map((l) => l.low)), high: Math.max(...known.map((l) => l.high)) } : null;
+            return levelsRange(levels, dataMin, dataMax);
           },
         },
       },
-      axes: [
-        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (u, splits) => timeTicks(splits, (u.scales.x.max ?? 1) - (u.scales.x.min ?? 0)) },
-        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 60, values: (_u, splits) => splits.map((v) => `${v.toFixed(2)} V`) },
-      ],
+      axes: traceAxes(60),
       series,
       bands,
       hooks: {
@@ -128,15 +104,7 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
             ctx.restore();
           },
         ],
-        setSelect: [
-          (u) => {
-            if (u.select.width < 4) return;
-            const from = u.posToVal(u.select.left, 'x');
-            const to = u.posToVal(u.select.left + u.select.width, 'x');
-            u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
-            onRangeRef.current({ from, to });
-          },
-        ],
+        setSelect: [selectToRange(onRangeRef)],
       },
     };
     const empty: uPlot.AlignedData = [[], ...sources.flatMap(() => [[], []])] as unknown as uPlot.AlignedData;
@@ -153,7 +121,7 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
   const datas = windows.map((w) => w.data);
   const data = useMemo(() => {
     if (datas.some((d) => !d)) return null;
-    const tables = datas.map((d, i) => columns(d!, sources[i].offset));
+    const tables = datas.map((d, i) => windowColumns(d!, sources[i].offset));
     return tables.length === 1 ? tables[0] : uPlot.join(tables);
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [...datas, seriesKey]);

@@ -4,11 +4,11 @@ import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import { Button, Card } from '../../../components/ui/primitives.tsx';
 import { formatCelsius, formatDateTime, formatKpa, formatMeasurement, formatSeconds } from '../../../lib/format.ts';
 import { captureExtent, plottedChannels } from '../../../lib/plotted-channels.ts';
-import { clampToRecord, useRangeZoom } from '../../../lib/range-zoom.ts';
+import { clampToRecord, useRangeZoom, type Range } from '../../../lib/range-zoom.ts';
 import type { ComparedShot, ShotNames } from '../api/types.ts';
 import { alignmentOf, type AlignAt } from '../lib/alignment.ts';
 import { parameterDifferences } from '../lib/parameter-differences.ts';
-import { ComparePlot, type CompareSource, type TimeRange } from './compare-plot.tsx';
+import { ComparePlot, type CompareSource } from './compare-plot.tsx';
 
 /** One colour per compared shot, from the product's palette outward (deep harbour, amber, green, plum). */
 export const SHOT_COLOURS = ['#16324a', '#c47a12', '#2f7d5b', '#8e3b72'];
@@ -19,7 +19,7 @@ const BASIS: Record<string, string> = { fit: 'fit over all gates', pair: 'one pa
 const resultsOf = (s: ComparedShot) => (s.currentAnalysis?.results ?? null) as ShotAnalysis | null;
 
 /** A range around every fired gate of every shot (relative to each shot's alignment), with a margin either side. */
-function defaultRange(shots: ComparedShot[], offsets: number[]): TimeRange {
+function defaultRange(shots: ComparedShot[], offsets: number[]): Range {
   let from = Infinity;
   let to = -Infinity;
   shots.forEach((s, i) => {
@@ -40,7 +40,7 @@ function defaultRange(shots: ComparedShot[], offsets: number[]): TimeRange {
 }
 
 /** Every shot's record on the relative axis (each shifted by its alignment instant), joined; null when none is read. */
-function recordsSpan(shots: ComparedShot[], offsets: number[]): TimeRange | null {
+function recordsSpan(shots: ComparedShot[], offsets: number[]): Range | null {
   let from = Infinity;
   let to = -Infinity;
   shots.forEach((s, i) => {
@@ -71,10 +71,10 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
   const offsets = alignments.map((a) => a.instant);
   const initial = useMemo(() => defaultRange(shots, alignments.map((a) => a.instant)), [shots, alignments]);
   const record = useMemo(() => recordsSpan(shots, alignments.map((a) => a.instant)), [shots, alignments]);
-  const [zoom, setZoomState] = useState<TimeRange | null>(null);
+  const [zoom, setZoomState] = useState<Range | null>(null);
   const range = zoom ?? initial;
   // Zooms stay inside the shots' records; zooming out to all of them shows all of them (not the starting range).
-  const setZoom = useCallback((r: TimeRange) => setZoomState(record ? clampToRecord(r, record) ?? record : r), [record]);
+  const setZoom = useCallback((r: Range) => setZoomState(record ? clampToRecord(r, record) ?? record : r), [record]);
   const reset = useCallback(() => setZoomState(null), []);
   const root = useRef<HTMLDivElement>(null);
   const { zoom: zoomBy, onKeyDown } = useRangeZoom({ box: root, current: range, setRange: setZoom, reset, record });

@@ -1,22 +1,20 @@
-import { keepPreviousData, useQuery } from '@tanstack/react-query';
+import { useQuery } from '@tanstack/react-query';
 import { useElementWidth } from '../../../lib/use-element-width.ts';
 import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
 import { formatSeconds } from '../../../lib/format.ts';
-import { fetchWindow, traceWindowKey } from '../../../lib/trace-window.ts';
+import type { Range } from '../../../lib/range-zoom.ts';
+import { levelsRange, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
 import type { ExpectedWindow } from '../lib/expected-windows.ts';
-import { timeTicks } from '../../../lib/time-axis.ts';
-
-export interface TimeRange { from: number; to: number }
 
 export interface TracePlotProps {
   captureId: string;
   channelIndex: number;
   title: string;
-  range: TimeRange;
-  onRange: (range: TimeRange) => void;
+  range: Range;
+  onRange: (range: Range) => void;
   channel: ChannelResult | null;
   gates: GateResult[];
   expected: ExpectedWindow[];
@@ -183,13 +181,7 @@ export function TracePlot(props: TracePlotProps) {
   onRangeRef.current = onRange;
 
   const points = Math.max(100, Math.min(4000, Math.round(width)));
-  const windowQuery = useQuery({
-    queryKey: traceWindowKey(captureId, channelIndex, range.from, range.to, points),
-    queryFn: () => fetchWindow(captureId, channelIndex, range.from, range.to, points),
-    enabled: width > 0,
-    placeholderData: keepPreviousData,
-    staleTime: Infinity,
-  });
+  const windowQuery = useQuery(traceWindowQuery(captureId, channelIndex, range.from, range.to, points, width > 0));
 
 
   useEffect(() => {
@@ -207,32 +199,16 @@ export function TracePlot(props: TracePlotProps) {
         y: {
           range: (_u, dataMin, dataMax) => {
             const ch = annotations.current.channel;
-            if (ch && ch.levels.amplitude > 0) {
-              const pad = 0.12 * ch.levels.amplitude;
-              return [Math.min(ch.levels.low - pad, dataMin), Math.max(ch.levels.high + pad, dataMax)];
-            }
-            const pad = (dataMax - dataMin) * 0.08 || 0.1;
-            return [dataMin - pad, dataMax + pad];
+            return levelsRange(ch && ch.levels.amplitude > 0 ? ch.levels : null, dataMin, dataMax);
           },
         },
       },
-      axes: [
-        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (u, splits) => timeTicks(splits, (u.scales.x.max ?? 1) - (u.scales.x.min ?? 0)) },
-        { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, size: 56, values: (_u, splits) => splits.map((v) => `${v.toFixed(2)} V`) },
-      ],
+      axes: traceAxes(56),
       series: [{}, { stroke: TRACE, width: 1 }, { stroke: TRACE, width: 1 }],
       bands: [{ series: [2, 1], fill: BAND }],
       hooks: {
         draw: [(u) => drawAnnotations(u, annotations.current)],
-        setSelect: [
-          (u) => {
-            if (u.select.width < 4) return;
-            const from = u.posToVal(u.select.left, 'x');
-            const to = u.posToVal(u.select.left + u.select.width, 'x');
-            u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
-            onRangeRef.current({ from, to });
-          },
-        ],
+        setSelect: [selectToRange(onRangeRef)],
       },
     };
     const u = new uPlot(opts, [[], [], []], box.current);
@@ -247,19 +223,7 @@ export function TracePlot(props: TracePlotProps) {
   useEffect(() => {
     const u = plot.current;
     if (!u || !data) return;
-    let xs: number[];
-    let lo: (number | null)[];
-    let hi: (number | null)[];
-    if (data.raw) {
-      xs = data.t;
-      lo = data.v;
-      hi = data.v;
-    } else {
-      xs = data.min.map((_, j) => data.t0 + (j + 0.5) * data.dt);
-      lo = data.min;
-      hi = data.max;
-    }
-    u.setData([xs, lo, hi] as uPlot.AlignedData, true);
+    u.setData(windowColumns(data), true);
     u.setScale('x', { min: range.from, max: range.to });
   }, [data, range.from, range.to, width]);
 

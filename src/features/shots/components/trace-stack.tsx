@@ -3,9 +3,9 @@ import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import { Button, EmptyState } from '../../../components/ui/primitives.tsx';
 import type { CaptureInfo } from '../api/types.ts';
 import { captureExtent as extentOf, plottedChannels, type PlottedChannel } from '../../../lib/plotted-channels.ts';
-import { clampToRecord, useRangeZoom } from '../../../lib/range-zoom.ts';
+import { clampToRecord, useRangeZoom, type Range } from '../../../lib/range-zoom.ts';
 import { expectedWindows } from '../lib/expected-windows.ts';
-import { TracePlot, type TimeRange } from './trace-plot.tsx';
+import { TracePlot } from './trace-plot.tsx';
 
 export { plottedChannels, type PlottedChannel };
 
@@ -19,15 +19,15 @@ export function TraceStack({ captures, results, preview, gateLabel, onRangeChang
   results: ShotAnalysis | null;
   preview: boolean;
   gateLabel: (position: number) => string;
-  onRangeChange?: (range: TimeRange | null) => void;
+  onRangeChange?: (range: Range | null) => void;
 }) {
   const channels = useMemo(() => plottedChannels(captures), [captures]);
   const extent = useMemo(() => extentOf(captures), [captures]);
-  const [range, setRangeState] = useState<TimeRange | null>(null);
+  const [range, setRangeState] = useState<Range | null>(null);
   const current = range ?? extent;
   const box = useRef<HTMLDivElement>(null);
 
-  const setRange = useCallback((r: TimeRange | null) => {
+  const setRange = useCallback((r: Range | null) => {
     // Never narrower than a few nanoseconds, never wider than the record.
     if (r && extent) r = clampToRecord(r, extent);
     setRangeState(r);

@@ -3,12 +3,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { writeCaptureLayout } from '../../../../fixtures/lib/write-capture-layout.ts';
-import { ImportError } from '../../../../shared/import/import-error.ts';
 import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
 import { countLineEnds } from '../../../../worker/import/count-line-ends.ts';
 import { readCaptureFile } from '../../../../worker/import/read-capture-file.ts';
 import { checkAgainstTruth } from '../../import/check-against-truth.ts';
 import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
+import { rejection } from '../../../helpers/import-rejection.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'gatepost-import-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -24,16 +24,6 @@ function save(name: string, bytes: Uint8Array | string): string {
   const path = join(dir, name);
   writeFileSync(path, bytes);
   return path;
-}
-
-async function rejection(promise: Promise<unknown>): Promise<ImportError> {
-  try {
-    await promise;
-  } catch (error) {
-    expect(error).toBeInstanceOf(ImportError);
-    return error as ImportError;
-  }
-  throw new Error('expected an ImportError');
 }
 
 describe('readCaptureFile', () => {

@@ -1,9 +1,9 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { ImportError } from '../../../../shared/import/import-error.ts';
 import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
 import { readCaptureStream } from '../../../../worker/import/read-capture-stream.ts';
 import { readCapture } from '../../import/fixture-manifest.ts';
+import { rejection } from '../../../helpers/import-rejection.ts';
 
 /** A lazily generated stream that counts how much of it was pulled. */
 function generated(chunks: () => Generator<Uint8Array>) {
@@ -21,16 +21,6 @@ function generated(chunks: () => Generator<Uint8Array>) {
 
 const encoder = new TextEncoder();
 const GIB = 1 << 30;
-
-async function rejection(promise: Promise<unknown>): Promise<ImportError> {
-  try {
-    await promise;
-  } catch (error) {
-    expect(error).toBeInstanceOf(ImportError);
-    return error as ImportError;
-  }
-  throw new Error('expected an ImportError');
-}
 
 describe('readCaptureStream stops early on junk', () => {
   it('When a 1 GiB stream is text junk from the start, then it stops after the head with a message', async () => {
