@@ -33,6 +33,24 @@ export interface ChannelData {
   invalidCount: number;
 }
 
+/**
+ * How a capture's time base was found: shown beside the file ("how it was read"), stored with the capture, and
+ * read by the analysis, which flags a result whose time base was rebuilt or assumed ("check the time base").
+ */
+export interface TimeBaseOrigin {
+  /**
+   * 'time-column': the file's own time column, in a unit it states;
+   * 'metadata': start and interval stated by the file (preamble, header columns or fields beside the data);
+   * 'rebuilt': the printed times were too coarse for their offset, so the grid was rebuilt from the interval the file states;
+   * 'given': the user gave the interval (`dt` option, "Fix how it is read", `--dt`).
+   */
+  how: 'time-column' | 'metadata' | 'rebuilt' | 'given';
+  /** Where, in words a user can check: "from `Increment` in the second header row". */
+  source: string;
+  /** True when the reader had to assume something about time (e.g. seconds, because no unit was written). */
+  assumed: boolean;
+}
+
 export interface ImportedCapture {
   channels: ChannelData[];
   time: TimeBase;
@@ -44,4 +62,8 @@ export interface ImportedCapture {
   layout: Record<string, unknown>;
   /** Human-readable warnings, e.g. "column 4 is empty and was ignored", "12 clipped samples in CH2". */
   warnings: string[];
+  /** How the time base was found (absent on captures read before it was recorded). */
+  timeOrigin?: TimeBaseOrigin;
+  /** 'codes': the values are raw converter codes, not volts (the file gave no usable scale). Timing still works. */
+  valueKind?: 'physical' | 'codes';
 }
