@@ -1,5 +1,6 @@
+import type { TimeBaseOrigin } from '../contracts/capture.ts';
 import { ImportError } from './import-error.ts';
-import { parseQuantity } from './parse-quantity.ts';
+import { parseQuantity, stripValuePrefix, timeUnitToSi } from './parse-quantity.ts';
 import { parseUnitLabel } from './parse-unit-label.ts';
 import type { ParseScopeCsvOptions } from './parse-scope-csv-options.ts';
 import { readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
@@ -19,6 +20,17 @@ export interface PlannedChannel {
 }
 
 export type ColumnRole = 'time' | 'index' | 'channel' | 'empty' | 'side-metadata' | 'trailing';
+
+/** A column read like a channel (in seconds) only to check or rebuild the time base; assembleCapture strips it. */
+export interface TimeCheck {
+  /** Index into `channels`. */
+  channel: number;
+  /** 0-based column in the file. */
+  column: number;
+  /** true: the printed times are too coarse and only anchor t0 of the rebuilt grid; false: a second time column
+   * (channel blocks side by side) that must equal the time base. */
+  rebuild: boolean;
+}
 
 /** Everything decided about a file before its body is read; the pure parser and the disk reader both follow it. */
 export interface CapturePlan {
@@ -45,6 +57,12 @@ export interface CapturePlan {
   dt: number | null;
   /** Where t0 and dt came from, for the user to check ("metadata 'Sample interval'", "options"). */
   timeSource: string;
+  /** How the time base was found, in words a user can check (see TimeBaseOrigin). */
+  timeOrigin: TimeBaseOrigin;
+  /** Columns read at the end of `channels` only to check or rebuild the time base. */
+  timeChecks: TimeCheck[];
+  /** 'codes' when the values are raw converter codes, not volts. */
+  valueKind: 'physical' | 'codes';
   channels: PlannedChannel[];
   recordLength: number | null;
   metadata: Record<string, string>;
@@ -61,18 +79,31 @@ export interface DetectCapturePlanOptions extends ParseScopeCsvOptions {
 
 type Cell = 'num' | 'sentinel' | 'empty' | 'text';
 
-const TIME_NAME = /^(time|t|zeit|tiempo|temps|tempo|x|sec|seconds?)\b/i;
-const INDEX_NAME = /^(index|idx|sample|samples|sample ?no\.?|no\.?|n|#|point|pt|nr\.?)$/i;
+const TIME_NAME = /^(time|t|zeit|tiempo|temps|tempo|x|x-axis|sec|seconds?)\b/i;
+const INDEX_NAME = /^(index|idx|sample|samples|sample ?no\.?|no\.?|n|#|point|pt|nr\.?|sequence|seq)$/i;
+/** Words a units row writes over a column of sample numbers. */
+const INDEX_WORD = /^(sequence|index|points?|samples?|sample ?number|number)$/i;
+/** Names that say a column is a channel, whatever its values do. */
+const CHANNEL_NAME = /^(ch(annel)?\s*\d+|c\d+|[a-d]|gate\b.*|math\s*\d*|ref\s*\d*|ampl(itude)?|volt(age)?s?|signal|value)$/i;
+/** Units-row words that stand for "no unit" or a unit this reader does not convert. */
+const WEAK_UNIT = /^(values?|ampl(itude)?|a\.?u\.?|arb\.?|counts?|codes?|adc|none|n\/a|-+|\?+|db[a-z]*|%|div)$/i;
+/** Products and powers of units ("V^2", "V*V", "Volt*Volt"), as math columns write them. */
+const UNIT_EXPRESSION = /^[A-Za-z\u00b5\u03bc]+(\s*[\^*/·]\s*[A-Za-z\u00b5\u03bc0-9]+)+$/;
+/** A line that only announces the data below it ("Waveform Data,"). */
+const DATA_MARKER = /^(waveform ?data|data|samples|values|data ?points?|curve|waveform)\s*:?$/i;
 
+// Keys of the time base as scope preambles write them (normalised: lower case, "_-." as spaces). A scale per
+// division ("time base", "horizontal scale", "s/div") is never an interval, so none of these match it.
 const KEYS = {
-  dt: /^(sample ?interval|sampling ?interval|sampling ?period|sample ?period|x ?increment|increment|time ?increment|time ?step|horizontal ?interval|dt|delta ?t|time ?resolution|interval)$/,
-  rate: /^(sample ?rate|sampling ?rate|sampling ?frequency|sample ?frequency|fs)$/,
-  t0: /^(start ?time|start|t0|x ?origin|x ?start|first ?sample ?time|time ?of ?first ?sample|horizontal ?offset|trigger ?offset)$/,
+  dt: /^(sample ?interval|sampling ?interval|sampling ?period|sample ?period|sample ?time|x ?increment|xinc(r)?|increment|time ?increment|time ?interval|time ?step|horizontal ?interval|horizontal ?increment|dt|delta ?t|time ?resolution|time ?per ?(point|sample)|interval|sample ?spacing|x ?spacing)$/,
+  rate: /^(sample ?rate|sampling ?rate|sampling ?frequency|sample ?frequency|sa ?rate|fs)$/,
+  t0: /^(start ?time|start|t0|x ?origin|xorg|x ?start|x ?zero|xzero|first ?sample ?time|time ?of ?first ?sample|first ?point ?time|horizontal ?offset|trigger ?offset|time ?offset|start ?x)$/,
   triggerIndex: /^(trigger ?position|trigger ?point|trigger ?index|trigger ?sample|pre ?trigger ?samples|pretrigger)$/,
-  length: /^(record ?length|points|number ?of ?points|number ?of ?samples|samples|sample ?count|n ?points|length)$/,
+  length: /^(record ?length|points|number ?of ?points|number ?of ?samples|samples|sample ?count|n ?points|length|memory ?depth)$/,
   names: /^(channel|channels|source|sources|channel ?names?|names?|labels?|traces?)$/,
-  units: /^(units?|vertical ?units?|y ?units?|channel ?units?)$/,
-  timeUnit: /^(horizontal ?units?|x ?units?|time ?units?)$/,
+  units: /^(units?|vertical ?units?|y ?units?|yunit|channel ?units?|value ?units?|volt ?units?|amplitude ?units?)$/,
+  timeUnit: /^(horizontal ?units?|x ?units?|xunit|time ?units?|horiz ?units?)$/,
+  perDivision: /(volts? ?\/ ?div|v ?\/ ?div|vertical ?scale|volt ?scale|voltage ?per ?div(ision)?|volts ?per ?div(ision)?|vertical ?gain|v ?div)/,
 };
 
 /**
@@ -100,7 +131,8 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   if (decimalComma && delimiter === ',') throw new RangeError('a decimal comma needs a delimiter other than ","');
   const fieldOptions: Required<ReadSampleFieldOptions> = {
     decimalComma,
-    textSentinels: new Set(textSentinels.map((s) => s.trim().toLowerCase())),
+    // An empty cell inside a row ("+2.006E-03,,") is a gap: NaN, counted with the invalid samples.
+    textSentinels: new Set([...textSentinels.map((s) => s.trim().toLowerCase()), '']),
     numericSentinels: new Set(numericSentinels),
   };
   const rows = lines.map((line) => (line.trim() === '' ? [] : splitFields(line, delimiter)));
@@ -186,26 +218,52 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   const sideColumns = new Set<number>();
   for (const i of sideRows) rows[i].forEach((f, col) => { if (!dataColumns.includes(col) && f.trim() !== '') sideColumns.add(col); });
 
-  // Header rows: names, optionally followed by a row of units.
+  // Header rows right above the data: names, optionally followed by a row of units. A names row may hold numeric
+  // channel ids ("x-axis,1,2" over "second,Volt,Volt"); both rows may carry metadata in columns beyond the data
+  // ("X,CH1,Start,Increment" over "Sequence,Volt,-6.0e-03,2.0e-06").
   let headerEnd = start; // exclusive index of the header block end (= start, no blank lines kept between)
   while (headerEnd > 0 && isBlank(headerEnd - 1)) headerEnd--;
-  const isHeaderRow = (i: number): boolean => {
-    if (i < 0 || isBlank(i) || cells[i].includes('num')) return false;
+  const field = (i: number, col: number) => (rows[i]?.[col] ?? '').trim();
+  const isNamesRow = (i: number, aboveUnits: boolean): boolean => {
+    if (i < 0 || isBlank(i)) return false;
     const nonEmpty = rows[i].filter((f) => f.trim() !== '').length;
-    const inData = dataColumns.filter((col) => (rows[i][col] ?? '').trim() !== '').length;
+    if (nonEmpty === 1 && DATA_MARKER.test(rows[i].find((f) => f.trim() !== '')?.trim() ?? '')) return false;
+    const numeric = dataColumns.filter((col) => cells[i][col] === 'num');
+    if (numeric.length > 0) {
+      // Numbers in a names row are channel ids ("1", "2") beside a text label, and only above a units row.
+      if (!aboveUnits || numeric.length === dataColumns.length) return false;
+      if (!numeric.every((col) => /^\d{1,3}$/.test(field(i, col)))) return false;
+    } else if (!aboveUnits && cells[i].includes('num')) {
+      return false;
+    }
+    const inData = dataColumns.filter((col) => field(i, col) !== '').length;
     if (dataColumns.length === 1) return nonEmpty === 1 && inData === 1;
-    return inData >= Math.max(1, dataColumns.length - 1) && rows[i].length >= requiredFields - 1;
+    return inData >= Math.max(1, dataColumns.length - 1);
   };
-  const isUnitRow = (i: number) => dataColumns.every((col) => {
-    const f = (rows[i][col] ?? '').trim().replace(/^[([]|[)\]]$/g, '');
-    return f === '' || unitToSi(f) !== null;
-  });
+  const isUnitsRow = (i: number): boolean => {
+    if (i < 1 || isBlank(i)) return false;
+    let strong = 0;
+    let filled = 0;
+    for (const col of dataColumns) {
+      const f = bareUnit(field(i, col));
+      if (f === '') continue;
+      filled++;
+      const kind = unitKind(f);
+      if (kind === null) return false;
+      if (kind === 'strong') strong++;
+    }
+    if (filled === 0) return false;
+    // A row of only weak words ("Value") counts when the row above is a names row.
+    return strong > 0 || isNamesRow(i - 1, true);
+  };
   let headerRows = 0;
   if (options.headerRows !== undefined) {
     if (![0, 1, 2].includes(options.headerRows)) throw new RangeError('headerRows must be 0, 1 or 2');
     headerRows = options.headerRows;
-  } else if (isHeaderRow(headerEnd - 1)) {
-    headerRows = isUnitRow(headerEnd - 1) && isHeaderRow(headerEnd - 2) && !isUnitRow(headerEnd - 2) ? 2 : 1;
+  } else if (isUnitsRow(headerEnd - 1) && isNamesRow(headerEnd - 2, true)) {
+    headerRows = 2;
+  } else if (isNamesRow(headerEnd - 1, false)) {
+    headerRows = 1;
   }
   const headerStart = headerEnd - headerRows;
   if (headerStart < 0) throw new ImportError(`${headerRows} header rows were asked for, but the data starts at line ${start + 1}`);
@@ -220,27 +278,33 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   }
   const names: string[] = [];
   const units: string[] = [];
+  /** Words of a units row that are not units but say what a column is ("Sequence", "Value"). */
+  const unitWords: string[] = [];
   if (headerRows >= 1) {
-    const nameRow = rows[headerStart];
     for (const col of dataColumns) {
-      const label = parseUnitLabel(nameRow[col] ?? '');
+      const label = parseUnitLabel(rows[headerStart][col] ?? '');
       names[col] = label.name;
       units[col] = label.sourceUnit;
     }
     if (headerRows === 2) {
       for (const col of dataColumns) {
-        const u = (rows[headerStart + 1][col] ?? '').trim().replace(/^[([]|[)\]]$/g, '');
-        if (u !== '') units[col] = u;
+        const u = bareUnit(field(headerStart + 1, col));
+        if (u === '') continue;
+        if (unitToSi(u) !== null || timeUnitToSi(u) !== null) units[col] = u;
+        else unitWords[col] = u.toLowerCase();
       }
     }
   }
 
-  // Metadata: the preamble's key/value lines, side columns, and footer lines.
+  // Metadata: the preamble's key/value lines, key/value pairs in header columns beyond the data, side columns,
+  // and footer lines. `where` keeps, per key, where it was found, so a user can check the time base's source.
   const metadata: Record<string, string> = {};
-  const addMeta = (key: string, value: string) => {
-    const k = key.trim().replace(/^[#%;"']+\s*/, '').replace(/\s*[:=]$/, '').trim();
+  const where: Record<string, string> = {};
+  const addMeta = (key: string, value: string, at: string) => {
+    const k = key.trim().replace(/^[#%;"',\s]+/, '').replace(/\s*[:=]$/, '').trim();
     if (k === '') return;
     metadata[k] = metadata[k] === undefined ? value : `${metadata[k]}; ${value}`;
+    where[k] ??= at;
   };
   for (let i = 0; i < headerStart; i++) {
     if (isBlank(i)) continue;
@@ -250,31 +314,66 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       if (m) fields = [m[1], m[2]];
     }
     const nonEmpty = fields.filter((f) => f !== '');
-    addMeta(nonEmpty[0] ?? '', nonEmpty.slice(1).join(', '));
+    addMeta(nonEmpty[0] ?? '', nonEmpty.slice(1).join(', '), `line ${i + 1}`);
+  }
+  if (headerRows >= 1) {
+    const last = headerStart + headerRows - 1;
+    for (let col = 0; col < rows[headerStart].length; col++) {
+      if (dataColumns.includes(col)) continue;
+      const key = field(headerStart, col);
+      const value = headerRows === 2 ? field(last, col) : '';
+      if (key !== '' && value !== '' && cells[headerStart][col] === 'text') {
+        addMeta(key, value, `column ${col + 1} of the header rows (lines ${headerStart + 1}–${last + 1})`);
+      }
+    }
   }
   for (const i of sideRows) {
-    const fields = rows[i].filter((_, col) => !dataColumns.includes(col)).map((f) => f.trim()).filter((f) => f !== '');
-    for (let k = 0; k < fields.length; k += 2) addMeta(fields[k], fields[k + 1] ?? '');
+    const fields = rows[i].map((f, col) => [f.trim(), col] as const).filter(([f, col]) => !dataColumns.includes(col) && f !== '');
+    for (let k = 0; k < fields.length; k += 2) addMeta(fields[k][0], fields[k + 1]?.[0] ?? '', `line ${i + 1}, beside the data`);
   }
   for (const i of footer) {
     const nonEmpty = rows[i].map((f) => f.trim()).filter((f) => f !== '');
-    if (nonEmpty.length >= 2) addMeta(nonEmpty[0], nonEmpty.slice(1).join(', '));
-    else addMeta('footer', lines[i].trim());
+    if (nonEmpty.length >= 2) addMeta(nonEmpty[0], nonEmpty.slice(1).join(', '), `line ${i + 1}, after the data`);
+    else addMeta('footer', lines[i].trim(), `line ${i + 1}, after the data`);
   }
-  const meta = readTimeMetadata(metadata, options.timeUnit ?? '', decimalComma);
+  const meta = readTimeMetadata(metadata, where, options.timeUnit ?? '', decimalComma);
+  const dtGiven = options.dt ?? meta.dt;
+  const dtFrom = options.dt !== undefined ? 'the interval you gave' : `\`${meta.dtKey}\` (${where[meta.dtKey] ?? 'the metadata'})`;
 
   // Which data column is time, which is an index, which are channels.
   let timeColumn: number | null = null;
   let indexColumn: number | null = null;
-  const blockValues = (col: number) => {
+  let timeUnit = '';
+  let timeUnitFrom = '';
+  let timeAssumed = false;
+  let coarse = options.coarseTime === true;
+  let coarseLine = start + 1;
+  /** 1-based line of the k-th data row (blank lines skipped). */
+  const lineOfRow = (k: number) => {
+    for (let i = start, seen = 0; i <= end; i++) {
+      if (isBlank(i)) continue;
+      if (seen++ === k) return i + 1;
+    }
+    return start + 1;
+  };
+  const checkColumns: number[] = [];
+  const blockValues = (col: number, most = 50) => {
     const values: number[] = [];
-    for (let i = start; i <= end && values.length < 50; i++) {
+    for (let i = start; i <= end && values.length < most; i++) {
       if (isBlank(i)) continue;
       const v = readSampleField(rows[i][col] ?? '', fieldOptions);
       if (v === undefined || Number.isNaN(v)) return null;
       values.push(v);
     }
     return values;
+  };
+  /** The unit factor among s, ms, µs, ns, ps that makes `step` the stated interval, or null. */
+  const factorMatching = (step: number): { factor: number; unit: string } | null => {
+    if (dtGiven === null) return null;
+    for (const [unit, factor] of [['s', 1], ['ms', 1e-3], ['us', 1e-6], ['ns', 1e-9], ['ps', 1e-12]] as const) {
+      if (Math.abs(step * factor - dtGiven) <= 0.01 * dtGiven) return { factor, unit };
+    }
+    return null;
   };
   if (options.timeColumn !== undefined || options.indexColumn !== undefined) {
     timeColumn = options.timeColumn ?? null;
@@ -284,23 +383,89 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
         throw new RangeError(`${what} ${col} is not a column of numbers (numeric columns: ${dataColumns.join(', ')})`);
       }
     }
+    if (timeColumn !== null) {
+      timeUnit = units[timeColumn] || options.timeUnit || meta.timeUnit || '';
+      timeUnitFrom = units[timeColumn] ? 'the header' : options.timeUnit ? 'your setting' : meta.timeUnit ? `\`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]})` : '';
+    }
   } else if (dataColumns.length >= 2) {
     const first = dataColumns[0];
     const name = names[first] ?? '';
-    const unit = units[first] ?? '';
-    const values = blockValues(first);
-    const increasing = values !== null && values.length >= 2 && values.every((v, k) => k === 0 || v > values[k - 1]);
-    const unitIsTime = unitToSi(unit)?.si === 's';
-    if (headerRows > 0 && INDEX_NAME.test(name)) indexColumn = first;
-    else if (headerRows > 0 && (TIME_NAME.test(name) || unitIsTime)) timeColumn = first;
-    else if (headerRows === 0 && increasing && values.every((v, k) => k === 0 || v === values[k - 1] + 1)
-             && values.every(Number.isInteger) && (meta.dt !== null || options.dt !== undefined)) indexColumn = first;
-    else if (headerRows === 0 && increasing) {
-      // Without a header an increasing first column is a time column, unless the metadata gives a sample
-      // interval its steps do not match (then every column is a channel of samples).
-      const dtKnown = options.dt ?? meta.dt;
-      const step = values[1] - values[0];
-      if (dtKnown === null || Math.abs(step - dtKnown) <= 0.01 * dtKnown) timeColumn = first;
+    const word = unitWords[first] ?? '';
+    const values = blockValues(first, 400);
+    const n = values?.length ?? 0;
+    const nonDecreasing = values !== null && n >= 2 && values.every((v, k) => k === 0 || v >= values[k - 1]) && values[n - 1] > values[0];
+    const counting = values !== null && n >= 2 && values.every((v, k) => Number.isInteger(v) && (k === 0 || v === values[k - 1] + 1));
+    const declared = units[first] ?? '';
+    const declaredTime = declared !== '' && (unitToSi(declared)?.si === 's' || timeUnitToSi(declared) !== null);
+    let role: 'time' | 'index' | 'channel' = 'channel';
+    if (headerRows > 0 && (INDEX_NAME.test(name) || INDEX_WORD.test(word))) role = 'index';
+    else if (headerRows > 0 && (TIME_NAME.test(name) || declaredTime)) role = 'time';
+    else if (headerRows > 0 && CHANNEL_NAME.test(name)) role = 'channel';
+    else if (nonDecreasing) role = 'time';
+    if (role === 'time' && counting && declared === '' && meta.timeUnit === '' && options.timeUnit === undefined) role = 'index';
+    if (role === 'index' && !counting && values !== null && nonDecreasing && !INDEX_WORD.test(word) && !INDEX_NAME.test(name)) role = 'time';
+    if (role === 'index') {
+      if (dtGiven === null) {
+        throw new ImportError(`the first column counts samples (${values?.slice(0, 3).join(', ') ?? '0, 1, 2'}, …) and the file gives no sample interval anywhere (no interval, increment, sample rate or start and step), so these are sample numbers, not times; give the sample interval (the "Fix how it is read" form on the shot page, or --dt for the command line)`, start + 1);
+      }
+      indexColumn = first;
+    } else if (role === 'time' && values === null) {
+      // A bad value in the first rows: the reader names its line.
+      timeColumn = first;
+      if (declared !== '') {
+        timeUnit = declared;
+        timeUnitFrom = 'the header';
+      }
+    } else if (role === 'time' && values !== null) {
+      if (n >= 4 && isEnvelope(values)) {
+        throw new ImportError(`every time appears twice in a row (${values[0]}, ${values[1]}, ${values[2]}, …): this is a min/max envelope record, not one sample per instant; export the waveform as plain samples (turn the envelope or peak-detect export off)`, start + 1);
+      }
+      const repeat = values.findIndex((v, k) => k > 0 && v === values[k - 1]);
+      if (nonDecreasing && repeat > 0) {
+        coarse = true;
+        coarseLine = lineOfRow(repeat);
+      }
+      const step = n >= 2 ? (values[n - 1] - values[0]) / (n - 1) : NaN;
+      if (declared !== '') {
+        // A unit the header states wins; one that is not a time (a spectrum's Hz) is refused below.
+        timeUnit = declared;
+        timeUnitFrom = 'the header';
+      } else if (options.timeUnit !== undefined) {
+        timeUnit = options.timeUnit;
+        timeUnitFrom = 'your setting';
+      }
+      const stated = timeUnit || meta.timeUnit;
+      const statedFactor = stated === '' ? null : (unitToSi(stated) ?? timeUnitToSi(stated))?.factor ?? null;
+      const match = coarse ? null : factorMatching(step);
+      if (timeUnit !== '') {
+        if (dtGiven !== null && !coarse && statedFactor !== null && Math.abs(step * statedFactor - dtGiven) > 0.01 * dtGiven) {
+          warnings.push(`the time column's step (${fmt(step * statedFactor)} s) differs from the sample interval ${fmt(dtGiven)} s stated by ${dtFrom}; the time column was used`);
+        }
+      } else if (meta.timeUnit !== '' && (dtGiven === null || coarse || (statedFactor !== null && Math.abs(step * statedFactor - dtGiven) <= 0.01 * dtGiven))) {
+        timeUnit = meta.timeUnit;
+        timeUnitFrom = `\`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]})`;
+      } else if (match !== null) {
+        timeUnit = match.unit;
+        timeUnitFrom = `the stated sample interval (${dtFrom}), which the column's step matches in ${match.unit === 'us' ? 'µs' : match.unit}`;
+        if (meta.timeUnit !== '') warnings.push(`the horizontal unit \`${meta.timeUnit}\` (${where[meta.timeUnitKey]}) disagrees with the time column, whose step matches the stated sample interval ${fmt(dtGiven as number)} s only in ${match.unit === 'us' ? 'µs' : match.unit}; ${match.unit === 'us' ? 'µs' : match.unit} used`);
+      } else if (dtGiven !== null && !coarse && headerRows === 0) {
+        // Without a header, a column that does not step by the stated interval is not a time column: every column
+        // is then a channel of samples on the stated interval.
+        role = 'channel';
+      } else if (meta.timeUnit !== '') {
+        timeUnit = meta.timeUnit;
+        timeUnitFrom = `\`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]})`;
+      }
+      if (role === 'time') timeColumn = first;
+    }
+    // A second time column (channel blocks side by side, each with its own time) is checked, never a channel.
+    if (timeColumn !== null) {
+      const reference = blockValues(timeColumn, 400);
+      for (const col of dataColumns) {
+        if (col === timeColumn) continue;
+        const other = blockValues(col, 400);
+        if (reference !== null && other !== null && other.length === reference.length && other.every((v, k) => v === reference[k])) checkColumns.push(col);
+      }
     }
   }
 
@@ -311,70 +476,135 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   let t0: number | null = null;
   let dt: number | null = null;
   let timeSource: string;
+  let timeOrigin: TimeBaseOrigin;
+  let rebuildFrom: number | null = null;
+  let rebuildFactor = 1;
   if (timeColumn !== null) {
-    timeMode = 'column';
-    timeSourceUnit = units[timeColumn] || options.timeUnit || meta.timeUnit || '';
-    const si = timeSourceUnit === '' ? { si: 's', factor: 1 } : unitToSi(timeSourceUnit);
+    timeSourceUnit = timeUnit;
+    const si = timeSourceUnit === '' ? { si: 's', factor: 1 } : unitToSi(timeSourceUnit) ?? timeUnitToSi(timeSourceUnit);
     if (si === null || si.si !== 's') {
       throw new ImportError(`the time column's unit '${timeSourceUnit}' is not a unit of time; give timeUnit in the options`, headerStart + 1);
     }
-    if (timeSourceUnit === '') warnings.push('the time column gives no unit; seconds assumed');
+    if (timeSourceUnit === '') {
+      timeAssumed = true;
+      warnings.push('the time column gives no unit and the file states no sample interval to check it against; seconds assumed');
+    }
     timeFactor = si.factor;
-    timeSource = 'time column';
+    const label = names[timeColumn] ? ` ("${names[timeColumn]}")` : '';
+    const unitText = timeSourceUnit === '' ? 'seconds assumed (no unit anywhere in the file)' : `in ${timeSourceUnit}, from ${timeUnitFrom}`;
+    if (coarse) {
+      if (dtGiven === null) {
+        throw new ImportError(`the printed times are too coarse for the sample interval: this row repeats the time of the row before it, and the file states no sample interval to rebuild them from; give the sample interval (the "Fix how it is read" form on the shot page, or --dt for the command line)`, coarseLine);
+      }
+      // Rebuild the grid from the stated interval; the printed times anchor t0 and are checked against it.
+      rebuildFrom = timeColumn;
+      rebuildFactor = timeFactor;
+      timeMode = 'samples';
+      dt = dtGiven;
+      t0 = options.t0 ?? 0;
+      timeColumn = null;
+      timeSource = `dt from ${dtFrom}; the printed times of column ${rebuildFrom + 1} are too coarse and only anchor t0`;
+      timeOrigin = { how: 'rebuilt', source: `every ${fmt(dt)} s from ${dtFrom}; column ${rebuildFrom + 1}${label} printed too coarsely (${unitText}) and used only for the start time`, assumed: timeAssumed };
+      warnings.push(`the printed times of column ${rebuildFrom + 1} are too coarse for their offset (rows share the same time); the time base was rebuilt from the sample interval ${fmt(dt)} s stated by ${dtFrom}`);
+    } else {
+      timeMode = 'column';
+      timeSource = 'time column';
+      timeOrigin = { how: 'time-column', source: `column ${timeColumn + 1}${label}, ${unitText}`, assumed: timeAssumed };
+    }
   } else {
     timeMode = indexColumn !== null ? 'index' : 'samples';
-    dt = options.dt ?? meta.dt;
+    dt = dtGiven;
     if (dt === null) {
       throw new ImportError('there is no time column and the file gives no sample interval; give dt (seconds) in the import options', start + 1);
     }
     if (!(dt > 0) || !Number.isFinite(dt)) throw new ImportError(`the sample interval ${dt} s is not a positive number`, meta.dtLine);
     const dtSource = options.dt !== undefined ? 'options' : `metadata '${meta.dtKey}'`;
+    let t0Words: string;
     if (options.t0 !== undefined) {
       t0 = options.t0;
       timeSource = `dt from ${dtSource}, t0 from options`;
+      t0Words = 'the start you gave';
     } else if (meta.t0 !== null) {
       t0 = meta.t0;
       timeSource = `dt from ${dtSource}, t0 from metadata '${meta.t0Key}'`;
+      t0Words = `\`${meta.t0Key}\` (${where[meta.t0Key]})`;
     } else if (meta.triggerIndex !== null) {
       t0 = -meta.triggerIndex * dt;
       timeSource = `dt from ${dtSource}, t0 from metadata '${meta.triggerKey}' (samples before the trigger)`;
+      t0Words = `\`${meta.triggerKey}\` (${where[meta.triggerKey]}), samples before the trigger`;
     } else if (indexColumn !== null) {
       const values = blockValues(indexColumn);
       t0 = values !== null && values.length > 0 ? values[0] * dt : 0;
       timeSource = `dt from ${dtSource}, t0 = first index × dt (index counted from the trigger)`;
+      t0Words = 'the first index × the interval';
     } else {
       t0 = 0;
       timeSource = `dt from ${dtSource}, t0 = 0 (the file gives no start time)`;
+      t0Words = 'none given: the first sample is taken as t = 0';
       warnings.push('the file gives no start time; the first sample is taken as t = 0');
     }
     if (!Number.isFinite(t0)) throw new RangeError('t0 must be a finite number of seconds');
+    timeOrigin = {
+      how: options.dt !== undefined ? 'given' : 'metadata',
+      source: `every ${fmt(dt)} s from ${dtFrom}${indexColumn !== null ? ` (column ${indexColumn + 1} counts the samples)` : ''}; start: ${t0Words}`,
+      assumed: false,
+    };
   }
 
   // Channels: every other data column.
-  const channelColumns = dataColumns.filter((col) => col !== timeColumn && col !== indexColumn);
+  const channelColumns = dataColumns.filter((col) => col !== timeColumn && col !== indexColumn && col !== rebuildFrom && !checkColumns.includes(col));
   if (channelColumns.length === 0) throw new ImportError('the file has a time column but no channel of samples', start + 1);
   const metaNames = meta.names !== null && meta.names.length === channelColumns.length ? meta.names : null;
-  const metaUnits = meta.units !== null && (meta.units.length === channelColumns.length || meta.units.length === 1) ? meta.units : null;
   if (options.channelNames !== undefined && options.channelNames.length !== channelColumns.length) {
     throw new RangeError(`channelNames has ${options.channelNames.length} names for ${channelColumns.length} channels`);
   }
   if (options.channelUnits !== undefined && options.channelUnits.length !== channelColumns.length) {
     throw new RangeError(`channelUnits has ${options.channelUnits.length} units for ${channelColumns.length} channels`);
   }
+  let valueKind: 'physical' | 'codes' = 'physical';
   const channels = channelColumns.map((column, k): PlannedChannel => {
     const name = options.channelNames?.[k] ?? (names[column] || metaNames?.[k] || `CH${k + 1}`);
-    const sourceUnit = options.channelUnits?.[k] ?? (units[column] || metaUnits?.[metaUnits.length === 1 ? 0 : k] || '');
-    const si = sourceUnit === '' ? null : unitToSi(sourceUnit);
-    if (sourceUnit !== '' && si === null) warnings.push(`the unit '${sourceUnit}' of ${name} is not known; its values are kept as written`);
-    return { column, name, unit: si?.si ?? sourceUnit, sourceUnit, factor: si?.factor ?? 1 };
+    let sourceUnit = options.channelUnits?.[k] ?? (units[column] || meta.unitOf(name, k, channelColumns.length));
+    let unit = '';
+    let factor = 1;
+    if (sourceUnit !== '') {
+      const si = unitToSi(sourceUnit);
+      if (si === null) warnings.push(`the unit '${sourceUnit}' of ${name} is not known; its values are kept as written`);
+      unit = si?.si ?? sourceUnit;
+      factor = si?.factor ?? 1;
+    } else {
+      const sample = blockValues(column, 400);
+      if (sample !== null && sample.length > 0 && sample.every(Number.isInteger) && (meta.perDivision || meta.dataMarker)) {
+        valueKind = 'codes';
+        warnings.push(`the values of ${name} are whole numbers with no unit and the file gives only a scale per division: they are raw converter codes, not volts (timing does not need volts; levels and thresholds are in codes)`);
+      } else {
+        unit = 'V';
+        sourceUnit = '';
+        warnings.push(`the file gives no unit for ${name}; volts assumed`);
+      }
+    }
+    return { column, name, unit, sourceUnit, factor };
   });
+  // Columns read only to check or rebuild the time base: after the channels, stripped by assembleCapture.
+  const timeChecks: TimeCheck[] = [];
+  for (const col of checkColumns) {
+    timeChecks.push({ channel: channels.length, column: col, rebuild: false });
+    channels.push({ column: col, name: names[col] || `column ${col + 1}`, unit: 's', sourceUnit: units[col] || timeSourceUnit, factor: units[col] ? (unitToSi(units[col]) ?? timeUnitToSi(units[col]))?.factor ?? timeFactor : timeFactor });
+  }
+  if (rebuildFrom !== null) {
+    timeChecks.push({ channel: channels.length, column: rebuildFrom, rebuild: true });
+    channels.push({ column: rebuildFrom, name: names[rebuildFrom] || `column ${rebuildFrom + 1}`, unit: 's', sourceUnit: timeUnit, factor: rebuildFactor });
+  }
+  if (checkColumns.length > 0) {
+    warnings.push(`column${checkColumns.length > 1 ? 's' : ''} ${checkColumns.map((c) => c + 1).join(', ')} repeat${checkColumns.length > 1 ? '' : 's'} the time column (channel blocks side by side); checked equal to it, not read as channels`);
+  }
 
   // Columns with nothing in them.
   const columnRoles: ColumnRole[] = [];
   let widest = columnCount;
   for (const i of sideRows) widest = Math.max(widest, rows[i].length);
   for (let col = 0; col < widest; col++) {
-    if (col === timeColumn) columnRoles.push('time');
+    if (col === timeColumn || col === rebuildFrom || checkColumns.includes(col)) columnRoles.push('time');
     else if (col === indexColumn) columnRoles.push('index');
     else if (channelColumns.includes(col)) columnRoles.push('channel');
     else if (sideColumns.has(col)) columnRoles.push('side-metadata');
@@ -397,6 +627,9 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     requiredFields,
     columnRoles,
     timeMode, timeColumn, timeFactor, timeSourceUnit, indexColumn, t0, dt, timeSource,
+    timeOrigin,
+    timeChecks,
+    valueKind,
     channels,
     recordLength: meta.length,
     metadata,
@@ -405,6 +638,32 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     precision,
     uniformTolerance,
   };
+}
+
+/** True when the values come in equal consecutive pairs (t0, t0, t1, t1, …): a min/max envelope export. */
+function isEnvelope(values: number[]): boolean {
+  const pairs = Math.floor(values.length / 2);
+  for (let k = 0; k < pairs; k++) {
+    if (values[2 * k] !== values[2 * k + 1]) return false;
+    if (k > 0 && !(values[2 * k] > values[2 * k - 1])) return false;
+  }
+  return pairs >= 2;
+}
+
+/** A units-row field without its brackets: "(ms)" → "ms". */
+function bareUnit(text: string): string {
+  return text.trim().replace(/^[([]\s*|\s*[)\]]$/g, '').trim();
+}
+
+/** 'strong' for a unit or an index word, 'weak' for words that stand for "no unit" ("Value"), null for anything else. */
+function unitKind(text: string): 'strong' | 'weak' | null {
+  if (unitToSi(text) !== null || timeUnitToSi(text) !== null || INDEX_WORD.test(text)) return 'strong';
+  if (WEAK_UNIT.test(text) || UNIT_EXPRESSION.test(text)) return 'weak';
+  return null;
+}
+
+function fmt(x: number): string {
+  return String(Number(x.toPrecision(6)));
 }
 
 function classifyCell(field: string, options: ReadSampleFieldOptions): Cell {
@@ -481,59 +740,110 @@ interface TimeMetadata {
   triggerKey: string;
   length: number | null;
   names: string[] | null;
-  units: string[] | null;
   timeUnit: string;
+  timeUnitKey: string;
+  /** The file gives a scale per division (volts/div): unscaled integers are then converter codes. */
+  perDivision: boolean;
+  /** The file announces its samples with a marker line ("Waveform Data"). */
+  dataMarker: boolean;
+  /** Unit of the k-th of n channels named `name`, from per-channel lists ("CH1:V, CH2:mV") or one shared unit. */
+  unitOf: (name: string, k: number, n: number) => string;
 }
 
-/** Reads the time base, channel names and units out of the metadata keys scope exports commonly use. */
-function readTimeMetadata(metadata: Record<string, string>, timeUnit: string, decimalComma: boolean): TimeMetadata {
+/**
+ * Reads the time base, channel names and units out of the metadata keys scope exports commonly use. Values may
+ * carry channel prefixes and padding ("CH1:0.000002", "Analog:140000"), units in brackets ("2e-9(s)") or with an
+ * upper-case S for seconds ("0.08uS").
+ */
+function readTimeMetadata(metadata: Record<string, string>, where: Record<string, string>, timeUnit: string, decimalComma: boolean): TimeMetadata {
   const out: TimeMetadata = {
     dt: null, dtKey: '', dtLine: null, t0: null, t0Key: '', triggerIndex: null, triggerKey: '',
-    length: null, names: null, units: null, timeUnit: '',
+    length: null, names: null, timeUnit: '', timeUnitKey: '', perDivision: false, dataMarker: false, unitOf: () => '',
   };
-  const list = (v: string) => v.split(/\s*[,;\t]\s*/).map((s) => s.trim()).filter((s) => s !== '');
+  let unitList: string[] | null = null;
+  const list = (v: string) => v.split(/\s*[,;\t]\s*/).map((s) => s.trim()).filter((s) => s !== '' && s !== '?');
+  const normalise = (name: string) => name.toLowerCase().replace(/[_\-.]+/g, ' ').replace(/\s+/g, ' ').trim();
+  const lineOf = (key: string) => {
+    const m = /^line (\d+)/.exec(where[key] ?? '');
+    return m ? Number(m[1]) : null;
+  };
   for (const [key, value] of Object.entries(metadata)) {
     const label = parseUnitLabel(key);
-    const norm = label.name.toLowerCase().replace(/[_\-.]+/g, ' ').replace(/\s+/g, ' ').trim();
-    if (KEYS.timeUnit.test(norm)) out.timeUnit = list(value)[0] ?? '';
+    const norm = normalise(label.name);
+    if (KEYS.timeUnit.test(norm) && out.timeUnit === '') {
+      const u = stripValuePrefix(list(value)[0] ?? '').replace(/^[([]|[)\]]$/g, '');
+      if (u !== '' && (unitToSi(u)?.si === 's' || timeUnitToSi(u) !== null)) {
+        out.timeUnit = u;
+        out.timeUnitKey = key;
+      }
+    }
   }
   for (const [key, value] of Object.entries(metadata)) {
     const label = parseUnitLabel(key);
-    const norm = label.name.toLowerCase().replace(/[_\-.]+/g, ' ').replace(/\s+/g, ' ').trim();
+    const norm = normalise(label.name);
     const first = list(value)[0] ?? '';
     const timeDefault = label.sourceUnit || timeUnit || out.timeUnit;
+    if (DATA_MARKER.test(norm)) out.dataMarker = true;
+    if (KEYS.perDivision.test(norm) || /\/\s*div\b/i.test(value)) out.perDivision = true;
     if (KEYS.dt.test(norm) && out.dt === null) {
-      const q = parseQuantity(first, timeDefault, decimalComma);
-      if (q !== null && (q.si === 's' || q.si === '')) {
+      const q = parseQuantity(first, { defaultUnit: timeDefault, decimalComma, time: true });
+      if (q !== null && (q.si === 's' || q.si === '') && q.value > 0) {
         out.dt = q.value;
         out.dtKey = key;
+        out.dtLine = lineOf(key);
       }
     } else if (KEYS.rate.test(norm) && out.dt === null) {
-      const q = parseQuantity(first, label.sourceUnit, decimalComma);
+      const q = parseQuantity(first, { defaultUnit: label.sourceUnit, decimalComma });
       if (q !== null && (q.si === 'Hz' || q.si === '') && q.value > 0) {
         out.dt = 1 / q.value;
         out.dtKey = key;
+        out.dtLine = lineOf(key);
       }
     } else if (KEYS.t0.test(norm) && out.t0 === null) {
-      const q = parseQuantity(first, timeDefault, decimalComma);
+      const q = parseQuantity(first, { defaultUnit: timeDefault, decimalComma, time: true });
       if (q !== null && (q.si === 's' || q.si === '')) {
         out.t0 = q.value;
         out.t0Key = key;
       }
     } else if (KEYS.triggerIndex.test(norm) && out.triggerIndex === null) {
-      const q = parseQuantity(first, '', decimalComma);
+      const q = parseQuantity(first, { decimalComma });
       if (q !== null && q.si === '' && Number.isInteger(q.value)) {
         out.triggerIndex = q.value;
         out.triggerKey = key;
       }
     } else if (KEYS.length.test(norm) && out.length === null) {
-      const q = parseQuantity(first, '', decimalComma);
+      const q = parseQuantity(first, { decimalComma });
       if (q !== null && q.si === '' && Number.isInteger(q.value) && q.value > 0) out.length = q.value;
     } else if (KEYS.names.test(norm) && out.names === null) {
       out.names = list(value);
-    } else if (KEYS.units.test(norm) && out.units === null) {
-      out.units = list(value);
+    } else if (KEYS.units.test(norm) && unitList === null) {
+      unitList = list(value);
     }
+  }
+  if (unitList !== null) {
+    const items = unitList;
+    // "CH1:V, CH2:mV": each unit belongs to the channel its prefix names (any case), not to the channel's name.
+    const byName = new Map<string, string>();
+    const plain: string[] = [];
+    for (const item of items) {
+      const m = /^([A-Za-z][A-Za-z0-9 _]{0,15}?)\s*:\s*(.+)$/.exec(item);
+      if (m) byName.set(m[1].trim().toLowerCase(), m[2].trim());
+      else plain.push(item);
+    }
+    const usable = (u: string | undefined) => u ?? '';
+    out.unitOf = (name, k, n) => {
+      const named = byName.get(name.trim().toLowerCase());
+      if (named !== undefined) return usable(named);
+      if (byName.size > 0) {
+        const values = [...byName.values()];
+        if (values.length === n) return usable(values[k]);
+        if (values.every((v) => v === values[0])) return usable(values[0]);
+        return '';
+      }
+      if (plain.length === n) return usable(plain[k]);
+      if (plain.length === 1) return usable(plain[0]);
+      return '';
+    };
   }
   return out;
 }

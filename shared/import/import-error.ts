@@ -9,11 +9,19 @@ export class ImportError extends Error {
   readonly line: number | null;
   /** The bare reason, without the "line N: " prefix, for interfaces that show the line apart. */
   readonly reason: string;
+  /** 'time-repeats': the time column repeats a time (maybe printed too coarsely: the caller may re-plan). */
+  readonly code: 'time-repeats' | null;
 
-  constructor(reason: string, line: number | null = null) {
+  constructor(reason: string, line: number | null = null, code: 'time-repeats' | null = null) {
     super(line === null ? reason : `line ${formatLineNumber(line)}: ${reason}`);
     this.name = 'ImportError';
     this.line = line;
     this.reason = reason;
+    this.code = code;
   }
+}
+
+/** True for the error of a time column that repeats a time, which a re-plan with `coarseTime` may read. */
+export function isRepeatedTime(error: unknown): error is ImportError {
+  return error instanceof ImportError && error.code === 'time-repeats';
 }

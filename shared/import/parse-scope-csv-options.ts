@@ -35,4 +35,7 @@ export interface ParseScopeCsvOptions {
   precision?: 'float64' | 'float32';
   /** Largest deviation from an even grid, as a fraction of dt, that still counts as evenly spaced. @default 0.01 */
   uniformTolerance?: number;
+  /** The time column is printed too coarsely (rows repeat times): rebuild the grid from the stated interval.
+   * @default detected (repeated times in the first rows, or a re-read after a repeated time further down) */
+  coarseTime?: boolean;
 }

@@ -3,7 +3,7 @@ import { assembleCapture } from './assemble-capture.ts';
 import { decodeCaptureBytes } from './decode-capture-bytes.ts';
 import { detectCapturePlan, type CapturePlan } from './detect-capture-plan.ts';
 import { fitTimeBase } from './fit-time-base.ts';
-import { ImportError } from './import-error.ts';
+import { ImportError, isRepeatedTime } from './import-error.ts';
 import type { ParseScopeCsvOptions } from './parse-scope-csv-options.ts';
 import { readSampleField } from './read-sample-field.ts';
 import { splitFields } from './split-fields.ts';
@@ -20,9 +20,15 @@ export function parseScopeCsv(bytes: Uint8Array, options: ParseScopeCsvOptions =
   if (!(bytes instanceof Uint8Array)) throw new TypeError('bytes must be a Uint8Array');
   const decoded = decodeCaptureBytes(bytes, { encoding: options.encoding });
   const lines = splitLines(decoded.text);
-  const plan = detectCapturePlan(lines, options);
   const lineEnding = decoded.text.includes('\r\n') ? 'CRLF' : decoded.text.includes('\n') ? 'LF' : decoded.text.includes('\r') ? 'CR' : 'none';
-  return readBodyLines(lines, plan, { encoding: decoded.encoding, bom: decoded.bom, lineEnding, reader: 'text' });
+  const source = { encoding: decoded.encoding, bom: decoded.bom, lineEnding, reader: 'text' };
+  try {
+    return readBodyLines(lines, detectCapturePlan(lines, options), source);
+  } catch (error) {
+    // Times printed too coarsely may only start to repeat past the rows the plan looked at: plan again for that.
+    if (!isRepeatedTime(error) || options.coarseTime === true) throw error;
+    return readBodyLines(lines, detectCapturePlan(lines, { ...options, coarseTime: true }), source);
+  }
 }
 
 function readBodyLines(lines: string[], plan: CapturePlan, source: Record<string, unknown>): ImportedCapture {
@@ -60,7 +66,7 @@ function readBodyLines(lines: string[], plan: CapturePlan, source: Record<string
       const ts = t * plan.timeFactor;
       if (n > 0 && !(ts > times[n - 1])) {
         const what = ts === times[n - 1] ? 'repeats the previous time' : 'is earlier than the previous time';
-        throw new ImportError(`the time ${fields[col].trim()} ${what} (times must increase)`, lineNo);
+        throw new ImportError(`the time ${fields[col].trim()} ${what} (times must increase)`, lineNo, ts === times[n - 1] ? 'time-repeats' : null);
       }
       times[n] = ts;
     }

@@ -9,12 +9,13 @@ export interface UnitLabel {
 
 /**
  * Splits a column label into name and unit for the suffix forms scope exports use: "Time (ms)", "CH1 [mV]",
- * "t/us". The unit is split off only when it is a known unit, so "Gate (north)" or "CH1/CH2" stay whole names.
+ * "t/us", "C1 in V", "in s" (a unit with no name). The unit is split off only when it is a known unit, so
+ * "Gate (north)", "CH1/CH2" or "Gate in front" stay whole names.
  */
 export function parseUnitLabel(label: string): UnitLabel {
   if (typeof label !== 'string') throw new TypeError('label must be a string');
   const text = label.trim();
-  const forms = [/^(.*?)\s*\(\s*([^()]*?)\s*\)$/, /^(.*?)\s*\[\s*([^[\]]*?)\s*\]$/, /^(.*?)\s*\/\s*([^/\s]+)$/];
+  const forms = [/^(.*?)\s*\(\s*([^()]*?)\s*\)$/, /^(.*?)\s*\[\s*([^[\]]*?)\s*\]$/, /^(.*?)\s*\/\s*([^/\s]+)$/, /^(.*?)\s*\bin\s+(\S+)$/];
   for (const form of forms) {
     const match = form.exec(text);
     if (match && unitToSi(match[2]) !== null) return { name: match[1].trim(), sourceUnit: match[2] };

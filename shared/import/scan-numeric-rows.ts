@@ -249,7 +249,7 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
       if (lastTime === lastTime) {
         if (!(rowTime > lastTime)) {
           const what = rowTime === lastTime ? 'repeats the previous time' : 'is earlier than the previous time';
-          return failAt(state, row, line, lastTime, nextIndex, lineStart, `the time ${rowTime} s ${what} (times must increase)`);
+          return failAt(state, row, line, lastTime, nextIndex, lineStart, `the time ${rowTime} s ${what} (times must increase)`, rowTime === lastTime ? 'time-repeats' : null);
         }
       }
       if (times !== null) times[row] = rowTime;
@@ -286,20 +286,20 @@ function readOddField(
   if (!read) return { end: fieldEnd, kind: ODD_SKIP, value: 0, text: '' };
   const text = latin1.decode(bytes.subarray(fieldStart, fieldEnd));
   if (extra) return { end: fieldEnd, kind: text.trim() === '' ? ODD_SKIP : ODD_EXTRA, value: 0, text };
+  // A line of only delimiters counts as blank, as in the text path; an empty field among numbers is a gap.
+  if (text.trim() === '' && restIsEmpty(bytes, lineStart, end, delimiter)) return { end: skipToEol(bytes, fieldStart, end), kind: ODD_BLANK, value: 0, text };
   const v = readSampleField(text, fieldOptions);
   if (v !== undefined) return { end: fieldEnd, kind: ODD_VALUE, value: v, text };
-  // A line of only delimiters counts as blank, as in the text path.
-  if (text.trim() === '' && restIsEmpty(bytes, lineStart, end, delimiter)) return { end: skipToEol(bytes, fieldStart, end), kind: ODD_BLANK, value: 0, text };
   return { end: fieldEnd, kind: ODD_TEXT, value: 0, text };
 }
 
 // Outside the scan loop on purpose: a closure over row/line would move them out of registers in V8.
-function failAt(state: ScanState, row: number, line: number, lastTime: number, nextIndex: number, lineStart: number, message: string): ScanStop {
+function failAt(state: ScanState, row: number, line: number, lastTime: number, nextIndex: number, lineStart: number, message: string, code: 'time-repeats' | null = null): ScanStop {
   state.row = row;
   state.line = line;
   state.lastTime = lastTime;
   state.nextIndex = nextIndex;
-  return { kind: 'error', offset: lineStart, error: new ImportError(message, line) };
+  return { kind: 'error', offset: lineStart, error: new ImportError(message, line, code) };
 }
 
 function skipEol(bytes: Uint8Array, p: number, end: number): number {

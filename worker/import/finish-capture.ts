@@ -61,10 +61,9 @@ export function isFooterText(plan: CapturePlan, text: string): boolean {
   for (const line of splitLines(text)) {
     if (line.trim() === '') continue;
     const fields = splitFields(line, plan.delimiter);
-    const allNumbers = plan.channels.every((c) => {
-      const v = readSampleField(fields[c.column] ?? '', plan.fieldOptions);
-      return v !== undefined;
-    });
+    // An empty field is a gap inside the data, but a line with no number in any channel is not a data row.
+    const allNumbers = plan.channels.every((c) => readSampleField(fields[c.column] ?? '', plan.fieldOptions) !== undefined)
+      && plan.channels.some((c) => (fields[c.column] ?? '').trim() !== '');
     if (allNumbers) return false;
   }
   return true;

@@ -5,7 +5,7 @@ import { Worker } from 'node:worker_threads';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { decodeCaptureBytes } from '../../shared/import/decode-capture-bytes.ts';
 import { detectCapturePlan } from '../../shared/import/detect-capture-plan.ts';
-import { ImportError } from '../../shared/import/import-error.ts';
+import { ImportError, isRepeatedTime } from '../../shared/import/import-error.ts';
 import { scanSpecFromPlan, type ScanOutput, type ScanState } from '../../shared/import/scan-numeric-rows.ts';
 import { splitLines } from '../../shared/import/split-lines.ts';
 import { TimeGridHull, type TimeGridHullData } from '../../shared/import/time-grid-hull.ts';
@@ -33,6 +33,16 @@ const BLOCK = 4 << 20;
  * with an actionable message (and the line) for a file it cannot read, including one that cannot be opened.
  */
 export async function readCaptureFile(path: string, options: ReadCaptureFileOptions = {}): Promise<ImportedCapture> {
+  try {
+    return await readCaptureFileOnce(path, options);
+  } catch (error) {
+    // Times printed too coarsely may only start to repeat past the head the plan saw: plan again for that.
+    if (!isRepeatedTime(error) || options.coarseTime === true) throw error;
+    return readCaptureFileOnce(path, { ...options, coarseTime: true });
+  }
+}
+
+async function readCaptureFileOnce(path: string, options: ReadCaptureFileOptions): Promise<ImportedCapture> {
   if (typeof path !== 'string' || path === '') throw new TypeError('path must be a non-empty string');
   const { parallelFromBytes = 64 << 20 } = options;
   let size: number;
@@ -166,7 +176,7 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
       out.times?.copyWithin(rows0, cap0, cap0 + rows1);
     }
     if (out.times !== null && rows0 > 0 && rows1 > 0 && !(out.times[rows0] > out.times[rows0 - 1])) {
-      throw new ImportError(`the time ${out.times[rows0]} s is not after the previous ${out.times[rows0 - 1]} s (times must increase)`, plan.dataStartLine + lines0);
+      throw new ImportError(`the time ${out.times[rows0]} s is not after the previous ${out.times[rows0 - 1]} s (times must increase)`, plan.dataStartLine + lines0, out.times[rows0] === out.times[rows0 - 1] ? 'time-repeats' : null);
     }
     if (reply.firstIndex !== null && rows0 > 0 && reply.firstIndex !== state.nextIndex) {
       throw new ImportError(`the sample index ${reply.firstIndex} does not follow ${state.nextIndex - 1} (indices must count up by one)`, plan.dataStartLine + lines0);

@@ -34,10 +34,10 @@ describe('combineCaptures', () => {
   });
 
   it('When the files differ in length, then it says how', () => {
-    const a = parseScopeCsv(new TextEncoder().encode('t,CH1\n0,1\n1,2\n2,3\n'));
-    const b = parseScopeCsv(new TextEncoder().encode('t,CH1\n0,1\n1,2\n'));
+    const a = parseScopeCsv(new TextEncoder().encode('t (s),CH1\n0,1\n1,2\n2,3\n'));
+    const b = parseScopeCsv(new TextEncoder().encode('t (s),CH1\n0,1\n1,2\n'));
     expect(() => combineCaptures([a, b])).toThrow('capture 2 has 2 samples but capture 1 has 3; files of one shot must share the time base');
-    const both = combineCaptures([a, parseScopeCsv(new TextEncoder().encode('t,CH1\n0,4\n1,5\n2,6\n'))]);
+    const both = combineCaptures([a, parseScopeCsv(new TextEncoder().encode('t (s),CH1\n0,4\n1,5\n2,6\n'))]);
     expect(both.channels.map((c) => c.name)).toEqual(['CH1', 'CH1 (capture 2)']);
   });
 });

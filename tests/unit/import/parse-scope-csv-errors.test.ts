@@ -58,7 +58,8 @@ describe('parseScopeCsv errors a person can act on', () => {
 
   it('When times go backwards or repeat, then it names the line', () => {
     expect(importError(`t,a\n0,1\n2e-6,2\n1e-6,3\n3e-6,4\n`).message).toBe('line 4: the time 1e-6 is earlier than the previous time (times must increase)');
-    expect(importError(`t,a\n0,1\n1e-6,2\n1e-6,3\n3e-6,4\n`).message).toBe('line 4: the time 1e-6 repeats the previous time (times must increase)');
+    // A repeated time is printed too coarsely when the times never go back; without an interval it is refused.
+    expect(importError(`t,a\n0,1\n1e-6,2\n1e-6,3\n3e-6,4\n`).message).toBe('line 4: the printed times are too coarse for the sample interval: this row repeats the time of the row before it, and the file states no sample interval to rebuild them from; give the sample interval (the "Fix how it is read" form on the shot page, or --dt for the command line)');
   });
 
   it('When a row is short or long, then it names the line and what it found', () => {
@@ -67,7 +68,7 @@ describe('parseScopeCsv errors a person can act on', () => {
   });
 
   it('When the time is a sentinel, then it refuses the row rather than inventing a time', () => {
-    expect(importError(`t,a\n0,1\n1,2\nNaN,3\n3,4\n`).message).toBe("line 4: the time is 'NaN', not a number; every row needs a valid time");
+    expect(importError(`t (s),a\n0,1\n1,2\nNaN,3\n3,4\n`).message).toBe("line 4: the time is 'NaN', not a number; every row needs a valid time");
   });
 
   it('When there is no time column and no sample interval, then it asks for dt', () => {
@@ -90,7 +91,7 @@ describe('parseScopeCsv errors a person can act on', () => {
   it('When options contradict the file, then they throw TypeError/RangeError with exact messages', () => {
     expect(() => parseScopeCsv('x' as unknown as Uint8Array)).toThrow(new TypeError('bytes must be a Uint8Array'));
     expect(() => parseScopeCsv(bytes('t,a\n0,1\n1,2\n'), { precision: 'float16' as 'float32' })).toThrow(new RangeError("precision must be 'float64' or 'float32'"));
-    expect(() => parseScopeCsv(bytes('t,a\n0,1\n1,2\n'), { channelNames: ['A', 'B'] })).toThrow(new RangeError('channelNames has 2 names for 1 channels'));
-    expect(() => parseScopeCsv(bytes('t,a\n0,1\n1,2\n'), { timeColumn: 5 })).toThrow(new RangeError('timeColumn 5 is not a column of numbers (numeric columns: 0, 1)'));
+    expect(() => parseScopeCsv(bytes('t (s),a\n0,1\n1,2\n'), { channelNames: ['A', 'B'] })).toThrow(new RangeError('channelNames has 2 names for 1 channels'));
+    expect(() => parseScopeCsv(bytes('t (s),a\n0,1\n1,2\n'), { timeColumn: 5 })).toThrow(new RangeError('timeColumn 5 is not a column of numbers (numeric columns: 0, 1)'));
   });
 });

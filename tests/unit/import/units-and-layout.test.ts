@@ -94,7 +94,7 @@ describe('detection and its overrides', () => {
   });
 
   it('When the plan is asked of a head only, then no end of data is claimed', () => {
-    expect(detectCapturePlan(['t,a', '0,1', '1,2', '2,'], { partial: true }).dataEndLine).toBeNull();
+    expect(detectCapturePlan(['t (s),a', '0,1', '1,2', '2,'], { partial: true }).dataEndLine).toBeNull();
   });
 });
 

@@ -56,7 +56,7 @@ describe('readCaptureStream stops early on junk', () => {
 
   it('When a data line grows past the line limit, then it stops with the line number', async () => {
     const { source, counter } = generated(function* () {
-      yield encoder.encode('t,a\n0,1\n1,2\n2,3\n3,');
+      yield encoder.encode('t (s),a\n0,1\n1,2\n2,3\n3,');
       const digits = new Uint8Array(64 << 10).fill(0x35);
       for (let sent = 0; sent < GIB; sent += digits.length) yield digits;
     });
