@@ -104,14 +104,16 @@ function rebuildTimeBase(printed: Float64Array, length: number, time: TimeBase, 
   if (time.kind !== 'uniform') throw new Error('a rebuilt time base starts from the stated interval');
   const { dt } = time;
   let sum = 0;
-  let resolution = Infinity;
+  // The coarsest print step: the largest jump between consecutive printed times (their resolution varies with
+  // the magnitude printed, finest near zero).
+  let coarsest = 0;
   for (let i = 0; i < length; i++) {
     if (Number.isNaN(printed[i])) throw new ImportError(`the time at sample ${(i + 1).toLocaleString('en')} is not a number; every row needs a valid time`);
     sum += printed[i] - i * dt;
     if (i > 0) {
       const d = printed[i] - printed[i - 1];
       if (d < 0) throw new ImportError(`the printed time at sample ${(i + 1).toLocaleString('en')} is earlier than the one before it (times must not go back)`);
-      if (d > 0 && d < resolution) resolution = d;
+      if (d > coarsest) coarsest = d;
     }
   }
   const t0 = sum / length;
@@ -121,9 +123,9 @@ function rebuildTimeBase(printed: Float64Array, length: number, time: TimeBase, 
     const d = Math.abs(printed[i] - (t0 + i * dt));
     if (d > worst) { worst = d; at = i; }
   }
-  // Printed times are rounded to their resolution: each lies within one resolution step (plus one interval for
-  // where the rounding boundary falls) of the true grid.
-  const allowed = (Number.isFinite(resolution) ? resolution : 0) + dt;
+  // Printed times are rounded to their resolution: each lies within one print step (plus one interval for where
+  // the rounding boundary falls) of the true grid. A wrong interval drifts away linearly and is caught.
+  const allowed = coarsest + dt;
   if (worst > allowed) {
     throw new ImportError(`the printed times of column ${column + 1} do not follow the stated sample interval ${dt} s: at sample ${(at + 1).toLocaleString('en')} the file says ${printed[at]} s, the interval gives ${t0 + at * dt} s; check the interval (the "Fix how it is read" form, or --dt)`);
   }

@@ -227,7 +227,10 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   const isNamesRow = (i: number, aboveUnits: boolean): boolean => {
     if (i < 0 || isBlank(i)) return false;
     const nonEmpty = rows[i].filter((f) => f.trim() !== '').length;
-    if (nonEmpty === 1 && DATA_MARKER.test(rows[i].find((f) => f.trim() !== '')?.trim() ?? '')) return false;
+    const firstText = rows[i].find((f) => f.trim() !== '')?.trim() ?? '';
+    if (nonEmpty === 1 && DATA_MARKER.test(firstText)) return false;
+    // "#Points=4000", "Record length: 4000": a metadata line, not names.
+    if (/^[#%]/.test(firstText) || (nonEmpty === 1 && /[=:]\s*[-+]?[\d.]/.test(firstText))) return false;
     const numeric = dataColumns.filter((col) => cells[i][col] === 'num');
     if (numeric.length > 0) {
       // Numbers in a names row are channel ids ("1", "2") beside a text label, and only above a units row.
@@ -368,10 +371,10 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     return values;
   };
   /** The unit factor among s, ms, µs, ns, ps that makes `step` the stated interval, or null. */
-  const factorMatching = (step: number): { factor: number; unit: string } | null => {
+  const factorMatching = (step: number, tolerance: number): { factor: number; unit: string } | null => {
     if (dtGiven === null) return null;
     for (const [unit, factor] of [['s', 1], ['ms', 1e-3], ['us', 1e-6], ['ns', 1e-9], ['ps', 1e-12]] as const) {
-      if (Math.abs(step * factor - dtGiven) <= 0.01 * dtGiven) return { factor, unit };
+      if (Math.abs(step * factor - dtGiven) <= tolerance * dtGiven) return { factor, unit };
     }
     return null;
   };
@@ -436,7 +439,8 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       }
       const stated = timeUnit || meta.timeUnit;
       const statedFactor = stated === '' ? null : (unitToSi(stated) ?? timeUnitToSi(stated))?.factor ?? null;
-      const match = coarse ? null : factorMatching(step);
+      // Coarsely printed times still step by the interval on average over the rows looked at, within a few %.
+      const match = factorMatching(step, coarse ? 0.05 : 0.01);
       if (timeUnit !== '') {
         if (dtGiven !== null && !coarse && statedFactor !== null && Math.abs(step * statedFactor - dtGiven) > 0.01 * dtGiven) {
           warnings.push(`the time column's step (${fmt(step * statedFactor)} s) differs from the sample interval ${fmt(dtGiven)} s stated by ${dtFrom}; the time column was used`);
@@ -487,7 +491,9 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     }
     if (timeSourceUnit === '') {
       timeAssumed = true;
-      warnings.push('the time column gives no unit and the file states no sample interval to check it against; seconds assumed');
+      warnings.push(coarse
+        ? 'the printed times give no unit; seconds assumed for the start time'
+        : 'the time column gives no unit and the file states no sample interval to check it against; seconds assumed');
     }
     timeFactor = si.factor;
     const label = names[timeColumn] ? ` ("${names[timeColumn]}")` : '';
@@ -614,7 +620,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       warnings.push(`column ${col + 1} is empty and was ignored`);
     }
   }
-  if (sideRows.length > 0) warnings.push(`metadata beside the data in column${sideColumns.size > 1 ? 's' : ''} ${[...sideColumns].map((c) => c + 1).join(', ')} was read and those columns ignored`);
+  if (sideRows.length > 0) warnings.push(`metadata beside the data in column${sideColumns.size > 1 ? 's' : ''} ${[...sideColumns].sort((a, b) => a - b).map((c) => c + 1).join(', ')} was read and those columns ignored`);
   if (footer.length > 0) warnings.push(`${footer.length} footer line${footer.length > 1 ? 's' : ''} after the data ${footer.length > 1 ? 'were' : 'was'} read as metadata`);
 
   return {

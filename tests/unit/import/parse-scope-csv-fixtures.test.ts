@@ -12,6 +12,8 @@ describe('parseScopeCsv on every fixture layout', () => {
     it(`When ${name} (${truth.layout}) is parsed, then its numbers match the generator's`, () => {
       const capture = parseScopeCsv(readCapture(name));
       checkAgainstTruth(capture, truth);
+      if (truth.timeOrigin) expect({ how: capture.timeOrigin?.how, assumed: capture.timeOrigin?.assumed }).toEqual(truth.timeOrigin);
+      expect(capture.valueKind).toBe(truth.valueKind ?? 'physical');
       for (const [key, value] of Object.entries(truth.expect)) {
         if (key === 'emptyColumn') expect(capture.warnings).toContain(`column ${value} is empty and was ignored`);
         else if (key === 'sideMetadata') expect((capture.layout.columns as string[]).slice(0, 2)).toEqual(['side-metadata', 'side-metadata']);
