@@ -1,6 +1,6 @@
 import type { TimeBaseOrigin } from '../contracts/capture.ts';
 import { ImportError } from './import-error.ts';
-import { parseQuantity, stripValuePrefix, timeUnitToSi } from './parse-quantity.ts';
+import { parseQuantity, timeUnitToSi } from './parse-quantity.ts';
 import { parseUnitLabel } from './parse-unit-label.ts';
 import type { ParseScopeCsvOptions } from './parse-scope-csv-options.ts';
 import { readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
@@ -468,7 +468,13 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       for (const col of dataColumns) {
         if (col === timeColumn) continue;
         const other = blockValues(col, 400);
-        if (reference !== null && other !== null && other.length === reference.length && other.every((v, k) => v === reference[k])) checkColumns.push(col);
+        if (reference === null || other === null || other.length < 20 || other.length !== reference.length) continue;
+        // Strictly increasing from the same first time (or by the same step): no signal does that for hundreds of
+        // samples, a time column always does. Whether it stays equal to the first is checked on every row.
+        const increasing = other.every((v, k) => k === 0 || v > other[k - 1]);
+        const last = other.length - 1;
+        const sameStep = Math.abs((other[last] - other[0]) - (reference[last] - reference[0])) <= 0.01 * Math.abs(reference[last] - reference[0]);
+        if (increasing && (other[0] === reference[0] || sameStep)) checkColumns.push(col);
       }
     }
   }
@@ -777,7 +783,8 @@ function readTimeMetadata(metadata: Record<string, string>, where: Record<string
     const label = parseUnitLabel(key);
     const norm = normalise(label.name);
     if (KEYS.timeUnit.test(norm) && out.timeUnit === '') {
-      const u = stripValuePrefix(list(value)[0] ?? '').replace(/^[([]|[)\]]$/g, '');
+      const raw = list(value)[0] ?? '';
+      const u = (/^[A-Za-z][A-Za-z0-9 _]{0,15}?\s*:\s*(.+)$/.exec(raw)?.[1] ?? raw).trim().replace(/^[([]|[)\]]$/g, '');
       if (u !== '' && (unitToSi(u)?.si === 's' || timeUnitToSi(u) !== null)) {
         out.timeUnit = u;
         out.timeUnitKey = key;
@@ -788,7 +795,9 @@ function readTimeMetadata(metadata: Record<string, string>, where: Record<string
     const label = parseUnitLabel(key);
     const norm = normalise(label.name);
     const first = list(value)[0] ?? '';
-    const timeDefault = label.sourceUnit || timeUnit || out.timeUnit;
+    // A value without a unit is in seconds (the SI convention of exports), or in the unit its key or the user
+    // names; never in the horizontal display unit, which describes the time column and may disagree with it.
+    const timeDefault = label.sourceUnit || timeUnit;
     if (DATA_MARKER.test(norm)) out.dataMarker = true;
     if (KEYS.perDivision.test(norm) || /\/\s*div\b/i.test(value)) out.perDivision = true;
     if (KEYS.dt.test(norm) && out.dt === null) {

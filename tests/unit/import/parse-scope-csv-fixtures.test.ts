@@ -18,6 +18,7 @@ describe('parseScopeCsv on every fixture layout', () => {
         if (key === 'emptyColumn') expect(capture.warnings).toContain(`column ${value} is empty and was ignored`);
         else if (key === 'sideMetadata') expect((capture.layout.columns as string[]).slice(0, 2)).toEqual(['side-metadata', 'side-metadata']);
         else if (key === 'uniform') expect(capture.time.kind).toBe(value ? 'uniform' : 'explicit');
+        else if (key === 'warning') expect(capture.warnings.some((w) => w.startsWith(value as string)), `a warning starting "${value}" in ${JSON.stringify(capture.warnings)}`).toBe(true);
         else expect(capture.layout[key]).toEqual(value);
       }
     });
