@@ -87,13 +87,15 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     gateSpecs = capture.channels.map((ch, i) => ({ channel: ch.name, position: i * spacing }));
   }
   const channelNames = capture.channels.map((ch) => ch.name);
-  for (const g of gateSpecs) {
-    if (!channelNames.includes(g.channel)) {
-      throw new RangeError(
-        `the gate at ${g.position} m names channel "${g.channel}", which the capture does not have (it has ${channelNames.join(', ')})`,
-      );
-    }
-  }
+  // Channel names match as written, else without regard to case ("CH1" finds "ch1"), as people type them.
+  gateSpecs = gateSpecs.map((g) => {
+    if (channelNames.includes(g.channel)) return g;
+    const folded = channelNames.filter((name) => name.toLowerCase() === g.channel.toLowerCase());
+    if (folded.length === 1) return { ...g, channel: folded[0] };
+    throw new RangeError(
+      `the gate at ${g.position} m names channel "${g.channel}", which the capture does not have (it has ${channelNames.join(', ')})`,
+    );
+  });
   const isGate = capture.channels.map((ch) => gateSpecs.some((g) => g.channel === ch.name));
 
   // 1. Levels, noise and polarity of every channel (on the smoothed copy when smoothing is asked for).

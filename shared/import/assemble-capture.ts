@@ -71,6 +71,9 @@ export function assembleCapture(plan: CapturePlan, body: CaptureBody, source: Re
       indexColumn: plan.indexColumn,
       timeSource: plan.timeSource,
       precision: plan.precision,
+      // Stored with the capture's layout, so the shot page and the analysis can say how the time base was found.
+      timeOrigin,
+      valueKind: plan.valueKind,
       ...body.layout,
     },
     warnings,

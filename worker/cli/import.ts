@@ -1,6 +1,6 @@
 /**
  * Checks scope CSV files from the shell with the same importer the worker uses:
- *   npm run --silent import -- FILE... [--json] [--combine]
+ *   npm run --silent import -- FILE... [--json] [--combine] [--dt SECONDS]
  * prints what was detected (layout, channels, units, samples, time base, warnings). A file that cannot be read
  * gives one line on stderr ("import: FILE: line 2,041: expected 3 numbers, found 'ERR'") and exit code 2.
  */
@@ -10,7 +10,7 @@ import { combineCaptures } from '../../shared/import/combine-captures.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { readCaptureFile } from '../import/read-capture-file.ts';
 
-const USAGE = 'usage: npm run --silent import -- FILE... [--json] [--combine]';
+const USAGE = 'usage: npm run --silent import -- FILE... [--json] [--combine] [--dt SECONDS (the sample interval, for a file that states none)]';
 
 /** 2e-7 → "200 ns": times as a person reads them off a scope. */
 function formatSeconds(s: number): string {
@@ -31,7 +31,8 @@ function summary(path: string, c: ImportedCapture): string {
     `  layout     delimiter ${JSON.stringify(l.delimiter)}${l.decimalComma ? ', decimal comma' : ''}, ${l.headerRows} header row(s), data from line ${l.dataStartLine}, ${l.preambleLines} preamble line(s), ${l.footerLines} footer line(s)`,
     `  encoding   ${l.encoding}${l.bom ? ' with BOM' : ''}, ${l.lineEnding} line ends, read by ${l.reader}`,
     `  columns    ${columns}`,
-    `  time       ${l.timeSource}${l.timeSourceUnit ? ` (written in ${l.timeSourceUnit})` : ''}`,
+    `  time       ${c.timeOrigin ? `${c.timeOrigin.how === 'rebuilt' ? 'REBUILT from the stated interval: ' : c.timeOrigin.how === 'given' ? 'interval given: ' : ''}${c.timeOrigin.source}${c.timeOrigin.assumed ? ' (ASSUMED: check it)' : ''}` : l.timeSource}`,
+    ...(c.valueKind === 'codes' ? ['  values     raw converter codes, not volts'] : []),
     `  channels   ${c.channels.map((ch) => `${ch.name} [${ch.unit || 'no unit'}${ch.sourceUnit && ch.sourceUnit !== ch.unit ? ` from ${ch.sourceUnit}` : ''}]${ch.invalidCount ? ` ${ch.invalidCount} invalid` : ''}`).join(', ')}`,
     `  samples    ${c.length}`,
     `  time base  ${time}`,
@@ -56,6 +57,8 @@ function asJson(path: string, c: ImportedCapture): unknown {
       }
       return { name: ch.name, unit: ch.unit, sourceUnit: ch.sourceUnit, invalidCount: ch.invalidCount, min, max };
     }),
+    timeOrigin: c.timeOrigin ?? null,
+    valueKind: c.valueKind ?? 'physical',
     layout: c.layout,
     metadata: c.metadata,
     warnings: c.warnings,
@@ -65,17 +68,25 @@ function asJson(path: string, c: ImportedCapture): unknown {
 async function main(argv: string[]): Promise<number> {
   const json = argv.includes('--json');
   const combine = argv.includes('--combine');
-  const unknown = argv.filter((a) => a.startsWith('--') && a !== '--json' && a !== '--combine');
-  const files = argv.filter((a) => !a.startsWith('--'));
+  const dtAt = argv.indexOf('--dt');
+  const dtText = dtAt >= 0 ? argv[dtAt + 1] : undefined;
+  const rest = dtAt >= 0 ? argv.filter((_, i) => i !== dtAt && i !== dtAt + 1) : argv;
+  const unknown = rest.filter((a) => a.startsWith('--') && a !== '--json' && a !== '--combine');
+  const files = rest.filter((a) => !a.startsWith('--'));
   if (unknown.length > 0 || files.length === 0) {
     process.stderr.write(`import: ${unknown.length > 0 ? `unknown option ${unknown[0]}; ` : ''}${USAGE}\n`);
+    return 2;
+  }
+  const dt = dtText === undefined ? undefined : Number(dtText);
+  if (dtAt >= 0 && !(dt !== undefined && dt > 0 && Number.isFinite(dt))) {
+    process.stderr.write(`import: --dt needs a positive number of seconds (e.g. --dt 2e-7), not ${JSON.stringify(dtText ?? '')}\n`);
     return 2;
   }
   let failed = false;
   const read: [string, ImportedCapture][] = [];
   for (const file of files) {
     try {
-      read.push([file, await readCaptureFile(file)]);
+      read.push([file, await readCaptureFile(file, dt === undefined ? {} : { dt })]);
     } catch (error) {
       failed = true;
       const message = error instanceof ImportError ? error.message : `unexpected failure: ${(error as Error).message}`;

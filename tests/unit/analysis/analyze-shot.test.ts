@@ -308,6 +308,14 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(JSON.parse(JSON.stringify(analysis))).toEqual(analysis);
   });
 
+  it('When a gate map names channels in another case ("ch1" for "CH1"), then they are found and the speed is the same', () => {
+    const capture = simulatedShotToCapture(simulateShot());
+    const exact = analyzeShot(capture, { gates: [{ channel: 'CH1', position: 0 }, { channel: 'CH2', position: 0.1 }], monteCarloDraws: 0 });
+    const folded = analyzeShot(capture, { gates: [{ channel: 'ch1', position: 0 }, { channel: 'Ch2', position: 0.1 }], monteCarloDraws: 0 });
+    expect(folded.speed?.value).toBe(exact.speed?.value);
+    expect(folded.gates.map((g) => g.channel)).toEqual(['CH1', 'CH2']);
+  });
+
   it('rejects bad gate maps and options with messages a person can act on', () => {
     const capture = simulatedShotToCapture(simulateShot());
     expect(() => analyzeShot(capture, { gates: [{ channel: 'CH9', position: 0.3 }] })).toThrow(

@@ -1,4 +1,5 @@
 import { useState, type FormEvent } from 'react';
+import type { TimeBaseOrigin } from '../../../../shared/contracts/capture.ts';
 import { importOverridesSchema, type ImportOverrides } from '../../../../shared/contracts/shots.ts';
 import { Badge, Button, ErrorNote, SelectField, TextField } from '../../../components/ui/primitives.tsx';
 import { formatSeconds } from '../../../lib/format.ts';
@@ -25,6 +26,7 @@ function FixReading({ shotId, capture, onDone }: { shotId: string; capture: Capt
   const [delimiter, setDelimiter] = useState<string>(o.delimiter ?? '');
   const [decimalComma, setDecimalComma] = useState<string>(o.decimalComma == null ? '' : String(o.decimalComma));
   const [dataStart, setDataStart] = useState(o.dataStartLine ? String(o.dataStartLine) : '');
+  const [headerRows, setHeaderRows] = useState(o.headerRows == null ? '' : String(o.headerRows));
   const [dtUs, setDtUs] = useState(o.dt ? String(o.dt * 1e6) : '');
   const [t0Us, setT0Us] = useState(o.t0 != null ? String(o.t0 * 1e6) : '');
   const [problem, setProblem] = useState<string>();
@@ -41,6 +43,7 @@ function FixReading({ shotId, capture, onDone }: { shotId: string; capture: Capt
     if (delimiter) candidate.delimiter = delimiter;
     if (decimalComma) candidate.decimalComma = decimalComma === 'true';
     if (dataStart) candidate.dataStartLine = Number(dataStart);
+    if (headerRows) candidate.headerRows = Number(headerRows);
     // The form takes µs (what people read off a scope); the importer takes seconds.
     if (dtUs) candidate.dt = Number(dtUs) * 1e-6;
     if (t0Us) candidate.t0 = Number(t0Us) * 1e-6;
@@ -68,7 +71,10 @@ function FixReading({ shotId, capture, onDone }: { shotId: string; capture: Capt
         <option value="">detect</option><option value="true">yes (1,5)</option><option value="false">no (1.5)</option>
       </SelectField>
       <TextField label="First data line" value={dataStart} onChange={(e) => setDataStart(e.target.value)} inputMode="numeric" />
-      <TextField label="Sample interval (µs)" value={dtUs} onChange={(e) => setDtUs(e.target.value)} hint="Only for files without a time column" />
+      <SelectField label="Header rows above the data" value={headerRows} onChange={(e) => setHeaderRows(e.target.value)}>
+        <option value="">detect</option><option value="0">none</option><option value="1">1 (names)</option><option value="2">2 (names, then units)</option>
+      </SelectField>
+      <TextField label="Sample interval (µs)" value={dtUs} onChange={(e) => setDtUs(e.target.value)} hint="For files that state none, or whose printed times are too coarse" />
       <TextField label="First sample time (µs)" value={t0Us} onChange={(e) => setT0Us(e.target.value)} hint="Negative = before the trigger" />
       {(problem || reingest.isError) && <div className="sm:col-span-3"><ErrorNote error={reingest.error ?? new Error(problem)} /></div>}
       <div className="flex gap-2 sm:col-span-3">
@@ -76,6 +82,45 @@ function FixReading({ shotId, capture, onDone }: { shotId: string; capture: Capt
         <Button variant="ghost" onClick={onDone}>Cancel</Button>
       </div>
     </form>
+  );
+}
+
+const DELIMITER: Record<string, string> = { ',': 'comma', ';': 'semicolon', tab: 'tab', whitespace: 'spaces' };
+const ORIGIN: Record<TimeBaseOrigin['how'], string> = {
+  'time-column': 'read from the time column',
+  metadata: 'stated by the file',
+  rebuilt: 'rebuilt from the stated interval',
+  given: 'given by you',
+};
+
+/** How the importer read a file, in the lab's words: what a person checks before trusting the time base. */
+function HowItWasRead({ capture }: { capture: CaptureInfo }) {
+  const layout = capture.layout ?? {};
+  const origin = layout.timeOrigin as TimeBaseOrigin | undefined;
+  const files = capture.channels;
+  const headerRows = Number(layout.headerRows ?? 0);
+  const rows: [string, string][] = [
+    ['Separator', `${DELIMITER[String(layout.delimiter)] ?? String(layout.delimiter)}${layout.decimalComma ? ', decimal comma' : ''}`],
+    ['Above the data', `${Number(layout.preambleLines ?? 0)} preamble line${Number(layout.preambleLines) === 1 ? '' : 's'}, ${headerRows === 0 ? 'no header row' : headerRows === 1 ? 'one header row (names)' : 'two header rows (names, then units)'}; data from line ${Number(layout.dataStartLine ?? 1).toLocaleString('en')}`],
+  ];
+  if (origin) rows.push(['Time base', `${ORIGIN[origin.how]}: ${origin.source}`]);
+  if (files?.time.kind === 'uniform') rows.push(['Sample interval', `${formatSeconds(files.time.dt)}, first sample at ${formatSeconds(files.time.t0)}`]);
+  if (files) rows.push(['Channels', files.channels.map((ch) => `${ch.name} (${ch.sourceUnit && ch.sourceUnit !== ch.unit ? `${ch.sourceUnit} → ${ch.unit}` : ch.unit || 'no unit'})`).join(', ')]);
+  if (layout.valueKind === 'codes') rows.push(['Values', 'raw converter codes, not volts (the file gives only a scale per division)']);
+  return (
+    <details className="mt-2 text-sm" data-testid="how-it-was-read">
+      <summary className={`cursor-pointer ${origin?.assumed || origin?.how === 'rebuilt' ? 'font-medium text-signal-800' : 'text-harbour-700'}`}>
+        How it was read{origin?.assumed ? ' — time unit assumed, check it' : origin?.how === 'rebuilt' ? ' — time base rebuilt, check it' : ''}
+      </summary>
+      <dl className="mt-2 grid gap-x-4 gap-y-1 sm:grid-cols-[10rem_1fr]">
+        {rows.map(([k, v]) => (
+          <div key={k} className="contents">
+            <dt className="text-harbour-500">{k}</dt>
+            <dd className="text-harbour-800">{v}</dd>
+          </div>
+        ))}
+      </dl>
+    </details>
   );
 }
 
@@ -115,6 +160,7 @@ export function CaptureList({ shotId, captures, canEdit }: { shotId: string; cap
                 {files.time.kind === 'uniform' ? `every ${formatSeconds(files.time.dt)} from ${formatSeconds(files.time.t0)}` : 'uneven sample times'}
               </p>
             )}
+            {c.state === 'ready' && c.layout && <HowItWasRead capture={c} />}
             {c.warnings.length > 0 && (
               <ul className="mt-1 list-disc pl-5 text-sm text-signal-800">{c.warnings.map((w, i) => <li key={i}>{w}</li>)}</ul>
             )}
