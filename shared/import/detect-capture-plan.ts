@@ -388,7 +388,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     }
     if (timeColumn !== null) {
       timeUnit = units[timeColumn] || options.timeUnit || meta.timeUnit || '';
-      timeUnitFrom = units[timeColumn] ? 'the header' : options.timeUnit ? 'your setting' : meta.timeUnit ? `\`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]})` : '';
+      timeUnitFrom = units[timeColumn] ? 'as the header says' : options.timeUnit ? 'as you set it' : meta.timeUnit ? `as \`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]}) says` : '';
     }
   } else if (dataColumns.length >= 2) {
     const first = dataColumns[0];
@@ -417,7 +417,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       timeColumn = first;
       if (declared !== '') {
         timeUnit = declared;
-        timeUnitFrom = 'the header';
+        timeUnitFrom = 'as the header says';
       }
     } else if (role === 'time' && values !== null) {
       if (n >= 4 && isEnvelope(values)) {
@@ -432,10 +432,10 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       if (declared !== '') {
         // A unit the header states wins; one that is not a time (a spectrum's Hz) is refused below.
         timeUnit = declared;
-        timeUnitFrom = 'the header';
+        timeUnitFrom = 'as the header says';
       } else if (options.timeUnit !== undefined) {
         timeUnit = options.timeUnit;
-        timeUnitFrom = 'your setting';
+        timeUnitFrom = 'as you set it';
       }
       const stated = timeUnit || meta.timeUnit;
       const statedFactor = stated === '' ? null : (unitToSi(stated) ?? timeUnitToSi(stated))?.factor ?? null;
@@ -447,10 +447,10 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
         }
       } else if (meta.timeUnit !== '' && (dtGiven === null || coarse || (statedFactor !== null && Math.abs(step * statedFactor - dtGiven) <= 0.01 * dtGiven))) {
         timeUnit = meta.timeUnit;
-        timeUnitFrom = `\`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]})`;
+        timeUnitFrom = `as \`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]}) says`;
       } else if (match !== null) {
         timeUnit = match.unit;
-        timeUnitFrom = `the stated sample interval (${dtFrom}), which the column's step matches in ${match.unit === 'us' ? 'µs' : match.unit}`;
+        timeUnitFrom = `the unit in which its step matches the interval stated by ${dtFrom}`;
         if (meta.timeUnit !== '') warnings.push(`the horizontal unit \`${meta.timeUnit}\` (${where[meta.timeUnitKey]}) disagrees with the time column, whose step matches the stated sample interval ${fmt(dtGiven as number)} s only in ${match.unit === 'us' ? 'µs' : match.unit}; ${match.unit === 'us' ? 'µs' : match.unit} used`);
       } else if (dtGiven !== null && !coarse && headerRows === 0) {
         // Without a header, a column that does not step by the stated interval is not a time column: every column
@@ -458,7 +458,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
         role = 'channel';
       } else if (meta.timeUnit !== '') {
         timeUnit = meta.timeUnit;
-        timeUnitFrom = `\`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]})`;
+        timeUnitFrom = `as \`${meta.timeUnitKey}\` (${where[meta.timeUnitKey]}) says`;
       }
       if (role === 'time') timeColumn = first;
     }
@@ -503,7 +503,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     }
     timeFactor = si.factor;
     const label = names[timeColumn] ? ` ("${names[timeColumn]}")` : '';
-    const unitText = timeSourceUnit === '' ? 'seconds assumed (no unit anywhere in the file)' : `in ${timeSourceUnit}, from ${timeUnitFrom}`;
+    const unitText = timeSourceUnit === '' ? 'seconds assumed (no unit anywhere in the file)' : `in ${timeSourceUnit === 'us' ? 'µs' : timeSourceUnit} (${timeUnitFrom})`;
     if (coarse) {
       if (dtGiven === null) {
         throw new ImportError(`the printed times are too coarse for the sample interval: this row repeats the time of the row before it, and the file states no sample interval to rebuild them from; give the sample interval (the "Fix how it is read" form on the shot page, or --dt for the command line)`, coarseLine);
@@ -516,7 +516,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       t0 = options.t0 ?? 0;
       timeColumn = null;
       timeSource = `dt from ${dtFrom}; the printed times of column ${rebuildFrom + 1} are too coarse and only anchor t0`;
-      timeOrigin = { how: 'rebuilt', source: `every ${fmt(dt)} s from ${dtFrom}; column ${rebuildFrom + 1}${label} printed too coarsely (${unitText}) and used only for the start time`, assumed: timeAssumed };
+      timeOrigin = { how: 'rebuilt', source: `every ${fmt(dt)} s from ${dtFrom}; column ${rebuildFrom + 1}${label} is printed too coarsely and only sets the start time (${unitText})`, assumed: timeAssumed };
       warnings.push(`the printed times of column ${rebuildFrom + 1} are too coarse for their offset (rows share the same time); the time base was rebuilt from the sample interval ${fmt(dt)} s stated by ${dtFrom}`);
     } else {
       timeMode = 'column';

@@ -107,7 +107,7 @@ describe('files that do not determine their time base are refused, never read wi
   it('When a time column has no unit but the file states an interval its step matches in ns, then ns are used and said', () => {
     const c = parseScopeCsv(bytes(`Sample interval,2e-9\nTime,CH1\n${body(40, -100, 2, (t) => String(t))}`));
     expect(dtOf(c)).toBeCloseTo(2e-9, 20);
-    expect(c.timeOrigin?.source).toContain('matches in ns');
+    expect(c.timeOrigin?.source).toContain('in ns (the unit in which its step matches the interval stated by `Sample interval` (line 1))');
     expect(c.timeOrigin?.assumed).toBe(false);
   });
 

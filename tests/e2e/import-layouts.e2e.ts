@@ -1,0 +1,90 @@
+// Real scope layouts on the shot page, in Chromium against the real API and worker: a file whose printed times are
+// too coarse is read with its grid rebuilt from the stated interval, and the page says how it was read; a file of
+// bare sample numbers is refused with a message that asks for the interval, and giving it in "Fix how it is read"
+// reads it. Fixtures: fixtures/generate.ts (layout families, our own files).
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
+import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+
+const FIXTURES = path.resolve(import.meta.dirname, '../../fixtures/captures');
+
+let harness: ApiHarness;
+let app: AppProcesses;
+let shotId: string;
+
+beforeAll(async () => {
+  harness = await createApiHarness();
+  const demo = await harness.resetDatabase();
+  const rig = await GateRig.findByPk(demo.hollowmere.gateRigIds[0], { rejectOnEmpty: true });
+  const ball = await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true });
+  const shot = await Shot.create({
+    labId: demo.labs.hollowmere.id, campaignId: demo.hollowmere.campaignIds[0], number: 102, firedAt: new Date(),
+    projectileId: ball.id, gateRigId: rig.id, tubePressurePa: 1800, ambientTemperatureK: 293.15,
+    ambientPressurePa: 100_900, createdBy: demo.users.experimenter.id,
+  });
+  shotId = shot.id;
+  app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
+}, 120_000);
+
+afterAll(async () => {
+  await app?.stop();
+  await harness?.close();
+});
+
+describe('how a file was read', () => {
+  it('When a coarse file and a file of sample numbers are dropped, then the first says its time base was rebuilt and the second is fixed by giving the interval', async () => {
+    const demo = harness.demo;
+    const browser = await launchBrowser();
+    try {
+      const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+      await page.goto(`${app.baseUrl}/sign-in`);
+      await page.getByLabel('E-mail').fill(demo.users.experimenter.email);
+      await page.getByLabel('Password').fill(demo.users.experimenter.password);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      await page.waitForURL('**/campaigns');
+      await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${shotId}`);
+      await page.getByText('Drop the scope’s CSV exports here').waitFor();
+      let numbers = 'Sample,Gate A\n';
+      for (let i = 0; i < 400; i++) numbers += `${i},${(Math.sin(i / 11) * 2).toFixed(4)}\n`;
+      const files = [
+        { name: 'family-03-coarse-printed-times.csv', text: readFileSync(path.join(FIXTURES, 'family-03-coarse-printed-times.csv'), 'latin1') },
+        { name: 'bench3-numbers.csv', text: numbers },
+      ];
+      await page.getByTestId('drop-zone').evaluate((zone, list) => {
+        const transfer = new DataTransfer();
+        for (const f of list) transfer.items.add(new File([f.text], f.name, { type: 'text/csv' }));
+        zone.dispatchEvent(new DragEvent('dragover', { bubbles: true, cancelable: true, dataTransfer: transfer }));
+        zone.dispatchEvent(new DragEvent('drop', { bubbles: true, cancelable: true, dataTransfer: transfer }));
+      }, files);
+      const list = page.getByTestId('capture-list');
+      await list.getByText('could not be read').waitFor({ timeout: 120_000 });
+      await list.getByText(/the first column counts samples/).first().waitFor();
+      await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(1);
+      const how = list.getByTestId('how-it-was-read').first();
+      await how.getByText('How it was read — time base rebuilt, check it').click();
+      await how.getByText(/rebuilt from the stated interval: every 2e-7 s from `Sample interval` \(line 3\)/).waitFor();
+      await saveScreenshot(page, 'import-how-read-1280');
+      await page.setViewportSize({ width: 820, height: 1100 });
+      await saveScreenshot(page, 'import-how-read-820');
+      await page.setViewportSize({ width: 1280, height: 900 });
+
+      // The refused file: give its interval in the form and read it again.
+      const refusedRow = list.locator('li', { hasText: 'bench3-numbers.csv' });
+      await refusedRow.getByRole('button', { name: 'Fix how it is read' }).click();
+      await refusedRow.getByLabel('Sample interval (µs)').fill('0.5');
+      await saveScreenshot(page, 'import-fix-interval');
+      await refusedRow.getByRole('button', { name: 'Read again with these settings' }).click();
+      await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(2);
+      const second = refusedRow.getByTestId('how-it-was-read');
+      await second.getByText('How it was read').click();
+      await second.getByText(/given by you: every 5e-7 s from the interval you gave/).waitFor();
+      await saveScreenshot(page, 'import-fixed');
+    } finally {
+      await browser.close();
+    }
+  }, 400_000);
+});
