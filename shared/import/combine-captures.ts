@@ -1,4 +1,4 @@
-import type { ChannelData, ImportedCapture } from '../contracts/capture.ts';
+import type { ChannelData, ImportedCapture, TimeBaseOrigin } from '../contracts/capture.ts';
 import { ImportError } from './import-error.ts';
 
 export interface CombineCapturesOptions {
@@ -67,6 +67,21 @@ export function combineCaptures(captures: ImportedCapture[], options: CombineCap
     metadata,
     layout: { combinedFrom: labels, parts: captures.map((c) => c.layout) },
     warnings: captures.flatMap((c, k) => c.warnings.map((w) => `${labels[k]}: ${w}`)),
+    timeOrigin: combinedOrigin(captures, labels),
+    valueKind: captures.some((c) => c.valueKind === 'codes') ? 'codes' : 'physical',
+  };
+}
+
+/** One file's rebuilt or assumed time base makes the combined one so: the weakest part decides. */
+function combinedOrigin(captures: ImportedCapture[], labels: string[]): TimeBaseOrigin | undefined {
+  const origins = captures.map((c) => c.timeOrigin);
+  if (origins.every((o) => o === undefined)) return undefined;
+  const known = origins.filter((o): o is TimeBaseOrigin => o !== undefined);
+  const how = known.find((o) => o.how === 'rebuilt')?.how ?? known.find((o) => o.how === 'given')?.how ?? known[0].how;
+  return {
+    how,
+    source: origins.map((o, k) => `${labels[k]}: ${o?.source ?? 'not recorded'}`).join('; '),
+    assumed: known.some((o) => o.assumed),
   };
 }
 

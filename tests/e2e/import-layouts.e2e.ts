@@ -40,7 +40,8 @@ describe('how a file was read', () => {
     const demo = harness.demo;
     const browser = await launchBrowser();
     try {
-      const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+      const page = await browser.newPage();
+      await page.setViewportSize({ width: 1280, height: 900 });
       await page.goto(`${app.baseUrl}/sign-in`);
       await page.getByLabel('E-mail').fill(demo.users.experimenter.email);
       await page.getByLabel('Password').fill(demo.users.experimenter.password);

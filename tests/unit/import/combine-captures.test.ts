@@ -41,3 +41,18 @@ describe('combineCaptures', () => {
     expect(both.channels.map((c) => c.name)).toEqual(['CH1', 'CH1 (capture 2)']);
   });
 });
+
+describe('combineCaptures and the time origin', () => {
+  it('When one of the files had its time base rebuilt, then the combined capture says rebuilt and names each file', () => {
+    const enc = (t: string) => new TextEncoder().encode(t);
+    let coarse = 'Sample interval,2e-7\nTIME,B\n';
+    let fine = 'Time (s),A (V)\n';
+    for (let i = 0; i < 60; i++) {
+      coarse += `${(5e-4 + i * 2e-7).toPrecision(3)},0.1\n`;
+      fine += `${(5e-4 + i * 2e-7).toExponential(8)},0.2\n`;
+    }
+    const both = combineCaptures([parseScopeCsv(enc(fine)), parseScopeCsv(enc(coarse))], { labels: ['a.csv', 'b.csv'] });
+    expect(both.timeOrigin?.how).toBe('rebuilt');
+    expect(both.timeOrigin?.source).toMatch(/^a\.csv: column 1 .*; b\.csv: every 2e-7 s/);
+  });
+});

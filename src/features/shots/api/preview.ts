@@ -46,7 +46,9 @@ export function usePreview(captures: CaptureInfo[], parameters: AnalysisOptionsI
       const time = files.time.kind === 'uniform'
         ? { kind: 'uniform' as const, t0: files.time.t0, dt: files.time.dt, jitter: files.time.jitter }
         : { kind: 'explicit' as const, t: sampleQueries[k++].data as unknown as Float64Array };
-      return { channels, time, length: files.length, metadata: {}, layout: {}, warnings: [] };
+      // How the time base was found travels with the samples, so the preview flags a rebuilt or assumed one too.
+      const origin = (c.layout?.timeOrigin ?? undefined) as ImportedCapture['timeOrigin'];
+      return { channels, time, length: files.length, metadata: {}, layout: {}, warnings: [], timeOrigin: origin, valueKind: c.layout?.valueKind === 'codes' ? 'codes' as const : 'physical' as const };
     });
     if (parts.length === 1) return Promise.resolve(parts[0]);
     return import('../../../../shared/import/combine-captures.ts').then((m) => m.combineCaptures(parts, { labels: ready.map((c) => c.fileName) }));
