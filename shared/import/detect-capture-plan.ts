@@ -95,14 +95,14 @@ const DATA_MARKER = /^(waveform ?data|data|samples|values|data ?points?|curve|wa
 // Keys of the time base as scope preambles write them (normalised: lower case, "_-." as spaces). A scale per
 // division ("time base", "horizontal scale", "s/div") is never an interval, so none of these match it.
 const KEYS = {
-  dt: /^(sample ?interval|sampling ?interval|sampling ?period|sample ?period|sample ?time|x ?increment|xinc(r)?|increment|time ?increment|time ?interval|time ?step|horizontal ?interval|horizontal ?increment|dt|delta ?t|time ?resolution|time ?per ?(point|sample)|interval|sample ?spacing|x ?spacing)$/,
+  dt: /^(sample ?interval|sampling ?interval|sampling ?period|sample ?period|sample ?time|x ?increment|xinc(r)?|increment|time ?increment|time ?interval|time ?step|horizontal ?interval|horizontal ?increment|dt|delta ?t|time ?resolution|time ?per ?(point|sample)|interval|sample ?spacing|x ?spacing|h ?resolution|horizontal ?resolution)$/,
   rate: /^(sample ?rate|sampling ?rate|sampling ?frequency|sample ?frequency|sa ?rate|fs)$/,
-  t0: /^(start ?time|start|t0|x ?origin|xorg|x ?start|x ?zero|xzero|first ?sample ?time|time ?of ?first ?sample|first ?point ?time|horizontal ?offset|trigger ?offset|time ?offset|start ?x)$/,
-  triggerIndex: /^(trigger ?position|trigger ?point|trigger ?index|trigger ?sample|pre ?trigger ?samples|pretrigger)$/,
-  length: /^(record ?length|points|number ?of ?points|number ?of ?samples|samples|sample ?count|n ?points|length|memory ?depth)$/,
-  names: /^(channel|channels|source|sources|channel ?names?|names?|labels?|traces?)$/,
-  units: /^(units?|vertical ?units?|y ?units?|yunit|channel ?units?|value ?units?|volt ?units?|amplitude ?units?)$/,
-  timeUnit: /^(horizontal ?units?|x ?units?|xunit|time ?units?|horiz ?units?)$/,
+  t0: /^(start ?time|start|t0|x ?origin|xorg|x ?start|x ?zero|xzero|first ?sample ?time|time ?of ?first ?sample|first ?point ?time|horizontal ?offset|h ?offset|trigger ?offset|time ?offset|start ?x)$/,
+  triggerIndex: /^(trigger ?position|trigger ?point|trigger ?index|trigger ?sample|trigger ?address|pre ?trigger ?samples|pretrigger)$/,
+  length: /^(record ?length|points|number ?of ?points|number ?of ?samples|samples|sample ?count|n ?points|length|memory ?depth|memory ?length|block ?size)$/,
+  names: /^(channel|channels|source|sources|channel ?names?|names?|labels?|traces?|trace ?names?)$/,
+  units: /^(units?|vertical ?units?|v ?units?|y ?units?|yunit|channel ?units?|value ?units?|volt ?units?|amplitude ?units?)$/,
+  timeUnit: /^(horizontal ?units?|h ?units?|x ?units?|xunit|time ?units?|horiz ?units?)$/,
   perDivision: /(volts? ?\/ ?div|v ?\/ ?div|vertical ?scale|volt ?scale|voltage ?per ?div(ision)?|volts ?per ?div(ision)?|vertical ?gain|v ?div)/,
 };
 
@@ -443,7 +443,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       const match = factorMatching(step, coarse ? 0.05 : 0.01);
       if (timeUnit !== '') {
         if (dtGiven !== null && !coarse && statedFactor !== null && Math.abs(step * statedFactor - dtGiven) > 0.01 * dtGiven) {
-          warnings.push(`the time column's step (${fmt(step * statedFactor)} s) differs from the sample interval ${fmt(dtGiven)} s stated by ${dtFrom}; the time column was used`);
+          warnings.push(`the time column's step (${fmt(step * statedFactor)}s) differs from the sample interval ${fmt(dtGiven)}s stated by ${dtFrom}; the time column was used`);
         }
       } else if (meta.timeUnit !== '' && (dtGiven === null || coarse || (statedFactor !== null && Math.abs(step * statedFactor - dtGiven) <= 0.01 * dtGiven))) {
         timeUnit = meta.timeUnit;
@@ -451,7 +451,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       } else if (match !== null) {
         timeUnit = match.unit;
         timeUnitFrom = `the unit in which its step matches the interval stated by ${dtFrom}`;
-        if (meta.timeUnit !== '') warnings.push(`the horizontal unit \`${meta.timeUnit}\` (${where[meta.timeUnitKey]}) disagrees with the time column, whose step matches the stated sample interval ${fmt(dtGiven as number)} s only in ${match.unit === 'us' ? 'µs' : match.unit}; ${match.unit === 'us' ? 'µs' : match.unit} used`);
+        if (meta.timeUnit !== '') warnings.push(`the horizontal unit \`${meta.timeUnit}\` (${where[meta.timeUnitKey]}) disagrees with the time column, whose step matches the stated sample interval ${fmt(dtGiven as number)}s only in ${match.unit === 'us' ? 'µs' : match.unit}; ${match.unit === 'us' ? 'µs' : match.unit} used`);
       } else if (dtGiven !== null && !coarse && headerRows === 0) {
         // Without a header, a column that does not step by the stated interval is not a time column: every column
         // is then a channel of samples on the stated interval.
@@ -516,8 +516,8 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       t0 = options.t0 ?? 0;
       timeColumn = null;
       timeSource = `dt from ${dtFrom}; the printed times of column ${rebuildFrom + 1} are too coarse and only anchor t0`;
-      timeOrigin = { how: 'rebuilt', source: `every ${fmt(dt)} s from ${dtFrom}; column ${rebuildFrom + 1}${label} is printed too coarsely and only sets the start time (${unitText})`, assumed: timeAssumed };
-      warnings.push(`the printed times of column ${rebuildFrom + 1} are too coarse for their offset (rows share the same time); the time base was rebuilt from the sample interval ${fmt(dt)} s stated by ${dtFrom}`);
+      timeOrigin = { how: 'rebuilt', source: `every ${fmt(dt)}s from ${dtFrom}; column ${rebuildFrom + 1}${label} is printed too coarsely and only sets the start time (${unitText})`, assumed: timeAssumed };
+      warnings.push(`the printed times of column ${rebuildFrom + 1} are too coarse for their offset (rows share the same time); the time base was rebuilt from the sample interval ${fmt(dt)}s stated by ${dtFrom}`);
     } else {
       timeMode = 'column';
       timeSource = 'time column';
@@ -558,7 +558,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     if (!Number.isFinite(t0)) throw new RangeError('t0 must be a finite number of seconds');
     timeOrigin = {
       how: options.dt !== undefined ? 'given' : 'metadata',
-      source: `every ${fmt(dt)} s from ${dtFrom}${indexColumn !== null ? ` (column ${indexColumn + 1} counts the samples)` : ''}; start: ${t0Words}`,
+      source: `every ${fmt(dt)}s from ${dtFrom}${indexColumn !== null ? ` (column ${indexColumn + 1} counts the samples)` : ''}; start: ${t0Words}`,
       assumed: false,
     };
   }
@@ -576,9 +576,14 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   let valueKind: 'physical' | 'codes' = 'physical';
   const channels = channelColumns.map((column, k): PlannedChannel => {
     const name = options.channelNames?.[k] ?? (names[column] || metaNames?.[k] || `CH${k + 1}`);
-    let sourceUnit = options.channelUnits?.[k] ?? (units[column] || meta.unitOf(name, k, channelColumns.length));
+    const stated = options.channelUnits?.[k] ?? units[column];
+    let sourceUnit = stated || meta.unitOf(name, k, channelColumns.length);
     let unit = '';
     let factor = 1;
+    // Whole numbers after a "Waveform Data" marker in a file that gives a scale per division are converter codes,
+    // even where a vertical-units key names the scale's unit (V): only a unit over the column itself makes volts.
+    const codes = !stated && meta.dataMarker && meta.perDivision && timeMode === 'samples' && (blockValues(column, 400)?.every(Number.isInteger) ?? false);
+    if (codes) sourceUnit = '';
     if (sourceUnit !== '') {
       const si = unitToSi(sourceUnit);
       if (si === null) warnings.push(`the unit '${sourceUnit}' of ${name} is not known; its values are kept as written`);
@@ -674,8 +679,11 @@ function unitKind(text: string): 'strong' | 'weak' | null {
   return null;
 }
 
+/** 2e-7 → "200 ns": an interval as a person reads it off a scope (6 significant digits). */
 function fmt(x: number): string {
-  return String(Number(x.toPrecision(6)));
+  const a = Math.abs(x);
+  const [scale, unit] = a === 0 || a >= 1 ? [1, ''] : a >= 1e-3 ? [1e3, 'm'] : a >= 1e-6 ? [1e6, 'µ'] : a >= 1e-9 ? [1e9, 'n'] : [1e12, 'p'];
+  return `${Number((x * scale).toPrecision(6))} ${unit}`;
 }
 
 function classifyCell(field: string, options: ReadSampleFieldOptions): Cell {
@@ -774,7 +782,9 @@ function readTimeMetadata(metadata: Record<string, string>, where: Record<string
   };
   let unitList: string[] | null = null;
   const list = (v: string) => v.split(/\s*[,;\t]\s*/).map((s) => s.trim()).filter((s) => s !== '' && s !== '?');
-  const normalise = (name: string) => name.toLowerCase().replace(/[_\-.]+/g, ' ').replace(/\s+/g, ' ').trim();
+  // "SampleRate", "HResolution", "X_Increment", "Sample-interval" → "sample rate", "h resolution", "x increment", …
+  const normalise = (name: string) => name.replace(/([a-z])([A-Z])/g, '$1 $2').replace(/([A-Z])([A-Z][a-z])/g, '$1 $2')
+    .toLowerCase().replace(/[_\-.]+/g, ' ').replace(/\s+/g, ' ').trim();
   const lineOf = (key: string) => {
     const m = /^line (\d+)/.exec(where[key] ?? '');
     return m ? Number(m[1]) : null;

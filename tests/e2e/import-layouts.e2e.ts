@@ -67,7 +67,7 @@ describe('how a file was read', () => {
       await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(1);
       const how = list.getByTestId('how-it-was-read').first();
       await how.getByText('How it was read — time base rebuilt, check it').click();
-      await how.getByText(/rebuilt from the stated interval: every 2e-7 s from `Sample interval` \(line 3\)/).waitFor();
+      await how.getByText(/rebuilt from the stated interval: every 200 ns from `Sample interval` \(line 3\)/).waitFor();
       await saveScreenshot(page, 'import-how-read-1280');
       await page.setViewportSize({ width: 820, height: 1100 });
       await saveScreenshot(page, 'import-how-read-820');
@@ -82,7 +82,7 @@ describe('how a file was read', () => {
       await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(2);
       const second = refusedRow.getByTestId('how-it-was-read');
       await second.getByText('How it was read').click();
-      await second.getByText(/given by you: every 5e-7 s from the interval you gave/).waitFor();
+      await second.getByText(/given by you: every 500 ns from the interval you gave/).waitFor();
       await saveScreenshot(page, 'import-fixed');
     } finally {
       await browser.close();

@@ -53,6 +53,6 @@ describe('combineCaptures and the time origin', () => {
     }
     const both = combineCaptures([parseScopeCsv(enc(fine)), parseScopeCsv(enc(coarse))], { labels: ['a.csv', 'b.csv'] });
     expect(both.timeOrigin?.how).toBe('rebuilt');
-    expect(both.timeOrigin?.source).toMatch(/^a\.csv: column 1 .*; b\.csv: every 2e-7 s/);
+    expect(both.timeOrigin?.source).toMatch(/^a\.csv: column 1 .*; b\.csv: every 200 ns/);
   });
 });

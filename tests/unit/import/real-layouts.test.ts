@@ -188,3 +188,23 @@ describe('property: a known capture in random preamble noise reads with its know
     ), { numRuns: 300 });
   });
 });
+
+describe('preamble keys as instruments write them', () => {
+  it('When keys are run together in camel case (SampleRate, HResolution, HOffset, VUnit), then they are read', () => {
+    let text = 'TraceName,Gate A\nBlockSize,50\nVUnit,mV\nSampleRate,5.0E+05\nHOffset,-4.0E-03\nHUnit,s\n\n';
+    for (let i = 0; i < 50; i++) text += `${(i % 7) * 10}.5\n`;
+    const c = parseScopeCsv(bytes(text));
+    expect([dtOf(c), t0Of(c)]).toEqual([2e-6, -4e-3]);
+    expect(c.channels[0]).toMatchObject({ name: 'Gate A', unit: 'V', sourceUnit: 'mV' });
+  });
+
+  it('When whole numbers follow a "Waveform Data" line and the file gives volts per division and a vertical unit, then they are codes, not volts', () => {
+    let text = 'Memory Length,60,\nTrigger Address,20,\nSource,CH1,\nVertical Units,V,\nVertical Scale,1.000E+00,\nSampling Period,2.000E-06,\nWaveform Data,\n';
+    for (let i = 0; i < 60; i++) text += `${i > 30 && i < 40 ? 2 : 124},\n`;
+    const c = parseScopeCsv(bytes(text));
+    expect(c.valueKind).toBe('codes');
+    expect(c.channels[0]).toMatchObject({ unit: '', sourceUnit: '' });
+    expect(dtOf(c)).toBe(2e-6);
+    expect(t0Of(c)).toBeCloseTo(-20 * 2e-6, 18); // 20 samples before the trigger
+  });
+});
