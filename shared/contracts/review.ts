@@ -66,6 +66,8 @@ export const trendsQuery = z.object({
   boreM: positive('boreM'),
   /** Projectile mass, kg. */
   massKg: positive('massKg'),
+  /** Exit speed, m/s, for the launcher fit's inverse question: what tube vacuum gives it. */
+  targetSpeedMs: positive('targetSpeedMs'),
 });
 export type TrendsQuery = z.infer<typeof trendsQuery>;
 

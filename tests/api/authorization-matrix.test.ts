@@ -394,13 +394,16 @@ const MATRIX: Record<string, Row> = {
     expect: [200, 200, 200, 200, 404, 401],
     prepare: async ({ h }) => ({ params: await freshAnalysedShot(h) }),
   },
+  'GET /api/labs/:labId/campaigns/:campaignId/report.pdf': {
+    expect: [200, 200, 200, 200, 404, 401],
+  },
   'GET /api/shots/:shotId/report.pdf': {
     expect: [200, 200, 200, 200, 404, 401],
     prepare: async ({ h }) => ({ params: await freshAnalysedShot(h) }),
   },
   'GET /api/labs/:labId/campaigns/:campaignId/trends': {
     expect: [200, 200, 200, 200, 404, 401],
-    shape: (b) => expect(b).toMatchObject({ groupBy: 'none', points: expect.any(Array), groups: expect.any(Array) }),
+    shape: (b) => expect(b).toMatchObject({ groupBy: 'none', points: expect.any(Array), groups: expect.any(Array), launcherFit: { status: expect.any(String) } }),
   },
   'GET /api/openapi.json': {
     expect: [200, 200, 200, 200, 200, 200],

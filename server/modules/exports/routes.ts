@@ -7,6 +7,8 @@ import { clientIp } from '../../lib/client-ip.ts';
 import { conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { labOfShot } from '../shots/routes.ts';
+import { fitCampaignLauncher } from '../trends/launcher-fit.ts';
+import { campaignTrendPoints } from '../trends/trend-points.ts';
 import { CAMPAIGN_COLUMNS, campaignRows, SHOT_COLUMNS, shotRows } from './rows.ts';
 import { fileSlug, toCsv, type CsvValue } from './to-csv.ts';
 
@@ -25,7 +27,7 @@ export function exportRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/campaigns/:campaignId/export',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: "The campaign's shots and results as a CSV or JSON file (one row per shot; lab units: kPa, °C)",
+      summary: "The campaign's shots and results as a CSV or JSON file (one row per shot; lab units: kPa, °C); the JSON file also carries the launcher model fitted to the shots (launcherFit, SI units)",
       query: exportQuery,
       response: { status: 200, description: 'A CSV (text/csv) or JSON file, as an attachment' },
       async handler(req, res) {
@@ -34,7 +36,9 @@ export function exportRoutes(): RouteDef[] {
         if (!campaign) throw notFound('No such campaign.');
         const rows = await campaignRows(campaign);
         await recordAudit({ labId: campaign.labId, actorId: req.auth!.userId, action: 'campaign.exported', targetType: 'campaign', targetId: campaign.id, details: { format, shots: rows.length }, ip: clientIp(req) });
-        send(res, format, `${fileSlug(campaign.name)}-shots`, CAMPAIGN_COLUMNS, rows, { campaign: { id: campaign.id, name: campaign.name }, exportedAt: new Date().toISOString() });
+        // JSON carries the launcher model fitted to the campaign's shots beside the rows (SI units); CSV stays one row per shot.
+        const launcherFit = format === 'json' ? await fitCampaignLauncher(campaign, await campaignTrendPoints(campaign)) : undefined;
+        send(res, format, `${fileSlug(campaign.name)}-shots`, CAMPAIGN_COLUMNS, rows, { campaign: { id: campaign.id, name: campaign.name }, exportedAt: new Date().toISOString(), launcherFit });
       },
     },
     {

@@ -1,8 +1,6 @@
-import { createRequire } from 'node:module';
-import path from 'node:path';
-import PDFDocument from 'pdfkit';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import type { TraceWindow } from '../../traces/read-window.ts';
+import { createReportDocument, GRID, INK, MUTED, SAFETY } from './report-document.ts';
 
 /** One gate's trace as drawn: the window read from the stored channel files and the current analysis's marks. */
 export interface ReportTrace {
@@ -39,25 +37,8 @@ export interface ShotReportInput {
   generatedAt: Date;
 }
 
-const require = createRequire(import.meta.url);
-// IBM Plex Sans ships as WOFF in @fontsource, which pdfkit's font engine reads; only the Latin subset is embedded,
-// so the report keeps to Latin-1 and General Punctuation characters (no arrows, no Greek).
-const fontDir = path.join(path.dirname(require.resolve('@fontsource/ibm-plex-sans/package.json')), 'files');
-const FONT_REGULAR = path.join(fontDir, 'ibm-plex-sans-latin-400-normal.woff');
-const FONT_BOLD = path.join(fontDir, 'ibm-plex-sans-latin-600-normal.woff');
-
-const INK = '#1f2933';
-const MUTED = '#5f6b7a';
 const TRACE = '#1d4ed8';
 const MARK = '#c2410c';
-const GRID = '#d5dbe3';
-
-const SAFETY = [
-  'Projectiles at hundreds of m/s injure: fire only into a rated backstop, with the exclusion zone clear. Never at people.',
-  'Evacuated tubes can implode: rated tubing, shielding and eye protection. Burst discs and pressurised variants add pressure-vessel hazards.',
-  'The exit makes a loud report: hearing protection for everyone nearby.',
-  "The lab's own safety rules and trained supervision govern every shot; Gatepost only records it.",
-];
 
 /** Rounds U to two significant digits and the value to the same place (GUM, JCGM 100:2008, 7.2.6). */
 export function formatWithUncertainty(value: number | null | undefined, u: number | null | undefined, unit: string): string {
@@ -95,39 +76,7 @@ function flatten(value: unknown, prefix = '', out: [string, string][] = []): [st
  * drawn as vector paths, the analysis version and its parameters, the review sign-off and the launcher safety note.
  */
 export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
-  const doc = new PDFDocument({
-    size: 'A4',
-    margins: { top: 48, bottom: 48, left: 50, right: 50 },
-    info: { Title: `Shot ${input.shot.number}, ${input.campaignName}`, Author: input.labName, Creator: 'Gatepost' },
-    bufferPages: true,
-  });
-  const chunks: Buffer[] = [];
-  doc.on('data', (c: Buffer) => chunks.push(c));
-  const done = new Promise<Buffer>((resolve, reject) => {
-    doc.on('end', () => resolve(Buffer.concat(chunks)));
-    doc.on('error', reject);
-  });
-  doc.registerFont('regular', FONT_REGULAR);
-  doc.registerFont('bold', FONT_BOLD);
-  const left = doc.page.margins.left;
-  const width = doc.page.width - left - doc.page.margins.right;
-
-  const heading = (text: string) => {
-    if (doc.y > doc.page.height - 140) doc.addPage();
-    doc.moveDown(0.6).font('bold').fontSize(12).fillColor(INK).text(text, left, doc.y);
-    doc.moveTo(left, doc.y + 2).lineTo(left + width, doc.y + 2).lineWidth(0.5).strokeColor(GRID).stroke();
-    doc.moveDown(0.4);
-  };
-  const table = (rows: [string, string][], labelWidth = 170) => {
-    for (const [label, value] of rows) {
-      if (doc.y > doc.page.height - 70) doc.addPage();
-      const y = doc.y;
-      doc.font('regular').fontSize(9.5).fillColor(MUTED).text(label, left, y, { width: labelWidth - 8 });
-      const afterLabel = doc.y;
-      doc.fillColor(INK).text(value, left + labelWidth, y, { width: width - labelWidth });
-      doc.y = Math.max(afterLabel, doc.y) + 2;
-    }
-  };
+  const { doc, left, width, heading, table, finish } = createReportDocument({ title: `Shot ${input.shot.number}, ${input.campaignName}`, author: input.labName });
 
   // Title block.
   doc.font('bold').fontSize(18).fillColor(INK).text(`Shot ${input.shot.number}`, left, doc.y);
@@ -300,17 +249,5 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
   doc.font('regular').fontSize(8.5).fillColor(INK);
   for (const line of SAFETY) doc.text(`- ${line}`, left, doc.y, { width });
 
-  const range = doc.bufferedPageRange();
-  for (let i = 0; i < range.count; i++) {
-    doc.switchToPage(range.start + i);
-    const bottom = doc.page.margins.bottom;
-    doc.page.margins.bottom = 0;
-    doc.font('regular').fontSize(7.5).fillColor(MUTED).text(
-      `${input.labName} - ${input.campaignName}, shot ${input.shot.number} - page ${i + 1} of ${range.count}`,
-      left, doc.page.height - 30, { width, align: 'center', lineBreak: false },
-    );
-    doc.page.margins.bottom = bottom;
-  }
-  doc.end();
-  return done;
+  return finish(`${input.labName} - ${input.campaignName}, shot ${input.shot.number}`);
 }

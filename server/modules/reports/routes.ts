@@ -10,6 +10,9 @@ import { readWindow, recordExtent } from '../../traces/read-window.ts';
 import { combinedChannelNames } from '../analyses/service.ts';
 import { fileSlug } from '../exports/to-csv.ts';
 import { labOfShot } from '../shots/routes.ts';
+import { fitCampaignLauncher } from '../trends/launcher-fit.ts';
+import { campaignTrendPoints } from '../trends/trend-points.ts';
+import { buildCampaignReport } from './build-campaign-report.ts';
 import { buildShotReport, type ReportTrace } from './build-shot-report.ts';
 
 /** Columns per trace: enough for a sharp print at A4 width without reading every sample. */
@@ -31,6 +34,26 @@ function spanOf(results: Partial<ShotAnalysis> | null, files: ChannelFiles[]): {
 
 export function reportRoutes(deps: Deps): RouteDef[] {
   return [
+    {
+      method: 'get',
+      path: '/api/labs/:labId/campaigns/:campaignId/report.pdf',
+      access: { kind: 'lab', permission: 'lab:read' },
+      summary: 'A printable campaign report (PDF): the launcher and its shots, speed against tube vacuum with the zeroth-order line and the fitted launcher model with its k = 2 band, residuals, fitted losses with uncertainties, assumptions and cautions',
+      response: { status: 200, description: 'application/pdf, as an attachment' },
+      async handler(req, res) {
+        const campaign = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
+        if (!campaign) throw notFound('No such campaign.');
+        const [lab, points] = await Promise.all([Lab.findByPk(campaign.labId, { attributes: ['name'] }), campaignTrendPoints(campaign)]);
+        const pdf = await buildCampaignReport({
+          labName: lab?.name ?? '',
+          campaign: { name: campaign.name, description: campaign.description ?? '', startedOn: campaign.startedOn ?? null },
+          points, launcherFit: await fitCampaignLauncher(campaign, points), generatedAt: new Date(),
+        });
+        await recordAudit({ labId: campaign.labId, actorId: req.auth!.userId, action: 'campaign.report', targetType: 'campaign', targetId: campaign.id, details: { shots: points.length, bytes: pdf.length }, ip: clientIp(req) });
+        res.attachment(`${fileSlug(campaign.name)}-report.pdf`);
+        res.type('application/pdf').send(pdf);
+      },
+    },
     {
       method: 'get',
       path: '/api/shots/:shotId/report.pdf',

@@ -1,0 +1,46 @@
+import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
+import { Analysis, Projectile, Shot, type Campaign } from '../../db/models/index.ts';
+
+/** One analysed shot of a campaign as the trends page, the launcher fit and the campaign report read it (SI). */
+export interface TrendPoint {
+  shotId: string;
+  number: number;
+  firedAt: Date | null;
+  tubePressurePa: number | null;
+  sealType: string;
+  ambientPressurePa: number | null;
+  ambientTemperatureK: number | null;
+  projectileId: string | null;
+  projectileName: string | null;
+  speed: number | null;
+  /** Expanded uncertainty U (k = 2), m/s. */
+  uncertainty: number | null;
+  method: string | null;
+  status: string;
+  analysisVersion: number;
+}
+
+/** Every shot of the campaign whose current analysis finished, in shot-number order. */
+export async function campaignTrendPoints(campaign: Campaign): Promise<TrendPoint[]> {
+  const labId = campaign.labId;
+  const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId }, order: [['number', 'ASC']] });
+  const ids = shots.map((s) => s.currentAnalysisId).filter((x): x is string => !!x);
+  const [analyses, projectiles] = await Promise.all([
+    Analysis.findAll({ where: { id: ids, labId, state: 'done' }, attributes: ['id', 'version', 'results'] }),
+    Projectile.findAll({ where: { labId }, attributes: ['id', 'name'] }),
+  ]);
+  const points: TrendPoint[] = [];
+  for (const s of shots) {
+    const a = analyses.find((x) => x.id === s.currentAnalysisId);
+    if (!a) continue;
+    const speed = (a.results as Partial<ShotAnalysis> | null)?.speed ?? null;
+    points.push({
+      shotId: s.id, number: s.number, firedAt: s.firedAt, tubePressurePa: s.tubePressurePa, sealType: s.sealType,
+      ambientPressurePa: s.ambientPressurePa, ambientTemperatureK: s.ambientTemperatureK,
+      projectileId: s.projectileId, projectileName: projectiles.find((p) => p.id === s.projectileId)?.name ?? null,
+      speed: speed?.value ?? null, uncertainty: speed?.uncertainty ?? null, method: speed?.method ?? null,
+      status: s.status, analysisVersion: a.version,
+    });
+  }
+  return points;
+}
