@@ -1,5 +1,7 @@
 import { createHash } from 'node:crypto';
 import { writeCaptureLayout, type LayoutName } from '../../../fixtures/lib/write-capture-layout.ts';
+import { createRandom } from '../../../shared/analysis/create-random.ts';
+import { simulateLauncherShot } from '../../../shared/physics/simulate-launcher-shot.ts';
 import { simulateShot } from '../../../shared/simulate/simulate-shot.ts';
 import type { JobQueues } from '../../lib/job-queues.ts';
 import type { Logger } from '../../lib/logger.ts';
@@ -10,10 +12,17 @@ import { Campaign, Capture, GateRig, Lab, Shot, User } from '../models/index.ts'
 const DEMO = { lab: 'hollowmere', campaign: 'Vacuum sweep, autumn 2026', uploader: 'tomas.reyl@hollowmere.example' };
 
 /**
- * Invented for the demo (not a measurement): exit speed falling with the air left in the tube, roughly as an open
- * evacuated-tube launcher behaves, 318 m/s at a hard vacuum and 9.2 m/s less per kPa.
+ * Invented for the demo (not a measurement): the exit speed the launcher model with losses gives for the sweep's
+ * launcher (2 m tube, 40.5 mm bore, the 40 mm 2.7 g ball) with an invented 2.2 N of friction and 1.8 mm² of leak,
+ * at each shot's tube pressure and outside air, plus 0.2 m/s of shot-to-shot scatter. So the trends page's fit has
+ * a launcher to find.
  */
-const demoSpeed = (tubePressurePa: number) => 318 - 9.2 * (tubePressurePa / 1000);
+function demoSpeed(shot: Shot): number {
+  return simulateLauncherShot({
+    tubeLength: 2, boreDiameter: 0.0405, projectileDiameter: 0.040, mass: 0.0027, frictionForce: 2.2, leakArea: 1.8e-6,
+    tubePressure: shot.tubePressurePa ?? 0, ambientPressure: shot.ambientPressurePa ?? 101_325, ambientTemperature: shot.ambientTemperatureK ?? 293.15,
+  }).exitSpeed + 0.2 * createRandom(300 + shot.number).normal();
+}
 
 /**
  * Air drag on a 40 mm, 2.7 g ball: a = ½·ρ·v²·C_d·A/m with ρ = 1.2 kg/m³ and C_d ≈ 0.5 for a sphere (values from
@@ -42,11 +51,12 @@ export async function attachDemoCaptures(deps: { blobStore: BlobStore; queues: J
     if ((await Capture.count({ where: { shotId: shot.id } })) > 0 || !shot.gateRigId) continue;
     const rig = await GateRig.findByPk(shot.gateRigId, { rejectOnEmpty: true });
     const positions = rig.gates.map((g) => g.position_m);
-    const speed = demoSpeed(shot.tubePressurePa ?? 0);
+    const speed = demoSpeed(shot);
     const sim = simulateShot({
       speed, deceleration: dragDeceleration(speed), gatePositions: positions,
       channelNames: rig.gates.map((g) => `Gate ${g.label}`), dipDepth: positions.map((_, i) => (shot.number === 5 && i === 2 ? 0.4 : 1)),
-      sampleInterval: 2e-7, length: 10_000, t0: -1e-4, arrivalTime: 1e-4, noiseRms: 0.012, humAmplitude: 0.006,
+      // Room before gate A's pulse and after gate C's for the slowest shot (the ball's own 40 mm at its speed).
+      sampleInterval: 2e-7, length: Math.max(10_000, Math.ceil((4e-4 + 0.4 / speed) / 2e-7)), t0: -1e-4 - 0.04 / speed, arrivalTime: 1e-4, noiseRms: 0.012, humAmplitude: 0.006,
       responseTime: 2e-6, beamOffset: 0.0015, seed: 100 + shot.number,
     });
     const { bytes } = writeCaptureLayout(LAYOUTS[shot.number % LAYOUTS.length], { t0: sim.time.t0, dt: sim.time.dt, channels: sim.channels });

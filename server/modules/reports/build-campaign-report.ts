@@ -1,4 +1,4 @@
-import type { LauncherFitView } from '../trends/launcher-fit.ts';
+import type { LauncherFitView } from '../../../shared/contracts/launcher-fit.ts';
 import type { TrendPoint } from '../trends/trend-points.ts';
 import { formatWithUncertainty } from './build-shot-report.ts';
 import { createReportDocument, GRID, INK, MUTED, pdfText, SAFETY } from './report-document.ts';

@@ -1,9 +1,10 @@
-import { fitLauncherLosses, type LauncherFit, type LauncherFitShot } from '../../../shared/physics/fit-launcher-losses.ts';
-import { launcherLossBudget, type LauncherLossBudget } from '../../../shared/physics/launcher-loss-budget.ts';
+import type { LauncherCurvePoint, LauncherFitView } from '../../../shared/contracts/launcher-fit.ts';
+import { fitLauncherLosses, type LauncherFitShot } from '../../../shared/physics/fit-launcher-losses.ts';
+import { launcherLossBudget } from '../../../shared/physics/launcher-loss-budget.ts';
 import { launcherModel } from '../../../shared/physics/launcher-model.ts';
 import { LAUNCHER_MODEL_ASSUMPTIONS, LAUNCHER_MODEL_CAUTIONS } from '../../../shared/physics/launcher-model-notes.ts';
 import { predictLauncherSpeed } from '../../../shared/physics/predict-launcher-speed.ts';
-import { vacuumForTargetSpeed, type VacuumForSpeed } from '../../../shared/physics/vacuum-for-target-speed.ts';
+import { vacuumForTargetSpeed } from '../../../shared/physics/vacuum-for-target-speed.ts';
 import { Projectile, type Campaign } from '../../db/models/index.ts';
 import type { TrendPoint } from './trend-points.ts';
 
@@ -20,37 +21,6 @@ export interface LauncherFitInputs {
   /** A mass given in the request instead of the library's, kg. */
   massKgOverride?: number | null;
   targetSpeedMs?: number | null;
-}
-
-export interface LauncherCurvePoint {
-  tubePressurePa: number;
-  speed: number;
-  /** k = 2 band of the fitted model (its parameters' uncertainty), m/s. */
-  expandedUncertainty: number;
-  /** k = 2 band for one new shot's measured speed, m/s. */
-  predictionExpandedUncertainty: number;
-  zerothOrder: number;
-}
-
-export interface LauncherFitView {
-  status: 'fitted' | 'not-fitted';
-  /** Why there is no fit (status not-fitted), in words a person can act on. */
-  reason: string | null;
-  coverageFactor: number;
-  launcher: { tubeLengthM: number | null; boreM: number | null; massKg: number | null; projectileDiameterM: number | null; projectileName: string | null };
-  /** Shot numbers the fit used, and the ones it left out with the reason. */
-  shotsUsed: number[];
-  leftOut: { number: number; reason: string }[];
-  /** Shots whose outside air was not logged, fitted with 101.325 kPa and 20 °C. */
-  airAssumed: number[];
-  fit: LauncherFit | null;
-  /** Where the energy goes at the best vacuum the campaign reached. */
-  budget: LauncherLossBudget | null;
-  curve: LauncherCurvePoint[];
-  /** The answer to ?targetSpeedMs=: the tube vacuum for that speed. */
-  inverse: VacuumForSpeed | null;
-  assumptions: readonly string[];
-  cautions: readonly string[];
 }
 
 const CACHE = new Map<string, LauncherFitView>();

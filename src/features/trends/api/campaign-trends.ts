@@ -1,5 +1,6 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/api-client.ts';
+import type { LauncherFitView } from '../../../../shared/contracts/launcher-fit.ts';
 import type { TrendGroupStats } from '../../../../shared/contracts/review.ts';
 
 export type GroupBy = 'seal' | 'projectile' | 'none';
@@ -29,6 +30,8 @@ export interface CampaignTrends {
   groupBy: GroupBy;
   points: TrendPoint[];
   groups: TrendGroupStats[];
+  /** The launcher model with losses fitted to the campaign's shots (its tube and most used projectile). */
+  launcherFit: LauncherFitView;
 }
 
 /** The group a point belongs to, by the same rule as the server's statistics. */
