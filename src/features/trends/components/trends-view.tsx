@@ -5,11 +5,14 @@ import { Button, Card, ErrorNote, Loading, SelectField, TextField } from '../../
 import { useUpdateCampaign } from '../../campaigns/api/campaigns.ts';
 import { millimetresToMetres } from '../../campaigns/utils/lab-units.ts';
 import { groupKeyOf, useCampaignTrends, type GroupBy, type TrendPoint } from '../api/campaign-trends.ts';
-import { TrendPlot, type ReferenceLine, type TrendSeries } from './trend-plot.tsx';
+import { LauncherCautions, LauncherFitCard } from './launcher-fit-card.tsx';
+import { TrendPlot, type ReferenceLine, type TrendCurve, type TrendSeries } from './trend-plot.tsx';
 
 /** Group colours: the product's harbour and signal first, then hues far enough apart to tell at a glance. */
 const GROUP_COLOURS = ['#244863', '#c47a12', '#2f7d5b', '#8e3b72', '#4d7694', '#a0522d', '#5b6b2f', '#6a4fa3'];
 const MODEL_COLOUR = '#0d2133';
+const FIT_COLOUR = '#c47a12';
+const ZERO_LINE: ReferenceLine[] = [{ y: 0, label: '', colour: '#365d7a' }];
 
 export interface ProjectileChoice { id: string; name: string; massKg: number; diameterM: number }
 
@@ -156,7 +159,24 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
     { y: model.atVacuum.speedOfSound, label: `speed of sound ${model.atVacuum.speedOfSound.toFixed(1)} m/s`, colour: '#b42318' },
     { y: model.atVacuum.gasDynamicLimit, label: `gas-dynamic limit ${model.atVacuum.gasDynamicLimit.toFixed(0)} m/s`, colour: '#7a4a06' },
   ] : []), [model]);
-  const curve = useMemo(() => (model ? { label: 'zeroth-order model', colour: MODEL_COLOUR, x: model.x, y: model.y } : null), [model]);
+  const view = q.data?.launcherFit ?? null;
+  const fitted = view?.status === 'fitted' ? view : null;
+  const curves = useMemo(() => {
+    const list: TrendCurve[] = [];
+    if (model) list.push({ label: 'zeroth-order model', colour: MODEL_COLOUR, x: model.x, y: model.y, dash: [6, 4] });
+    if (fitted) list.push({ label: 'fitted model', colour: FIT_COLOUR, x: fitted.curve.map((c) => c.tubePressurePa / 1000), y: fitted.curve.map((c) => c.speed) });
+    return list;
+  }, [model, fitted]);
+  const band = useMemo(() => (fitted ? {
+    x: fitted.curve.map((c) => c.tubePressurePa / 1000),
+    lo: fitted.curve.map((c) => c.speed - c.predictionExpandedUncertainty),
+    hi: fitted.curve.map((c) => c.speed + c.predictionExpandedUncertainty),
+    colour: 'rgba(196, 122, 18, 0.18)',
+  } : null), [fitted]);
+  const residuals = useMemo(() => (fitted?.fit ? [{
+    label: 'residual', colour: GROUP_COLOURS[0],
+    points: fitted.fit.shots.map((s) => ({ x: s.tubePressure / 1000, y: s.residual, u: s.expandedUncertainty })),
+  }] : []), [fitted]);
 
   if (q.isPending) return <Loading what="Loading the campaign's shots" />;
   if (q.isError) return <ErrorNote error={q.error} />;
@@ -176,7 +196,8 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
           {[...groupLabels.values()].map((g) => (
             <li key={g.label} className="inline-flex items-center gap-1.5"><span className="h-3 w-3 rounded-full" style={{ background: g.colour }} aria-hidden />{g.label}</li>
           ))}
-          {model && <li className="inline-flex items-center gap-1.5"><span className="h-0 w-5 border-t-2 border-dashed" style={{ borderColor: MODEL_COLOUR }} aria-hidden />model</li>}
+          {model && <li className="inline-flex items-center gap-1.5"><span className="h-0 w-5 border-t-2 border-dashed" style={{ borderColor: MODEL_COLOUR }} aria-hidden />zeroth order</li>}
+          {fitted && <li className="inline-flex items-center gap-1.5"><span className="h-2.5 w-5 rounded-sm" style={{ background: 'rgba(196, 122, 18, 0.3)', borderTop: `2px solid ${FIT_COLOUR}` }} aria-hidden />fitted model, k = {fitted.coverageFactor} band</li>}
         </ul>
         <p className="ml-auto pb-2 text-sm text-harbour-600">
           Export the campaign’s shots:{' '}
@@ -188,17 +209,33 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
 
       <div className="grid gap-6 xl:grid-cols-2">
         <Card title="Speed against tube vacuum level">
-          <TrendPlot xLabel="tube pressure before the shot (kPa, log scale)" logX series={byPressure} curve={curve} references={references} testId="trend-vacuum" />
+          <TrendPlot xLabel="tube pressure before the shot (kPa, log scale)" logX series={byPressure} curves={curves} band={band} references={references} testId="trend-vacuum" />
           <p className="mt-2 text-xs text-harbour-500">
-            Bars are ±U (k = 2).{leftOff > 0 ? ` ${leftOff} shot${leftOff === 1 ? '' : 's'} without a logged tube pressure left off this plot.` : ''}
+            Bars are ±U (k = 2).{fitted ? ` Shaded: where one new shot’s measured speed should fall (k = ${fitted.coverageFactor}) by the model fitted to these shots.` : ''}{leftOff > 0 ? ` ${leftOff} shot${leftOff === 1 ? '' : 's'} without a logged tube pressure left off this plot.` : ''}
             {model && model.atVacuum.gasDynamicLimit > Math.max(...byPressure.flatMap((s) => s.points.map((p) => p.y + (p.u ?? 0))), model.atVacuum.speedOfSound) * 1.3 ? ` Gas-dynamic limit ${model.atVacuum.gasDynamicLimit.toFixed(0)} m/s is far above the plot.` : ''}
           </p>
+          {view && view.status === 'fitted' && <div className="mt-2"><LauncherCautions view={view} speeds={[...curves.flatMap((c) => c.y)]} /></div>}
         </Card>
         <Card title="Speed against shot number">
           <TrendPlot xLabel="shot number" integerX series={byNumber} references={references.slice(0, 1)} testId="trend-number" />
           <p className="mt-2 text-xs text-harbour-500">Bars are ±U (k = 2).</p>
         </Card>
       </div>
+
+      {view && (
+        <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+          <LauncherFitCard view={view} />
+          {fitted && (
+            <Card title="Residuals: measured − fitted model">
+              <TrendPlot xLabel="tube pressure before the shot (kPa, log scale)" logX series={residuals} references={ZERO_LINE} yLabel="residual (m/s)" yFloor={null} height={220} testId="trend-residuals" />
+              <p className="mt-2 text-xs text-harbour-500">
+                Bars are ±U (k = 2) of each shot. Points scattered on both sides of zero, mostly within their bars, mean the model describes the shots; a run of
+                points on one side, or a curve, means it misses a trend.
+              </p>
+            </Card>
+          )}
+        </div>
+      )}
 
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
         <Card title="Spread per group">
