@@ -123,6 +123,8 @@ export function fitLauncherLosses(options: FitLauncherLossesOptions): LauncherFi
   } else if (probability > 0.999) {
     findings.push(`χ²/ν = ${reduced.toFixed(2)}: the shots sit closer to the model than their U suggest; U may be overstated.`);
     describes = false;
+  } else if (probability < 0.05) {
+    findings.push(`χ²/ν = ${reduced.toFixed(2)} (P = ${probability.toFixed(2)}): the shots scatter about the model somewhat more than their U alone explain (shot-to-shot differences the model does not know about).`);
   } else {
     findings.push(`χ²/ν = ${reduced.toFixed(2)} (P = ${probability.toFixed(2)}): the scatter about the model is what the shots' U lead one to expect.`);
   }

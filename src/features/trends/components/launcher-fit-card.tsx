@@ -7,13 +7,25 @@ import { formatMeasurement } from '../../../lib/format.ts';
 /** Speed of sound in the fit's outside air, √(γRT) (U.S. Standard Atmosphere 1976 constants). */
 const soundSpeed = (view: LauncherFitView) => Math.sqrt(1.4 * 287.053 * (view.fit?.reference.ambientTemperature ?? 293.15));
 
-/** The cautions that stand beside every prediction of the model. */
-export function LauncherCautions({ view, speeds }: { view: LauncherFitView; speeds: number[] }) {
+/**
+ * The cautions that stand beside every prediction of the model: in full, or (`compact`) in one sentence that points
+ * to the full list under the fitted model.
+ */
+export function LauncherCautions({ view, speeds, compact = false }: { view: LauncherFitView; speeds: number[]; compact?: boolean }) {
   const c = soundSpeed(view);
   const near = speeds.some((v) => v >= 0.8 * c);
+  const lead = near ? `Predictions here come near the speed of sound (${c.toFixed(0)} m/s): take particular care.` : 'Cautions';
+  if (compact) {
+    return (
+      <p className="rounded-md bg-signal-100 px-3 py-2 text-xs text-harbour-800 ring-1 ring-signal-400" role="note" data-testid="launcher-cautions-short">
+        {near ? `${lead} ` : ''}Near-sonic and supersonic projectiles are dangerous. These curves describe this campaign’s own launcher and are not advice to
+        raise pressure or speed; the lab’s safety rules and trained supervision govern. Full cautions under the fitted model.
+      </p>
+    );
+  }
   return (
     <div className="rounded-md bg-signal-100 px-3 py-2 text-xs text-harbour-800 ring-1 ring-signal-400" role="note" data-testid="launcher-cautions">
-      <p className="font-medium">{near ? `Near the speed of sound (${c.toFixed(0)} m/s here): take particular care.` : 'Cautions'}</p>
+      <p className="font-medium">{lead}</p>
       <ul className="mt-1 list-disc space-y-0.5 pl-4">
         {view.cautions.map((t) => <li key={t}>{t}</li>)}
       </ul>
@@ -89,21 +101,21 @@ export function LauncherFitCard({ view }: { view: LauncherFitView }) {
       actions={fit.describesData ? <Badge tone="good">describes the shots</Badge> : <Badge tone="bad">does not describe the shots</Badge>}
     >
       <div className="space-y-4" data-testid="launcher-fit">
-        <dl className="grid grid-cols-1 gap-3 text-sm sm:grid-cols-3">
+        <dl className="grid grid-cols-[repeat(auto-fit,minmax(10rem,1fr))] gap-3 text-sm">
           <div className="rounded-md bg-harbour-50 px-3 py-2">
             <dt className="text-xs text-harbour-600">Sliding friction</dt>
-            <dd className="text-base font-semibold tabular-nums text-harbour-900" data-testid="fit-friction">≈ {friction}</dd>
+            <dd className="text-base font-semibold whitespace-nowrap tabular-nums text-harbour-900" data-testid="fit-friction">≈ {friction}</dd>
             {fit.atLowerBound.frictionForce && <dd className="text-xs text-harbour-500">at its lower bound: none seen</dd>}
           </div>
           <div className="rounded-md bg-harbour-50 px-3 py-2">
             <dt className="text-xs text-harbour-600">Leak area past the ball</dt>
-            <dd className="text-base font-semibold tabular-nums text-harbour-900" data-testid="fit-leak">≈ {leak}</dd>
+            <dd className="text-base font-semibold whitespace-nowrap tabular-nums text-harbour-900" data-testid="fit-leak">≈ {leak}</dd>
             {fit.atLowerBound.leakArea && <dd className="text-xs text-harbour-500">at its lower bound: none seen</dd>}
           </div>
           {b && (
             <div className="rounded-md bg-harbour-50 px-3 py-2">
               <dt className="text-xs text-harbour-600">Effective driving efficiency at {kPa(b.tubePressure)}</dt>
-              <dd className="text-base font-semibold tabular-nums text-harbour-900" data-testid="fit-efficiency">≈ {formatMeasurement(b.efficiency.value * 100, k * b.efficiency.standardUncertainty * 100, '%')}</dd>
+              <dd className="text-base font-semibold whitespace-nowrap tabular-nums text-harbour-900" data-testid="fit-efficiency">≈ {formatMeasurement(b.efficiency.value * 100, k * b.efficiency.standardUncertainty * 100, '%')}</dd>
               <dd className="text-xs text-harbour-500">of the zeroth-order kinetic energy</dd>
             </div>
           )}
@@ -133,8 +145,8 @@ export function LauncherFitCard({ view }: { view: LauncherFitView }) {
                 {steps.map((s, i) => (
                   <tr key={s.label}>
                     <td className="py-1 pr-2 text-harbour-700">{i > 0 ? '− ' : ''}{s.label}</td>
-                    <td className="py-1 text-right font-medium text-harbour-900">{s.v.toFixed(1)} m/s</td>
-                    <td className="w-24 py-1 pl-2 text-right text-xs text-harbour-500">{i > 0 ? `−${(steps[i - 1].v - s.v).toFixed(1)} m/s` : ''}</td>
+                    <td className="py-1 text-right font-medium whitespace-nowrap text-harbour-900">{s.v.toFixed(1)} m/s</td>
+                    <td className="w-24 py-1 pl-2 text-right text-xs whitespace-nowrap text-harbour-500">{i > 0 ? `−${(steps[i - 1].v - s.v).toFixed(1)} m/s` : ''}</td>
                   </tr>
                 ))}
               </tbody>

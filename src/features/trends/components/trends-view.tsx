@@ -214,7 +214,7 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
             Bars are ±U (k = 2).{fitted ? ` Shaded: where one new shot’s measured speed should fall (k = ${fitted.coverageFactor}) by the model fitted to these shots.` : ''}{leftOff > 0 ? ` ${leftOff} shot${leftOff === 1 ? '' : 's'} without a logged tube pressure left off this plot.` : ''}
             {model && model.atVacuum.gasDynamicLimit > Math.max(...byPressure.flatMap((s) => s.points.map((p) => p.y + (p.u ?? 0))), model.atVacuum.speedOfSound) * 1.3 ? ` Gas-dynamic limit ${model.atVacuum.gasDynamicLimit.toFixed(0)} m/s is far above the plot.` : ''}
           </p>
-          {view && view.status === 'fitted' && <div className="mt-2"><LauncherCautions view={view} speeds={[...curves.flatMap((c) => c.y)]} /></div>}
+          {fitted && <div className="mt-2"><LauncherCautions compact view={fitted} speeds={fitted.curve.map((c) => c.speed + c.predictionExpandedUncertainty)} /></div>}
         </Card>
         <Card title="Speed against shot number">
           <TrendPlot xLabel="shot number" integerX series={byNumber} references={references.slice(0, 1)} testId="trend-number" />
