@@ -54,10 +54,10 @@ export async function buildCampaignReport(input: CampaignReportInput): Promise<B
     if (doc.y > doc.page.height - 70) doc.addPage();
     const s = fit?.shots.find((x) => x.tubePressure === p.tubePressurePa && x.speed === p.speed);
     y = doc.y;
-    [String(p.number), p.tubePressurePa == null ? '-' : kPa(p.tubePressurePa), formatWithUncertainty(p.speed, p.uncertainty, 'm/s'),
-      s ? `${s.fitted.toFixed(1)} m/s` : view.leftOut.find((x) => x.number === p.number)?.reason ?? '-',
-      s ? `${s.residual >= 0 ? '+' : ''}${s.residual.toFixed(2)} m/s` : '', s ? s.normalizedResidual.toFixed(2) : '']
-      .forEach((t, i) => doc.text(t, cols[i], y, { lineBreak: false, width: i === 3 ? 95 : undefined }));
+    const cells = [String(p.number), p.tubePressurePa == null ? '-' : kPa(p.tubePressurePa), formatWithUncertainty(p.speed, p.uncertainty, 'm/s')];
+    if (s) cells.push(`${s.fitted.toFixed(1)} m/s`, `${s.residual >= 0 ? '+' : ''}${s.residual.toFixed(2)} m/s`, s.normalizedResidual.toFixed(2));
+    else cells.push(`not fitted: ${view.leftOut.find((x) => x.number === p.number)?.reason ?? 'no fit'}`);
+    cells.forEach((t, i) => doc.text(t, cols[i], y, { lineBreak: false, width: i === 3 && !s ? width - (cols[3] - left) : undefined }));
     doc.moveDown(0.75);
   }
 
@@ -65,7 +65,7 @@ export async function buildCampaignReport(input: CampaignReportInput): Promise<B
   if (!fit) {
     doc.font('regular').fontSize(10).fillColor(INK).text(view.reason ?? 'No fit.', left, doc.y, { width });
   } else {
-    drawSpeedPlot(doc, view, input.points, left, width);
+    drawSpeedPlot(doc, view, left, width);
     const Uf = k * fit.frictionForce.standardUncertainty;
     const Ua = k * fit.leakArea.standardUncertainty;
     table([
@@ -85,10 +85,11 @@ export async function buildCampaignReport(input: CampaignReportInput): Promise<B
       heading(`Where the energy goes at ${kPa(b.tubePressure)} kPa (the best vacuum of the campaign)`);
       table([
         ['Zeroth-order model', `${b.zerothOrder.toFixed(1)} m/s`],
-        ['+ gas dynamics of the inflow and the air left in the tube', `${b.gasDynamics.toFixed(1)} m/s`],
-        ['+ fitted friction', `${b.withFriction.toFixed(1)} m/s`],
-        ['+ fitted leak (the fitted model)', `${formatWithUncertainty(b.fitted, k * b.fittedStandardUncertainty, 'm/s')}`],
+        ['with the gas dynamics of the inflow and the air left in the tube', `${b.gasDynamics.toFixed(1)} m/s`],
+        ['with the fitted friction as well', `${b.withFriction.toFixed(1)} m/s`],
+        ['with the fitted leak as well: the fitted model', `${formatWithUncertainty(b.fitted, k * b.fittedStandardUncertainty, 'm/s')}`],
       ], 300);
+      doc.font('regular').fontSize(8.5).fillColor(MUTED).text('Each loss is taken with the ones above it, so the steps depend on their order.', left, doc.y, { width });
     }
   }
 
@@ -105,16 +106,18 @@ export async function buildCampaignReport(input: CampaignReportInput): Promise<B
 }
 
 /** Speed against tube pressure (log axis): points ± U, the zeroth-order line, the fitted model with its k = 2 band, and the residuals under it. */
-function drawSpeedPlot(doc: PDFKit.PDFDocument, view: LauncherFitView, points: TrendPoint[], left: number, width: number) {
+function drawSpeedPlot(doc: PDFKit.PDFDocument, view: LauncherFitView, left: number, width: number) {
   const curve = view.curve;
-  const plotted = points.filter((p) => p.speed != null && p.tubePressurePa != null && p.tubePressurePa > 0);
-  const xs = [...curve.map((c) => c.tubePressurePa), ...plotted.map((p) => p.tubePressurePa!)];
-  const ys = [...curve.flatMap((c) => [c.speed - c.predictionExpandedUncertainty, c.speed + c.predictionExpandedUncertainty]), ...plotted.flatMap((p) => [p.speed! - (p.uncertainty ?? 0), p.speed! + (p.uncertainty ?? 0)])];
+  const fit = view.fit!;
+  // The shots the model was fitted to (other projectiles and unlogged pressures are not its to describe).
+  const plotted = fit.shots.filter((s) => s.tubePressure > 0);
+  const xs = [...curve.map((c) => c.tubePressurePa), ...plotted.map((p) => p.tubePressure)];
+  const ys = [...curve.flatMap((c) => [c.speed - c.predictionExpandedUncertainty, c.speed + c.predictionExpandedUncertainty]), ...plotted.flatMap((p) => [p.speed - p.expandedUncertainty, p.speed + p.expandedUncertainty])];
   const zeroth = curve.map((c) => c.zerothOrder);
   const [x0, x1] = [Math.log10(Math.min(...xs)), Math.log10(Math.max(...xs))];
   let [y0, y1] = [Math.min(...ys), Math.max(...ys, ...zeroth)];
   const pad = (y1 - y0) * 0.06 || 10;
-  [y0, y1] = [y0 - pad, y1 + pad];
+  [y0, y1] = [Math.max(0, y0 - pad), y1 + pad];
   if (doc.y > doc.page.height - 330) doc.addPage();
   const plotLeft = left + 40;
   const plotWidth = width - 40;
@@ -144,20 +147,19 @@ function drawSpeedPlot(doc: PDFKit.PDFDocument, view: LauncherFitView, points: T
   curve.forEach((c, i) => (i === 0 ? doc.moveTo(xOf(c.tubePressurePa), yOf(c.zerothOrder)) : doc.lineTo(xOf(c.tubePressurePa), yOf(c.zerothOrder))));
   doc.dash(4, { space: 3 }).lineWidth(1).strokeColor(ZEROTH).stroke().undash();
   for (const p of plotted) {
-    const x = xOf(p.tubePressurePa!);
-    if (p.uncertainty) doc.moveTo(x, yOf(p.speed! - p.uncertainty)).lineTo(x, yOf(p.speed! + p.uncertainty)).lineWidth(0.8).strokeColor(POINT).stroke();
-    doc.circle(x, yOf(p.speed!), 2.2).fillColor(POINT).fill();
+    const x = xOf(p.tubePressure);
+    doc.moveTo(x, yOf(p.speed - p.expandedUncertainty)).lineTo(x, yOf(p.speed + p.expandedUncertainty)).lineWidth(0.8).strokeColor(POINT).stroke();
+    doc.circle(x, yOf(p.speed), 2.2).fillColor(POINT).fill();
   }
   doc.restore();
   doc.font('regular').fontSize(7.5);
-  const ly = top + 4;
-  doc.fillColor(POINT).text('measured ± U', plotLeft + 6, ly, { lineBreak: false });
-  doc.fillColor(MODEL).text(`fitted model, k = ${view.coverageFactor} band for a new shot`, plotLeft + 80, ly, { lineBreak: false });
-  doc.fillColor(ZEROTH).text('zeroth order (dashed)', plotLeft + 260, ly, { lineBreak: false });
+  const ly = top + h + 24;
+  doc.fillColor(POINT).text('measured ± U (dots)', plotLeft, ly, { lineBreak: false });
+  doc.fillColor(MODEL).text(`fitted model, shaded: k = ${view.coverageFactor} band for a new shot`, plotLeft + 100, ly, { lineBreak: false });
+  doc.fillColor(ZEROTH).text('zeroth order (dashed)', plotLeft + 320, ly, { lineBreak: false });
 
   // Residuals in units of each shot's standard uncertainty.
-  const fit = view.fit!;
-  const rTop = top + h + 34;
+  const rTop = top + h + 44;
   const rh = 70;
   const rMax = Math.max(3, ...fit.shots.map((s) => Math.abs(s.normalizedResidual))) * 1.1;
   const ry = (r: number) => rTop + rh / 2 - (r / rMax) * (rh / 2);

@@ -202,7 +202,8 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
         <p className="ml-auto pb-2 text-sm text-harbour-600">
           Export the campaign’s shots:{' '}
           <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/export?format=csv`} download>CSV</a>{' · '}
-          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/export?format=json`} download>JSON</a>
+          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/export?format=json`} download>JSON</a>{' · '}
+          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/report.pdf`} download>PDF report</a>
         </p>
       </div>
       {withSpeed === 0 && <p className="text-sm text-harbour-500">No shot of this campaign has an analysed speed yet. <Link className="underline" to={`/labs/${labId}/campaigns/${campaignId}`}>Back to the campaign</Link>.</p>}
