@@ -58,7 +58,7 @@ export async function buildCampaignReport(input: CampaignReportInput): Promise<B
     if (s) cells.push(`${s.fitted.toFixed(1)} m/s`, `${s.residual >= 0 ? '+' : ''}${s.residual.toFixed(2)} m/s`, s.normalizedResidual.toFixed(2));
     else cells.push(`not fitted: ${view.leftOut.find((x) => x.number === p.number)?.reason ?? 'no fit'}`);
     cells.forEach((t, i) => doc.text(t, cols[i], y, { lineBreak: false, width: i === 3 && !s ? width - (cols[3] - left) : undefined }));
-    doc.moveDown(0.75);
+    doc.y = y + 11;
   }
 
   heading('Launcher model fitted to the shots');

@@ -90,7 +90,7 @@ export function TrendPlot({ xLabel, logX = false, integerX = false, series, curv
       cursor: { points: { size: 8 } },
       scales: {
         x: logX
-          ? { time: false, distr: 3, log: 10 }
+          ? { time: false, distr: 3, log: 10, range: (_u, min, max) => [min / 1.4, max * 1.4] }
           : integerX ? { time: false, range: (_u, min, max) => [Math.floor(min) - 0.5, Math.ceil(max) + 0.5] } : { time: false },
         y: { range: () => [yFloor == null ? lo - pad : Math.max(yFloor, lo - pad), hi + pad] },
       },

@@ -224,7 +224,7 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
       </div>
 
       {view && (
-        <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+        <div className="grid items-start gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
           <LauncherFitCard view={view} />
           {fitted && (
             <Card title="Residuals: measured − fitted model">
