@@ -71,6 +71,29 @@ export const trendsQuery = z.object({
 });
 export type TrendsQuery = z.infer<typeof trendsQuery>;
 
+/**
+ * One analysed shot of a campaign as the trends page, the launcher fit and the campaign report read it (SI units).
+ * `When` is a Date on the server and its ISO string once sent as JSON.
+ */
+export interface TrendPoint<When = string> {
+  shotId: string;
+  number: number;
+  firedAt: When | null;
+  tubePressurePa: number | null;
+  sealType: string;
+  /** The outside air logged with the shot, Pa and K. */
+  ambientPressurePa: number | null;
+  ambientTemperatureK: number | null;
+  projectileId: string | null;
+  projectileName: string | null;
+  speed: number | null;
+  /** Expanded uncertainty U (k = 2), m/s. */
+  uncertainty: number | null;
+  method: string | null;
+  status: string;
+  analysisVersion: number;
+}
+
 /** Summary of one group of shots' speeds, m/s. Standard deviation is the sample one (n − 1); null below two shots. */
 export interface TrendGroupStats {
   key: string;

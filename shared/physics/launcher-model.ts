@@ -1,20 +1,11 @@
 import { GAMMA_AIR, R_AIR } from '../analysis/speed-of-sound.ts';
+import { assertPositiveQuantity } from './assert-positive-quantity.ts';
 
 /** Standard atmosphere at sea level, Pa (ISO 2533 / U.S. Standard Atmosphere 1976). */
 const STANDARD_ATMOSPHERE = 101_325;
 
-export interface LauncherModelOptions {
-  /** Length of the evacuated tube the ball is driven along, m. */
-  tubeLength: number;
-  /** Inner diameter of the tube (the ball seals the bore), m. */
-  boreDiameter: number;
-  /** Mass of the ball, kg. */
-  mass: number;
-  /**
-   * Pressure left in the tube before the seal opens, Pa.
-   * @default 0
-   */
-  tubePressure?: number;
+/** The outside air that drives a launcher (and fills its tube before pumping). */
+export interface LauncherAir {
   /**
    * Pressure of the air outside, which drives the ball once the seal opens, Pa.
    * @default 101325 (ISO 2533 standard atmosphere)
@@ -37,6 +28,20 @@ export interface LauncherModelOptions {
   gasConstant?: number;
 }
 
+export interface LauncherModelOptions extends LauncherAir {
+  /** Length of the evacuated tube the ball is driven along, m. */
+  tubeLength: number;
+  /** Inner diameter of the tube (the ball seals the bore), m. */
+  boreDiameter: number;
+  /** Mass of the ball, kg. */
+  mass: number;
+  /**
+   * Pressure left in the tube before the seal opens, Pa.
+   * @default 0
+   */
+  tubePressure?: number;
+}
+
 export interface LauncherPrediction {
   /** Zeroth-order exit speed √(2·P₀·A·L/m), m/s. */
   speed: number;
@@ -50,11 +55,6 @@ export interface LauncherPrediction {
   gasDynamicLimit: number;
   /** Tube length at which the zeroth-order speed reaches the speed of sound, m·c²/(2·P₀·A); beyond it the model is surely too high. */
   soundSpeedLength: number;
-}
-
-function assertPositive(name: string, value: number, unit: string) {
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new TypeError(`${name} must be a finite number of ${unit}`);
-  if (!(value > 0)) throw new RangeError(`${name} must be greater than 0 ${unit} (got ${value})`);
 }
 
 /**
@@ -81,12 +81,12 @@ export function launcherModel(options: LauncherModelOptions): LauncherPrediction
     gamma = GAMMA_AIR,
     gasConstant = R_AIR,
   } = options;
-  assertPositive('tubeLength', tubeLength, 'm');
-  assertPositive('boreDiameter', boreDiameter, 'm');
-  assertPositive('mass', mass, 'kg');
-  assertPositive('ambientPressure', ambientPressure, 'Pa');
-  assertPositive('ambientTemperature', ambientTemperature, 'K');
-  assertPositive('gasConstant', gasConstant, 'J/(kg·K)');
+  assertPositiveQuantity('tubeLength', tubeLength, 'm');
+  assertPositiveQuantity('boreDiameter', boreDiameter, 'm');
+  assertPositiveQuantity('mass', mass, 'kg');
+  assertPositiveQuantity('ambientPressure', ambientPressure, 'Pa');
+  assertPositiveQuantity('ambientTemperature', ambientTemperature, 'K');
+  assertPositiveQuantity('gasConstant', gasConstant, 'J/(kg·K)');
   if (typeof gamma !== 'number' || !Number.isFinite(gamma)) throw new TypeError('gamma must be a finite number');
   if (!(gamma > 1)) throw new RangeError(`gamma must be greater than 1 (got ${gamma})`);
   if (typeof tubePressure !== 'number' || !Number.isFinite(tubePressure)) throw new TypeError('tubePressure must be a finite number of Pa');

@@ -1,11 +1,13 @@
 import { GAMMA_AIR, R_AIR } from '../analysis/speed-of-sound.ts';
+import { assertPositiveQuantity } from './assert-positive-quantity.ts';
 import { expansionBasePressure } from './expansion-base-pressure.ts';
+import type { LauncherAir } from './launcher-model.ts';
 import { orificeMassFlow } from './orifice-mass-flow.ts';
 
 /** Standard atmosphere at sea level, Pa (ISO 2533 / U.S. Standard Atmosphere 1976). */
 const STANDARD_ATMOSPHERE = 101_325;
 
-export interface LauncherShotOptions {
+export interface LauncherShotOptions extends LauncherAir {
   /** Length of tube the projectile runs along, from the entrance seal to the exit seal, m. */
   tubeLength: number;
   /** Inner diameter of the tube, m. */
@@ -23,20 +25,6 @@ export interface LauncherShotOptions {
    * @default 0
    */
   tubePressure?: number;
-  /**
-   * Pressure of the outside air that drives the projectile, Pa.
-   * @default 101325 (ISO 2533 standard atmosphere)
-   */
-  ambientPressure?: number;
-  /**
-   * Temperature of the outside air (and of the air left in the tube), K.
-   * @default 293.15
-   */
-  ambientTemperature?: number;
-  /** @default 1.4 (dry air, U.S. Standard Atmosphere 1976) */
-  gamma?: number;
-  /** @default 287.053 J/(kg·K) (dry air, U.S. Standard Atmosphere 1976) */
-  gasConstant?: number;
   /**
    * Effective sliding friction between projectile and bore, a constant force against the motion, N.
    * @default 0
@@ -105,10 +93,6 @@ export interface LauncherShotResult {
 const X = 0, V = 1, PA = 2, WD = 3, WA = 4, WF = 5, ML = 6, HL = 7, EV = 8;
 const N = 9;
 
-function finitePositive(name: string, value: number, unit: string) {
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new TypeError(`${name} must be a finite number of ${unit}`);
-  if (!(value > 0)) throw new RangeError(`${name} must be greater than 0 ${unit} (got ${value})`);
-}
 function finiteNonNegative(name: string, value: number, unit: string) {
   if (typeof value !== 'number' || Number.isNaN(value)) throw new TypeError(`${name} must be a number of ${unit}`);
   if (!(value >= 0)) throw new RangeError(`${name} must be 0 ${unit} or more (got ${value})`);
@@ -148,13 +132,13 @@ export function simulateLauncherShot(options: LauncherShotOptions): LauncherShot
     drive = 'unsteady-expansion', steps = 1000,
   } = options;
   const projectileDiameter = options.projectileDiameter ?? boreDiameter;
-  finitePositive('tubeLength', L, 'm');
-  finitePositive('boreDiameter', boreDiameter, 'm');
-  finitePositive('projectileDiameter', projectileDiameter, 'm');
-  finitePositive('mass', m, 'kg');
-  finitePositive('ambientPressure', P0, 'Pa');
-  finitePositive('ambientTemperature', T0, 'K');
-  finitePositive('gasConstant', R, 'J/(kg·K)');
+  assertPositiveQuantity('tubeLength', L, 'm');
+  assertPositiveQuantity('boreDiameter', boreDiameter, 'm');
+  assertPositiveQuantity('projectileDiameter', projectileDiameter, 'm');
+  assertPositiveQuantity('mass', m, 'kg');
+  assertPositiveQuantity('ambientPressure', P0, 'Pa');
+  assertPositiveQuantity('ambientTemperature', T0, 'K');
+  assertPositiveQuantity('gasConstant', R, 'J/(kg·K)');
   finiteNonNegative('tubePressure', tubePressure, 'Pa');
   finiteNonNegative('frictionForce', frictionForce, 'N');
   finiteNonNegative('leakArea', leakArea, 'm²');

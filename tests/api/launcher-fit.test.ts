@@ -13,6 +13,7 @@ import { createRandom } from '../../shared/analysis/create-random.ts';
 import { simulateLauncherShot } from '../../shared/physics/simulate-launcher-shot.ts';
 import { Analysis, AuditEvent, Campaign, Projectile, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { binaryBody } from '../helpers/binary-body.ts';
 
 let h: ApiHarness;
 let labId: string;
@@ -54,11 +55,6 @@ afterAll(() => h?.close());
 
 const as = (who: 'experimenter' | 'reviewer') => ({ Cookie: h.sessionCookie(h.demo.users[who].id) });
 const trends = (id: string, query = '') => request(h.app).get(`/api/labs/${labId}/campaigns/${id}/trends${query}`).set(as('reviewer'));
-const binary = (res: { on(event: string, listener: (chunk: Buffer) => void): unknown }, cb: (err: Error | null, body: unknown) => void) => {
-  const chunks: Buffer[] = [];
-  res.on('data', (c) => chunks.push(c));
-  res.on('end', () => cb(null, Buffer.concat(chunks)));
-};
 
 describe('the launcher fit of a campaign', () => {
   it('When the trends are read, then the fit finds the known friction and leak within their uncertainty and says which shots it used', async () => {
@@ -122,7 +118,7 @@ describe('the launcher fit of a campaign', () => {
   });
 
   it('When the campaign report is printed, then the PDF has the shots, the fitted losses with U, χ²/ν, the energy breakdown, the assumptions and the cautions', async () => {
-    const res = await request(h.app).get(`/api/labs/${labId}/campaigns/${campaignId}/report.pdf`).set(as('experimenter')).buffer(true).parse(binary);
+    const res = await request(h.app).get(`/api/labs/${labId}/campaigns/${campaignId}/report.pdf`).set(as('experimenter')).buffer(true).parse(binaryBody);
     expect(res.status, String(res.body)).toBe(200);
     expect(res.headers['content-type']).toBe('application/pdf');
     expect(res.headers['content-disposition']).toBe('attachment; filename=fit-check-report.pdf');

@@ -8,6 +8,7 @@ import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { AuditEvent } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { binaryBody } from '../helpers/binary-body.ts';
 import { analysedShot } from './review-fixtures.ts';
 
 let h: ApiHarness;
@@ -22,12 +23,6 @@ beforeAll(async () => {
 afterAll(() => h?.close());
 
 const as = (who: 'admin' | 'experimenter' | 'analyst' | 'reviewer') => ({ Cookie: h.sessionCookie(h.demo.users[who].id) });
-/** supertest keeps unknown content types out of `body`: collect the PDF's bytes ourselves. */
-const binary = (res: { on(event: string, listener: (chunk: Buffer) => void): unknown }, cb: (err: Error | null, body: unknown) => void) => {
-  const chunks: Buffer[] = [];
-  res.on('data', (c) => chunks.push(c));
-  res.on('end', () => cb(null, Buffer.concat(chunks)));
-};
 
 describe('shot report PDF', () => {
   it('When a signed-off shot is printed, then the PDF has the conditions, the result with U and k, the budget, the traces, the version, the sign-off and the safety note', async () => {
@@ -36,7 +31,7 @@ describe('shot report PDF', () => {
     expect((await request(h.app).post(`/api/shots/${shot.shotId}/review-requests`).set(as('analyst')).send({})).status).toBe(201);
     expect((await request(h.app).post(`/api/shots/${shot.shotId}/reviews`).set(as('reviewer')).send({ decision: 'approved' })).status).toBe(201);
 
-    const res = await request(h.app).get(`/api/shots/${shot.shotId}/report.pdf`).set(as('experimenter')).buffer(true).parse(binary);
+    const res = await request(h.app).get(`/api/shots/${shot.shotId}/report.pdf`).set(as('experimenter')).buffer(true).parse(binaryBody);
     expect(res.status, String(res.body)).toBe(200);
     expect(res.headers['content-type']).toBe('application/pdf');
     expect(res.headers['content-disposition']).toBe(`attachment; filename=vacuum-sweep-autumn-2026-shot-${shot.shotNumber}-v1.pdf`);
@@ -73,7 +68,7 @@ describe('shot report PDF', () => {
   });
 
   it('When a shot without an analysis is printed, then the PDF says so and "Not signed off"', async () => {
-    const res = await request(h.app).get(`/api/shots/${h.demo.hollowmere.shotIds[0]}/report.pdf`).set(as('reviewer')).buffer(true).parse(binary);
+    const res = await request(h.app).get(`/api/shots/${h.demo.hollowmere.shotIds[0]}/report.pdf`).set(as('reviewer')).buffer(true).parse(binaryBody);
     expect(res.status, String(res.body)).toBe(200);
     const file = path.join(outDir, 'no-analysis.pdf');
     writeFileSync(file, res.body as Buffer);

@@ -2,14 +2,13 @@
 // known friction (2.5 N) and leak area (1.2 mm²) shows the fitted values with U, the fitted curve with its band on
 // the vacuum plot, the residual plot, where the speed goes, the inverse question and the cautions beside them.
 // Screenshots at 1280 and 820 px wide land in .test-artifacts/screenshots/ (launcher-fit*.png); look at them.
-import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createRandom } from '../../shared/analysis/create-random.ts';
 import { simulateLauncherShot } from '../../shared/physics/simulate-launcher-shot.ts';
 import { Analysis, Campaign, Projectile, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { launchBrowser, saveScreenshotsAtBothWidths } from '../helpers/browser.ts';
 
 let harness: ApiHarness;
 let app: AppProcesses;
@@ -37,14 +36,6 @@ afterAll(async () => {
   await harness?.close();
 });
 
-async function both(page: Page, name: string) {
-  await saveScreenshot(page, name);
-  await page.setViewportSize({ width: 820, height: 1100 });
-  await page.waitForTimeout(400);
-  await saveScreenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-  await page.waitForTimeout(200);
-}
 
 describe('launcher model fitted on the trends page', () => {
   it('When the trends page opens, then the fitted losses, the band, the residuals, the inverse answer and the cautions show', async () => {
@@ -79,7 +70,7 @@ describe('launcher model fitted on the trends page', () => {
       await page.getByLabel('What vacuum for a target speed? (m/s)').fill('200');
       await expect.poll(() => page.getByTestId('inverse-answer').textContent()).toMatch(/For 200\.0 m\/s the fitted model needs the tube at \d+\.\d+ ± \d+\.\d+ kPa/);
       await page.waitForTimeout(500);
-      await both(page, 'launcher-fit');
+      await saveScreenshotsAtBothWidths(page, 'launcher-fit');
       await page.getByLabel('What vacuum for a target speed? (m/s)').fill('900');
       await expect.poll(() => page.getByTestId('inverse-answer').textContent()).toContain('does not reach 900.0 m/s by pumping harder');
       await expect(page.getByTestId('inverse-answer').textContent()).resolves.toContain('Gatepost gives no advice on changing the launcher');

@@ -14,7 +14,7 @@ import { pollUntil, signIn as apiSignIn, simulatedCsv, type PipelineClient } fro
 import { Campaign, Projectile } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness, type DemoActor } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { launchBrowser, saveScreenshot, saveScreenshotsAtBothWidths } from '../helpers/browser.ts';
 
 const FIXTURES = path.resolve(import.meta.dirname, '../../fixtures/captures');
 const fixture = (name: string) => new Uint8Array(readFileSync(path.join(FIXTURES, name)));
@@ -76,15 +76,7 @@ async function signedIn(role: Exclude<DemoActor, 'otherLabAdmin'>) {
   return { context, page };
 }
 
-/** A screenshot at the laptop size and one at 820 wide (a tablet held upright), then back. */
-async function both(page: Page, name: string) {
-  await saveScreenshot(page, name);
-  await page.setViewportSize({ width: 820, height: 1100 });
-  await page.waitForTimeout(400);
-  await saveScreenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-  await page.waitForTimeout(200);
-}
+const both = saveScreenshotsAtBothWidths;
 
 const shotUrl = (id: string) => `${app.baseUrl}/labs/${labId}/shots/${id}`;
 const reviewBar = (page: Page) => page.getByRole('region', { name: 'Review', exact: true });

@@ -73,3 +73,13 @@ export async function saveScreenshot(page: Page, name: string): Promise<string> 
   await page.screenshot({ path: file, fullPage: true });
   return file;
 }
+
+/** A full-page screenshot at the laptop size and one at 820 px wide (a tablet held upright, `<name>-820`), then back. */
+export async function saveScreenshotsAtBothWidths(page: Page, name: string): Promise<void> {
+  await saveScreenshot(page, name);
+  await page.setViewportSize({ width: 820, height: 1100 });
+  await page.waitForTimeout(400);
+  await saveScreenshot(page, `${name}-820`);
+  await page.setViewportSize({ width: 1280, height: 800 });
+  await page.waitForTimeout(200);
+}

@@ -1,24 +1,9 @@
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
+import type { TrendPoint as SharedTrendPoint } from '../../../shared/contracts/review.ts';
 import { Analysis, Projectile, Shot, type Campaign } from '../../db/models/index.ts';
 
-/** One analysed shot of a campaign as the trends page, the launcher fit and the campaign report read it (SI). */
-export interface TrendPoint {
-  shotId: string;
-  number: number;
-  firedAt: Date | null;
-  tubePressurePa: number | null;
-  sealType: string;
-  ambientPressurePa: number | null;
-  ambientTemperatureK: number | null;
-  projectileId: string | null;
-  projectileName: string | null;
-  speed: number | null;
-  /** Expanded uncertainty U (k = 2), m/s. */
-  uncertainty: number | null;
-  method: string | null;
-  status: string;
-  analysisVersion: number;
-}
+/** A campaign's shot on the server (`firedAt` still a Date). */
+export type TrendPoint = SharedTrendPoint<Date>;
 
 /** Every shot of the campaign whose current analysis finished, in shot-number order. */
 export async function campaignTrendPoints(campaign: Campaign): Promise<TrendPoint[]> {

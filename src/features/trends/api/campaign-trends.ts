@@ -1,28 +1,11 @@
 import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
 import { api } from '../../../lib/api-client.ts';
 import type { LauncherFitView } from '../../../../shared/contracts/launcher-fit.ts';
-import type { TrendGroupStats } from '../../../../shared/contracts/review.ts';
+import type { TrendGroupStats, TrendPoint } from '../../../../shared/contracts/review.ts';
 
 export type GroupBy = 'seal' | 'projectile' | 'none';
 
-/** One analysed shot of the campaign (SI units). */
-export interface TrendPoint {
-  shotId: string;
-  number: number;
-  firedAt: string | null;
-  tubePressurePa: number | null;
-  sealType: string;
-  /** The outside air logged with the shot, Pa and K. */
-  ambientPressurePa: number | null;
-  ambientTemperatureK: number | null;
-  projectileId: string | null;
-  projectileName: string | null;
-  speed: number | null;
-  uncertainty: number | null;
-  method: string | null;
-  status: string;
-  analysisVersion: number;
-}
+export type { TrendPoint };
 
 export interface CampaignTrends {
   /** With the campaign's launcher tube (m; null when not logged). */
