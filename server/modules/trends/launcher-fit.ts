@@ -61,13 +61,29 @@ export function campaignLauncherFit(points: TrendPoint[], inputs: LauncherFitInp
 
   const shots: LauncherFitShot[] = used.map((p) => ({
     tubePressure: p.tubePressurePa!, ambientPressure: p.ambientPressurePa ?? DEFAULT_AIR.pressurePa, ambientTemperature: p.ambientTemperatureK ?? DEFAULT_AIR.temperatureK,
-    speed: p.speed!, expandedUncertainty: p.uncertainty!, coverageFactor: K,
+    // The engine reports U with k = 2 (SpeedResult.coverage).
+    speed: p.speed!, expandedUncertainty: p.uncertainty!, coverageFactor: 2,
   }));
-  const key = JSON.stringify([launcher, shots, inputs.targetSpeedMs ?? null]);
-  const cached = CACHE.get(key);
-  if (cached) return cached;
+  const key = JSON.stringify([launcher, shots]);
+  let view = CACHE.get(key);
+  if (!view) {
+    try {
+      view = fittedView(launcher, used, shots, massKg, leftOut);
+    } catch (err) {
+      // Inputs the physics refuses (RangeError/TypeError with a message naming the value) become a reason, not a 500.
+      if (!(err instanceof RangeError || err instanceof TypeError)) throw err;
+      return notFitted(`The fit could not run: ${err.message}`, launcher, leftOut);
+    }
+    if (CACHE.size >= CACHE_SIZE) CACHE.delete(CACHE.keys().next().value!);
+    CACHE.set(key, view);
+  }
+  // The inverse question is cheap beside the fit: answered per request from the kept fit.
+  return inputs.targetSpeedMs != null && view.fit ? { ...view, inverse: vacuumForTargetSpeed(view.fit, inputs.targetSpeedMs) } : view;
+}
 
-  const fit = fitLauncherLosses({ tubeLength: launcher.tubeLengthM, boreDiameter: launcher.boreM, projectileDiameter: launcher.projectileDiameterM, mass: massKg, shots });
+/** Fits the model to the chosen shots and draws its curve, k = 2 bands and loss budget. */
+function fittedView(launcher: LauncherFitView['launcher'], used: TrendPoint[], shots: LauncherFitShot[], massKg: number, leftOut: LauncherFitView['leftOut']): LauncherFitView {
+  const fit = fitLauncherLosses({ tubeLength: launcher.tubeLengthM!, boreDiameter: launcher.boreM!, projectileDiameter: launcher.projectileDiameterM!, mass: massKg, shots });
   const pressures = shots.map((s) => s.tubePressure);
   const best = Math.min(...pressures);
   const low = Math.max(10, best / 3);
@@ -79,20 +95,16 @@ export function campaignLauncherFit(points: TrendPoint[], inputs: LauncherFitInp
     const at = predictLauncherSpeed(fit, p);
     curve.push({
       tubePressurePa: p, speed: at.speed, expandedUncertainty: K * at.standardUncertainty, predictionExpandedUncertainty: K * at.predictionUncertainty,
-      zerothOrder: launcherModel({ tubeLength: launcher.tubeLengthM, boreDiameter: launcher.boreM, mass: massKg, tubePressure: p, ambientPressure: fit.reference.ambientPressure, ambientTemperature: fit.reference.ambientTemperature }).speed,
+      zerothOrder: launcherModel({ tubeLength: launcher.tubeLengthM!, boreDiameter: launcher.boreM!, mass: massKg, tubePressure: p, ambientPressure: fit.reference.ambientPressure, ambientTemperature: fit.reference.ambientTemperature }).speed,
     });
   }
-  const view: LauncherFitView = {
+  return {
     status: 'fitted', reason: null, coverageFactor: K, launcher,
     shotsUsed: used.map((p) => p.number), leftOut,
     airAssumed: used.filter((p) => p.ambientPressurePa == null || p.ambientTemperatureK == null).map((p) => p.number),
-    fit, budget: launcherLossBudget(fit, best), curve,
-    inverse: inputs.targetSpeedMs != null ? vacuumForTargetSpeed(fit, inputs.targetSpeedMs) : null,
+    fit, budget: launcherLossBudget(fit, best), curve, inverse: null,
     assumptions: LAUNCHER_MODEL_ASSUMPTIONS, cautions: LAUNCHER_MODEL_CAUTIONS,
   };
-  if (CACHE.size >= CACHE_SIZE) CACHE.delete(CACHE.keys().next().value!);
-  CACHE.set(key, view);
-  return view;
 }
 
 /** The campaign's most used projectile among the points (null when none logged one). */
