@@ -20,6 +20,9 @@ export const channelFilesSchema = z.object({
       last: z.number().nullable(),
     }),
   ]),
+  /** How the time base was found and what the values are (the importer's timeOrigin and valueKind), when known. */
+  timeOrigin: z.object({ how: z.enum(['time-column', 'metadata', 'rebuilt', 'given']), source: z.string(), assumed: z.boolean() }).optional(),
+  valueKind: z.enum(['physical', 'codes']).optional(),
   channels: z.array(
     z.object({
       index: z.number().int().min(0),
@@ -30,6 +33,11 @@ export const channelFilesSchema = z.object({
       length: z.number().int().min(0),
       factor: z.number().int().min(2),
       samplesKey: z.string(),
+      /**
+       * The importer's values at full precision, for the analysis (absent on captures stored before it was kept):
+       * Float64 LE, or the Float32 samples file itself when the capture was read at Float32 precision.
+       */
+      values: z.object({ key: z.string(), type: z.enum(['f32', 'f64']) }).optional(),
       levels: z.array(
         z.object({
           /** 1, 2, …: blocks of factor^level samples. */

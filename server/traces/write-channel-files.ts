@@ -23,9 +23,11 @@ export function captureFilesPrefix(labId: string, captureId: string): string {
  * explicit time column as Float64 (`…/time.f64`). Returns the descriptor to keep in the Capture row.
  *
  * Float32 (24-bit mantissa, ~7 significant digits) is far finer than a scope's 8–12-bit ADC and a screen's
- * pixels, so it is enough for display; the analysis never reads these files, it runs on the importer's
- * full-precision arrays. The pyramid is built from the full-precision values and then rounded: rounding is
- * monotone, so round(min x) = min(round x) and the levels agree exactly with the stored samples.
+ * pixels, so it is enough for display. The analysis must see exactly what the importer returned, so Float64
+ * values are also kept whole (`…/ch<i>/values.f64`, read back by readStoredChannels instead of parsing the raw
+ * file again); values read at Float32 precision are already whole in `samples.f32`. The pyramid is built from
+ * the full-precision values and then rounded: rounding is monotone, so round(min x) = min(round x) and the
+ * levels agree exactly with the stored samples.
  * Rewriting the same capture overwrites the same keys, so a retried ingest job leaves nothing doubled.
  */
 export async function writeChannelFiles(
@@ -60,6 +62,13 @@ export async function writeChannelFiles(
     const folder = `${prefix}/ch${index}`;
     const samplesKey = `${folder}/samples.f32`;
     await store.putBytes(samplesKey, float32Bytes(channel.values));
+    let values: ChannelFiles['channels'][number]['values'];
+    if (channel.values instanceof Float64Array) {
+      values = { key: `${folder}/values.f64`, type: 'f64' };
+      await store.putBytes(values.key, float64Bytes(channel.values));
+    } else {
+      values = { key: samplesKey, type: 'f32' };
+    }
     const levels: ChannelFiles['channels'][number]['levels'] = [];
     const pyramid = buildMinMaxPyramid(channel.values, { factor, maxTopPairs });
     for (let k = 0; k < pyramid.length; k++) {
@@ -76,8 +85,14 @@ export async function writeChannelFiles(
       length,
       factor,
       samplesKey,
+      values,
       levels,
     });
   }
-  return { format: 'gatepost-channel-files-1', length, time, channels };
+  return {
+    format: 'gatepost-channel-files-1', length, time,
+    ...(capture.timeOrigin && { timeOrigin: capture.timeOrigin }),
+    ...(capture.valueKind && { valueKind: capture.valueKind }),
+    channels,
+  };
 }

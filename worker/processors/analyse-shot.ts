@@ -8,12 +8,13 @@ import { combineCaptures } from '../../shared/import/combine-captures.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
 import { recordAudit } from '../../server/lib/audit.ts';
+import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { settleShotFromAnalysis } from '../settle-shot.ts';
 
 /**
- * Analysis job: run the engine on the captures the version names, with its stored parameters, and store the
+ * Analysis job: run the engine on the captures the version names (read from their stored channel files), with its stored parameters, and store the
  * results on that version. Idempotent: the row exists before the job, a finished version is left alone, and the
  * final write only happens while the row is not yet done.
  */
@@ -33,7 +34,9 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
     const ordered = ids.map((id) => rows.find((r) => r.id === id)).filter((r): r is Capture => !!r);
     if (ordered.length !== ids.length) throw new ImportError('a capture this analysis reads no longer exists');
     const imported: ImportedCapture[] = [];
-    for (const c of ordered) imported.push(await readStoredCapture(blobStore, c));
+    // The channel files the ingest stored hold the importer's values whole; only captures stored before they did
+    // are imported from the raw file again.
+    for (const c of ordered) imported.push((await readStoredChannels(blobStore, c)) ?? (await readStoredCapture(blobStore, c)));
     await analysis.update({ progress: 50 });
     await job.updateProgress(50);
     const capture = imported.length === 1 ? imported[0] : combineCaptures(imported, { labels: ordered.map((c) => c.fileName) });
