@@ -5,6 +5,7 @@
  * and analysing the same file in this process (readCaptureFile + analyzeShot), which is the work the pipeline wraps.
  * Target (issue 5): median ≤ 1 s. The first shot pays for the worker threads loading the TypeScript processors, so
  * it is reported apart (cold) from the other 19 (warm). Figures only, no pass/fail.
+ * With `--deep`: the 10-million-sample capture against the CLI instead (bench/pipeline-deep.ts).
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
@@ -14,6 +15,7 @@ import { analyzeShot } from '../shared/analysis/analyze-shot.ts';
 import { demoAccounts } from '../server/db/seeders/demo.ts';
 import { readCaptureFile } from '../worker/import/read-capture-file.ts';
 import { startBenchApp } from './lib/bench-app.ts';
+import { runDeepPipelineBench } from './pipeline-deep.ts';
 import { pollUntil, signIn, simulatedCsv } from './lib/pipeline-client.ts';
 
 const SHOTS = 20;
@@ -133,4 +135,5 @@ async function main(): Promise<void> {
   }
 }
 
-await main();
+if (process.argv.includes('--deep')) await runDeepPipelineBench();
+else await main();

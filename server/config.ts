@@ -41,6 +41,11 @@ const schema = z.object({
   s3ForcePathStyle: z.stringbool().default(true),
   /** Largest scope file one upload may carry. */
   uploadLimitBytes: z.coerce.number().int().positive().default(2 * 1024 ** 3),
+  /**
+   * Uploads at least this large (the request's length) are read by the API while their bytes arrive, in a thread,
+   * so their channels are stored when the last byte is; smaller ones are read by the worker. -1: never.
+   */
+  readUploadsFromBytes: z.coerce.number().int().min(-1).default(16 * 1024 ** 2),
   /** How long a worker holds a job before another may take it over (stalled-job recovery), ms. */
   jobLockMs: z.coerce.number().int().min(1000).default(30_000),
   /** How often the worker re-queues captures and analyses whose job never reached Redis, ms. */
@@ -78,6 +83,7 @@ const envNames: Record<keyof Config, string> = {
   s3SecretAccessKey: 'GATEPOST_S3_SECRET_ACCESS_KEY',
   s3ForcePathStyle: 'GATEPOST_S3_FORCE_PATH_STYLE',
   uploadLimitBytes: 'GATEPOST_UPLOAD_LIMIT_BYTES',
+  readUploadsFromBytes: 'GATEPOST_READ_UPLOADS_FROM_BYTES',
   jobLockMs: 'GATEPOST_JOB_LOCK_MS',
   sweepIntervalMs: 'GATEPOST_SWEEP_INTERVAL_MS',
 };

@@ -21,6 +21,12 @@ export interface JobQueues {
    * the work, so a failed add is logged, never thrown at the person who asked.
    */
   addIngestOrDefer(data: IngestJobData, logger: Logger): Promise<void>;
+  /**
+   * Queues the ingest held back for `holdMs` (a safety net while the API reads the upload itself); true when queued.
+   * releaseIngest lets it run now; if the API goes away first, it runs when the hold ends.
+   */
+  addIngestHeld(data: IngestJobData, holdMs: number): Promise<boolean>;
+  releaseIngest(data: IngestJobData): Promise<void>;
   addAnalysisOrDefer(data: AnalysisJobData, logger: Logger): Promise<void>;
   /**
    * The job of this work if BullMQ holds it as failed for good (its retries spent, or unrecoverable), else null.
@@ -72,6 +78,19 @@ export function createJobQueues(redisUrl: string): JobQueues {
     failedIngest: (data) => failedFor(ingest, ingestJobId(data)),
     failedAnalysis: (data) => failedFor(analysis, analysisJobId(data)),
     addIngestOrDefer: orDefer(addIngest, 'ingest'),
+    async addIngestHeld(data, holdMs) {
+      try {
+        await ingest.add(JOB_NAMES.ingest, data, { jobId: ingestJobId(data), delay: holdMs });
+        return true;
+      } catch {
+        return false;
+      }
+    },
+    async releaseIngest(data) {
+      const job = await ingest.getJob(ingestJobId(data));
+      // A job whose hold ran out meanwhile is already waiting or running: nothing to promote.
+      if (job && (await job.isDelayed())) await job.promote().catch(() => {});
+    },
     addAnalysisOrDefer: orDefer(addAnalysis, 'analysis'),
     async close() {
       await Promise.allSettled([ingest.close(), analysis.close()]);

@@ -24,6 +24,13 @@ export interface BlobStore {
   delete(key: string): Promise<void>;
   /** Path of the blob on this machine's disk, for stores that have one (local disk only). */
   localPathOf?(key: string): string;
+  /** A fresh path on the store's own disk where a file being received can be written (local disk only). */
+  stagingPath?(): Promise<string>;
+  /**
+   * Makes the complete file at `localPath` (from stagingPath) the blob under `key` without copying it: synced,
+   * then renamed into place (local disk only). The file is gone from `localPath` afterwards.
+   */
+  adoptFile?(key: string, localPath: string): Promise<void>;
 }
 
 /** The key names no blob. `code` lets callers tell it apart without instanceof across module copies. */

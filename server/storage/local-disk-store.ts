@@ -109,34 +109,59 @@ export class LocalDiskStore implements BlobStore {
     }
   }
 
-  private async writeAtomically(key: string, fill: (tmp: string) => Promise<void>): Promise<void> {
+  /**
+   * A fresh path in `<root>/.incoming` (outside the key space), on the same disk as the blobs, for a file that is
+   * being received and will become a blob through adoptFile.
+   */
+  async stagingPath(): Promise<string> {
+    const dir = path.join(this.rootDir, '.incoming');
+    await mkdir(dir, { recursive: true });
+    return path.join(dir, `${process.pid}.${randomBytes(9).toString('hex')}.tmp`);
+  }
+
+  async adoptFile(key: string, localPath: string): Promise<void> {
+    const target = await this.targetFolder(key);
+    await placeFile(localPath, target);
+  }
+
+  /** The blob's path, with its folder made (and each new folder's entry synced: a power cut must not lose it). */
+  private async targetFolder(key: string): Promise<string> {
     const target = this.localPathOf(key);
     const dir = path.dirname(target);
     const created = await mkdir(dir, { recursive: true });
-    // New folders are directory entries too: sync each new folder's parent, or a power cut could lose the path.
     if (created) {
       for (let d = dir; ; d = path.dirname(d)) {
         await syncDir(path.dirname(d));
         if (d === created || d === path.dirname(d)) break;
       }
     }
+    return target;
+  }
+
+  private async writeAtomically(key: string, fill: (tmp: string) => Promise<void>): Promise<void> {
+    const target = await this.targetFolder(key);
     // Leading "." keeps temporaries out of the key space (assertBlobKey refuses such names).
-    const tmp = path.join(dir, `.${path.basename(target)}.${process.pid}.${randomBytes(6).toString('hex')}.tmp`);
+    const tmp = path.join(path.dirname(target), `.${path.basename(target)}.${process.pid}.${randomBytes(6).toString('hex')}.tmp`);
     try {
       await fill(tmp);
-      const fh = await open(tmp, 'r+');
-      try {
-        await fh.sync();
-      } finally {
-        await fh.close();
-      }
-      await rename(tmp, target);
+      await placeFile(tmp, target);
     } catch (err) {
       await rm(tmp, { force: true });
       throw err;
     }
-    await syncDir(dir);
   }
+}
+
+/** Syncs a complete file, renames it over `target` (same disk: no copy) and syncs the folder. */
+async function placeFile(file: string, target: string): Promise<void> {
+  const fh = await open(file, 'r+');
+  try {
+    await fh.sync();
+  } finally {
+    await fh.close();
+  }
+  await rename(file, target);
+  await syncDir(path.dirname(target));
 }
 
 /** Makes a rename durable: the new directory entry must reach the disk too (POSIX: fsync the directory). */

@@ -37,9 +37,33 @@ export async function writeChannelFiles(
   capture: ImportedCapture,
   options: WriteChannelFilesOptions = {},
 ): Promise<ChannelFiles> {
+  const { files, blobs } = placeChannelFiles(captureFilesPrefix(labId, captureId), channelFilesOf(capture, options));
+  await putChannelBlobs(store, blobs);
+  return files;
+}
+
+/** One file to store: its key and bytes. */
+export interface ChannelBlob {
+  key: string;
+  bytes: Uint8Array;
+}
+
+/** A capture's channel files: the descriptor and the bytes of each file. */
+export interface PreparedChannelFiles {
+  files: ChannelFiles;
+  blobs: ChannelBlob[];
+}
+
+/**
+ * The work of writeChannelFiles that needs no store and no capture id (the Float32 copies, the pyramids, the
+ * descriptor), with keys relative to the capture's folder (`ch0/samples.f32`), so a worker thread can do it before
+ * the Capture row exists and hand the bytes over; placeChannelFiles puts the keys in the folder, putChannelBlobs
+ * stores them.
+ */
+export function channelFilesOf(capture: ImportedCapture, options: WriteChannelFilesOptions = {}): PreparedChannelFiles {
   const { factor = 16, maxTopPairs = 1024 } = options;
-  const prefix = captureFilesPrefix(labId, captureId);
   const { length } = capture;
+  const blobs: ChannelBlob[] = [];
 
   let time: ChannelFiles['time'];
   if (capture.time.kind === 'uniform') {
@@ -48,8 +72,8 @@ export async function writeChannelFiles(
   } else {
     const t = capture.time.t;
     if (t.length !== length) throw new RangeError(`explicit time base has ${t.length} times for ${length} samples`);
-    const key = `${prefix}/time.f64`;
-    await store.putBytes(key, float64Bytes(t));
+    const key = 'time.f64';
+    blobs.push({ key, bytes: float64Bytes(t) });
     time = { kind: 'explicit', key, first: length ? t[0] : null, last: length ? t[length - 1] : null };
   }
 
@@ -59,13 +83,13 @@ export async function writeChannelFiles(
     if (channel.values.length !== length) {
       throw new RangeError(`channel ${index} (${channel.name}) has ${channel.values.length} samples, the capture ${length}`);
     }
-    const folder = `${prefix}/ch${index}`;
+    const folder = `ch${index}`;
     const samplesKey = `${folder}/samples.f32`;
-    await store.putBytes(samplesKey, float32Bytes(channel.values));
+    blobs.push({ key: samplesKey, bytes: float32Bytes(channel.values) });
     let values: ChannelFiles['channels'][number]['values'];
     if (channel.values instanceof Float64Array) {
       values = { key: `${folder}/values.f64`, type: 'f64' };
-      await store.putBytes(values.key, float64Bytes(channel.values));
+      blobs.push({ key: values.key, bytes: float64Bytes(channel.values) });
     } else {
       values = { key: samplesKey, type: 'f32' };
     }
@@ -73,7 +97,7 @@ export async function writeChannelFiles(
     const pyramid = buildMinMaxPyramid(channel.values, { factor, maxTopPairs });
     for (let k = 0; k < pyramid.length; k++) {
       const key = `${folder}/level-${k + 1}.f32`;
-      await store.putBytes(key, float32Bytes(pyramid[k].pairs));
+      blobs.push({ key, bytes: float32Bytes(pyramid[k].pairs) });
       levels.push({ level: k + 1, blockSize: pyramid[k].blockSize, key, length: pyramid[k].pairs.length / 2 });
     }
     channels.push({
@@ -89,10 +113,42 @@ export async function writeChannelFiles(
       levels,
     });
   }
-  return {
+  const files: ChannelFiles = {
     format: 'gatepost-channel-files-1', length, time,
     ...(capture.timeOrigin && { timeOrigin: capture.timeOrigin }),
     ...(capture.valueKind && { valueKind: capture.valueKind }),
     channels,
   };
+  return { files, blobs };
+}
+
+/** The prepared files with their keys in the folder `prefix` (see captureFilesPrefix). */
+export function placeChannelFiles(prefix: string, prepared: PreparedChannelFiles): PreparedChannelFiles {
+  const at = (key: string) => `${prefix}/${key}`;
+  const { files } = prepared;
+  return {
+    files: {
+      ...files,
+      time: files.time.kind === 'explicit' ? { ...files.time, key: at(files.time.key) } : files.time,
+      channels: files.channels.map((c) => ({
+        ...c,
+        samplesKey: at(c.samplesKey),
+        ...(c.values && { values: { ...c.values, key: at(c.values.key) } }),
+        levels: c.levels.map((l) => ({ ...l, key: at(l.key) })),
+      })),
+    },
+    blobs: prepared.blobs.map((b) => ({ key: at(b.key), bytes: b.bytes })),
+  };
+}
+
+/** Stores the blobs, several at a time (each write is synced to disk; overlapping them hides part of the wait). */
+export async function putChannelBlobs(store: BlobStore, blobs: ChannelBlob[], concurrency = 4): Promise<void> {
+  let next = 0;
+  const lane = async () => {
+    while (next < blobs.length) {
+      const { key, bytes } = blobs[next++];
+      await store.putBytes(key, bytes);
+    }
+  };
+  await Promise.all(Array.from({ length: Math.min(concurrency, blobs.length) }, lane));
 }

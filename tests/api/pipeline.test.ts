@@ -14,6 +14,7 @@ import { QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { expectForward, settleShot } from '../helpers/settle-shot.ts';
 
 const fixture = (name: string) => new Uint8Array(readFileSync(path.join(import.meta.dirname, '../../fixtures/captures', name)));
 const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex');
@@ -62,33 +63,8 @@ async function newShot(client: PipelineClient, gateRigId: string | null = rigId)
 
 const detail = async (shotId: string) => (await experimenter.get<ShotDetail>(`/api/shots/${shotId}`)).body;
 
-/** Polls the shot every 20 ms until no capture or analysis is queued or running; returns every state seen per id. */
-async function settle(shotId: string, timeoutMs = 60_000): Promise<{ shot: ShotDetail; seen: Map<string, string[]> }> {
-  const seen = new Map<string, string[]>();
-  const note = (id: string, state: string) => {
-    const list = seen.get(id) ?? [];
-    if (list.at(-1) !== state) list.push(state);
-    seen.set(id, list);
-  };
-  const shot = await pollUntil(async () => {
-    const d = await detail(shotId);
-    for (const c of d.captures) note(c.id, c.state);
-    for (const a of d.analyses) note(a.id, a.state);
-    // The shot's status is settled by the job after the row's state, so wait for it too.
-    const busy = d.shot.status === 'processing' || d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
-    const anyCaptureReady = d.captures.some((c) => c.state === 'ready');
-    // A ready capture is followed by an analysis: wait for it to appear as well.
-    return busy || (anyCaptureReady && d.analyses.length === 0) ? undefined : d;
-  }, { timeoutMs, intervalMs: 20, what: `shot ${shotId} to settle` });
-  return { shot, seen };
-}
+const settle = (shotId: string, timeoutMs?: number) => settleShot<ShotDetail>(experimenter, shotId, timeoutMs);
 
-/** States must only move forward along `order` (a state may be skipped between two looks, never revisited). */
-function expectForward(states: string[], order: string[]) {
-  const ranks = states.map((s) => order.indexOf(s));
-  expect(ranks.every((r) => r >= 0), `unknown state in ${states.join(' → ')}`).toBe(true);
-  for (let i = 1; i < ranks.length; i++) expect(ranks[i], states.join(' → ')).toBeGreaterThan(ranks[i - 1]);
-}
 
 describe('When a simulated three-gate capture is uploaded to a shot with the demo ball and rig', () => {
   // The shot model's input speed is the truth; the rig's gates (0, 0.15, 0.3 m) and the 40 mm ball are the demo

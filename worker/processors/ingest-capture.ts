@@ -10,18 +10,9 @@ import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { settleShotFromCaptures } from '../settle-shot.ts';
 
-/**
- * Ingest job: read a stored capture file, write its channels and trace pyramids, record what was detected, and
- * once every capture of the shot is read, queue the shot's automatic analysis. Runs again safely: a stale attempt
- * is skipped, files are overwritten with the same bytes, the automatic analysis is keyed by the captures it reads.
- */
-export default async function ingestCapture(job: Job): Promise<{ captureId: string; state: string }> {
-  const data = ingestJobData.parse(job.data);
-  const { sequelize, blobStore, queues, logger } = workerContext();
-  const capture = await Capture.findByPk(data.captureId);
-  if (!capture) throw new UnrecoverableError(`capture ${data.captureId} no longer exists`);
-  if (capture.ingestAttempt !== data.attempt) return { captureId: capture.id, state: 'superseded' };
-
+/** Reads the stored raw file, writes the channel files and records what was detected: the capture is ready. */
+async function readAndStore(job: Job, capture: Capture): Promise<void> {
+  const { blobStore } = workerContext();
   await capture.update({ state: 'reading', progress: 10, error: null });
   await job.updateProgress(10);
   let imported;
@@ -51,6 +42,23 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
     error: null,
   });
   await job.updateProgress(100);
+}
+
+/**
+ * Ingest job: read a stored capture file, write its channels and trace pyramids, record what was detected, and
+ * once every capture of the shot is read, queue the shot's automatic analysis. Runs again safely: a stale attempt
+ * is skipped, a capture already read is not read again, files are overwritten with the same bytes, the automatic
+ * analysis is keyed by the captures it reads.
+ */
+export default async function ingestCapture(job: Job): Promise<{ captureId: string; state: string }> {
+  const data = ingestJobData.parse(job.data);
+  const { sequelize, queues, logger } = workerContext();
+  const capture = await Capture.findByPk(data.captureId);
+  if (!capture) throw new UnrecoverableError(`capture ${data.captureId} no longer exists`);
+  if (capture.ingestAttempt !== data.attempt) return { captureId: capture.id, state: 'superseded' };
+
+  // Read already: by the API while the upload arrived, or by an earlier run of this job that stopped after it.
+  if (capture.state !== 'ready') await readAndStore(job, capture);
 
   const shot = await settleShotFromCaptures(capture.shotId);
   if (shot) {

@@ -1,6 +1,4 @@
-import { createHash } from 'node:crypto';
-import { createReadStream } from 'node:fs';
-import { mkdir, rm } from 'node:fs/promises';
+import { rm } from 'node:fs/promises';
 import path from 'node:path';
 import type { Request, Response } from 'express';
 import multer from 'multer';
@@ -10,25 +8,22 @@ import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, badRequest } from '../../lib/errors.ts';
+import { captureFilesPrefix, placeChannelFiles, putChannelBlobs } from '../../traces/write-channel-files.ts';
+import { captureIntake, type ReceivedFile } from './capture-intake.ts';
+import type { UploadReader } from './upload-reader.ts';
 
 export const MAX_FILES_PER_UPLOAD = 32;
 
-async function sha256OfFile(file: string): Promise<string> {
-  const hash = createHash('sha256');
-  for await (const chunk of createReadStream(file)) hash.update(chunk as Buffer);
-  return hash.digest('hex');
-}
-
 /** Runs multer on this request (after the access guard, so nobody unauthorised can fill the disk). */
-function receiveFiles(deps: Deps, req: Request, res: Response): Promise<Express.Multer.File[]> {
-  const dir = path.join(deps.config.dataDir, 'uploads');
+function receiveFiles(deps: Deps, req: Request, res: Response): Promise<(Express.Multer.File & ReceivedFile)[]> {
+  const storage = captureIntake({ store: deps.blobStore, uploadsDir: path.join(deps.config.dataDir, 'uploads'), readFromBytes: deps.config.readUploadsFromBytes });
   const upload = multer({
-    storage: multer.diskStorage({ destination: (_req, _file, cb) => void mkdir(dir, { recursive: true }).then(() => cb(null, dir), (e: Error) => cb(e, dir)) }),
+    storage,
     limits: { fileSize: deps.config.uploadLimitBytes, files: MAX_FILES_PER_UPLOAD },
   }).array('files', MAX_FILES_PER_UPLOAD);
   return new Promise((resolve, reject) => {
     upload(req, res, (err: unknown) => {
-      if (!err) return resolve((req.files as Express.Multer.File[] | undefined) ?? []);
+      if (!err) return resolve((req.files as (Express.Multer.File & ReceivedFile)[] | undefined) ?? []);
       if (err instanceof multer.MulterError) {
         const gb = (deps.config.uploadLimitBytes / 1024 ** 3).toPrecision(3);
         const messages: Partial<Record<multer.ErrorCode, string>> = {
@@ -63,11 +58,15 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
   try {
     if (files.length === 0) throw badRequest('No file received: send one or more scope CSV files in the multipart field "files".');
     const views: UploadedCaptureView[] = [];
-    const fresh: Capture[] = [];
+    const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
     for (const file of files) {
-      const sha256 = await sha256OfFile(file.path);
+      const { sha256 } = file;
       const storageKey = `labs/${shot.labId}/raw/${sha256}`;
-      if (!(await deps.blobStore.exists(storageKey))) await deps.blobStore.putFile(storageKey, file.path);
+      if (!(await deps.blobStore.exists(storageKey))) {
+        // On the store's own disk the received file becomes the blob by a rename: its bytes are not copied again.
+        if (file.onStoreDisk) await deps.blobStore.adoptFile!(storageKey, file.path);
+        else await deps.blobStore.putFile(storageKey, file.path);
+      }
       // Browsers send the name as Latin-1 bytes of its UTF-8 form; undo that so "µs-run.csv" stays readable.
       const fileName = Buffer.from(file.originalname, 'latin1').toString('utf8').slice(0, 255) || 'capture.csv';
       let capture = await Capture.findOne({ where: { shotId: shot.id, sha256 } });
@@ -78,7 +77,8 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
             labId: shot.labId, shotId: shot.id, fileName, sizeBytes: file.size, sha256, storageKey, uploadedBy: req.auth!.userId,
           });
           duplicate = false;
-          fresh.push(capture);
+          fresh.push({ capture, reader: file.reader });
+          file.reader = null;
         } catch (err) {
           // The same file in two parallel uploads: the other request recorded it.
           if (!(err instanceof UniqueConstraintError)) throw err;
@@ -89,16 +89,56 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
     }
     if (fresh.length > 0) {
       if (shot.status !== 'in_review' && shot.status !== 'approved') await shot.update({ status: 'processing' });
-      for (const capture of fresh) {
+      for (const { capture, reader } of fresh) {
         await recordAudit({
           labId: shot.labId, actorId: req.auth!.userId, action: 'capture.uploaded', targetType: 'shot', targetId: shot.id,
           details: { captureId: capture.id, file: capture.fileName, bytes: Number(capture.sizeBytes), sha256: capture.sha256 }, ip: clientIp(req),
         });
-        await deps.queues.addIngestOrDefer({ captureId: capture.id, attempt: capture.ingestAttempt }, deps.logger);
+        const data = { captureId: capture.id, attempt: capture.ingestAttempt };
+        if (reader !== null && (await deps.queues.addIngestHeld(data, INGEST_HOLD_MS))) {
+          // Not awaited: the answer goes out now, the channel files follow (the held job is the safety net).
+          void storeReadChannels(deps, capture, reader);
+        } else {
+          await reader?.close();
+          await deps.queues.addIngestOrDefer(data, deps.logger);
+        }
       }
     }
     return views;
   } finally {
-    await Promise.allSettled(files.map((f) => rm(f.path, { force: true })));
+    await Promise.allSettled(files.flatMap((f) => [rm(f.path, { force: true }), f.reader?.close()]));
+  }
+}
+
+/** How long the ingest job of an upload the API reads itself is held back before the worker reads the file instead. */
+const INGEST_HOLD_MS = 60_000;
+
+/**
+ * Stores the channel files of an upload read while it arrived and marks its capture read, as the ingest job
+ * would; then lets the held ingest job run, which finds the capture read and goes on with the shot's analysis.
+ * Anything that goes wrong here (a file the reader refused, a full disk) leaves the capture queued: the worker
+ * then reads the stored file and records what it finds, with the importer's message.
+ */
+async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadReader): Promise<void> {
+  const data = { captureId: capture.id, attempt: capture.ingestAttempt };
+  try {
+    const read = await reader.outcome;
+    await reader.close();
+    if ('problem' in read) {
+      deps.logger.info({ captureId: capture.id, problem: read.problem }, 'upload not read in the API; the worker reads it');
+    } else {
+      const { files, blobs } = placeChannelFiles(captureFilesPrefix(capture.labId, capture.id), read);
+      await putChannelBlobs(deps.blobStore, blobs);
+      // Only a capture still queued for this attempt: a worker that took the job over meanwhile has the last word.
+      await Capture.update(
+        { state: 'ready', progress: 100, layout: read.layout, channels: files, sampleCount: read.length, timeBase: files.time, warnings: read.warnings, error: null },
+        { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'queued' } },
+      );
+    }
+  } catch (err) {
+    deps.logger.warn({ captureId: capture.id, err: (err as Error).message }, 'reading the upload in the API failed; the worker reads it');
+  } finally {
+    await reader.close();
+    await deps.queues.releaseIngest(data).catch((err: Error) => deps.logger.warn({ captureId: capture.id, err: err.message }, 'held ingest job not released; it runs when its hold ends'));
   }
 }

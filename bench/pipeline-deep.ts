@@ -1,0 +1,115 @@
+/**
+ * `npm run bench:pipeline -- --deep`: the 10-million-sample capture (bench/lib/big-capture.ts, ~390 MB) uploaded to a
+ * shot through the real API server and worker, timed from the start of the upload to the analysed result seen by
+ * a poll every 20 ms. Baseline in the same run, before each shot: the CLI (`tsx worker/cli/analyze.ts FILE --gate …`,
+ * a process of its own, wall time) on the same file. Three rounds; medians. Targets (issue 13): pipeline ≤ 1.5× the
+ * CLI, and the result ≤ 1 s after the upload's response (which comes after the server has the last byte).
+ * Figures only, no pass/fail.
+ */
+import { spawn } from 'node:child_process';
+import { openAsBlob } from 'node:fs';
+import { stat } from 'node:fs/promises';
+import { cpus, loadavg } from 'node:os';
+import path from 'node:path';
+import { performance } from 'node:perf_hooks';
+import { demoAccounts } from '../server/db/seeders/demo.ts';
+import { BIG_CAPTURE_SHOT, ensureBigCapture } from './lib/big-capture.ts';
+import { startBenchApp } from './lib/bench-app.ts';
+import { pollUntil, signIn } from './lib/pipeline-client.ts';
+
+const ROUNDS = 3;
+const POLL_MS = 20;
+const root = path.resolve(import.meta.dirname, '..');
+
+interface ShotView {
+  captures: { state: string; error: string | null }[];
+  currentAnalysis: { state: string; startedAt: string; completedAt: string; results: { speed: { value: number; uncertainty: number } | null } | null } | null;
+  analyses: { state: string; error: string | null }[];
+}
+
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
+
+/** Wall time of one CLI run on the file, ms; throws when it does not find the speed. */
+function timeCli(file: string): Promise<number> {
+  const [a, b] = BIG_CAPTURE_SHOT.gatePositions;
+  const args = ['worker/cli/analyze.ts', file, '--gate', `Gate A@${a}`, '--gate', `Gate B@${b}`];
+  return new Promise((resolve, reject) => {
+    const started = performance.now();
+    const child = spawn(path.join(root, 'node_modules/.bin/tsx'), args, { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    child.stdout.on('data', (d: Buffer) => { out += d.toString(); });
+    child.stderr.on('data', (d: Buffer) => { out += d.toString(); });
+    child.on('error', reject);
+    child.on('close', (code) => {
+      const ms = performance.now() - started;
+      if (code !== 0 || !/speed: \d/.test(out)) reject(new Error(`the CLI failed (exit ${code}): ${out.slice(0, 500)}`));
+      else resolve(ms);
+    });
+  });
+}
+
+export async function runDeepPipelineBench(): Promise<void> {
+  const file = await ensureBigCapture();
+  const bytes = (await stat(file)).size;
+  console.log(`capture: ${file}, ${(bytes / 1e6).toFixed(0)} MB, 10 000 000 samples × 2 channels`);
+  const loadBefore = loadavg();
+  const bench = await startBenchApp();
+  try {
+    const account = demoAccounts.find((a) => a.lab === 'hollowmere' && a.role === 'experimenter')!;
+    const admin = demoAccounts.find((a) => a.lab === 'hollowmere' && a.role === 'admin') ?? account;
+    const adminClient = await signIn(bench.app.baseUrl, admin.email, admin.password, { timeoutMs: 600_000 });
+    // A rig matching the capture's two gates (the demo rigs have other spacings).
+    const rig = await adminClient.post<{ gateRig: { id: string } }>(`/api/labs/${bench.labId}/gate-rigs`, {
+      name: 'Bench rig, two gates 0.1 m apart', beamWidthM: 0.001, sensorType: 'photodiode',
+      gates: BIG_CAPTURE_SHOT.gatePositions.map((p, i) => ({ label: String.fromCharCode(65 + i), position_m: p, position_uncertainty_m: 0.0005 })),
+    });
+    if (rig.status !== 201) throw new Error(`could not add the bench rig: HTTP ${rig.status} ${JSON.stringify(rig.body)}`);
+    const client = await signIn(bench.app.baseUrl, account.email, account.password, { timeoutMs: 600_000 });
+    const cli: number[] = [];
+    const total: number[] = [];
+    const upload: number[] = [];
+    const afterUpload: number[] = [];
+    const analysis: number[] = [];
+    let speed = '';
+    for (let round = 0; round < ROUNDS; round++) {
+      cli.push(await timeCli(file));
+      const created = await client.post<{ shot: { id: string } }>(`/api/labs/${bench.labId}/shots`, {
+        campaignId: bench.campaignId, projectileId: bench.ballId, gateRigId: rig.body.gateRig.id,
+      });
+      if (created.status !== 201) throw new Error(`could not log a shot: HTTP ${created.status} ${JSON.stringify(created.body)}`);
+      const shotId = created.body.shot.id;
+      const form = new FormData();
+      form.append('files', await openAsBlob(file, { type: 'text/csv' }), `deep-${round}.csv`);
+      const started = performance.now();
+      const response = await fetch(`${bench.app.baseUrl}/api/shots/${shotId}/captures`, { method: 'POST', headers: { cookie: client.cookie }, body: form });
+      const uploaded = performance.now();
+      if (response.status !== 202) throw new Error(`upload refused: HTTP ${response.status} ${await response.text()}`);
+      await response.arrayBuffer();
+      const shot = await pollUntil(async () => {
+        const d = (await client.get<ShotView>(`/api/shots/${shotId}`)).body;
+        const failed = d.captures.find((c) => c.state === 'failed') ?? d.analyses.find((a) => a.state === 'failed');
+        if (failed) throw new Error(`shot ${round} failed: ${failed.error}`);
+        return d.currentAnalysis?.state === 'done' ? d : undefined;
+      }, { timeoutMs: 600_000, intervalMs: POLL_MS, what: `round ${round}'s analysis` });
+      const done = performance.now();
+      total.push(done - started);
+      upload.push(uploaded - started);
+      afterUpload.push(done - uploaded);
+      const a = shot.currentAnalysis!;
+      analysis.push(new Date(a.completedAt).getTime() - new Date(a.startedAt).getTime());
+      const v = a.results?.speed;
+      speed = v ? `${v.value.toFixed(2)} ± ${v.uncertainty.toFixed(2)} m/s` : 'no speed';
+    }
+    const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
+    console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}`);
+    console.log(`CLI (tsx worker/cli/analyze.ts, own process, wall), median of ${ROUNDS}: ${s(median(cli))}   [${cli.map(s).join(', ')}]`);
+    console.log(`pipeline, upload start → analysed result seen, median of ${ROUNDS}: ${s(median(total))}   [${total.map(s).join(', ')}]`);
+    console.log(`  upload request (until its 202 response): ${s(median(upload))}`);
+    console.log(`  upload response → result seen: ${s(median(afterUpload))} (target ≤ 1 s); analysis job alone ${s(median(analysis))}`);
+    console.log(`ratio pipeline / CLI (medians): ${(median(total) / median(cli)).toFixed(2)}× (target ≤ 1.5×)`);
+    console.log(`check: stored speed ${speed} (simulated truth ${BIG_CAPTURE_SHOT.speed} m/s)`);
+  } finally {
+    await bench.close();
+  }
+}

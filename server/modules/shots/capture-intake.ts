@@ -1,0 +1,120 @@
+import { createHash } from 'node:crypto';
+import { mkdir, open, rm } from 'node:fs/promises';
+import path from 'node:path';
+import type { Readable } from 'node:stream';
+import type { Request } from 'express';
+import type { StorageEngine } from 'multer';
+import type { BlobStore } from '../../storage/blob-store.ts';
+import { UploadReader } from './upload-reader.ts';
+
+/** What the intake adds to each multer file. */
+export interface ReceivedFile {
+  /** Where the bytes are: on the store's own disk (then `onStoreDisk`) or in `<dataDir>/uploads`. */
+  path: string;
+  size: number;
+  sha256: string;
+  /** The file can become a blob by adoptFile (a rename, no copy). */
+  onStoreDisk: boolean;
+  /** Reading the file while it arrived, when it was large enough and a reading slot was free. */
+  reader: UploadReader | null;
+}
+
+export interface CaptureIntakeOptions {
+  store: BlobStore;
+  /** Folder for files received for stores without a disk of their own (S3). */
+  uploadsDir: string;
+  /** Read files in a thread while they arrive when the request is at least this long; -1: never. */
+  readFromBytes: number;
+  /** Reads at once in this process at most (each holds a capture's samples in memory). @default 2 */
+  maxReads?: number;
+}
+
+/** Reads running in this process (across requests). */
+let reading = 0;
+
+/** Size of the blocks written, hashed and handed to the reader. */
+const BLOCK = 1 << 20;
+/** Sync the file to disk every this many bytes while it arrives, so the last sync has little left to write. */
+const SYNC_EVERY = 64 << 20;
+
+/**
+ * A multer storage engine that takes each uploaded file in one pass over its bytes: hashed (SHA-256), written
+ * where the blob store can adopt it without a copy (local disk: its own `.incoming` folder), synced to disk as it
+ * arrives, and, for a large upload, read by the importer in a thread at the same time (UploadReader). The upload
+ * route then names the blob by its hash.
+ */
+export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
+  const { store, uploadsDir, readFromBytes, maxReads = 2 } = options;
+  const receive = async (req: Request, stream: Readable): Promise<ReceivedFile> => {
+    const onStoreDisk = store.stagingPath !== undefined && store.adoptFile !== undefined;
+    let file: string;
+    if (onStoreDisk) file = await store.stagingPath!();
+    else {
+      await mkdir(uploadsDir, { recursive: true });
+      file = path.join(uploadsDir, `${process.pid}.${Date.now()}.${Math.random().toString(36).slice(2)}.upload`);
+    }
+    const requestBytes = Number(req.headers['content-length']);
+    let reader: UploadReader | null = null;
+    if (readFromBytes >= 0 && Number.isFinite(requestBytes) && requestBytes >= readFromBytes && reading < maxReads) {
+      reading += 1;
+      reader = new UploadReader(requestBytes, () => { reading -= 1; });
+    }
+    const hash = createHash('sha256');
+    const fh = await open(file, 'wx');
+    let size = 0;
+    let syncing: Promise<void> | null = null;
+    let unsynced = 0;
+    try {
+      let block = new Uint8Array(BLOCK);
+      let filled = 0;
+      const flush = async () => {
+        if (filled === 0) return;
+        const bytes = block.subarray(0, filled);
+        hash.update(bytes);
+        let written = 0;
+        while (written < filled) written += (await fh.write(bytes, written, filled - written)).bytesWritten;
+        unsynced += filled;
+        if (unsynced >= SYNC_EVERY) {
+          await syncing;
+          syncing = fh.datasync();
+          unsynced = 0;
+        }
+        // The reader takes the block over (transferred, not copied); this side starts a new one.
+        if (reader !== null) await reader.push(filled === BLOCK ? block : block.slice(0, filled));
+        block = new Uint8Array(BLOCK);
+        filled = 0;
+      };
+      for await (const chunk of stream as AsyncIterable<Buffer>) {
+        size += chunk.length;
+        let at = 0;
+        while (at < chunk.length) {
+          const n = Math.min(BLOCK - filled, chunk.length - at);
+          block.set(chunk.subarray(at, at + n), filled);
+          filled += n;
+          at += n;
+          if (filled === BLOCK) await flush();
+        }
+      }
+      await flush();
+      reader?.end();
+      await syncing;
+      await fh.sync();
+    } catch (error) {
+      await reader?.close();
+      await fh.close().catch(() => {});
+      await rm(file, { force: true });
+      throw error;
+    }
+    await fh.close();
+    return { path: file, size, sha256: hash.digest('hex'), onStoreDisk, reader };
+  };
+  return {
+    _handleFile(req, file, cb) {
+      receive(req as Request, file.stream).then((info) => cb(null, info as Partial<Express.Multer.File>), (error: Error) => cb(error));
+    },
+    _removeFile(_req, file, cb) {
+      const received = file as unknown as Partial<ReceivedFile>;
+      void Promise.all([received.reader?.close(), received.path ? rm(received.path, { force: true }) : undefined]).then(() => cb(null), (error: Error) => cb(error));
+    },
+  };
+}

@@ -1,0 +1,96 @@
+import { Worker } from 'node:worker_threads';
+import type { PreparedChannelFiles } from '../../traces/write-channel-files.ts';
+
+export type UploadReaderRequest =
+  | { type: 'start'; sizeHint: number }
+  | { type: 'block'; bytes: Uint8Array }
+  | { type: 'end' };
+
+/** What a read upload gives: its channel files (keys relative to the capture's folder) and the row's fields. */
+export interface UploadRead extends PreparedChannelFiles {
+  layout: Record<string, unknown>;
+  warnings: string[];
+  length: number;
+}
+
+export type UploadReaderReply =
+  | { type: 'taken'; bytes: number }
+  | ({ type: 'read'; ok: true } & UploadRead)
+  | { type: 'read'; ok: false; reason: string };
+
+/** Bytes handed to the thread and not yet taken by its scanner before push() waits (the socket is paused meanwhile). */
+const MAX_AHEAD = 32 << 20;
+
+/**
+ * Reads an upload in a worker thread while its bytes arrive (upload-reader-thread.ts), with the importer's stream
+ * path, and prepares its channel files, so they are ready to store soon after the last byte arrives. Blocks are handed over, not copied; push() waits while
+ * the thread is more than 32 MiB behind, which holds the upload back instead of piling it up in memory.
+ */
+export class UploadReader {
+  private readonly worker: Worker;
+  private ahead = 0;
+  private waiting: (() => void) | null = null;
+  private closed = false;
+  /** The read is over (done or failed): blocks are no longer needed. */
+  private settled = false;
+  /** Settles when the read is over: the channel files, or why it could not read (the worker then reads the file). */
+  readonly outcome: Promise<UploadRead | { problem: string }>;
+
+  /** `onClose` is called once, when the reader is closed. */
+  constructor(sizeHint: number, private readonly onClose: () => void = () => {}) {
+    this.worker = new Worker(new URL('./upload-reader-thread.boot.mjs', import.meta.url));
+    this.worker.unref();
+    this.outcome = new Promise((resolve) => {
+      this.worker.on('message', (reply: UploadReaderReply) => {
+        if (reply.type === 'taken') {
+          this.ahead -= reply.bytes;
+          if (this.ahead <= MAX_AHEAD) this.release();
+        } else {
+          this.settled = true;
+          resolve(reply.ok ? reply : { problem: reply.reason });
+          this.release();
+        }
+      });
+      const fail = (problem: string) => {
+        this.settled = true;
+        resolve({ problem });
+        this.release();
+      };
+      this.worker.on('error', (error) => fail(`the reading thread failed: ${error.message}`));
+      this.worker.on('exit', () => fail('the reading thread stopped'));
+    });
+    this.send({ type: 'start', sizeHint });
+  }
+
+  private send(message: UploadReaderRequest, transfer: ArrayBuffer[] = []) {
+    if (!this.closed) this.worker.postMessage(message, transfer);
+  }
+
+  private release() {
+    const w = this.waiting;
+    this.waiting = null;
+    w?.();
+  }
+
+  /** Hands `block` to the thread (it must own its whole buffer, which is transferred); waits while the thread is far behind. */
+  async push(block: Uint8Array): Promise<void> {
+    if (this.closed || this.settled) return;
+    this.ahead += block.byteLength;
+    this.send({ type: 'block', bytes: block }, [block.buffer as ArrayBuffer]);
+    while (this.ahead > MAX_AHEAD && !this.closed && !this.settled) {
+      await new Promise<void>((resolve) => { this.waiting = resolve; });
+    }
+  }
+
+  end(): void {
+    this.send({ type: 'end' });
+  }
+
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    this.onClose();
+    this.release();
+    await this.worker.terminate();
+  }
+}

@@ -1,0 +1,149 @@
+// Uploads read by the API while their bytes arrive (GATEPOST_READ_UPLOADS_FROM_BYTES=0 here, so every upload is):
+// one pass over the bytes hashes, stores and reads them, the capture goes from queued straight to ready, and what
+// was stored is exactly what the worker's disk reader and the engine make of the same file, run in this process.
+import { createHash } from 'node:crypto';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
+import { Analysis, Capture, GateRig, Projectile } from '../../server/db/models/index.ts';
+import { float64FromBytes } from '../../server/traces/channel-files.ts';
+import { readCaptureFile } from '../../worker/import/read-capture-file.ts';
+import { signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
+import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
+import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { expectForward, settleShot, type SettlingShot } from '../helpers/settle-shot.ts';
+
+interface ShotDetail extends SettlingShot {
+  captures: { id: string; state: string; error: string | null; fileName: string; sha256: string }[];
+  analyses: { id: string; state: string; results: object | null; parameters: object }[];
+  currentAnalysis: { id: string; results: { speed: { value: number; uncertainty: number } | null } } | null;
+}
+
+const fixture = (name: string) => new Uint8Array(readFileSync(path.join(import.meta.dirname, '../../fixtures/captures', name)));
+const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex');
+
+let h: ApiHarness;
+let demo: DemoWorld;
+let app: AppProcesses;
+let dataDir: string;
+let experimenter: PipelineClient;
+let ballId: string;
+let work: string;
+
+beforeAll(async () => {
+  h = await createApiHarness();
+  demo = await h.resetDatabase();
+  dataDir = mkdtempSync(path.join(tmpdir(), 'gatepost-read-upload-'));
+  work = mkdtempSync(path.join(tmpdir(), 'gatepost-read-upload-files-'));
+  app = await startAppProcesses({ env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_READ_UPLOADS_FROM_BYTES: '0' } });
+  experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
+  ballId = (await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
+}, 120_000);
+
+afterAll(async () => {
+  await app?.stop();
+  await h?.close();
+  for (const dir of [dataDir, work]) if (dir) rmSync(dir, { recursive: true, force: true });
+});
+
+async function newShot(gateRigId: string): Promise<string> {
+  const res = await experimenter.post<{ shot: { id: string } }>(`/api/labs/${demo.labs.hollowmere.id}/shots`, {
+    campaignId: demo.hollowmere.campaignIds[0], projectileId: ballId, gateRigId,
+  });
+  expect(res.status, JSON.stringify(res.body)).toBe(201);
+  return res.body.shot.id;
+}
+
+const incoming = () => readdirSync(path.join(dataDir, 'blobs', '.incoming'));
+
+describe('When a capture is uploaded to an API that reads uploads as they arrive', () => {
+  const csv = simulatedCsv({ speed: 300, seed: 21 });
+  let shot: ShotDetail;
+  let seen: Map<string, string[]>;
+
+  it('then the capture goes from queued straight to ready (no worker read) and the shot is analysed', async () => {
+    const shotId = await newShot(demo.hollowmere.gateRigIds[0]);
+    const up = await experimenter.upload<{ captures: { id: string; state: string; sha256: string }[] }>(shotId, [{ name: 'read-on-arrival.csv', bytes: csv.bytes }]);
+    expect(up.status, JSON.stringify(up.body)).toBe(202);
+    expect(up.body.captures[0]).toMatchObject({ state: 'queued', sha256: sha256(csv.bytes) });
+    ({ shot, seen } = await settleShot<ShotDetail>(experimenter, shotId));
+    const states = seen.get(up.body.captures[0].id)!;
+    expect(states.at(-1)).toBe('ready');
+    // The worker marks a capture "reading" while it reads one; a capture read by the API never is.
+    expect(states).not.toContain('reading');
+    expectForward(states, ['queued', 'ready']);
+    expect(shot.analyses).toHaveLength(1);
+    expect(shot.analyses[0].state).toBe('done');
+    const speed = shot.currentAnalysis!.results.speed!;
+    expect(Math.abs(speed.value - 300)).toBeLessThanOrEqual(speed.uncertainty);
+  });
+
+  it('then the raw file is stored byte for byte, and nothing is left in the staging folder', () => {
+    const stored = readFileSync(path.join(dataDir, 'blobs', 'labs', demo.labs.hollowmere.id, 'raw', sha256(csv.bytes)));
+    expect(Buffer.compare(stored, Buffer.from(csv.bytes))).toBe(0);
+    expect(incoming()).toEqual([]);
+  });
+
+  it("then the stored channels are the disk reader's values to the bit, and the results are the engine's on them", async () => {
+    const file = path.join(work, 'read-on-arrival.csv');
+    writeFileSync(file, csv.bytes);
+    const imported = await readCaptureFile(file);
+    const row = await Capture.findByPk(shot.captures[0].id, { rejectOnEmpty: true });
+    const files = row.channels as { channels: { values: { key: string; type: string } }[]; length: number };
+    expect(files.length).toBe(imported.length);
+    files.channels.forEach((c, k) => {
+      expect(c.values.type).toBe('f64');
+      const bytes = readFileSync(path.join(dataDir, 'blobs', ...c.values.key.split('/')));
+      const stored = float64FromBytes(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength).slice());
+      const expected = imported.channels[k].values as Float64Array;
+      expect(Buffer.compare(Buffer.from(stored.buffer), Buffer.from(expected.buffer, expected.byteOffset, expected.byteLength))).toBe(0);
+    });
+    expect(row.layout).toMatchObject({ reader: 'stream', delimiter: ',' });
+    expect(row.warnings).toEqual(imported.warnings);
+    const analysis = await Analysis.findByPk(shot.analyses[0].id, { rejectOnEmpty: true });
+    const again = JSON.parse(JSON.stringify(analyzeShot(imported, analysis.parameters as object)));
+    expect(analysis.results).toEqual(again);
+  });
+});
+
+describe('When files the reader refuses are uploaded to it', () => {
+  it("then the worker reads them from the stored file and the capture says why, with the importer's message", async () => {
+    const shotId = await newShot(demo.hollowmere.gateRigIds[0]);
+    const lines = Buffer.from(simulatedCsv({ seed: 22 }).bytes).toString('utf8').split('\n');
+    lines[1234] = `${lines[1234]},9.999`;
+    const ragged = new TextEncoder().encode(lines.join('\n'));
+    const up = await experimenter.upload<{ captures: { id: string }[] }>(shotId, [{ name: 'ragged.csv', bytes: ragged }]);
+    expect(up.status).toBe(202);
+    const { shot, seen } = await settleShot<ShotDetail>(experimenter, shotId);
+    expect(shot.captures[0]).toMatchObject({ state: 'failed' });
+    expect(shot.captures[0].error).toMatch(/^line 1,?235: expected 4 columns/);
+    // Read again by the worker, which says so while it reads.
+    expect(seen.get(up.body.captures[0].id)).toContain('reading');
+    expect(incoming()).toEqual([]);
+  });
+});
+
+describe('When one shot gets one file per channel in one request', () => {
+  it('then both are read on arrival and combined into one analysis that gives 312 m/s within its uncertainty', async () => {
+    // fixtures/generate.ts: the demo shot, 312 m/s through gates at 0 and 0.1 m, one channel per file.
+    const rig = await GateRig.create({
+      labId: demo.labs.hollowmere.id, name: 'Arrival pair, 100 mm',
+      gates: [{ label: 'A', position_m: 0, position_uncertainty_m: 0.0005 }, { label: 'B', position_m: 0.1, position_uncertainty_m: 0.0005 }],
+      beamWidthM: 0.001, sensorType: 'phototransistor', notes: '',
+    });
+    const shotId = await newShot(rig.id);
+    const up = await experimenter.upload<{ captures: { id: string }[] }>(shotId, [
+      { name: 'per-channel-gate-a.csv', bytes: fixture('per-channel-gate-a.csv') },
+      { name: 'per-channel-gate-b.csv', bytes: fixture('per-channel-gate-b.csv') },
+    ]);
+    expect(up.status).toBe(202);
+    const { shot, seen } = await settleShot<ShotDetail>(experimenter, shotId);
+    expect(shot.captures.map((c) => c.state)).toEqual(['ready', 'ready']);
+    for (const c of up.body.captures) expect(seen.get(c.id)).not.toContain('reading');
+    expect(shot.analyses).toHaveLength(1);
+    const speed = shot.currentAnalysis!.results.speed!;
+    expect(Math.abs(speed.value - 312)).toBeLessThanOrEqual(speed.uncertainty);
+  });
+});
