@@ -3,6 +3,7 @@
  * importer takes to read the same file in this same run (target: analysis ≤ 25 % of import). Figures only, no
  * pass/fail. The capture is the import benchmark's (bench/lib/big-capture.ts) when that module is present;
  * otherwise an equivalent one is simulated and cached under .cache/.
+ * With `--vs-numpy`: the CLI against a numpy script instead (bench/vs-numpy.ts).
  */
 import { createWriteStream, existsSync, mkdirSync } from 'node:fs';
 import { once } from 'node:events';
@@ -12,6 +13,7 @@ import { analyzeShot } from '../shared/analysis/analyze-shot.ts';
 import type { ImportedCapture } from '../shared/contracts/capture.ts';
 import { simulateShot } from '../shared/simulate/simulate-shot.ts';
 import { readCaptureFile } from '../worker/import/read-capture-file.ts';
+import { runVsNumpy } from './vs-numpy.ts';
 
 const SAMPLES = 10_000_000;
 const RUNS = 3;
@@ -102,4 +104,5 @@ async function main(): Promise<void> {
   console.log(`ratio analysis / import: ${(fullMs / importMs).toFixed(3)} (target ≤ 0.25); sum of per-channel runs ${(perChannelTotal / importMs).toFixed(3)}`);
 }
 
-await main();
+if (process.argv.includes('--vs-numpy')) await runVsNumpy();
+else await main();

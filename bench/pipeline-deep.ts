@@ -6,20 +6,18 @@
  * CLI, and the result ≤ 1 s after the upload's response (which comes after the server has the last byte).
  * Figures only, no pass/fail.
  */
-import { spawn } from 'node:child_process';
 import { openAsBlob } from 'node:fs';
 import { stat } from 'node:fs/promises';
 import { cpus, loadavg } from 'node:os';
-import path from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { demoAccounts } from '../server/db/seeders/demo.ts';
 import { BIG_CAPTURE_SHOT, ensureBigCapture } from './lib/big-capture.ts';
 import { startBenchApp } from './lib/bench-app.ts';
 import { pollUntil, signIn } from './lib/pipeline-client.ts';
+import { timeCli } from './lib/time-process.ts';
 
 const ROUNDS = 3;
 const POLL_MS = 20;
-const root = path.resolve(import.meta.dirname, '..');
 
 interface ShotView {
   captures: { state: string; error: string | null }[];
@@ -29,25 +27,6 @@ interface ShotView {
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
-
-/** Wall time of one CLI run on the file, ms; throws when it does not find the speed. */
-function timeCli(file: string): Promise<number> {
-  const [a, b] = BIG_CAPTURE_SHOT.gatePositions;
-  const args = ['worker/cli/analyze.ts', file, '--gate', `Gate A@${a}`, '--gate', `Gate B@${b}`];
-  return new Promise((resolve, reject) => {
-    const started = performance.now();
-    const child = spawn(path.join(root, 'node_modules/.bin/tsx'), args, { cwd: root, stdio: ['ignore', 'pipe', 'pipe'] });
-    let out = '';
-    child.stdout.on('data', (d: Buffer) => { out += d.toString(); });
-    child.stderr.on('data', (d: Buffer) => { out += d.toString(); });
-    child.on('error', reject);
-    child.on('close', (code) => {
-      const ms = performance.now() - started;
-      if (code !== 0 || !/speed: \d/.test(out)) reject(new Error(`the CLI failed (exit ${code}): ${out.slice(0, 500)}`));
-      else resolve(ms);
-    });
-  });
-}
 
 export async function runDeepPipelineBench(): Promise<void> {
   const file = await ensureBigCapture();
@@ -73,7 +52,7 @@ export async function runDeepPipelineBench(): Promise<void> {
     const analysis: number[] = [];
     let speed = '';
     for (let round = 0; round < ROUNDS; round++) {
-      cli.push(await timeCli(file));
+      cli.push((await timeCli(file)).ms);
       const created = await client.post<{ shot: { id: string } }>(`/api/labs/${bench.labId}/shots`, {
         campaignId: bench.campaignId, projectileId: bench.ballId, gateRigId: rig.body.gateRig.id,
       });

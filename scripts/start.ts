@@ -11,10 +11,12 @@ import {
   type RunningService,
 } from './lib/services.ts';
 import { describeExit, spawnChild, waitForHttp, type ChildHandle } from './lib/processes.ts';
+import { buildNode, nodeBuildIsCurrent, NODE_BUILD_DIR } from './lib/build-node.ts';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 process.chdir(root);
-const tsx = join(root, 'node_modules/.bin/tsx');
+// The children run the compiled build (dist/node, made by buildNode below), not TypeScript through tsx.
+const compiled = (script: string): string => join(root, NODE_BUILD_DIR, script.replace(/\.ts$/, '.js'));
 const say = (line: string): void => console.log(`[start] ${line}`);
 
 const services: RunningService[] = [];
@@ -90,7 +92,7 @@ async function step(name: string, command: string, args: string[], env: NodeJS.P
 
 /** A long-running child; its exit while we are not shutting down stops everything with a non-zero code. */
 function keepRunning(name: string, script: string, env: NodeJS.ProcessEnv): ChildHandle {
-  const child = spawnChild({ name, command: tsx, args: [script], env });
+  const child = spawnChild({ name, command: process.execPath, args: [compiled(script)], env });
   children.push(child);
   void child.exited.then((status) => {
     if (!shuttingDown) void shutdown(1, `${name} exited unexpectedly (${describeExit(status)}): stopping everything`);
@@ -200,8 +202,13 @@ async function main(): Promise<void> {
     NODE_ENV: 'production',
   };
 
-  await step('migrate', tsx, ['server/db/cli.ts', 'migrate'], env);
-  await step('seed', tsx, ['server/db/cli.ts', 'seed-demo'], env);
+  if (nodeBuildIsCurrent(root)) say(`${NODE_BUILD_DIR} is newer than the server and worker sources: skipping their build`);
+  else {
+    const started = performance.now();
+    const files = await buildNode(root);
+    say(`compiled the server and worker into ${NODE_BUILD_DIR} (${files} files, ${((performance.now() - started) / 1000).toFixed(1)} s)`);
+  }
+  await step('db', process.execPath, [compiled('server/db/cli.ts'), 'migrate', 'seed-demo'], env);
   if (clientBuildIsCurrent()) {
     say('client build dist/client is newer than src/, shared/, index.html and the configs: skipping vite build');
   } else {

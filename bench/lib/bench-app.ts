@@ -20,6 +20,8 @@ export interface BenchAppOptions {
   logLevel?: string;
   /** Extra environment for both processes. @default {} */
   env?: NodeJS.ProcessEnv;
+  /** Run the compiled build (dist/node) as npm start does; false: the TypeScript through tsx. @default true */
+  compiled?: boolean;
 }
 
 export interface BenchApp {
@@ -34,7 +36,7 @@ export interface BenchApp {
 
 /** Seeds the demo labs (once per database) and starts the API server and the worker. */
 export async function startBenchApp(options: BenchAppOptions = {}): Promise<BenchApp> {
-  const { logLevel = 'warn', env = {} } = options;
+  const { logLevel = 'warn', env = {}, compiled = true } = options;
   const databaseUrl = process.env.GATEPOST_TEST_DATABASE_URL;
   if (!databaseUrl) throw new Error('GATEPOST_TEST_DATABASE_URL is not set: run the benchmark through its npm script (scripts/with-services.sh)');
   const sequelize = createSequelize(databaseUrl);
@@ -45,7 +47,7 @@ export async function startBenchApp(options: BenchAppOptions = {}): Promise<Benc
   const rig = await GateRig.findOne({ where: { labId: lab.id, name: 'Exit rig, three gates' }, rejectOnEmpty: true });
   await sequelize.close();
   const dataDir = mkdtempSync(path.join(tmpdir(), 'gatepost-bench-'));
-  const app = await startAppProcesses({ env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_LOG_LEVEL: logLevel, ...env } });
+  const app = await startAppProcesses({ compiled, env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_LOG_LEVEL: logLevel, ...env } });
   return {
     app,
     labId: lab.id,

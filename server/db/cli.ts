@@ -1,4 +1,5 @@
-import { loadConfig } from '../config.ts';
+import type { Sequelize } from 'sequelize';
+import { loadConfig, type Config } from '../config.ts';
 import { createJobQueues } from '../lib/job-queues.ts';
 import { createLogger } from '../lib/logger.ts';
 import { createBlobStore } from '../storage/create-blob-store.ts';
@@ -10,54 +11,65 @@ import { createSequelize } from './sequelize.ts';
 /**
  * Database commands: `migrate` (apply pending migrations), `migrate:status`, `migrate:down` (undo the last one),
  * `seed-demo` (the demo labs, only when absent, with the demo sweep's scope files queued). Usage: npm run db -- <command>
+ * Several commands run one after another in one process (`migrate seed-demo`, as npm start does); the first that
+ * fails stops the rest.
  */
 async function main() {
-  const command = process.argv[2];
+  const commands = process.argv.slice(2);
   const config = loadConfig();
   const sequelize = createSequelize(config.databaseUrl);
+  let command: string | undefined;
   try {
-    switch (command) {
-      case 'migrate': {
-        const applied = await migrateUp(sequelize, config.databaseUrl);
-        console.log(applied.length ? `Applied ${applied.length} migration(s): ${applied.join(', ')}` : 'Database schema is up to date.');
-        break;
-      }
-      case 'migrate:status': {
-        const migrator = createMigrator(sequelize);
-        const [done, pending] = await Promise.all([migrator.executed(), migrator.pending()]);
-        for (const m of done) console.log(`applied  ${m.name}`);
-        for (const m of pending) console.log(`pending  ${m.name}`);
-        break;
-      }
-      case 'migrate:down': {
-        const undone = await createMigrator(sequelize).down();
-        console.log(undone.length ? `Undid ${undone.map((m) => m.name).join(', ')}` : 'Nothing to undo.');
-        break;
-      }
-      case 'seed-demo': {
-        const seeded = await seedDemo(sequelize);
-        console.log(seeded ? `Seeded the demo labs (${demoAccounts.length} accounts).` : 'Demo labs already present; left as they are.');
-        if (seeded) {
-          // The demo sweep's scope files, read and analysed by the worker once it starts.
-          const queues = createJobQueues(config.redisUrl);
-          try {
-            const n = await attachDemoCaptures({ blobStore: createBlobStore(config), queues, logger: createLogger(config.logLevel, 'seed') });
-            console.log(`Queued ${n} demo scope file(s) for the worker to read and analyse.`);
-          } finally {
-            await queues.close();
-          }
-        }
-        break;
-      }
-      default:
-        console.error('Usage: npm run db -- migrate | migrate:status | migrate:down | seed-demo');
-        process.exitCode = 2;
+    if (commands.length === 0) commands.push('');
+    for (command of commands) {
+      if (process.exitCode) break;
+      await run(command, config, sequelize);
     }
   } catch (err) {
     console.error(`Database command "${command}" failed: ${(err as Error).message}`);
     process.exitCode = 1;
   } finally {
     await sequelize.close();
+  }
+}
+
+async function run(command: string, config: Config, sequelize: Sequelize): Promise<void> {
+  switch (command) {
+    case 'migrate': {
+      const applied = await migrateUp(sequelize, config.databaseUrl);
+      console.log(applied.length ? `Applied ${applied.length} migration(s): ${applied.join(', ')}` : 'Database schema is up to date.');
+      break;
+    }
+    case 'migrate:status': {
+      const migrator = createMigrator(sequelize);
+      const [done, pending] = await Promise.all([migrator.executed(), migrator.pending()]);
+      for (const m of done) console.log(`applied  ${m.name}`);
+      for (const m of pending) console.log(`pending  ${m.name}`);
+      break;
+    }
+    case 'migrate:down': {
+      const undone = await createMigrator(sequelize).down();
+      console.log(undone.length ? `Undid ${undone.map((m) => m.name).join(', ')}` : 'Nothing to undo.');
+      break;
+    }
+    case 'seed-demo': {
+      const seeded = await seedDemo(sequelize);
+      console.log(seeded ? `Seeded the demo labs (${demoAccounts.length} accounts).` : 'Demo labs already present; left as they are.');
+      if (seeded) {
+        // The demo sweep's scope files, read and analysed by the worker once it starts.
+        const queues = createJobQueues(config.redisUrl);
+        try {
+          const n = await attachDemoCaptures({ blobStore: createBlobStore(config), queues, logger: createLogger(config.logLevel, 'seed') });
+          console.log(`Queued ${n} demo scope file(s) for the worker to read and analyse.`);
+        } finally {
+          await queues.close();
+        }
+      }
+      break;
+    }
+    default:
+      console.error('Usage: npm run db -- migrate | migrate:status | migrate:down | seed-demo');
+      process.exitCode = 2;
   }
 }
 

@@ -7,12 +7,15 @@ import pg from 'pg';
 
 const migrationsDir = path.join(path.dirname(fileURLToPath(import.meta.url)), 'migrations');
 
-/** Migrations are the only way the schema changes: files `migrations/NNNN-name.ts`, applied in name order. */
+/**
+ * Migrations are the only way the schema changes: files `migrations/NNNN-name.ts` (`.js` in the compiled build,
+ * dist/node), applied in name order; the name without its extension is what the database records.
+ */
 export function createMigrator(sequelize: Sequelize) {
-  const files = readdirSync(migrationsDir).filter((f) => /^\d{4}-.+\.ts$/.test(f)).sort();
+  const files = readdirSync(migrationsDir).filter((f) => /^\d{4}-.+\.(ts|js)$/.test(f)).sort();
   return new Umzug({
     migrations: files.map((file) => ({
-      name: file.replace(/\.ts$/, ''),
+      name: file.replace(/\.(ts|js)$/, ''),
       up: async ({ context }: { context: Sequelize }) => (await import(pathToFileURL(path.join(migrationsDir, file)).href)).up({ context, name: file, path: file }),
       down: async ({ context }: { context: Sequelize }) => (await import(pathToFileURL(path.join(migrationsDir, file)).href)).down({ context, name: file, path: file }),
     })),

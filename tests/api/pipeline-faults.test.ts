@@ -41,7 +41,11 @@ beforeAll(async () => {
   demo = await h.resetDatabase();
   dataDir = mkdtempSync(path.join(tmpdir(), 'gatepost-faults-'));
   app = await startAppProcesses({
-    env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_LOG_LEVEL: 'info', GATEPOST_JOB_LOCK_MS: String(LOCK_MS), GATEPOST_SWEEP_INTERVAL_MS: '1000' },
+    // The worker reads every upload here (the API reads none as it arrives): these tests kill it in mid-read.
+    env: {
+      GATEPOST_DATA_DIR: dataDir, GATEPOST_LOG_LEVEL: 'info', GATEPOST_JOB_LOCK_MS: String(LOCK_MS), GATEPOST_SWEEP_INTERVAL_MS: '1000',
+      GATEPOST_READ_UPLOADS_FROM_BYTES: '-1',
+    },
   });
   workers.push(app.worker!);
   experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);

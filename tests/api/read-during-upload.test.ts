@@ -1,4 +1,5 @@
-// Uploads read by the API while their bytes arrive (GATEPOST_READ_UPLOADS_FROM_BYTES=0 here, so every upload is):
+// Uploads read by the API while their bytes arrive (GATEPOST_READ_UPLOADS_FROM_BYTES=0 here, so every upload is),
+// with the compiled build (dist/node) that npm start runs:
 // one pass over the bytes hashes, stores and reads them, the capture goes from queued straight to ready, and what
 // was stored is exactly what the worker's disk reader and the engine make of the same file, run in this process.
 import { createHash } from 'node:crypto';
@@ -37,7 +38,8 @@ beforeAll(async () => {
   demo = await h.resetDatabase();
   dataDir = mkdtempSync(path.join(tmpdir(), 'gatepost-read-upload-'));
   work = mkdtempSync(path.join(tmpdir(), 'gatepost-read-upload-files-'));
-  app = await startAppProcesses({ env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_READ_UPLOADS_FROM_BYTES: '0' } });
+  // The compiled build, as npm start runs it (its thread boot files load the .js; pipeline.test.ts runs tsx).
+  app = await startAppProcesses({ compiled: true, env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_READ_UPLOADS_FROM_BYTES: '0' } });
   experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
   ballId = (await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
 }, 120_000);

@@ -1,8 +1,9 @@
-// Starts the API server and the job worker as real processes against the throwaway services of
+// Starts the API server and the job worker as real processes (TypeScript through tsx, or the compiled build) against the throwaway services of
 // scripts/with-services.sh, for browser tests and worker fault tests (kill the worker, restart it).
 import { randomBytes } from 'node:crypto';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { buildNode, nodeBuildIsCurrent, NODE_BUILD_DIR } from '../../scripts/lib/build-node.ts';
 import { spawnChild, waitForHttp, type ChildHandle } from '../../scripts/lib/processes.ts';
 import { freePort } from '../../scripts/lib/services.ts';
 
@@ -25,6 +26,12 @@ export interface AppProcessesOptions {
    * @default false
    */
   echo?: boolean;
+  /**
+   * Run the compiled build (dist/node, built first when older than the sources) with node, as `npm start` does,
+   * instead of the TypeScript through tsx.
+   * @default false
+   */
+  compiled?: boolean;
   /**
    * How long to wait for GET /api/health to answer 200.
    * @default 60000
@@ -51,7 +58,7 @@ export interface AppProcesses {
  * GATEPOST_TEST_REDIS_URL, and resolves once GET /api/health answers 200.
  */
 export async function startAppProcesses(options: AppProcessesOptions = {}): Promise<AppProcesses> {
-  const { env: extraEnv = {}, worker: withWorker = true, echo = false, timeoutMs = 60_000 } = options;
+  const { env: extraEnv = {}, worker: withWorker = true, echo = false, compiled = false, timeoutMs = 60_000 } = options;
   const databaseUrl = process.env.GATEPOST_TEST_DATABASE_URL;
   const redisUrl = process.env.GATEPOST_TEST_REDIS_URL;
   if (!databaseUrl || !redisUrl) {
@@ -70,8 +77,10 @@ export async function startAppProcesses(options: AppProcessesOptions = {}): Prom
     GATEPOST_JWT_SECRET: process.env.GATEPOST_JWT_SECRET || randomBytes(32).toString('base64url'),
     ...extraEnv,
   };
-  const start = (name: string, script: string): ChildHandle =>
-    spawnChild({ name, command: tsx, args: [script], env, cwd: root, echo });
+  if (compiled && !nodeBuildIsCurrent(root)) await buildNode(root);
+  const start = (name: string, script: string): ChildHandle => compiled
+    ? spawnChild({ name, command: process.execPath, args: [join(NODE_BUILD_DIR, script.replace(/\.ts$/, '.js'))], env, cwd: root, echo })
+    : spawnChild({ name, command: tsx, args: [script], env, cwd: root, echo });
 
   const api = start('api', 'server/index.ts');
   let worker = withWorker ? start('worker', 'worker/index.ts') : null;

@@ -1,0 +1,49 @@
+/**
+ * `npm run bench:analyze -- --vs-numpy`: the analyze CLI against a numpy script (bench/numpy/gate-speed.py, which does
+ * less: one threshold per channel, no levels, pulses or uncertainty) on the 10-million-sample capture, each a process
+ * of its own, wall time, alternating, median of 3. The CLI both as `npm run analyze` runs it (tsx) and compiled
+ * (dist/node, built when older than its sources). Target (issue 13): CLI ≤ 0.2× numpy. Needs Debian's python3-numpy
+ * (/usr/bin/python3); skipped with a note otherwise.
+ */
+import { spawnSync } from 'node:child_process';
+import { cpus, loadavg } from 'node:os';
+import { buildNode, nodeBuildIsCurrent } from '../scripts/lib/build-node.ts';
+import { BIG_CAPTURE_SHOT, ensureBigCapture } from './lib/big-capture.ts';
+import { ROOT, timeCli, timeProcess } from './lib/time-process.ts';
+
+const PYTHON = '/usr/bin/python3';
+const ROUNDS = 3;
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
+
+export async function runVsNumpy(): Promise<void> {
+  const probe = spawnSync(PYTHON, ['-c', 'import numpy; print(numpy.__version__)'], { encoding: 'utf8' });
+  if (probe.status !== 0) {
+    console.log(`skipped: ${PYTHON} with numpy is not available (as root: apt-get install -y python3-numpy)`);
+    return;
+  }
+  const file = await ensureBigCapture();
+  if (!nodeBuildIsCurrent(ROOT)) await buildNode(ROOT);
+  const spacing = String(BIG_CAPTURE_SHOT.gatePositions[1] - BIG_CAPTURE_SHOT.gatePositions[0]);
+  const loadBefore = loadavg();
+  const numpy: number[] = [];
+  const tsx: number[] = [];
+  const compiled: number[] = [];
+  let speeds = '';
+  for (let round = 0; round < ROUNDS; round++) {
+    const n = await timeProcess(PYTHON, ['bench/numpy/gate-speed.py', file, spacing], /speed: \d/);
+    const t = await timeCli(file, 'tsx');
+    const c = await timeCli(file, 'compiled');
+    numpy.push(n.ms);
+    tsx.push(t.ms);
+    compiled.push(c.ms);
+    speeds = `numpy ${/speed: ([\d.]+)/.exec(n.out)![1]} m/s, CLI ${/speed: ([^\n]+)/.exec(c.out)![1]}`;
+  }
+  const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
+  console.log(`capture: ${file} (10 000 000 samples × 2 channels)`);
+  console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}; numpy ${probe.stdout.trim()}`);
+  console.log(`numpy script (loadtxt + one threshold per channel), median of ${ROUNDS}: ${s(median(numpy))}   [${numpy.map(s).join(', ')}]`);
+  console.log(`CLI, npm run analyze (tsx):           ${s(median(tsx))}   [${tsx.map(s).join(', ')}]  → ${(median(tsx) / median(numpy)).toFixed(2)}× numpy`);
+  console.log(`CLI, compiled (dist/node):            ${s(median(compiled))}   [${compiled.map(s).join(', ')}]  → ${(median(compiled) / median(numpy)).toFixed(2)}× numpy (target ≤ 0.2×)`);
+  console.log(`check: ${speeds} (simulated truth ${BIG_CAPTURE_SHOT.speed} m/s)`);
+}
