@@ -1,0 +1,100 @@
+/**
+ * `npm run bench:throughput`: 200 shots of a 100 000-sample two-channel capture uploaded by 10 clients at once (each
+ * logs a shot, uploads its file and polls every 50 ms until the analysis is stored, then takes the next), through
+ * the real API server and worker processes (compiled, as npm start runs them), first with one worker process,
+ * then with a second one started beside it on the same Redis and PostgreSQL. Prints shots per second and the
+ * upload-to-result p50/p95 of each, and their ratio. Target (issue 13): two workers not slower than one.
+ * Every file differs in one sample, so nothing is de-duplicated by its hash. Figures only, no pass/fail.
+ */
+import path from 'node:path';
+import { cpus, loadavg } from 'node:os';
+import { performance } from 'node:perf_hooks';
+import { demoAccounts } from '../server/db/seeders/demo.ts';
+import { NODE_BUILD_DIR } from '../scripts/lib/build-node.ts';
+import { spawnChild, type ChildHandle } from '../scripts/lib/processes.ts';
+import { startBenchApp } from './lib/bench-app.ts';
+import { pollUntil, signIn, simulatedCsv, type PipelineClient } from './lib/pipeline-client.ts';
+import { ROOT } from './lib/time-process.ts';
+
+const SHOTS = 200;
+const CLIENTS = 10;
+const SAMPLES = 100_000;
+
+interface ShotView {
+  captures: { state: string; error: string | null }[];
+  currentAnalysis: { state: string } | null;
+  analyses: { state: string; error: string | null }[];
+}
+
+const quantile = (sorted: number[], q: number) => sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(q * sorted.length) - 1))];
+
+/** The capture with its last row's last value moved by i µV: a different file (and hash) per shot, the same shot. */
+function variant(bytes: Uint8Array, i: number): Uint8Array {
+  const text = Buffer.from(bytes).toString('utf8').trimEnd();
+  const cut = text.lastIndexOf('\n') + 1;
+  const fields = text.slice(cut).split(',');
+  const last = Number(fields[fields.length - 1]) + i * 1e-6;
+  fields[fields.length - 1] = last.toFixed(6);
+  return new TextEncoder().encode(`${text.slice(0, cut)}${fields.join(',')}\n`);
+}
+
+async function runPhase(clients: PipelineClient[], newShot: (c: PipelineClient) => Promise<string>, bytes: Uint8Array, offset: number) {
+  let next = 0;
+  const latencies: number[] = [];
+  const started = performance.now();
+  await Promise.all(clients.map(async (client) => {
+    for (let i = next++; i < SHOTS; i = next++) {
+      const shotId = await newShot(client);
+      const t = performance.now();
+      const up = await client.upload(shotId, [{ name: `throughput-${offset + i}.csv`, bytes: variant(bytes, offset + i) }]);
+      if (up.status !== 202) throw new Error(`upload refused: HTTP ${up.status} ${JSON.stringify(up.body)}`);
+      await pollUntil(async () => {
+        const d = (await client.get<ShotView>(`/api/shots/${shotId}`)).body;
+        const failed = d.captures.find((c) => c.state === 'failed') ?? d.analyses.find((a) => a.state === 'failed');
+        if (failed) throw new Error(`shot ${offset + i} failed: ${failed.error}`);
+        return d.currentAnalysis?.state === 'done' ? true : undefined;
+      }, { timeoutMs: 600_000, intervalMs: 50, what: `shot ${offset + i}'s analysis` });
+      latencies.push(performance.now() - t);
+    }
+  }));
+  const seconds = (performance.now() - started) / 1000;
+  const sorted = latencies.sort((a, b) => a - b);
+  return { perSecond: SHOTS / seconds, seconds, p50: quantile(sorted, 0.5), p95: quantile(sorted, 0.95) };
+}
+
+async function main(): Promise<void> {
+  const csv = simulatedCsv({ gatePositions: [0, 0.15], speed: 300, length: SAMPLES, sampleInterval: 1e-8, t0: -1e-4, seed: 2031 });
+  console.log(`capture: ${SAMPLES} samples × 2 channels, ${(csv.bytes.length / 1e6).toFixed(2)} MB of CSV; ${SHOTS} shots from ${CLIENTS} clients at once`);
+  const loadBefore = loadavg();
+  const bench = await startBenchApp();
+  let second: ChildHandle | null = null;
+  try {
+    const account = demoAccounts.find((a) => a.lab === 'hollowmere' && a.role === 'experimenter')!;
+    const clients = await Promise.all(Array.from({ length: CLIENTS }, () => signIn(bench.app.baseUrl, account.email, account.password, { timeoutMs: 600_000 })));
+    const newShot = async (client: PipelineClient) => {
+      const created = await client.post<{ shot: { id: string } }>(`/api/labs/${bench.labId}/shots`, {
+        campaignId: bench.campaignId, projectileId: bench.ballId, gateRigId: bench.rigId,
+      });
+      if (created.status !== 201) throw new Error(`could not log a shot: HTTP ${created.status} ${JSON.stringify(created.body)}`);
+      return created.body.shot.id;
+    };
+    // One shot each first, so the worker threads are warm in both phases.
+    await runPhase(clients.slice(0, 1), newShot, csv.bytes, 10_000).catch(() => undefined);
+    const one = await runPhase(clients, newShot, csv.bytes, 0);
+    second = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: bench.app.env, cwd: ROOT, echo: false });
+    await new Promise((resolve) => setTimeout(resolve, 3000));
+    const two = await runPhase(clients, newShot, csv.bytes, SHOTS);
+    const f = (x: { perSecond: number; seconds: number; p50: number; p95: number }) =>
+      `${x.perSecond.toFixed(2)} shots/s (${x.seconds.toFixed(1)} s), upload → result p50 ${(x.p50 / 1000).toFixed(2)} s, p95 ${(x.p95 / 1000).toFixed(2)} s`;
+    const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
+    console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}`);
+    console.log(`one worker process:  ${f(one)}`);
+    console.log(`two worker processes: ${f(two)}`);
+    console.log(`ratio two / one (shots per second): ${(two.perSecond / one.perSecond).toFixed(2)}× (target ≥ 1: two workers not slower)`);
+  } finally {
+    await second?.stop();
+    await bench.close();
+  }
+}
+
+await main();
