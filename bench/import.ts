@@ -3,11 +3,15 @@
  * prints MB/s, rows/s, peak RSS against the size of the output arrays, and the time as a ratio to `wc -l` on the
  * same file in the same run (the baseline: the fastest anything can walk the file's lines).
  * Each reading runs in a fresh child process so its peak RSS is its own. Run: npm run bench:import
+ * With `--in-memory`: the reader for bytes already in memory (parseScopeCsv, the browser's and scripts' reader) on
+ * the same file, against its text path (parseScopeCsvText, the reader before issue 13) on the file's first 20 MB
+ * in the same run. Target (issue 13): ≥ 100 MB/s.
  */
 import { execFileSync, spawnSync } from 'node:child_process';
-import { statSync } from 'node:fs';
+import { readFileSync, statSync } from 'node:fs';
 import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
+import { parseScopeCsv, parseScopeCsvText } from '../shared/import/parse-scope-csv.ts';
 import { readCaptureFile } from '../worker/import/read-capture-file.ts';
 import { ensureBigCapture } from './lib/big-capture.ts';
 
@@ -74,5 +78,36 @@ async function main(): Promise<void> {
   }
 }
 
+async function inMemory(): Promise<void> {
+  const path = await ensureBigCapture();
+  const bytes = new Uint8Array(readFileSync(path));
+  let cut = 20e6;
+  while (bytes[cut - 1] !== 10) cut--;
+  const head = bytes.slice(0, cut);
+  const time = (read: () => { length: number }) => {
+    const t = performance.now();
+    const rows = read().length;
+    return { seconds: (performance.now() - t) / 1000, rows };
+  };
+  const load = loadavg().map((l) => l.toFixed(1)).join(' ');
+  const fast: number[] = [];
+  const text: number[] = [];
+  let rows = 0;
+  for (let r = 0; r < 3; r++) {
+    const f = time(() => parseScopeCsv(bytes));
+    fast.push(f.seconds);
+    rows = f.rows;
+    text.push(time(() => parseScopeCsvText(head)).seconds);
+  }
+  const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[1];
+  const fastMbs = bytes.length / 1e6 / median(fast);
+  const textMbs = head.length / 1e6 / median(text);
+  console.log(`file: ${path} (${(bytes.length / 1e6).toFixed(0)} MB, ${rows} rows) held in memory; load average ${load} on ${availableParallelism()} cores`);
+  console.log(`parseScopeCsv (byte scanner), whole file, median of 3: ${median(fast).toFixed(2)} s, ${fastMbs.toFixed(0)} MB/s (target ≥ 100 MB/s)`);
+  console.log(`parseScopeCsvText (text path, the reader before), first ${(head.length / 1e6).toFixed(0)} MB, median of 3: ${median(text).toFixed(2)} s, ${textMbs.toFixed(1)} MB/s`);
+  console.log(`ratio scanner / text path: ${(fastMbs / textMbs).toFixed(1)}× the throughput; load average after ${loadavg().map((l) => l.toFixed(1)).join(' ')}`);
+}
+
 if (process.argv[2] === '--measure') await measure(process.argv[3], Number(process.argv[4]));
+else if (process.argv.includes('--in-memory')) await inMemory();
 else await main();

@@ -9,10 +9,10 @@ import { ImportError, isRepeatedTime } from '../../shared/import/import-error.ts
 import { scanSpecFromPlan, type ScanOutput, type ScanState } from '../../shared/import/scan-numeric-rows.ts';
 import { splitLines } from '../../shared/import/split-lines.ts';
 import { TimeGridHull, type TimeGridHullData } from '../../shared/import/time-grid-hull.ts';
-import { countLineEnds } from './count-line-ends.ts';
+import { countLineEnds } from '../../shared/import/count-line-ends.ts';
 import { headTimeHint } from './head-time-hint.ts';
 import { finishCapture, isFooterText } from './finish-capture.ts';
-import { lineStartOffset } from './line-start-offset.ts';
+import { lineStartOffset } from '../../shared/import/line-start-offset.ts';
 import { readCaptureStream, type ReadCaptureStreamOptions } from './read-capture-stream.ts';
 import { scanFileRange } from './scan-file-range.ts';
 import type { ScanRangeReply, ScanRangeRequest } from './scan-range-worker.ts';

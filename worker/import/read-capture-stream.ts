@@ -8,7 +8,7 @@ import { splitLines } from '../../shared/import/split-lines.ts';
 import { TimeGridHull } from '../../shared/import/time-grid-hull.ts';
 import { finishCapture, isFooterText } from './finish-capture.ts';
 import { headTimeHint } from './head-time-hint.ts';
-import { lineStartOffset } from './line-start-offset.ts';
+import { lineStartOffset } from '../../shared/import/line-start-offset.ts';
 
 export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
   /** Bytes read before the layout must be clear; a file with no data rows in them is refused. @default 256 KiB */

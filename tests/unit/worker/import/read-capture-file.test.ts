@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { writeCaptureLayout } from '../../../../fixtures/lib/write-capture-layout.ts';
 import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
-import { countLineEnds } from '../../../../worker/import/count-line-ends.ts';
+import { countLineEnds } from '../../../../shared/import/count-line-ends.ts';
 import { readCaptureFile } from '../../../../worker/import/read-capture-file.ts';
 import { checkAgainstTruth } from '../../import/check-against-truth.ts';
 import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
