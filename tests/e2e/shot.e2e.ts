@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
+import { Capture, GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
@@ -137,4 +137,43 @@ describe('shot workspace', () => {
       await analyst.close();
     }
   }, 400_000);
+
+  it('When a record is too deep for a browser tab, then the panel says so with the memory it would need and offers no preview', async () => {
+    // The two stored captures are made to claim 7 million samples each (channel files untouched): 2 × 7 M samples ×
+    // 20 bytes = 280 MB fits the 500 MB budget; 2 × 13 M = 520 MB does not (shared/traces/preview-budget.ts).
+    const demo = harness.demo;
+    const captures = await Capture.findAll({ where: { shotId } });
+    expect(captures).toHaveLength(2);
+    const claim = async (length: number) => {
+      for (const c of captures) {
+        const files = c.channels as { length: number; channels: { length: number }[] };
+        const claimed: object = { ...files, length, channels: files.channels.map((ch) => ({ ...ch, length })) };
+        await Capture.update({ channels: claimed, sampleCount: length }, { where: { id: c.id } });
+      }
+    };
+    const analyst = await launchBrowser();
+    try {
+      const page = await analyst.newPage();
+      await page.goto(`${app.baseUrl}/sign-in`);
+      await page.getByLabel('E-mail').fill(demo.users.analyst.email);
+      await page.getByLabel('Password').fill(demo.users.analyst.password);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+      await page.waitForURL('**/campaigns');
+      await claim(7_000_000);
+      await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${shotId}`);
+      await page.getByTestId('preview-toggle').waitFor();
+      expect(await page.getByTestId('preview-toggle').isEnabled()).toBe(true);
+      expect(await page.getByTestId('preview-too-deep').count()).toBe(0);
+      await claim(13_000_000);
+      await page.reload();
+      const note = page.getByTestId('preview-too-deep');
+      await note.waitFor();
+      expect(await note.textContent()).toMatch(/too deep to preview .* about 520 MB .* under 500 MB/s);
+      expect(await page.getByTestId('preview-toggle').isDisabled()).toBe(true);
+      await note.scrollIntoViewIfNeeded();
+      await saveScreenshot(page, 'shot-preview-too-deep');
+    } finally {
+      await analyst.close();
+    }
+  }, 120_000);
 });

@@ -5,6 +5,7 @@ import type { Deps } from '../../lib/deps.ts';
 import { AppError, badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { parseInput } from '../../lib/validate.ts';
+import { PREVIEW_MEMORY_BYTES, previewBytes } from '../../../shared/traces/preview-budget.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
 import { readWindow, recordExtent } from '../../traces/read-window.ts';
 
@@ -49,7 +50,7 @@ function channelIndexOf(files: ChannelFiles, wanted: string): number {
 }
 
 /** The live preview reads whole channels; beyond this many samples (32 MB a channel) it would burden the browser. */
-const MAX_PREVIEW_SAMPLES = 8_000_000;
+
 
 const samplesQuerySchema = z.object({
   /** Channel index or name, or "time" for the time column of an unevenly sampled capture. */
@@ -92,8 +93,9 @@ export function captureRoutes(deps: Deps): RouteDef[] {
           key = channel.samplesKey;
           bytes = channel.length * 4;
         }
-        if (files.length > MAX_PREVIEW_SAMPLES) {
-          throw new AppError(413, 'too_large', `This record has ${files.length.toLocaleString('en')} samples; the live preview reads records of up to ${MAX_PREVIEW_SAMPLES.toLocaleString('en')}. Recompute on the server instead.`);
+        // The browser's preview budget (shared/traces/preview-budget.ts): a record that cannot fit a tab is not sent.
+        if (previewBytes(files.length, files.channels.length, files.time.kind === 'explicit') > PREVIEW_MEMORY_BYTES) {
+          throw new AppError(413, 'too_large', `This record has ${files.length.toLocaleString('en')} samples in ${files.channels.length} channel${files.channels.length === 1 ? '' : 's'}, more than the live preview holds in a browser tab (${Math.round(PREVIEW_MEMORY_BYTES / 1e6)} MB). Recompute on the server instead.`);
         }
         res.set({ 'Content-Type': 'application/octet-stream', 'Content-Length': String(bytes), 'X-Sample-Count': String(files.length), 'Cache-Control': 'private, max-age=3600' });
         const stream = deps.blobStore.openRead(key);

@@ -3,12 +3,11 @@ import { useEffect, useMemo, useState } from 'react';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../../../shared/contracts/capture.ts';
+import { PREVIEW_MEMORY_BYTES, previewBytes } from '../../../../shared/traces/preview-budget.ts';
 import type { CaptureInfo } from './types.ts';
 import { fetchSamples, fetchTimes } from './captures.ts';
 import { shotKeys } from './shot.ts';
 
-/** Records up to this many samples per channel are previewed in the browser (a few MB to fetch). */
-export const PREVIEW_MAX_SAMPLES = 2_000_000;
 
 /**
  * The browser's live preview: the same engine as the worker (shared/analysis, loaded on demand) run on the
@@ -17,7 +16,9 @@ export const PREVIEW_MAX_SAMPLES = 2_000_000;
  */
 export function usePreview(captures: CaptureInfo[], parameters: AnalysisOptionsInput | null) {
   const ready = captures.filter((c) => c.state === 'ready' && c.channels);
-  const tooBig = ready.some((c) => (c.sampleCount ?? 0) > PREVIEW_MAX_SAMPLES);
+  // The captures of a shot are previewed together: their samples must fit the tab's memory budget together.
+  const neededBytes = ready.reduce((sum, c) => sum + previewBytes(c.channels!.length, c.channels!.channels.length, c.channels!.time.kind === 'explicit'), 0);
+  const tooBig = neededBytes > PREVIEW_MEMORY_BYTES;
   const enabled = parameters != null && !tooBig && ready.length > 0;
   const sampleQueries = useQueries({
     queries: ready.flatMap((c) => [
@@ -82,5 +83,5 @@ export function usePreview(captures: CaptureInfo[], parameters: AnalysisOptionsI
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [capture, key]);
 
-  return { ...state, loading: enabled && !loaded && !loadError, loadError: loadError as Error | null, tooBig };
+  return { ...state, loading: enabled && !loaded && !loadError, loadError: loadError as Error | null, tooBig, neededBytes };
 }

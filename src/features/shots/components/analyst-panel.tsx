@@ -5,6 +5,7 @@ import { Button, ErrorNote, SelectField, TextField } from '../../../components/u
 import { formatMeasurement } from '../../../lib/format.ts';
 import { useRecompute } from '../api/analyses.ts';
 import { formFromParameters, parametersFromForm, type ParametersForm } from '../lib/parameters-form.ts';
+import { PREVIEW_MEMORY_BYTES } from '../../../../shared/traces/preview-budget.ts';
 
 function Section({ title, children }: { title: string; children: ReactNode }) {
   return (
@@ -22,7 +23,7 @@ export interface AnalystPanelProps {
   canRecompute: boolean;
   /** Called with the parameters to preview (null: preview off). */
   onPreview: (parameters: AnalysisOptionsInput | null) => void;
-  preview: { results: { speed: { value: number; uncertainty: number } | null } | null; error: string | null; ms: number | null; loading: boolean; tooBig: boolean; loadError: Error | null };
+  preview: { results: { speed: { value: number; uncertainty: number } | null } | null; error: string | null; ms: number | null; loading: boolean; tooBig: boolean; neededBytes: number; loadError: Error | null };
 }
 
 /**
@@ -132,7 +133,12 @@ export function AnalystPanel({ shotId, base, channelNames, canRecompute, onPrevi
           <input type="checkbox" checked={previewOn} onChange={(e) => togglePreview(e.target.checked)} disabled={preview.tooBig} data-testid="preview-toggle" />
           Preview in this browser as I change settings
         </label>
-        {preview.tooBig && <p className="text-xs text-harbour-500">This record is too long to preview in the browser; recompute on the server instead.</p>}
+        {preview.tooBig && (
+          <p className="text-xs text-harbour-500" data-testid="preview-too-deep">
+            This record is too deep to preview in the browser: it needs about {Math.round(preview.neededBytes / 1e6).toLocaleString('en')} MB
+            of this tab's memory, and the preview keeps under {Math.round(PREVIEW_MEMORY_BYTES / 1e6)} MB. Recompute on the server instead.
+          </p>
+        )}
         {previewOn && (
           <p className="text-xs text-harbour-600" role="status" data-testid="preview-status">
             {problem ? 'Correct the settings above to see a preview.'
