@@ -4,6 +4,7 @@
 // The captures come from fixtures/generate.ts (simulated shot: 312 m/s, gates 0 and 100 mm apart).
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
+import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Capture, GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
@@ -32,6 +33,15 @@ beforeAll(async () => {
   app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
 }, 120_000);
 
+/** Signs in through the sign-in page and waits for the campaigns list it lands on. */
+async function signIn(page: Page, user: { email: string; password: string }): Promise<void> {
+  await page.goto(`${app.baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(user.email);
+  await page.getByLabel('Password').fill(user.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL('**/campaigns');
+}
+
 afterAll(async () => {
   await app?.stop();
   await harness?.close();
@@ -47,11 +57,7 @@ describe('shot workspace', () => {
     const experimenter = await launchBrowser();
     try {
       const page = await experimenter.newPage();
-      await page.goto(`${app.baseUrl}/sign-in`);
-      await page.getByLabel('E-mail').fill(demo.users.experimenter.email);
-      await page.getByLabel('Password').fill(demo.users.experimenter.password);
-      await page.getByRole('button', { name: 'Sign in' }).click();
-      await page.waitForURL('**/campaigns');
+      await signIn(page, demo.users.experimenter);
       await page.goto(shotUrl);
       await page.getByText('Drop the scope’s CSV exports here').waitFor();
       await saveScreenshot(page, 'shot-empty');
@@ -78,11 +84,7 @@ describe('shot workspace', () => {
     const analyst = await launchBrowser();
     try {
       const page = await analyst.newPage();
-      await page.goto(`${app.baseUrl}/sign-in`);
-      await page.getByLabel('E-mail').fill(demo.users.analyst.email);
-      await page.getByLabel('Password').fill(demo.users.analyst.password);
-      await page.getByRole('button', { name: 'Sign in' }).click();
-      await page.waitForURL('**/campaigns');
+      await signIn(page, demo.users.analyst);
       await page.goto(shotUrl);
       const v1Speed = await page.getByTestId('speed').textContent();
       // With the rig's 150 mm the speed is 1.5 × the true 312 m/s: far off, which is what the analyst corrects.
@@ -154,11 +156,7 @@ describe('shot workspace', () => {
     const analyst = await launchBrowser();
     try {
       const page = await analyst.newPage();
-      await page.goto(`${app.baseUrl}/sign-in`);
-      await page.getByLabel('E-mail').fill(demo.users.analyst.email);
-      await page.getByLabel('Password').fill(demo.users.analyst.password);
-      await page.getByRole('button', { name: 'Sign in' }).click();
-      await page.waitForURL('**/campaigns');
+      await signIn(page, demo.users.analyst);
       await claim(7_000_000);
       await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${shotId}`);
       await page.getByTestId('preview-toggle').waitFor();

@@ -1,14 +1,5 @@
-// BullMQ starts sandboxed processors in a worker thread, which does not inherit tsx's loader: register it here,
-// then hand BullMQ the TypeScript processor as this module's default export. The compiled build (dist/node) has
-// the .js beside this file and needs no loader.
-import { existsSync } from 'node:fs';
+// BullMQ starts sandboxed processors in a worker thread: hand it the processor (compiled, or TypeScript through
+// tsx) as this module's default export.
+import { loadBeside } from '../../scripts/lib/load-beside.mjs';
 
-const compiled = new URL('./analyse-shot.js', import.meta.url);
-let loaded;
-if (existsSync(compiled)) loaded = await import(compiled.href);
-else {
-  const { register } = await import('tsx/esm/api');
-  register();
-  loaded = await import(new URL('./analyse-shot.ts', import.meta.url).href);
-}
-export default loaded.default;
+export default (await loadBeside(import.meta.url, 'analyse-shot')).default;

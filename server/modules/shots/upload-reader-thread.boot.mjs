@@ -1,11 +1,4 @@
-// Starts upload-reader-thread.ts in a worker thread: workers do not inherit tsx's loader, so register it here
-// (the compiled build, dist/node, has the .js beside this file and needs no loader).
-import { existsSync } from 'node:fs';
+// Starts upload-reader-thread (compiled, or TypeScript through tsx) in a worker thread.
+import { loadBeside } from '../../../scripts/lib/load-beside.mjs';
 
-const compiled = new URL('./upload-reader-thread.js', import.meta.url);
-if (existsSync(compiled)) await import(compiled.href);
-else {
-  const { register } = await import('tsx/esm/api');
-  register();
-  await import(new URL('./upload-reader-thread.ts', import.meta.url).href);
-}
+await loadBeside(import.meta.url, 'upload-reader-thread');
