@@ -70,6 +70,17 @@ async function sweep(config: Config) {
   if (mended > 0) logger.info({ mended }, 'sweep recorded failures whose first write was lost');
 }
 
+/**
+ * Starts one processor thread of a queue before its first job and leaves it idle in BullMQ's pool, so the first job
+ * after a start does not wait for a thread to boot and load its modules (BullMQ starts them on demand). The pool is
+ * not public API in BullMQ 6.7.0 (pinned): without it, nothing is started ahead and threads start on demand.
+ */
+async function prewarm(worker: Worker, file: string): Promise<void> {
+  const pool = (worker as unknown as { childPool?: { retain(file: string): Promise<unknown>; release(child: unknown): void } }).childPool;
+  if (!pool || typeof pool.retain !== 'function' || typeof pool.release !== 'function') return;
+  pool.release(await pool.retain(file));
+}
+
 async function main() {
   const config = loadConfigOrExit();
   const { logger, sequelize } = workerContext();
@@ -94,6 +105,10 @@ async function main() {
     return worker;
   });
   await Promise.all(workers.map((w) => w.waitUntilReady()));
+  // Not awaited: jobs may start meanwhile (a busy pool just starts a thread of its own, as without this).
+  for (const [k, [queue, file]] of Object.entries(processorFiles).entries()) {
+    if (queue !== QUEUE_NAMES.notify) void prewarm(workers[k], file).catch((err: Error) => logger.warn({ queue, err: err.message }, 'could not start a processor thread ahead'));
+  }
   logger.info({ queues: Object.keys(processorFiles) }, 'Gatepost worker ready');
 
   const sweeper = setInterval(() => {
