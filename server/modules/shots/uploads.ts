@@ -55,10 +55,10 @@ export interface UploadedCaptureView {
  */
 export async function acceptUpload(deps: Deps, req: Request, res: Response, shot: Shot): Promise<UploadedCaptureView[]> {
   const files = await receiveFiles(deps, req, res);
+  const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
   try {
     if (files.length === 0) throw badRequest('No file received: send one or more scope CSV files in the multipart field "files".');
     const views: UploadedCaptureView[] = [];
-    const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
     for (const file of files) {
       const { sha256 } = file;
       const storageKey = `labs/${shot.labId}/raw/${sha256}`;
@@ -89,7 +89,8 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
     }
     if (fresh.length > 0) {
       if (shot.status !== 'in_review' && shot.status !== 'approved') await shot.update({ status: 'processing' });
-      for (const { capture, reader } of fresh) {
+      for (const entry of fresh) {
+        const { capture, reader } = entry;
         await recordAudit({
           labId: shot.labId, actorId: req.auth!.userId, action: 'capture.uploaded', targetType: 'shot', targetId: shot.id,
           details: { captureId: capture.id, file: capture.fileName, bytes: Number(capture.sizeBytes), sha256: capture.sha256 }, ip: clientIp(req),
@@ -97,16 +98,18 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
         const data = { captureId: capture.id, attempt: capture.ingestAttempt };
         if (reader !== null && (await deps.queues.addIngestHeld(data, INGEST_HOLD_MS))) {
           // Not awaited: the answer goes out now, the channel files follow (the held job is the safety net).
+          entry.reader = null;
           void storeReadChannels(deps, capture, reader);
         } else {
-          await reader?.close();
           await deps.queues.addIngestOrDefer(data, deps.logger);
         }
       }
     }
     return views;
   } finally {
-    await Promise.allSettled(files.flatMap((f) => [rm(f.path, { force: true }), f.reader?.close()]));
+    // Readers not handed on (duplicates, a failed request) stop here.
+    await Promise.allSettled([...files, ...fresh].map((f) => f.reader?.close()));
+    await Promise.allSettled(files.map((f) => rm(f.path, { force: true })));
   }
 }
 
