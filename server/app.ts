@@ -25,6 +25,8 @@ import { reportRoutes } from './modules/reports/routes.ts';
 import { reviewRoutes } from './modules/reviews/routes.ts';
 import { shotRoutes } from './modules/shots/routes.ts';
 import { tokenRoutes } from './modules/tokens/routes.ts';
+import { batchRoutes } from './modules/batches/routes.ts';
+import { benchRoutes } from './modules/bench/routes.ts';
 import { trendRoutes } from './modules/trends/routes.ts';
 
 const API_VERSION = '0.1.0';
@@ -49,6 +51,8 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...exportRoutes(),
     ...reportRoutes(deps),
     ...trendRoutes(),
+    ...batchRoutes(deps),
+    ...benchRoutes(),
   ];
   routes.push({
     method: 'get',

@@ -28,6 +28,14 @@ export const gateSchema = z.object({
   position: z.number(),
 });
 
+/** Savitzky–Golay smoothing window (samples, odd) and polynomial order. */
+export const smoothingSchema = z
+  .object({
+    windowSize: z.number().int().min(5).max(1001).refine((n) => n % 2 === 1, 'windowSize must be odd'),
+    polynomial: z.number().int().min(1).max(10),
+  })
+  .refine((s) => s.polynomial < s.windowSize, 'polynomial order must be smaller than windowSize');
+
 export const analysisOptionsSchema = z.object({
   levels: z
     .object({
@@ -48,14 +56,7 @@ export const analysisOptionsSchema = z.object({
   /** "falling": a blocked beam pulls the output low; "auto": the state the trace spends less time in is blocked. */
   polarity: z.enum(['auto', 'falling', 'rising']).default('auto'),
   /** Savitzky–Golay smoothing before transition detection (the raw trace is kept); null = none. */
-  smoothing: z
-    .object({
-      windowSize: z.number().int().min(5).max(1001).refine((n) => n % 2 === 1, 'windowSize must be odd'),
-      polynomial: z.number().int().min(1).max(10),
-    })
-    .refine((s) => s.polynomial < s.windowSize, 'polynomial order must be smaller than windowSize')
-    .nullable()
-    .default(null),
+  smoothing: smoothingSchema.nullable().default(null),
   /** Gate rig: channel (and pulse order within the channel, by position) → position. When absent, every channel
    * is a gate in column order at 0, spacing, 2·spacing, … */
   gates: z.array(gateSchema).min(1).optional(),

@@ -68,6 +68,8 @@ export class Campaign extends Model<InferAttributes<Campaign>, InferCreationAttr
   /** The launcher tube's length and bore, m; null when not logged. */
   declare tubeLengthM: CreationOptional<number | null>;
   declare boreM: CreationOptional<number | null>;
+  /** Default analysis settings of new shots (shared/contracts/analysis-settings.ts); null when none are kept. */
+  declare analysisSettings: CreationOptional<Record<string, unknown> | null>;
   declare createdBy: string | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -168,9 +170,26 @@ export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttr
   declare requestedBy: string | null;
   declare progress: CreationOptional<number>;
   declare captureIds: CreationOptional<string[]>;
+  /** The batch recompute that made this version (null for single recomputes and automatic analyses). */
+  declare batchId: CreationOptional<string | null>;
+  /** The shot's current version when the batch made this one: the "before" of the batch's table. */
+  declare previousAnalysisId: CreationOptional<string | null>;
   declare startedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare completedAt: CreationOptional<Date | null>;
+}
+
+export interface SkippedShot { shotId: string; number: number; reason: string }
+
+export class AnalysisBatch extends Model<InferAttributes<AnalysisBatch>, InferCreationAttributes<AnalysisBatch>> {
+  declare id: CreationOptional<string>;
+  declare labId: string;
+  declare campaignId: string;
+  declare settings: Record<string, unknown>;
+  declare shotIds: string[];
+  declare skipped: CreationOptional<SkippedShot[]>;
+  declare requestedBy: string | null;
+  declare createdAt: CreationOptional<Date>;
 }
 
 export class Review extends Model<InferAttributes<Review>, InferCreationAttributes<Review>> {
@@ -262,7 +281,7 @@ export function initModels(sequelize: Sequelize): void {
   Campaign.init(
     {
       id, labId: uuid(), name: text(), description: textOr(''), startedOn: { type: DataTypes.DATEONLY },
-      tubeLengthM: double(true), boreM: double(true), createdBy: uuid(true), ...stamps,
+      tubeLengthM: double(true), boreM: double(true), analysisSettings: json(), createdBy: uuid(true), ...stamps,
     },
     opts('campaigns'),
   );
@@ -306,9 +325,17 @@ export function initModels(sequelize: Sequelize): void {
       engineVersion: text(), state: textOr('queued'), results: json(), error: text(true), jobKey: text(), requestedBy: uuid(true),
       progress: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       captureIds: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
+      batchId: uuid(true), previousAnalysisId: uuid(true),
       startedAt: date(), createdAt: DataTypes.DATE, completedAt: date(),
     },
     opts('analyses', { updatedAt: false }),
+  );
+  AnalysisBatch.init(
+    {
+      id, labId: uuid(), campaignId: uuid(), settings: json(false), shotIds: json(false),
+      skipped: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] }, requestedBy: uuid(true), createdAt: DataTypes.DATE,
+    },
+    opts('analysis_batches', { updatedAt: false }),
   );
   Review.init(
     {

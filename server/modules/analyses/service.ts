@@ -1,7 +1,8 @@
 import { Op, type Sequelize, type Transaction } from 'sequelize';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import { ENGINE_VERSION } from '../../../shared/analysis/engine-version.ts';
-import { Analysis, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
+import { applySettings, analysisSettingsSchema } from '../../../shared/contracts/analysis-settings.ts';
+import { Analysis, Campaign, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
 import { badRequest, conflict } from '../../lib/errors.ts';
 
 export interface StoredChannel { name: string }
@@ -30,7 +31,8 @@ export function combinedChannelNames(captures: { fileName: string; channels: unk
 /**
  * The analysis a shot gets by default: the rig's gates on the captured channels in order (first channel = first
  * gate), the rig's position tolerance, the projectile's length and mass with their tolerances, the shot's ambient
- * temperature, and the engine's automatic levels and thresholds.
+ * temperature, and the engine's automatic levels and thresholds, with the campaign's default settings (if it keeps
+ * any) laid over them.
  */
 export async function defaultParameters(shot: Shot, channelNames: string[]): Promise<AnalysisOptionsInput> {
   const [rig, projectile] = await Promise.all([
@@ -52,7 +54,10 @@ export async function defaultParameters(shot: Shot, channelNames: string[]): Pro
     };
   }
   if (shot.ambientTemperatureK) params.ambient = { temperature: shot.ambientTemperatureK };
-  return params;
+  // The campaign's default settings (threshold, smoothing, polarity, edges, gate mapping) win over the engine's.
+  const campaign = await Campaign.findByPk(shot.campaignId, { attributes: ['analysisSettings'] });
+  const settings = analysisSettingsSchema.safeParse(campaign?.analysisSettings ?? {});
+  return settings.success ? applySettings(params, settings.data) : params;
 }
 
 /**
@@ -61,13 +66,19 @@ export async function defaultParameters(shot: Shot, channelNames: string[]): Pro
  */
 export async function createAnalysisVersion(
   sequelize: Sequelize,
-  input: { shotId: string; parametersInput: AnalysisOptionsInput; requestedBy: string | null; jobKey: string },
+  input: {
+    shotId: string; parametersInput: AnalysisOptionsInput; requestedBy: string | null; jobKey: string;
+    /** The batch recompute this version belongs to, and the version that was current when it was made. */
+    batchId?: string; previousAnalysisId?: string | null;
+  },
+  /** Run inside this transaction (a batch makes all its versions in one); otherwise in a transaction of its own. */
+  outer?: Transaction,
 ): Promise<{ analysis: Analysis; created: boolean }> {
   const parsed = analysisOptionsSchema.safeParse(input.parametersInput);
   if (!parsed.success) {
-    throw badRequest(`Please correct the analysis parameters: ${parsed.error.issues.map((i) => `${i.path.join('.') || 'parameters'}: ${i.message}`).join('; ')}`);
+    throw badRequest(`Please correct the analysis parameters: ${parameterProblems(parsed.error)}`);
   }
-  return sequelize.transaction(async (transaction) => {
+  const work = async (transaction: Transaction) => {
     const shot = await Shot.findByPk(input.shotId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!shot) throw conflict('The shot no longer exists.');
     const existing = await Analysis.findOne({ where: { jobKey: input.jobKey }, transaction });
@@ -85,6 +96,8 @@ export async function createAnalysisVersion(
         jobKey: input.jobKey,
         requestedBy: input.requestedBy,
         captureIds: captures.map((c) => c.id),
+        batchId: input.batchId ?? null,
+        previousAnalysisId: input.previousAnalysisId ?? null,
       },
       { transaction },
     );
@@ -92,7 +105,13 @@ export async function createAnalysisVersion(
       await shot.update({ status: 'processing' }, { transaction });
     }
     return { analysis, created: true };
-  });
+  };
+  return outer ? work(outer) : sequelize.transaction(work);
+}
+
+/** A zod error of the parameter set as one line a person can act on: "threshold.level: …; smoothing: …". */
+export function parameterProblems(error: { issues: { path: PropertyKey[]; message: string }[] }): string {
+  return error.issues.map((i) => `${i.path.map(String).join('.') || 'parameters'}: ${i.message}`).join('; ');
 }
 
 /** Captures still being read, or analyses not yet finished: the shot is busy. */

@@ -9,7 +9,7 @@ import { UniqueConstraintError, fn, col } from 'sequelize';
 
 /** What every campaign route answers for one campaign. */
 function campaignView(c: Campaign, shotCount: number) {
-  return { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, tubeLengthM: c.tubeLengthM ?? null, boreM: c.boreM ?? null, shotCount };
+  return { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, tubeLengthM: c.tubeLengthM ?? null, boreM: c.boreM ?? null, analysisSettings: c.analysisSettings ?? null, shotCount };
 }
 
 export function campaignRoutes(): RouteDef[] {

@@ -54,6 +54,8 @@ export function analysisSummary(a: Analysis) {
     error: a.error,
     engineVersion: a.engineVersion,
     requestedBy: a.requestedBy,
+    /** The batch recompute that made this version, or null. */
+    batchId: a.batchId ?? null,
     createdAt: a.createdAt,
     startedAt: a.startedAt,
     completedAt: a.completedAt,
