@@ -49,6 +49,8 @@ export interface AppProcesses {
   worker: ChildHandle | null;
   /** Starts a new worker process (after a test killed the old one with `worker.stop()` or a signal). */
   restartWorker(): ChildHandle;
+  /** Starts a new API server on the same port (after a test stopped it with `api.stop()`); resolves once it answers. */
+  restartApi(): Promise<ChildHandle>;
   /** Stops both (SIGTERM, then SIGKILL after 10 s). */
   stop(): Promise<void>;
 }
@@ -82,7 +84,7 @@ export async function startAppProcesses(options: AppProcessesOptions = {}): Prom
     ? spawnChild({ name, command: process.execPath, args: [join(NODE_BUILD_DIR, script.replace(/\.ts$/, '.js'))], env, cwd: root, echo })
     : spawnChild({ name, command: tsx, args: [script], env, cwd: root, echo });
 
-  const api = start('api', 'server/index.ts');
+  let api = start('api', 'server/index.ts');
   let worker = withWorker ? start('worker', 'worker/index.ts') : null;
   const stop = async (): Promise<void> => {
     await Promise.all([api.stop(), worker?.stop()]);
@@ -97,7 +99,9 @@ export async function startAppProcesses(options: AppProcessesOptions = {}): Prom
   return {
     baseUrl,
     env,
-    api,
+    get api() {
+      return api;
+    },
     get worker() {
       return worker;
     },
@@ -105,6 +109,12 @@ export async function startAppProcesses(options: AppProcessesOptions = {}): Prom
       if (worker && !worker.hasExited()) throw new Error(`the worker (pid ${worker.pid}) is still running; stop it first`);
       worker = start('worker', 'worker/index.ts');
       return worker;
+    },
+    async restartApi() {
+      if (!api.hasExited()) throw new Error(`the API server (pid ${api.pid}) is still running; stop it first`);
+      api = start('api', 'server/index.ts');
+      await waitForHttp(`${baseUrl}/api/health`, { timeoutMs, watch: [api] });
+      return api;
     },
     stop,
   };
