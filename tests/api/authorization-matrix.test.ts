@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
 import { createHash } from 'node:crypto';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { Analysis, ApiToken, Campaign, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
+import { Analysis, AnalysisBatch, ApiToken, Campaign, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
 import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
@@ -404,6 +404,35 @@ const MATRIX: Record<string, Row> = {
   'GET /api/labs/:labId/campaigns/:campaignId/trends': {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b) => expect(b).toMatchObject({ groupBy: 'none', points: expect.any(Array), groups: expect.any(Array), launcherFit: { status: expect.any(String) } }),
+  },
+  'PUT /api/labs/:labId/campaigns/:campaignId/analysis-settings': {
+    expect: [200, 403, 200, 403, 404, 401],
+    prepare: async ({ demo }) => {
+      const c = await Campaign.create({ labId: demo.labs.hollowmere.id, name: unique('Matrix campaign with defaults'), startedOn: null, createdBy: null });
+      return { params: { campaignId: c.id }, body: { settings: { threshold: { unit: 'percent', level: 40, hysteresis: 30 }, polarity: 'falling' } } };
+    },
+    shape: (b) => expect(b).toMatchObject({ analysisSettings: { threshold: { level: 40 }, polarity: 'falling' } }),
+  },
+  'POST /api/labs/:labId/campaigns/:campaignId/batches': {
+    expect: [202, 403, 202, 403, 404, 401],
+    prepare: async ({ h }) => ({ body: { settings: { polarity: 'falling' }, shotIds: [(await freshShotWithCapture(h, 'ready')).shotId] } }),
+    shape: (b) => expect(b).toMatchObject({ batch: { state: 'running', counts: { total: 1, queued: 1 } }, shots: [expect.objectContaining({ after: expect.objectContaining({ version: 1, state: 'queued' }) })] }),
+  },
+  'GET /api/labs/:labId/campaigns/:campaignId/batches': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toEqual({ batches: expect.any(Array) }),
+  },
+  'GET /api/labs/:labId/batches/:batchId': {
+    expect: [200, 200, 200, 200, 404, 401],
+    prepare: async ({ demo }) => {
+      const batch = await AnalysisBatch.create({ labId: demo.labs.hollowmere.id, campaignId: demo.hollowmere.campaignIds[0], settings: { edges: 'leading' }, shotIds: [], requestedBy: null });
+      return { params: { batchId: batch.id } };
+    },
+    shape: (b) => expect(b).toMatchObject({ batch: { settings: { edges: 'leading' }, state: 'done', counts: { total: 0 } }, shots: [] }),
+  },
+  'GET /api/labs/:labId/campaigns/:campaignId/bench': {
+    expect: [200, 200, 200, 200, 404, 401],
+    shape: (b) => expect(b).toMatchObject({ campaign: { name: 'Vacuum sweep, autumn 2026' }, latest: expect.objectContaining({ number: expect.any(Number) }), recent: expect.any(Array) }),
   },
   'GET /api/openapi.json': {
     expect: [200, 200, 200, 200, 200, 200],
