@@ -7,6 +7,8 @@ export const router = createBrowserRouter([
   { path: '/sign-in', lazy: () => import('./routes/sign-in.tsx') },
   { path: '/invite/:token', lazy: () => import('./routes/invite.tsx') },
   { path: '/account/tokens', lazy: () => import('./routes/account-tokens.tsx') },
+  // Full screen, without the lab's frame: the display beside the launcher.
+  { path: '/labs/:labId/campaigns/:campaignId/bench', lazy: () => import('./routes/lab-campaign-bench.tsx'), errorElement: <RouteError /> },
   {
     path: '/labs/:labId',
     lazy: () => import('./routes/lab.tsx'),
@@ -16,6 +18,8 @@ export const router = createBrowserRouter([
       { path: 'campaigns/:campaignId', lazy: () => import('./routes/lab-campaign.tsx') },
       { path: 'shots/:shotId', lazy: () => import('./routes/lab-shot.tsx') },
       { path: 'campaigns/:campaignId/trends', lazy: () => import('./routes/lab-campaign-trends.tsx') },
+      { path: 'campaigns/:campaignId/batch', lazy: () => import('./routes/lab-campaign-batch.tsx') },
+      { path: 'batches/:batchId', lazy: () => import('./routes/lab-batch.tsx') },
       { path: 'review-queue', lazy: () => import('./routes/lab-review-queue.tsx') },
       { path: 'compare', lazy: () => import('./routes/lab-compare.tsx') },
       { path: 'library', lazy: () => import('./routes/lab-library.tsx') },

@@ -8,9 +8,10 @@ export function Component() {
   const { membership } = useLab();
   const { campaignId = '' } = useParams();
   const canWrite = can(membership.role, 'shots:write');
+  const canRecompute = can(membership.role, 'analyses:write');
   return (
     <div className="space-y-4">
-      <CampaignShots labId={membership.labId} campaignId={campaignId} canWrite={canWrite} />
+      <CampaignShots labId={membership.labId} campaignId={campaignId} canWrite={canWrite} canRecompute={canRecompute} />
       {canWrite && <DropToNewShot labId={membership.labId} campaignId={campaignId} />}
     </div>
   );

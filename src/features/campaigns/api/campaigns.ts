@@ -1,12 +1,15 @@
 import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { api } from '../../../lib/api-client.ts';
 import type { CampaignBody, CampaignPatchBody } from '../../../../shared/contracts/auth.ts';
+import type { AnalysisSettings } from '../../../../shared/contracts/analysis-settings.ts';
 import { labKeys } from '../../labs/api/members.ts';
 
 export interface CampaignRow {
   id: string; name: string; description: string; startedOn: string | null;
   /** The launcher tube, m; null when not logged. */
   tubeLengthM: number | null; boreM: number | null;
+  /** Default analysis settings of new shots (threshold, smoothing, polarity, edges, gates); null when none. */
+  analysisSettings: AnalysisSettings | null;
   shotCount: number;
 }
 export interface ShotRow {

@@ -7,7 +7,7 @@ import { NewShotForm } from './new-shot-form.tsx';
 import { ShotTable } from './shot-table.tsx';
 
 /** The campaign page: its shots (sorted, filtered and paged by the server) and, for those who log shots, a new one. */
-export function CampaignShots({ labId, campaignId, canWrite }: { labId: string; campaignId: string; canWrite: boolean }) {
+export function CampaignShots({ labId, campaignId, canWrite, canRecompute = false }: { labId: string; campaignId: string; canWrite: boolean; canRecompute?: boolean }) {
   const q = useCampaign(labId, campaignId);
   const [creating, setCreating] = useState(false);
   // The latest shot, to carry its seal, projectile and rig into the form.
@@ -24,6 +24,8 @@ export function CampaignShots({ labId, campaignId, canWrite }: { labId: string; 
           <div className="flex items-center gap-3">
             <Link to=".." relative="path" className="text-sm font-medium text-harbour-600 hover:underline">All campaigns</Link>
             <Link to={`/labs/${labId}/campaigns/${campaignId}/trends`} className="text-sm font-medium text-harbour-600 hover:underline">Trends</Link>
+            <Link to={`/labs/${labId}/campaigns/${campaignId}/bench`} className="text-sm font-medium text-harbour-600 hover:underline">Bench display</Link>
+            {canRecompute && <Link to={`/labs/${labId}/campaigns/${campaignId}/batch`} className="text-sm font-medium text-harbour-600 hover:underline">Recompute several</Link>}
             {canWrite && !creating && <Button onClick={() => setCreating(true)}>New shot</Button>}
           </div>
         }

@@ -1,0 +1,20 @@
+import { useParams } from 'react-router-dom';
+import { BenchDisplay } from '../../features/bench/components/bench-display.tsx';
+import { RequireAuth } from '../require-auth.tsx';
+import { NotFoundPage } from './not-found.tsx';
+
+/** Full screen, outside the lab's frame: the display beside the launcher. */
+export function Component() {
+  const { labId = '', campaignId = '' } = useParams();
+  return (
+    <RequireAuth>
+      {(me) => {
+        const membership = me.memberships.find((m) => m.labId === labId);
+        if (!membership) return <NotFoundPage message="This lab does not exist, or you are not a member of it." />;
+        return <BenchDisplay labId={labId} campaignId={campaignId} labName={membership.labName} />;
+      }}
+    </RequireAuth>
+  );
+}
+
+export { RouteError as ErrorBoundary } from './route-error.tsx';
