@@ -41,6 +41,9 @@ export const batchListQueryOptions = (labId: string, campaignId: string) =>
   queryOptions({
     queryKey: batchKeys.list(labId, campaignId),
     queryFn: () => api.get<{ batches: BatchSummary[] }>(`/api/labs/${labId}/campaigns/${campaignId}/batches`),
+    // Progress moves on the server: read again on each visit, and every few seconds while a batch runs.
+    staleTime: 0,
+    refetchInterval: (query) => (query.state.data?.batches.some((b) => b.state === 'running') ? 3000 : false),
   });
 
 /** One batch; polled every second while any of its versions is queued or running (one progress display). */

@@ -8,6 +8,12 @@ const METHOD = { fit: 'flight, fit', pair: 'flight, two gates', occlusion: 'occl
 const methodOf = (o: Outcome | null) => (o?.speed ? METHOD[o.speed.basis] ?? o.speed.method : 'no speed');
 const speedText = (o: Outcome | null) => (o?.speed ? formatMeasurement(o.speed.value, o.speed.uncertainty, 'm/s') : '—');
 
+/** "+0.42", "−1.30", and "0.00" for a change that rounds to nothing (no sign it does not have). */
+function signed(x: number): string {
+  const text = Math.abs(x).toFixed(2);
+  return Number(text) === 0 ? text : `${x > 0 ? '+' : '−'}${text}`;
+}
+
 function ChangeCell({ row }: { row: BatchShotRow }) {
   if (row.after.state === 'failed') return <span className="text-red-700">failed: {row.after.error}</span>;
   if (row.after.state !== 'done') return <span className="text-harbour-400">{row.after.state === 'running' ? 'computing…' : 'queued'}</span>;
@@ -16,8 +22,8 @@ function ChangeCell({ row }: { row: BatchShotRow }) {
   const big = c.deltaInU != null && Math.abs(c.deltaInU) > 1;
   return (
     <span className={big ? 'font-semibold text-signal-800' : ''}>
-      {c.delta >= 0 ? '+' : '−'}{Math.abs(c.delta).toFixed(2)} m/s
-      {c.deltaInU != null && <span className="block text-xs">{c.deltaInU >= 0 ? '+' : '−'}{Math.abs(c.deltaInU).toFixed(2)} U</span>}
+      {signed(c.delta)} m/s
+      {c.deltaInU != null && <span className="block text-xs">{signed(c.deltaInU)} U</span>}
     </span>
   );
 }
@@ -41,7 +47,7 @@ export function BatchResult({ labId, batchId }: { labId: string; batchId: string
         <Card title="Progress">
           <div className="space-y-2 p-5">
             <div className="h-3 overflow-hidden rounded-full bg-harbour-100" role="progressbar" aria-valuemin={0} aria-valuemax={100} aria-valuenow={pct} aria-label="Batch progress">
-              <div className={`h-full ${batch.counts.failed ? 'bg-signal-400' : 'bg-harbour-600'} transition-[width]`} style={{ width: `${pct}%` }} />
+              <div className={`h-full ${batch.counts.failed ? 'bg-signal-400' : 'bg-harbour-600'}`} style={{ width: `${pct}%` }} />
             </div>
             <p className="text-sm text-harbour-700" role="status" data-testid="batch-progress">
               {batch.state === 'done' ? 'Finished' : 'Working'}: {finished} of {batch.counts.total} shot{batch.counts.total === 1 ? '' : 's'} done

@@ -14,6 +14,8 @@ export interface BenchTrace {
   gatePositions: number[];
   /** Crossing level, V. */
   threshold: number | null;
+  /** The channel's two state levels, V. */
+  levels: { low: number; high: number } | null;
   /** Threshold crossings (transition instants), s. */
   crossings: number[];
 }

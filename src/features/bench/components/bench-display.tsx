@@ -13,6 +13,12 @@ export function methodWords(speed: BenchSpeed, fitGates: number | null = null): 
 
 const shortMethod = (s: BenchSpeed) => (s.basis === 'occlusion' ? 'occlusion' : s.basis === 'fit' ? 'flight, fit' : 'flight');
 
+/** The range of every channel's state levels, V: one vertical scale for all small traces. */
+function sharedScale(traces: BenchLatest['traces']): { low: number; high: number } | null {
+  const levels = traces.flatMap((t) => (t.levels ? [t.levels.low, t.levels.high] : []));
+  return levels.length > 0 ? { low: Math.min(...levels), high: Math.max(...levels) } : null;
+}
+
 function Headline({ latest }: { latest: BenchLatest }) {
   const r = latest.speed ? roundToUncertainty(latest.speed.value, latest.speed.uncertainty) : null;
   return (
@@ -29,11 +35,11 @@ function Headline({ latest }: { latest: BenchLatest }) {
       {r ? (
         <>
           <p className="mt-1 leading-none font-semibold tracking-tight text-white tabular-nums" data-testid="bench-speed">
-            <span className="text-[clamp(5rem,11vw,13rem)]">{r.value}</span>
-            <span className="ml-[0.2em] text-[clamp(2.5rem,5vw,6rem)] text-harbour-100">± {r.uncertainty}</span>
-            <span className="ml-[0.3em] text-[clamp(2rem,3.5vw,4.5rem)] font-medium text-harbour-200">m/s</span>
+            <span className="text-[clamp(4.5rem,min(11vw,19vh),13rem)]">{r.value}</span>
+            <span className="ml-[0.2em] text-[clamp(2.25rem,min(5vw,9vh),6rem)] text-harbour-100">± {r.uncertainty}</span>
+            <span className="ml-[0.3em] text-[clamp(1.75rem,min(3.5vw,6vh),4.5rem)] font-medium text-harbour-200">m/s</span>
           </p>
-          <p className="mt-3 text-xl text-harbour-200 xl:text-2xl" data-testid="bench-method">
+          <p className="mt-3 text-lg text-harbour-200 min-[1400px]:text-2xl" data-testid="bench-method">
             {methodWords(latest.speed!, latest.fitGates)} · expanded uncertainty, k = 2 (about 95 %)
           </p>
         </>
@@ -46,7 +52,7 @@ function Headline({ latest }: { latest: BenchLatest }) {
         </ul>
       )}
       {latest.warnings.length > 0 && (
-        <div role="alert" className="mt-5 rounded-lg bg-signal-400/15 px-5 py-3 text-lg text-signal-100 ring-1 ring-signal-400/60 xl:text-xl">
+        <div role="alert" className="mt-4 rounded-lg bg-signal-400/15 px-5 py-3 text-lg text-signal-100 ring-1 ring-signal-400/60 min-[1400px]:text-xl">
           <p className="font-semibold text-signal-400">Check before trusting this result</p>
           <ul className="mt-1 list-disc space-y-0.5 pl-6">
             {latest.warnings.map((w) => <li key={w}>{w}</li>)}
@@ -82,13 +88,13 @@ export function BenchDisplay({ labId, campaignId, labName }: { labId: string; ca
       {feed.isError && !data && <p className="px-8 py-16 text-3xl text-red-300">{feed.error.message}</p>}
       {data && !data.latest && <p className="px-8 py-16 text-4xl text-harbour-200">No shot in this campaign yet. The first result appears here by itself.</p>}
       {data?.latest && (
-        <main className="grid flex-1 gap-8 px-8 py-6 lg:grid-cols-[minmax(0,3fr)_minmax(16rem,1fr)]">
-          <div className="min-w-0 space-y-6">
+        <main className="grid flex-1 gap-8 px-8 py-4 lg:grid-cols-[minmax(0,3fr)_minmax(16rem,1fr)]">
+          <div className="min-w-0 space-y-5">
             <Headline latest={data.latest} />
             {data.latest.traces.length > 0 && (
-              <div className="grid gap-3 sm:grid-cols-2 2xl:grid-cols-3" aria-label="Gate traces">
+              <div className={`grid gap-3 sm:grid-cols-2 ${data.latest.traces.length >= 3 ? 'lg:grid-cols-3' : ''}`} aria-label="Gate traces">
                 {data.latest.traces.map((t) => (
-                  <MiniTrace key={`${data.latest!.analysis?.id}-${t.captureId}-${t.channelIndex}`} trace={t} window={data.latest!.window} />
+                  <MiniTrace key={`${data.latest!.analysis?.id}-${t.captureId}-${t.channelIndex}`} trace={t} window={data.latest!.window} scale={sharedScale(data.latest!.traces)} />
                 ))}
               </div>
             )}
@@ -98,7 +104,7 @@ export function BenchDisplay({ labId, campaignId, labName }: { labId: string; ca
             {data.recent.length === 0 ? <p className="mt-3 text-xl text-harbour-300">None yet.</p> : (
               <ol className="mt-2 divide-y divide-harbour-700" data-testid="bench-recent">
                 {data.recent.map((s) => (
-                  <li key={s.id} className="flex items-baseline justify-between gap-4 py-2.5 text-2xl tabular-nums">
+                  <li key={s.id} className="flex items-baseline justify-between gap-4 py-2 text-2xl tabular-nums">
                     <span className="text-harbour-200">#{s.number}</span>
                     <span className="text-right">
                       {s.speed ? formatMeasurement(s.speed.value, s.speed.uncertainty, 'm/s') : <span className="text-harbour-300">{s.status === 'failed' ? 'failed' : '—'}</span>}

@@ -31,8 +31,11 @@ function tracePath(data: NonNullable<ReturnType<typeof useBenchTrace>['data']>, 
   return parts.join('');
 }
 
-/** One gate's trace, small: the samples around the pulses, the threshold dashed, each crossing marked. */
-export function MiniTrace({ trace, window }: { trace: BenchTrace; window: BenchLatest['window'] }) {
+/**
+ * One gate's trace, small: the samples around the pulses, the threshold dashed, each crossing marked, on the same
+ * vertical scale as the other gates so a weak dip looks weak.
+ */
+export function MiniTrace({ trace, window, scale }: { trace: BenchTrace; window: BenchLatest['window']; scale: { low: number; high: number } | null }) {
   const q = useBenchTrace(trace, window, W);
   const gate = trace.gatePositions.length > 0 ? `gate at ${trace.gatePositions.map((p) => `${Number((p * 1000).toFixed(1))} mm`).join(', ')}` : 'not a gate';
   const missed = trace.status === 'missed';
@@ -41,8 +44,9 @@ export function MiniTrace({ trace, window }: { trace: BenchTrace; window: BenchL
     const from = q.data.from;
     const to = q.data.to > from ? q.data.to : from + 1e-9;
     const values = q.data.raw ? q.data.v : [...q.data.min, ...q.data.max];
-    let lo = Infinity;
-    let hi = -Infinity;
+    // One vertical scale for every gate (from all channels' state levels), widened only by samples outside it.
+    let lo = scale?.low ?? Infinity;
+    let hi = scale?.high ?? -Infinity;
     for (const v of values) {
       if (v == null) continue;
       if (v < lo) lo = v;
@@ -77,7 +81,7 @@ export function MiniTrace({ trace, window }: { trace: BenchTrace; window: BenchL
         <span className="truncate font-medium text-white">{trace.name}</span>
         <span className={missed ? 'font-semibold text-red-300' : ''}>{missed ? 'missed' : gate}</span>
       </figcaption>
-      <svg viewBox={`0 0 ${W} ${H}`} preserveAspectRatio="none" className="mt-2 h-20 w-full xl:h-28" role="img"
+      <svg viewBox={`0 0 ${W} ${H}`} preserveAspectRatio="none" className="mt-2 h-16 w-full min-[1400px]:h-[clamp(7rem,16vh,14rem)]" role="img"
         aria-label={`${trace.name}: ${trace.crossings.length} threshold crossing${trace.crossings.length === 1 ? '' : 's'}${missed ? ', missed' : ''}`}>
         {body}
       </svg>
