@@ -60,7 +60,7 @@ export function BatchForm({ labId, campaignId }: { labId: string; campaignId: st
       />
       <div className="space-y-6">
         <Card title="Settings to apply">
-          <div className="space-y-4 p-5">
+          <div className="space-y-4">
             <p className="text-sm text-harbour-600">
               Settings left as “keep each shot’s” stay as each shot’s current version has them; each shot also keeps its own
               projectile, room conditions and tolerances. Approved shots get a new version that needs a new review.
@@ -72,7 +72,7 @@ export function BatchForm({ labId, campaignId }: { labId: string; campaignId: st
         </Card>
 
         <Card title="Shots">
-          <div className="space-y-3 p-5 text-sm">
+          <div className="space-y-3 text-sm">
             <label className="flex items-center gap-2 font-medium">
               <input type="checkbox" checked={all} onChange={(e) => setAll(e.target.checked)} data-testid="batch-all" />
               Every shot of the campaign ({shots.data.total})
@@ -109,9 +109,9 @@ export function BatchForm({ labId, campaignId }: { labId: string; campaignId: st
 
         <Card title="Earlier batches">
           {batches.isPending ? <Loading /> : batches.isError ? <ErrorNote error={batches.error} /> : batches.data.batches.length === 0 ? (
-            <p className="p-5 text-sm text-harbour-500">No batch recompute in this campaign yet.</p>
+            <p className="text-sm text-harbour-500">No batch recompute in this campaign yet.</p>
           ) : (
-            <ul className="divide-y divide-harbour-100 text-sm">
+            <ul className="-mx-5 -my-5 divide-y divide-harbour-100 text-sm">
               {batches.data.batches.map((b) => (
                 <li key={b.id} className="flex flex-wrap items-baseline gap-x-4 px-5 py-2">
                   <Link to={`/labs/${labId}/batches/${b.id}`} className="font-medium text-harbour-800 hover:underline">{formatDateTime(b.createdAt)}</Link>

@@ -45,7 +45,7 @@ export function BatchResult({ labId, batchId }: { labId: string; batchId: string
       />
       <div className="space-y-6">
         <Card title="Progress">
-          <div className="space-y-2 p-5">
+          <div className="space-y-2">
             <div className="h-3 overflow-hidden rounded-full bg-harbour-100" role="progressbar" aria-valuemin={0} aria-valuemax={100} aria-valuenow={pct} aria-label="Batch progress">
               <div className={`h-full ${batch.counts.failed ? 'bg-signal-400' : 'bg-harbour-600'}`} style={{ width: `${pct}%` }} />
             </div>
@@ -60,7 +60,7 @@ export function BatchResult({ labId, batchId }: { labId: string; batchId: string
           </div>
         </Card>
         <Card title="Before and after">
-          <div className="overflow-x-auto">
+          <div className="-mx-5 -mt-5 overflow-x-auto">
             <table className="min-w-full text-sm" aria-label="Before and after">
               <thead className="text-left text-xs uppercase tracking-wide text-harbour-500">
                 <tr>
@@ -98,7 +98,7 @@ export function BatchResult({ labId, batchId }: { labId: string; batchId: string
               </tbody>
             </table>
           </div>
-          <p className="border-t border-harbour-100 px-5 py-3 text-xs text-harbour-500">
+          <p className="-mx-5 -mb-5 border-t border-harbour-100 px-5 py-3 text-xs text-harbour-500">
             Change in units of U: (after − before) divided by the earlier version’s expanded uncertainty (k = 2). Both versions
             come from the same samples, so their errors are strongly correlated: a change above 1 U means the settings, not the
             noise, moved the result. Every new version needs its own review before it is signed off.
