@@ -26,6 +26,30 @@ export const createShotBody = shotConditionsSchema.extend({
 });
 export type CreateShotBody = z.infer<typeof createShotBody>;
 
+/** What the campaign's last shot passes on to the next one when files arrive without a logged shot. */
+export interface ShotSetUp {
+  projectileId: string | null;
+  gateRigId: string | null;
+  conditions: { sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
+}
+
+/**
+ * The next shot of a campaign for files dropped on the campaign page or sent by the bench uploader: the last shot's
+ * projectile, rig, seal and room conditions (to be checked on the shot page), fired now.
+ */
+export function nextShotBody(campaignId: string, last: ShotSetUp | undefined, notes: string, firedAt: string): CreateShotBody {
+  return {
+    campaignId,
+    projectileId: last?.projectileId ?? null,
+    gateRigId: last?.gateRigId ?? null,
+    sealType: last?.conditions.sealType || undefined,
+    ambientTemperatureK: last?.conditions.ambientTemperatureK ?? null,
+    ambientPressurePa: last?.conditions.ambientPressurePa ?? null,
+    firedAt,
+    notes,
+  };
+}
+
 export const updateShotBody = shotConditionsSchema;
 export type UpdateShotBody = z.infer<typeof updateShotBody>;
 

@@ -9,7 +9,7 @@ import { Campaign, GateRig, Projectile, Shot } from '../../server/db/models/inde
 import { pollUntil, signIn as apiSignIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { createApiHarness, type ApiHarness, type DemoUser } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { jsHeapCensus, launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { jsHeapCensus, launchBrowser, saveScreenshot, signInOnPage } from '../helpers/browser.ts';
 
 let harness: ApiHarness;
 let app: AppProcesses;
@@ -52,13 +52,7 @@ async function fire(speed: number, weakC = false): Promise<{ id: string; number:
   return res.body.shot;
 }
 
-async function signIn(page: Page, user: DemoUser) {
-  await page.goto(`${app.baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(user.email);
-  await page.getByLabel('Password').fill(user.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL('**/campaigns');
-}
+const signIn = (page: Page, user: DemoUser) => signInOnPage(page, app.baseUrl, user);
 
 /** The speed value in the big type: "312.41". */
 const headline = (page: Page) => page.getByTestId('bench-speed').locator('span').first().textContent();

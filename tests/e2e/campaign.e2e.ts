@@ -7,7 +7,7 @@ import type { Page } from 'playwright-core';
 import { Analysis, Campaign, Projectile, Review, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness, type DemoUser } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { launchBrowser, saveScreenshot, signInOnPage } from '../helpers/browser.ts';
 
 let harness: ApiHarness;
 let app: AppProcesses;
@@ -57,13 +57,7 @@ afterAll(async () => {
   await harness?.close();
 });
 
-async function signIn(page: Page, user: DemoUser) {
-  await page.goto(`${app.baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(user.email);
-  await page.getByLabel('Password').fill(user.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL('**/campaigns');
-}
+const signIn = (page: Page, user: DemoUser) => signInOnPage(page, app.baseUrl, user);
 
 const campaignUrl = () => `${app.baseUrl}/labs/${harness.demo.labs.hollowmere.id}/campaigns/${harness.demo.hollowmere.campaignIds[0]}`;
 const shotTable = (page: Page) => page.getByRole('table', { name: 'Shots' });

@@ -131,3 +131,12 @@ export async function jsHeapCensus(cdp: CDPSession): Promise<JsHeapCensus> {
   }
   return { usedBytes, appObjects, appBytes, byName };
 }
+
+/** Signs a demo user in through the sign-in page and waits for the lab's campaigns. */
+export async function signInOnPage(page: Page, baseUrl: string, user: { email: string; password: string }): Promise<void> {
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(user.email);
+  await page.getByLabel('Password').fill(user.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL('**/campaigns');
+}

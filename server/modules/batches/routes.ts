@@ -1,18 +1,12 @@
 import { batchRequestBody, campaignSettingsBody, type BatchRequestBody, type CampaignSettingsBody } from '../../../shared/contracts/analysis-settings.ts';
-import { AnalysisBatch, Campaign } from '../../db/models/index.ts';
+import { AnalysisBatch } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { notFound } from '../../lib/errors.ts';
-import type { Request } from 'express';
 import type { RouteDef } from '../../lib/routes.ts';
+import { campaignInLab } from '../campaigns/routes.ts';
 import { batchView, createBatch } from './service.ts';
-
-async function campaignInLab(req: Request): Promise<Campaign> {
-  const c = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
-  if (!c) throw notFound('No such campaign in this lab.');
-  return c;
-}
 
 export function batchRoutes(deps: Deps): RouteDef[] {
   return [

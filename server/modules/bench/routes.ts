@@ -1,8 +1,8 @@
 import { Op } from 'sequelize';
 import { z } from 'zod';
-import { Analysis, Campaign, Capture, Shot } from '../../db/models/index.ts';
-import { notFound } from '../../lib/errors.ts';
+import { Analysis, Capture, Shot } from '../../db/models/index.ts';
 import type { RouteDef } from '../../lib/routes.ts';
+import { campaignInLab } from '../campaigns/routes.ts';
 import { benchShotView, type BenchSpeed } from './view.ts';
 
 const benchQuery = z.object({
@@ -20,8 +20,7 @@ export function benchRoutes(): RouteDef[] {
       query: benchQuery,
       async handler(req, res) {
         const { recent } = res.locals.query as z.infer<typeof benchQuery>;
-        const campaign = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id }, attributes: ['id', 'name', 'labId'] });
-        if (!campaign) throw notFound('No such campaign in this lab.');
+        const campaign = await campaignInLab(req);
         const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId: campaign.labId }, order: [['number', 'DESC']], limit: recent + 1 });
         const analysisIds = shots.map((s) => s.currentAnalysisId).filter((id): id is string => id != null);
         const latest = shots[0] ?? null;

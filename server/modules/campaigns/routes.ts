@@ -1,3 +1,4 @@
+import type { Request } from 'express';
 import { campaignBody, campaignPatchBody, type CampaignBody, type CampaignPatchBody } from '../../../shared/contracts/auth.ts';
 import { Campaign, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
@@ -6,6 +7,13 @@ import { conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { shotSummary } from '../shots/view.ts';
 import { UniqueConstraintError, fn, col } from 'sequelize';
+
+/** The campaign of `:campaignId` in the caller's lab (the access guard has already placed the caller in that lab). */
+export async function campaignInLab(req: Request): Promise<Campaign> {
+  const c = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
+  if (!c) throw notFound('No such campaign in this lab.');
+  return c;
+}
 
 /** What every campaign route answers for one campaign. */
 function campaignView(c: Campaign, shotCount: number) {
@@ -60,8 +68,7 @@ export function campaignRoutes(): RouteDef[] {
       access: { kind: 'lab', permission: 'lab:read' },
       summary: 'One campaign and its shots',
       async handler(req, res) {
-        const c = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
-        if (!c) throw notFound('No such campaign in this lab.');
+        const c = await campaignInLab(req);
         const shots = await Shot.findAll({ where: { campaignId: c.id, labId: req.lab!.id }, order: [['number', 'ASC']] });
         res.json({
           campaign: campaignView(c, shots.length),
@@ -76,8 +83,7 @@ export function campaignRoutes(): RouteDef[] {
       summary: "Correct a campaign's name, description, start date or launcher (tube length and bore)",
       body: campaignPatchBody,
       async handler(req, res) {
-        const c = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
-        if (!c) throw notFound('No such campaign in this lab.');
+        const c = await campaignInLab(req);
         const changes = req.body as CampaignPatchBody;
         const before = Object.fromEntries(Object.keys(changes).map((k) => [k, (c.get(k) as unknown) ?? null]));
         try {

@@ -3,15 +3,13 @@
  * campaign page does: log the campaign's next shot with the last shot's set-up, upload the files to it, and wait
  * for the result.
  */
+import { nextShotBody, type ShotSetUp } from '../../../shared/contracts/shots.ts';
 import { formatMeasurement } from '../../../shared/units/format-measurement.ts';
 import { ApiError, type BenchApi, type UploadFile } from './api-client.ts';
 
 interface Membership { labId: string; labName: string; labSlug: string }
 interface CampaignRow { id: string; name: string }
-interface ShotRow {
-  id: string; number: number; projectileId: string | null; gateRigId: string | null;
-  conditions: { sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
-}
+interface ShotRow extends ShotSetUp { id: string; number: number }
 
 export interface CampaignRef { labId: string; labName: string; campaignId: string; campaignName: string }
 
@@ -51,16 +49,10 @@ export async function logNextShot(api: BenchApi, ref: CampaignRef, group: string
   const earlier = await api.get<{ shots: ShotRow[] }>(`${base}&q=${encodeURIComponent(`[bench ${group}]`)}&limit=1`);
   if (earlier.shots[0]) return earlier.shots[0];
   const latest = (await api.get<{ shots: ShotRow[] }>(`${base}&limit=1&sort=number:desc`)).shots[0];
-  const { shot } = await api.post<{ shot: { id: string; number: number } }>(`/api/labs/${ref.labId}/shots`, {
-    campaignId: ref.campaignId,
-    projectileId: latest?.projectileId ?? null,
-    gateRigId: latest?.gateRigId ?? null,
-    sealType: latest?.conditions.sealType || undefined,
-    ambientTemperatureK: latest?.conditions.ambientTemperatureK ?? null,
-    ambientPressurePa: latest?.conditions.ambientPressurePa ?? null,
-    firedAt: new Date().toISOString(),
-    notes: shotNote(group, names),
-  });
+  const { shot } = await api.post<{ shot: { id: string; number: number } }>(
+    `/api/labs/${ref.labId}/shots`,
+    nextShotBody(ref.campaignId, latest, shotNote(group, names), new Date().toISOString()),
+  );
   return shot;
 }
 

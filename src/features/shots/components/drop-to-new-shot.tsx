@@ -3,9 +3,10 @@ import { useState, type DragEvent } from 'react';
 import { useNavigate } from 'react-router-dom';
 import { api } from '../../../lib/api-client.ts';
 import { ErrorNote } from '../../../components/ui/primitives.tsx';
+import { nextShotBody, type ShotSetUp } from '../../../../shared/contracts/shots.ts';
 import { uploadCapture } from '../api/captures.ts';
 
-interface LatestShot { shots: { projectileId: string | null; gateRigId: string | null; conditions: { sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null } }[] }
+interface LatestShot { shots: ShotSetUp[] }
 
 /**
  * Files dropped on a campaign log its next shot: numbered after the last one, with the last shot's projectile, rig,
@@ -28,16 +29,10 @@ export function DropToNewShot({ labId, campaignId }: { labId: string; campaignId
       setStatus('Logging the next shot…');
       const latest = await api.get<LatestShot>(`/api/labs/${labId}/shots?campaignId=${campaignId}&limit=1&sort=number:desc`);
       const last = latest.shots[0];
-      const { shot } = await api.post<{ shot: { id: string; number: number } }>(`/api/labs/${labId}/shots`, {
-        campaignId,
-        projectileId: last?.projectileId ?? null,
-        gateRigId: last?.gateRigId ?? null,
-        sealType: last?.conditions.sealType || undefined,
-        ambientTemperatureK: last?.conditions.ambientTemperatureK ?? null,
-        ambientPressurePa: last?.conditions.ambientPressurePa ?? null,
-        firedAt: new Date().toISOString(),
-        notes: 'Logged by dropping files on the campaign; check the conditions.',
-      });
+      const { shot } = await api.post<{ shot: { id: string; number: number } }>(
+        `/api/labs/${labId}/shots`,
+        nextShotBody(campaignId, last, 'Logged by dropping files on the campaign; check the conditions.', new Date().toISOString()),
+      );
       for (let i = 0; i < files.length; i++) {
         await uploadCapture(shot.id, files[i], (f) => setStatus(`Shot #${shot.number}: sending ${files[i].name} (${Math.round(f * 100)} %)`));
       }
