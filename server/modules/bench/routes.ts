@@ -1,4 +1,4 @@
-import { Op } from 'sequelize';
+import { literal, Op } from 'sequelize';
 import { z } from 'zod';
 import { Analysis, Capture, Shot } from '../../db/models/index.ts';
 import type { RouteDef } from '../../lib/routes.ts';
@@ -22,20 +22,26 @@ export function benchRoutes(): RouteDef[] {
         const { recent } = res.locals.query as z.infer<typeof benchQuery>;
         const campaign = await campaignInLab(req);
         const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId: campaign.labId }, order: [['number', 'DESC']], limit: recent + 1 });
-        const analysisIds = shots.map((s) => s.currentAnalysisId).filter((id): id is string => id != null);
         const latest = shots[0] ?? null;
-        const [analyses, newest, captures] = await Promise.all([
-          analysisIds.length === 0 ? [] : Analysis.findAll({ where: { id: { [Op.in]: analysisIds }, labId: campaign.labId } }),
+        const earlierIds = shots.slice(1).map((s) => s.currentAnalysisId).filter((id): id is string => id != null);
+        // Polled every second by every open display: only the latest shot's results are read whole; the earlier
+        // shots' only for their speed.
+        const [current, newest, captures, speeds] = await Promise.all([
+          latest?.currentAnalysisId ? Analysis.findOne({ where: { id: latest.currentAnalysisId, labId: campaign.labId } }) : null,
           latest ? Analysis.findOne({ where: { shotId: latest.id }, order: [['version', 'DESC']], attributes: { exclude: ['results', 'parameters'] } }) : null,
           latest ? Capture.findAll({ where: { shotId: latest.id }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']] }) : [],
+          earlierIds.length === 0 ? [] : (Analysis.findAll({
+            where: { id: { [Op.in]: earlierIds }, labId: campaign.labId },
+            attributes: ['id', [literal(`results -> 'speed'`), 'speed']],
+            raw: true,
+          }) as unknown as Promise<{ id: string; speed: BenchSpeed | null }[]>),
         ]);
-        const current = new Map(analyses.map((a) => [a.id, a]));
+        const speedOf = new Map(speeds.map((a) => [a.id, a.speed]));
         res.json({
           campaign: { id: campaign.id, name: campaign.name },
-          latest: latest ? benchShotView(latest, latest.currentAnalysisId ? current.get(latest.currentAnalysisId) ?? null : null, newest, captures) : null,
+          latest: latest ? benchShotView(latest, current, newest, captures) : null,
           recent: shots.slice(1).map((s) => {
-            const a = s.currentAnalysisId ? current.get(s.currentAnalysisId) : undefined;
-            const speed = (a?.results as { speed?: BenchSpeed | null } | null)?.speed ?? null;
+            const speed = s.currentAnalysisId ? speedOf.get(s.currentAnalysisId) ?? null : null;
             return {
               id: s.id, number: s.number, status: s.status, firedAt: s.firedAt,
               speed: speed ? { value: speed.value, uncertainty: speed.uncertainty, method: speed.method, basis: speed.basis } : null,
