@@ -6,7 +6,7 @@ import type { Deps } from '../../lib/deps.ts';
 import { notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { campaignInLab } from '../campaigns/routes.ts';
-import { batchView, createBatch } from './service.ts';
+import { batchListView, batchView, createBatch } from './service.ts';
 
 export function batchRoutes(deps: Deps): RouteDef[] {
   return [
@@ -64,8 +64,7 @@ export function batchRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const c = await campaignInLab(req);
         const batches = await AnalysisBatch.findAll({ where: { campaignId: c.id, labId: c.labId }, order: [['createdAt', 'DESC']], limit: 100 });
-        const views = await Promise.all(batches.map(batchView));
-        res.json({ batches: views.map((v) => v.batch) });
+        res.json({ batches: await Promise.all(batches.map(batchListView)) });
       },
     },
     {

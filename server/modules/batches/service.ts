@@ -1,4 +1,4 @@
-import { Op, type Sequelize } from 'sequelize';
+import { literal, Op, type FindAttributeOptions, type Sequelize } from 'sequelize';
 import { applySettings, type AnalysisSettings } from '../../../shared/contracts/analysis-settings.ts';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import { Analysis, AnalysisBatch, Capture, Shot, User, type SkippedShot } from '../../db/models/index.ts';
@@ -100,23 +100,54 @@ export async function createBatch(
 
 export type BatchState = 'running' | 'done';
 
-/** A batch with its progress and, per shot, the speed before and after and what changed. */
-export async function batchView(batch: AnalysisBatch) {
-  const [versions, shots, requester] = await Promise.all([
-    Analysis.findAll({ where: { batchId: batch.id, labId: batch.labId } }),
-    Shot.findAll({ where: { id: { [Op.in]: batch.shotIds }, labId: batch.labId }, attributes: ['id', 'number', 'status', 'currentAnalysisId'] }),
+/** Only the parts of stored results the table reads (results also hold every channel's transitions). */
+const OUTCOME_ATTRIBUTES = [
+  'id', 'shotId', 'version', 'state', 'error', 'previousAnalysisId',
+  [literal(`results -> 'speed'`), 'speed'], [literal(`results -> 'gates'`), 'gates'], [literal(`results -> 'warnings'`), 'warnings'],
+] as FindAttributeOptions;
+
+interface OutcomeRow { id: string; shotId: string; version: number; state: 'queued' | 'running' | 'done' | 'failed'; error: string | null; previousAnalysisId: string | null; speed: unknown; gates: unknown; warnings: unknown }
+
+/** The batch itself, its progress counted from its versions' states, and who asked for it. */
+async function batchSummary(batch: AnalysisBatch, states?: string[]) {
+  const [versionStates, requester] = await Promise.all([
+    states ?? Analysis.findAll({ where: { batchId: batch.id, labId: batch.labId }, attributes: ['state'] }).then((rows) => rows.map((r) => r.state as string)),
     batch.requestedBy ? User.findByPk(batch.requestedBy, { attributes: ['name'] }) : null,
   ]);
+  const counts = { total: versionStates.length, queued: 0, running: 0, done: 0, failed: 0 };
+  for (const state of versionStates) counts[state as 'queued' | 'running' | 'done' | 'failed'] += 1;
+  const state: BatchState = counts.queued + counts.running > 0 ? 'running' : 'done';
+  return {
+    id: batch.id,
+    campaignId: batch.campaignId,
+    settings: batch.settings,
+    requestedBy: batch.requestedBy,
+    requestedByName: requester?.name ?? null,
+    createdAt: batch.createdAt,
+    state,
+    counts,
+    skipped: batch.skipped,
+  };
+}
+
+export const batchListView = (batch: AnalysisBatch) => batchSummary(batch);
+
+/** A batch with its progress and, per shot, the speed before and after and what changed. */
+export async function batchView(batch: AnalysisBatch) {
+  const [versions, shots] = await Promise.all([
+    Analysis.findAll({ where: { batchId: batch.id, labId: batch.labId }, attributes: OUTCOME_ATTRIBUTES, raw: true }) as unknown as Promise<OutcomeRow[]>,
+    Shot.findAll({ where: { id: { [Op.in]: batch.shotIds }, labId: batch.labId }, attributes: ['id', 'number', 'status'] }),
+  ]);
   const previousIds = versions.map((v) => v.previousAnalysisId).filter((id): id is string => id != null);
-  const previous = previousIds.length === 0 ? [] : await Analysis.findAll({ where: { id: { [Op.in]: previousIds }, labId: batch.labId } });
+  const previous = previousIds.length === 0 ? [] : ((await Analysis.findAll({
+    where: { id: { [Op.in]: previousIds }, labId: batch.labId }, attributes: OUTCOME_ATTRIBUTES, raw: true,
+  })) as unknown as OutcomeRow[]);
   const byShot = new Map(shots.map((s) => [s.id, s]));
-  const counts = { total: versions.length, queued: 0, running: 0, done: 0, failed: 0 };
   const rows = versions
     .map((after) => {
-      counts[after.state as 'queued' | 'running' | 'done' | 'failed'] += 1;
       const before = previous.find((p) => p.id === after.previousAnalysisId) ?? null;
-      const outBefore = outcomeOf(before?.results);
-      const outAfter = outcomeOf(after.results);
+      const outBefore = outcomeOf(before);
+      const outAfter = outcomeOf(after);
       const shot = byShot.get(after.shotId);
       return {
         shotId: after.shotId,
@@ -129,19 +160,5 @@ export async function batchView(batch: AnalysisBatch) {
       };
     })
     .sort((a, b) => (a.number ?? 0) - (b.number ?? 0));
-  const state: BatchState = counts.queued + counts.running > 0 ? 'running' : 'done';
-  return {
-    batch: {
-      id: batch.id,
-      campaignId: batch.campaignId,
-      settings: batch.settings,
-      requestedBy: batch.requestedBy,
-      requestedByName: requester?.name ?? null,
-      createdAt: batch.createdAt,
-      state,
-      counts,
-      skipped: batch.skipped,
-    },
-    shots: rows,
-  };
+  return { batch: await batchSummary(batch, versions.map((v) => v.state)), shots: rows };
 }
