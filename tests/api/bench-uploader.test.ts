@@ -148,7 +148,8 @@ describe('When the bench uploader watches a folder', () => {
     copyFileSync(path.join(folder, 'while-down.csv'), path.join(folder, 'while-down-copy.csv'));
     await pollUntil(async () => (watcher.err.some((l) => l.includes('while-down-copy.csv: the same content was sent before')) ? true : undefined), { timeoutMs: 30_000, what: 'the duplicate to be noticed' });
     watcher.child.kill('SIGINT');
-    expect(await watcher.exited).toBe(0);
+    expect(await watcher.exited, `stdout: ${watcher.out.join(' | ')}; stderr: ${watcher.err.join(' | ')}`).toBe(0);
+    expect(watcher.out.filter((l) => !/^shot #[23] /.test(l)), 'only the two shots’ lines').toEqual([]);
     // A new watch of the same folder reads the journal beside it: nothing there is new.
     watcher = startWatch(folder);
     await pollUntil(async () => (watcher.err.filter((l) => l.includes('sent before')).length >= 4 ? true : undefined), { timeoutMs: 30_000, what: `every file to be recognised: ${watcher.err.join(' | ')}` });
