@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { analysisOptionsSchema, type AnalysisOptions, type AnalysisOptionsInput } from '../contracts/analysis.ts';
 import type { ImportedCapture } from '../contracts/capture.ts';
 import { buildShotModel, type FiredGate } from './build-shot-model.ts';
+import { checkTimeBase } from './check-time-base.ts';
 import { ENGINE_VERSION } from './engine-version.ts';
 import { findDipCandidate } from './find-dip-candidate.ts';
 import { findPulses } from './find-pulses.ts';
@@ -12,6 +13,7 @@ import { propagateUncertainty } from './propagate-uncertainty.ts';
 import { smoothSavitzkyGolay } from './smooth-savitzky-golay.ts';
 import { speedOfSound } from './speed-of-sound.ts';
 import type {
+  AnalysisAssumptions,
   ChannelResult,
   CrossCheckResult,
   DerivedResult,
@@ -448,5 +450,34 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     }
   }
 
-  return { engineVersion: ENGINE_VERSION, options: opts, channels, gates, speed, flight, fit, occlusion, crossChecks, derived, warnings };
+  // 8. What the result rests on, and whether it may be stated as a measurement at all.
+  const sampleInterval = time.kind === 'uniform' ? time.dt : (time.t[time.t.length - 1] - time.t[0]) / (time.t.length - 1);
+  const assumptions: AnalysisAssumptions = {
+    positionTolerance: opts.positionTolerance,
+    timebaseAccuracyPpm: opts.timebaseAccuracyPpm,
+    projectile: { length: length ?? null, lengthTolerance: opts.projectile.lengthTolerance },
+    threshold: { unit: t.unit, level: t.level, hysteresis: t.hysteresis },
+    edges: opts.edges,
+    sampleInterval,
+    timeBase: capture.timeOrigin ?? null,
+    values: capture.valueKind ?? 'physical',
+  };
+  const gateLabel = (g: { channel: string; position: number }) => `${g.channel} @ ${g.position} m`;
+  const timeBaseCheck = checkTimeBase({
+    sampleInterval,
+    timeOrigin: capture.timeOrigin,
+    speeds: [
+      ...(speed ? [{ label: 'speed', value: speed.value }] : []),
+      ...flight.map((f) => ({ label: `flight speed ${gateLabel(f.from)} to ${gateLabel(f.to)}`, value: f.speed })),
+      ...occlusion.map((o) => ({ label: `occlusion speed at ${gateLabel(o)}`, value: o.speed })),
+    ],
+    flightSpeed: speed?.method === 'flight' ? speed.value : null,
+    pulses: fired.map((g) => ({ label: gateLabel(g), width: g.pulse.width })),
+    projectileLength: length,
+  });
+
+  return {
+    engineVersion: ENGINE_VERSION, options: opts, channels, gates, speed, flight, fit, occlusion, crossChecks, derived, warnings,
+    assumptions, timeBaseCheck,
+  };
 }

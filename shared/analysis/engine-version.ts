@@ -3,4 +3,6 @@
 // 1.1.0: the `edges` option (flight timed by mid-times, leading or trailing edges); default results unchanged.
 // 1.2.0: polarity "auto" takes the state a record starts and ends in as beam-clear (a slow projectile's long pulse
 //        was read inverted); records set up around a short pulse give the same results as 1.1.0.
-export const ENGINE_VERSION = '1.2.0';
+// 1.3.0: results state their assumptions and carry the "check the time base" flag (implausible speed, pulse widths
+//        against the logged length, sample interval, rebuilt or assumed time base); no number changes.
+export const ENGINE_VERSION = '1.3.0';

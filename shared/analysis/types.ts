@@ -3,6 +3,7 @@
  * Infinity): the worker stores it as JSONB and the client reads it back unchanged. SI units: s, m, V, m/s.
  */
 import type { AnalysisOptions } from '../contracts/analysis.ts';
+import type { TimeBaseOrigin } from '../contracts/capture.ts';
 import type { BudgetLine } from './measurement-model.ts';
 
 export type Polarity = 'falling' | 'rising';
@@ -147,6 +148,42 @@ export interface DerivedResult {
   momentum: QuantityWithUncertainty | null;
 }
 
+/** Why a result is marked "check the time base". */
+export interface TimeBaseCheckReason {
+  code: 'speed-range' | 'length-mismatch' | 'coarse-sampling' | 'time-base-rebuilt' | 'time-base-assumed';
+  /** In words a user can act on. */
+  message: string;
+}
+
+/**
+ * "Check the time base": when `flagged`, the speed is not stated as a measurement (shown greyed with the reasons)
+ * and review cannot approve the version until an analyst confirms the read or a new version fixes it.
+ */
+export interface TimeBaseCheck {
+  flagged: boolean;
+  reasons: TimeBaseCheckReason[];
+}
+
+/** Every assumption behind the result, stated beside it (CLI, API, shot page, report). SI units. */
+export interface AnalysisAssumptions {
+  /** Half-width of the rectangular tolerance of each gate position, m. */
+  positionTolerance: number;
+  /** Half-width of the rectangular time-base (clock) accuracy, parts per million. */
+  timebaseAccuracyPpm: number;
+  /** Length cut by the beam and the half-width of its rectangular tolerance, m (length null when none was given). */
+  projectile: { length: number | null; lengthTolerance: number };
+  /** Crossing level and hysteresis half-width: percent of each channel's step, or volts. */
+  threshold: { unit: 'percent' | 'volts'; level: number; hysteresis: number };
+  /** Which like edges time the flight: both (pulse mid-times), leading or trailing. */
+  edges: 'both' | 'leading' | 'trailing';
+  /** Sample interval of the record (mean step of an explicit time base), s. */
+  sampleInterval: number;
+  /** How the importer found the time base (null for captures read before it was recorded). */
+  timeBase: TimeBaseOrigin | null;
+  /** 'codes': the values are raw converter codes, not volts (the levels are in codes; timing is unaffected). */
+  values: 'physical' | 'codes';
+}
+
 export interface ShotAnalysis {
   engineVersion: string;
   options: AnalysisOptions;
@@ -159,4 +196,8 @@ export interface ShotAnalysis {
   crossChecks: CrossCheckResult[];
   derived: DerivedResult;
   warnings: string[];
+  /** Absent in results of engines before 1.3.0. */
+  assumptions?: AnalysisAssumptions;
+  /** Absent in results of engines before 1.3.0 (they were not checked). */
+  timeBaseCheck?: TimeBaseCheck;
 }
