@@ -1,8 +1,10 @@
 /**
- * `npm run --silent analyze -- FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--json]`
+ * `npm run --silent analyze -- FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M]
+ *   [--position-tolerance M] [--timebase-ppm N] [--dt S] [--json]`
  *
  * Analyses one scope export with the same engine the worker runs. Exit codes: 0 analysed (even when gates
- * missed: that is a result, shown in the warnings), 2 unreadable input or bad arguments (one line on stderr).
+ * missed, or the result is marked "check the time base": both are results, stated in the output), 2 unreadable
+ * input or bad arguments (one line on stderr).
  */
 import { pathToFileURL } from 'node:url';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
@@ -10,14 +12,15 @@ import type { ShotAnalysis } from '../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { readCaptureFile } from '../import/read-capture-file.ts';
+import { resultNotes } from './result-notes.ts';
 
-const USAGE = 'usage: analyze FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--json]';
+const USAGE = 'usage: analyze FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--position-tolerance M] [--timebase-ppm N] [--dt S] [--json]';
 
 export interface CliIo {
   stdout: (text: string) => void;
   stderr: (text: string) => void;
   /** Reads a capture file; the default is the worker's importer (the same one uploads go through). */
-  readCapture?: (path: string) => Promise<ImportedCapture>;
+  readCapture?: (path: string, options: { dt?: number }) => Promise<ImportedCapture>;
 }
 
 class UsageError extends Error {}
@@ -27,13 +30,16 @@ interface CliArgs {
   gates: { channel: string; position: number }[];
   spacing?: number;
   diameter?: number;
+  positionTolerance?: number;
+  timebasePpm?: number;
+  dt?: number;
   json: boolean;
 }
 
-function parseMetres(text: string | undefined, flag: string): number {
+function parseMetres(text: string | undefined, flag: string, unit = 'metres'): number {
   const value = text === undefined ? Number.NaN : Number(text);
   if (text === undefined || text.trim() === '' || !Number.isFinite(value)) {
-    throw new UsageError(`${flag} needs a number of metres, got ${text === undefined ? 'nothing' : `'${text}'`}`);
+    throw new UsageError(`${flag} needs a number of ${unit}, got ${text === undefined ? 'nothing' : `'${text}'`}`);
   }
   return value;
 }
@@ -55,6 +61,15 @@ function parseArgs(argv: string[]): CliArgs {
     } else if (a === '--diameter') {
       args.diameter = parseMetres(argv[++i], '--diameter');
       if (!(args.diameter > 0)) throw new UsageError('--diameter must be positive');
+    } else if (a === '--position-tolerance') {
+      args.positionTolerance = parseMetres(argv[++i], a);
+      if (!(args.positionTolerance >= 0)) throw new UsageError('--position-tolerance must be zero or more metres');
+    } else if (a === '--timebase-ppm') {
+      args.timebasePpm = parseMetres(argv[++i], a, 'parts per million');
+      if (!(args.timebasePpm >= 0)) throw new UsageError('--timebase-ppm must be zero or more');
+    } else if (a === '--dt') {
+      args.dt = parseMetres(argv[++i], a, 'seconds');
+      if (!(args.dt > 0)) throw new UsageError('--dt must be a positive number of seconds');
     } else if (a.startsWith('--')) throw new UsageError(`unknown option ${a}`);
     else files.push(a);
   }
@@ -65,7 +80,7 @@ function parseArgs(argv: string[]): CliArgs {
 
 const us = (t: number): string => `${(t * 1e6).toFixed(3)} µs`;
 
-function summary(file: string, a: ShotAnalysis): string {
+function summary(file: string, a: ShotAnalysis, captureWarnings: string[]): string {
   const lines: string[] = [`${file} (engine ${a.engineVersion})`];
   for (const g of a.gates) {
     const p = g.pulses[0];
@@ -75,13 +90,17 @@ function summary(file: string, a: ShotAnalysis): string {
         : `  gate ${g.channel} @ ${g.position} m: missed`,
     );
   }
+  const notes = resultNotes(a, captureWarnings);
   if (a.speed !== null) {
     const how = a.speed.basis === 'fit' ? 'constant-deceleration fit' : a.speed.basis === 'pair' ? 'time of flight' : 'occlusion';
-    lines.push(`speed: ${a.speed.value.toFixed(2)} ± ${a.speed.uncertainty.toFixed(2)} m/s (${how}; U with k = 2)`);
+    lines.push(notes.flagged
+      ? `speed (not a measurement: check the time base): ${Number(a.speed.value.toPrecision(3))} ± ${Number(a.speed.uncertainty.toPrecision(2))} m/s (${how}; U with k = 2)`
+      : `speed: ${a.speed.value.toFixed(2)} ± ${a.speed.uncertainty.toFixed(2)} m/s (${how}; U with k = 2)`);
     for (const b of a.speed.budget) lines.push(`  ${b.group}: ${b.contribution.toPrecision(3)} m/s (${(100 * b.share).toFixed(1)} % of variance)`);
   } else lines.push('speed: none');
   if (a.fit !== null) lines.push(`deceleration: ${a.fit.deceleration.toPrecision(4)} ± ${a.fit.decelerationUncertainty.toPrecision(2)} m/s²`);
   for (const o of a.occlusion) lines.push(`occlusion ${o.channel} @ ${o.position} m: ${o.speed.toFixed(2)} ± ${o.uncertainty.toFixed(2)} m/s`);
+  lines.push(...notes.lines);
   for (const w of a.warnings) lines.push(`warning: ${w}`);
   return lines.join('\n');
 }
@@ -94,6 +113,9 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
         '  --gate CH@M   channel CH is a gate at M metres along the path (repeat; one channel may carry several gates)\n' +
         '  --spacing M   without --gate: every channel is a gate, in column order, M metres apart\n' +
         '  --diameter M  projectile length along the path, for occlusion speeds and the cross-check\n' +
+        '  --position-tolerance M  half-width of each gate position\'s tolerance (default 0.0005 = ±0.5 mm)\n' +
+        '  --timebase-ppm N        the scope clock\'s accuracy, ± parts per million (default 50)\n' +
+        '  --dt S        sample interval in seconds, for a file that does not state one\n' +
         '  --json        one JSON object (gates, speed, warnings, …) instead of the summary\n',
     );
     return 0;
@@ -107,10 +129,12 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
   }
   let capture: ImportedCapture;
   try {
-    capture = await (io.readCapture ?? ((path: string) => readCaptureFile(path)))(args.file);
+    const readOptions = args.dt === undefined ? {} : { dt: args.dt };
+    capture = await (io.readCapture ?? ((path: string, options: { dt?: number }) => readCaptureFile(path, options)))(args.file, readOptions);
   } catch (error) {
     const e = error as NodeJS.ErrnoException;
-    const reason = (e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message).split('\n')[0];
+    let reason = (e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message).split('\n')[0];
+    if (args.dt === undefined && /\binterval\b/i.test(reason)) reason += ' (on the command line: --dt S)';
     // The importer's messages usually name the file already ("cannot open x.csv: no such file").
     io.stderr(reason.includes(args.file) ? `analyze: ${reason}\n` : `analyze: cannot read ${args.file}: ${reason}\n`);
     return 2;
@@ -119,6 +143,8 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
   if (args.gates.length > 0) options.gates = args.gates;
   if (args.spacing !== undefined) options.spacing = args.spacing;
   if (args.diameter !== undefined) options.projectile = { length: args.diameter };
+  if (args.positionTolerance !== undefined) options.positionTolerance = args.positionTolerance;
+  if (args.timebasePpm !== undefined) options.timebaseAccuracyPpm = args.timebasePpm;
   if (args.gates.length === 0 && args.spacing === undefined && capture.channels.length > 1) {
     io.stderr(`analyze: ${args.file} has ${capture.channels.length} channels; give --spacing M or --gate CHANNEL@POSITION_M for each gate\n`);
     return 2;
@@ -131,7 +157,7 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
     return 2;
   }
   if (args.json) {
-    const { engineVersion, gates, speed, flight, fit, occlusion, crossChecks, derived, warnings, channels } = analysis;
+    const { engineVersion, gates, speed, flight, fit, occlusion, crossChecks, derived, warnings, channels, assumptions, timeBaseCheck } = analysis;
     const out = {
       file: args.file,
       engineVersion,
@@ -144,9 +170,12 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
       derived,
       channels: channels.map((c) => ({ name: c.name, status: c.status, reason: c.reason, polarity: c.polarity, levels: c.levels, noise: c.noise, candidate: c.candidate })),
       warnings,
+      assumptions,
+      timeBaseCheck,
+      captureWarnings: capture.warnings,
     };
     io.stdout(`${JSON.stringify(out, null, 2)}\n`);
-  } else io.stdout(`${summary(args.file, analysis)}\n`);
+  } else io.stdout(`${summary(args.file, analysis, capture.warnings)}\n`);
   return 0;
 }
 
