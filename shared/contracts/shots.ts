@@ -58,6 +58,14 @@ export const requestAnalysisBody = z.object({
   parameters: z.lazy(() => analysisOptionsSchema),
 });
 
+/** POST /api/shots/:shotId/analyses/:analysisId/time-base-confirmation — "I checked the time base", saying how. */
+export const timeBaseConfirmationBody = z.object({
+  note: z.string().trim()
+    .min(1, 'say what you checked (e.g. "the scope showed 100 ns per point; the file\'s interval matches")')
+    .max(2000, 'note must be at most 2000 characters'),
+});
+export type TimeBaseConfirmationBody = z.infer<typeof timeBaseConfirmationBody>;
+
 /** Importer overrides a person can set when detection got a file wrong (a subset of ParseScopeCsvOptions). */
 export const importOverridesSchema = z
   .object({

@@ -328,6 +328,16 @@ const MATRIX: Record<string, Row> = {
     prepare: async ({ h }) => ({ params: await freshAnalyses(h) }),
     shape: (b) => expect(b).toMatchObject({ parameters: [{ path: 'threshold.level', from: 50, to: 40 }], results: [{ path: 'speed.value', from: 201, to: 202 }] }),
   },
+  'POST /api/shots/:shotId/analyses/:analysisId/time-base-confirmation': {
+    expect: [201, 403, 201, 403, 404, 401],
+    prepare: async ({ h }) => {
+      const { shotId } = await freshAnalysedShot(h);
+      const analysis = await Analysis.findOne({ where: { shotId }, rejectOnEmpty: true });
+      await analysis.update({ results: { speed: { value: 6e-5 }, timeBaseCheck: { flagged: true, reasons: [{ code: 'speed-range', message: 'matrix' }] } } as object });
+      return { params: { shotId, analysisId: analysis.id }, body: { note: 'matrix check' } };
+    },
+    shape: (b) => expect(b).toMatchObject({ version: 1, timeBaseCheck: { flagged: true, blocksApproval: false, confirmation: { note: 'matrix check' } } }),
+  },
   'POST /api/shots/:shotId/captures/:captureId/reingest': {
     expect: [202, 202, 403, 403, 404, 401],
     prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'failed'), body: { importOptions: { timeColumn: 0 } } }),

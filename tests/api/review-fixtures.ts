@@ -5,6 +5,7 @@ import { createHash } from 'node:crypto';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { ENGINE_VERSION } from '../../shared/analysis/engine-version.ts';
 import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
+import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { simulateShot } from '../../shared/simulate/simulate-shot.ts';
 import { simulatedShotToCapture } from '../../shared/simulate/simulated-shot-to-capture.ts';
 import { Analysis, Capture, GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
@@ -26,6 +27,9 @@ export interface AnalysedShotOptions {
   campaignId?: string;
   /** Who logged the shot (and uploaded its capture). @default the demo experimenter */
   createdBy?: string | null;
+  /** A time base misread by the importer: this sample interval (s) instead of the model's 200 ns, with seconds
+   * "assumed", as a file whose time column has no unit would give. @default none (read right) */
+  misreadInterval?: number;
 }
 
 /** The three gate positions of the model, m (the demo rig's spacing is not needed: the analysis is told these). */
@@ -44,7 +48,13 @@ export async function analysedShot(h: ApiHarness, options: AnalysedShotOptions =
     speed, diameter: 0.04, sampleInterval: 2e-7, length: 8000, t0: -1e-4, arrivalTime: 1e-4, noiseRms: 0.01, responseTime: 1e-6,
     seed: 5 + serial, gatePositions: GATE_POSITIONS, channelNames: ['Gate A', 'Gate B', 'Gate C'],
   });
-  const capture = simulatedShotToCapture(simulated);
+  const read = simulatedShotToCapture(simulated);
+  const capture: ImportedCapture = options.misreadInterval === undefined ? read : {
+    ...read,
+    time: { kind: 'uniform', t0: 0, dt: options.misreadInterval, jitter: 0 },
+    timeOrigin: { how: 'time-column', source: 'column 1 has no unit: seconds assumed', assumed: true },
+    warnings: ['the time column has no unit; seconds were assumed'],
+  };
   const shot = await Shot.create({
     labId, campaignId: options.campaignId ?? demo.hollowmere.campaignIds[0], number: options.number ?? 500 + serial++, firedAt: new Date('2026-10-14T09:30:00Z'),
     projectileId: ball.id, gateRigId: rig.id, tubePressurePa: options.tubePressurePa ?? 2000, sealType: options.sealType ?? 'Polyester film, 50 µm',
@@ -56,7 +66,7 @@ export async function analysedShot(h: ApiHarness, options: AnalysedShotOptions =
     uploadedBy: shot.createdBy, state: 'ready',
   });
   const descriptor = await writeChannelFiles(h.deps.blobStore, labId, row.id, capture);
-  await row.update({ channels: descriptor, sampleCount: capture.length, timeBase: descriptor.time });
+  await row.update({ channels: descriptor, sampleCount: capture.length, timeBase: descriptor.time, warnings: capture.warnings });
   const parameters = analysisOptionsSchema.parse({
     gates: GATE_POSITIONS.map((position, i) => ({ channel: capture.channels[i].name, position })),
     projectile: { length: 0.04, lengthTolerance: 0.0001, mass: 0.0027, massTolerance: 0.00005 },

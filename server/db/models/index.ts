@@ -177,6 +177,10 @@ export class Analysis extends Model<InferAttributes<Analysis>, InferCreationAttr
   declare startedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare completedAt: CreationOptional<Date | null>;
+  /** "I checked the time base" on a version marked "check the time base": who, when and what they checked. */
+  declare timeBaseConfirmedBy: CreationOptional<string | null>;
+  declare timeBaseConfirmedAt: CreationOptional<Date | null>;
+  declare timeBaseConfirmationNote: CreationOptional<string | null>;
 }
 
 export interface SkippedShot { shotId: string; number: number; reason: string }
@@ -327,6 +331,7 @@ export function initModels(sequelize: Sequelize): void {
       captureIds: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
       batchId: uuid(true), previousAnalysisId: uuid(true),
       startedAt: date(), createdAt: DataTypes.DATE, completedAt: date(),
+      timeBaseConfirmedBy: uuid(true), timeBaseConfirmedAt: date(), timeBaseConfirmationNote: text(true),
     },
     opts('analyses', { updatedAt: false }),
   );

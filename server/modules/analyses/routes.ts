@@ -7,11 +7,15 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
-import { requestAnalysisBody, reingestBody, type ImportOverrides } from '../../../shared/contracts/shots.ts';
+import {
+  requestAnalysisBody, reingestBody, timeBaseConfirmationBody, type ImportOverrides, type TimeBaseConfirmationBody,
+} from '../../../shared/contracts/shots.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
+import { namesOf } from '../reviews/people.ts';
 import { labOfShot, shotInLab } from '../shots/routes.ts';
 import { analysisSummary, analysisView, captureView } from '../shots/view.ts';
 import { createAnalysisVersion } from './service.ts';
+import { timeBaseStatus } from './time-base-status.ts';
 
 async function analysisOfShot(shot: Shot, analysisId: string): Promise<Analysis> {
   const analysis = await Analysis.findOne({ where: { id: analysisId, shotId: shot.id } });
@@ -91,7 +95,42 @@ export function analysisRoutes(deps: Deps): RouteDef[] {
       summary: 'One analysis version: parameters, engine version, results',
       async handler(req, res) {
         const shot = await shotInLab(req);
-        res.json({ analysis: analysisView(await analysisOfShot(shot, req.params.analysisId as string)) });
+        const analysis = await analysisOfShot(shot, req.params.analysisId as string);
+        res.json({ analysis: analysisView(analysis, await namesOf([analysis.timeBaseConfirmedBy])) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/shots/:shotId/analyses/:analysisId/time-base-confirmation',
+      access: { kind: 'lab', permission: 'analyses:write', labOf: labOfShot },
+      summary:
+        '"I checked the time base": confirms the read behind a version marked "check the time base", so review may approve it. ' +
+        'Answers with the version\'s `timeBaseCheck` (flagged, reasons, confirmation, blocksApproval); 409 when the version is not ' +
+        'finished, not flagged or already confirmed',
+      body: timeBaseConfirmationBody,
+      response: { status: 201, description: 'The confirmation, in the version\'s timeBaseCheck' },
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        const { note } = req.body as TimeBaseConfirmationBody;
+        const userId = req.auth!.userId;
+        const analysis = await deps.sequelize.transaction(async (transaction) => {
+          const a = await Analysis.findOne({ where: { id: req.params.analysisId as string, shotId: shot.id }, transaction, lock: transaction.LOCK.UPDATE });
+          if (!a) throw notFound('No such analysis version of this shot.');
+          if (a.state !== 'done') throw conflict(`Version ${a.version} has not finished; there is no result to confirm yet.`);
+          const status = timeBaseStatus(a);
+          if (!status.flagged) throw conflict(`Version ${a.version} is not marked "check the time base"; there is nothing to confirm.`);
+          if (status.confirmation) {
+            const who = (await namesOf([a.timeBaseConfirmedBy])).get(a.timeBaseConfirmedBy ?? '') ?? 'a former member';
+            throw conflict(`The time base of version ${a.version} was already confirmed by ${who} on ${status.confirmation.at.toISOString().slice(0, 10)}.`);
+          }
+          return a.update({ timeBaseConfirmedBy: userId, timeBaseConfirmedAt: new Date(), timeBaseConfirmationNote: note }, { transaction });
+        });
+        const status = timeBaseStatus(analysis, await namesOf([userId]));
+        await recordAudit({
+          labId: shot.labId, actorId: userId, action: 'analysis.time_base_confirmed', targetType: 'shot', targetId: shot.id,
+          details: { analysisId: analysis.id, version: analysis.version, note, reasons: status.reasons.map((r) => r.message) }, ip: clientIp(req),
+        });
+        res.status(201).json({ analysisId: analysis.id, version: analysis.version, timeBaseCheck: status });
       },
     },
     {

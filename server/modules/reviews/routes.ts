@@ -9,6 +9,7 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
+import { timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
 import { notifyQueueOn, notifySafely, reviewersOf } from '../notifications/notify-people.ts';
 import { labOfShot, shotInLab } from '../shots/routes.ts';
 import { shotSummary } from '../shots/view.ts';
@@ -66,14 +67,14 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/review-queue',
       access: { kind: 'lab', permission: 'reviews:queue' },
-      summary: 'Shots waiting for review, oldest request first, with speed ± U, who asked and the version under review',
+      summary: 'Shots waiting for review, oldest request first, with speed ± U, who asked, the version under review and whether it is marked "check the time base"',
       async handler(req, res) {
         const labId = req.lab!.id;
         const shots = await Shot.findAll({ where: { labId, status: 'in_review' } });
         const analysisIds = shots.map((s) => s.reviewAnalysisId ?? s.currentAnalysisId).filter((x): x is string => !!x);
         const [campaigns, analyses, requests] = await Promise.all([
           Campaign.findAll({ where: { labId, id: [...new Set(shots.map((s) => s.campaignId))] }, attributes: ['id', 'name'] }),
-          Analysis.findAll({ where: { labId, id: analysisIds }, attributes: ['id', 'version', 'results'] }),
+          Analysis.findAll({ where: { labId, id: analysisIds }, attributes: ['id', 'version', 'results', 'timeBaseConfirmedBy', 'timeBaseConfirmedAt', 'timeBaseConfirmationNote'] }),
           ReviewRequest.findAll({ where: { labId, shotId: shots.map((s) => s.id) }, order: [['createdAt', 'DESC'], ['id', 'DESC']] }),
         ]);
         const latest = new Map<string, ReviewRequest>();
@@ -84,11 +85,14 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
           const speed = (analysis?.results as { speed?: Record<string, unknown> | null } | null)?.speed ?? null;
           const request = latest.get(s.id);
           const value = finiteOrNull(speed?.value);
+          const check = analysis ? timeBaseStatus(analysis) : null;
           return {
             shotId: s.id, campaignId: s.campaignId, campaignName: campaigns.find((c) => c.id === s.campaignId)?.name ?? null, number: s.number,
             firedAt: s.firedAt,
             speed: value == null ? null : { value, uncertainty: finiteOrNull(speed?.uncertainty), method: typeof speed?.method === 'string' ? speed.method : null },
             analysisId: analysis?.id ?? null, analysisVersion: analysis?.version ?? null,
+            /** "Check the time base": flagged, and whether that still blocks approval (no confirmation yet). */
+            timeBaseCheck: check ? { flagged: check.flagged, blocksApproval: check.blocksApproval } : null,
             requestId: request?.id ?? null, requestedBy: person(names, request?.requestedBy), requestedAt: request?.createdAt ?? null, message: request?.message ?? '',
           };
         });
@@ -100,7 +104,9 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
       method: 'post',
       path: '/api/shots/:shotId/reviews',
       access: { kind: 'lab', permission: 'reviews:decide', labOf: labOfShot },
-      summary: 'Approve (sign off the version under review) or return the shot with a comment saying what to fix',
+      summary:
+        'Approve (sign off the version under review) or return the shot with a comment saying what to fix. Approval of a version ' +
+        'marked "check the time base" is refused (409, code time_base_unchecked) until an analyst confirms its time base',
       body: reviewDecisionBody,
       response: { status: 201, description: 'The decision and the shot' },
       async handler(req, res) {
@@ -113,6 +119,10 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
             throw conflict(`This shot is not waiting for review (it is ${shot.status.replace('_', ' ')}); someone must send it for review first.`);
           }
           const analysisId = shot.reviewAnalysisId;
+          if (decision === 'approved') {
+            const reviewed = await Analysis.findByPk(analysisId, { transaction });
+            if (reviewed && timeBaseStatus(reviewed).blocksApproval) throw timeBaseUncheckedError(reviewed);
+          }
           const request = await ReviewRequest.findOne({ where: { shotId: shot.id, analysisId }, order: [['createdAt', 'DESC'], ['id', 'DESC']], transaction });
           const review = await Review.create({ labId: shot.labId, shotId: shot.id, analysisId, reviewerId: userId, decision, comment: comment ?? '', requestId: request?.id ?? null }, { transaction });
           await shot.update(

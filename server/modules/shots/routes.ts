@@ -8,6 +8,7 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
+import { namesOf } from '../reviews/people.ts';
 import { acceptUpload } from './uploads.ts';
 import { analysisSummary, analysisView, captureView, shotSummary } from './view.ts';
 
@@ -73,11 +74,12 @@ export async function shotDetail(shot: Shot) {
   // transaction, so a version seen as done here is never shown beside the shot as it was before that commit.
   await shot.reload();
   const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
+  const names = await namesOf([current?.timeBaseConfirmedBy]);
   return {
     shot: shotSummary(shot),
     captures: captures.map(captureView),
     analyses: analyses.map(analysisSummary),
-    currentAnalysis: current ? analysisView(current) : null,
+    currentAnalysis: current ? analysisView(current, names) : null,
   };
 }
 

@@ -1,4 +1,5 @@
 import type { Analysis, Capture, Shot } from '../../db/models/index.ts';
+import { timeBaseStatus } from '../analyses/time-base-status.ts';
 
 /** The shot as the API shows it: SI values, named with their unit. */
 export function shotSummary(s: Shot) {
@@ -62,6 +63,7 @@ export function analysisSummary(a: Analysis) {
   };
 }
 
-export function analysisView(a: Analysis) {
-  return { ...analysisSummary(a), parameters: a.parameters, captureIds: a.captureIds, results: a.results };
+/** A version with its results; `names` resolves who confirmed its time base (see timeBaseStatus). */
+export function analysisView(a: Analysis, names?: Map<string, string>) {
+  return { ...analysisSummary(a), parameters: a.parameters, captureIds: a.captureIds, results: a.results, timeBaseCheck: timeBaseStatus(a, names) };
 }
