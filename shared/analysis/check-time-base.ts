@@ -59,7 +59,7 @@ export function checkTimeBase(input: CheckTimeBaseInput, options: CheckTimeBaseO
     const more = outside.length > 1 ? ` (and ${outside.length - 1} more)` : '';
     reasons.push({
       code: 'speed-range',
-      message: `the ${s.label} of ${num(s.value)} m/s${more} is outside ${minSpeed}–${maxSpeed.toLocaleString('en-US').replace(/,/g, ' ')} m/s, the range a launched projectile can have`,
+      message: `the ${s.label} of ${num(s.value)} m/s${more} is outside ${minSpeed}–${maxSpeed.toLocaleString('en-US').replace(/,/g, '\u00a0')} m/s, the range a launched projectile can have`,
     });
   }
 

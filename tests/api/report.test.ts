@@ -67,6 +67,37 @@ describe('shot report PDF', () => {
     expect(await AuditEvent.count({ where: { targetId: shot.shotId, action: 'shot.report' } })).toBe(1);
   });
 
+  it('When the time base was misread, then the speed is greyed with the reason, the "Check before trusting" box lists the flag and the file warnings, and the assumptions are stated', async () => {
+    const shot = await analysedShot(h, { misreadInterval: 1 });
+    const fetchPdf = async (name: string) => {
+      const res = await request(h.app).get(`/api/shots/${shot.shotId}/report.pdf`).set(as('reviewer')).buffer(true).parse(binaryBody);
+      expect(res.status, String(res.body)).toBe(200);
+      const file = path.join(outDir, `${name}.pdf`);
+      writeFileSync(file, res.body as Buffer);
+      return { file, text: execFileSync('pdftotext', ['-layout', file, '-'], { encoding: 'utf8' }).replace(/\s+/g, ' ') };
+    };
+    const { file, text } = await fetchPdf('time-base-unchecked');
+    expect(text).toContain('Not a measurement until the time base is checked: the speed of 0.00006 m/s');
+    expect(text).toContain('Check before trusting this result');
+    expect(text).toContain('Check the time base: this result is not a measurement until an analyst confirms the read or a new version fixes it.');
+    expect(text).toContain('the sample interval is 1 s, above 1 ms, yet the gates show pulses');
+    expect(text).toContain('simulated.csv: the time column has no unit; seconds were assumed');
+    expect(text).toContain('Assumptions behind the result');
+    expect(text).toMatch(/Gate positions ± 0\.5 mm each \(rectangular\)/);
+    expect(text).toMatch(/Time-base accuracy ± 50 ppm \(rectangular\)/);
+    expect(text).toMatch(/Projectile length 40 mm ± 0\.1 mm \(rectangular\)/);
+    expect(text).toMatch(/Threshold 50 % of each channel’s step, hysteresis ± 40 %/);
+    expect(text).toMatch(/Sample interval 1 s, read from the time column \(column 1 has no unit: seconds assumed\); partly assumed/);
+    execFileSync('pdftoppm', ['-png', '-r', '70', '-f', '1', '-l', '1', file, path.join(outDir, 'time-base-unchecked')]);
+
+    const confirmed = await request(h.app).post(`/api/shots/${shot.shotId}/analyses/${shot.analysisId}/time-base-confirmation`)
+      .set(as('analyst')).send({ note: 'slow-roll record, 1 s per point is right' });
+    expect(confirmed.status).toBe(201);
+    const after = await fetchPdf('time-base-confirmed');
+    expect(after.text).not.toContain('Not a measurement until');
+    expect(after.text).toMatch(/Check the time base: confirmed by .+ on \d{4}-\d{2}-\d{2} \("slow-roll record, 1 s per point is right"\)\./);
+  });
+
   it('When a shot without an analysis is printed, then the PDF says so and "Not signed off"', async () => {
     const res = await request(h.app).get(`/api/shots/${h.demo.hollowmere.shotIds[0]}/report.pdf`).set(as('reviewer')).buffer(true).parse(binaryBody);
     expect(res.status, String(res.body)).toBe(200);

@@ -1,3 +1,4 @@
+import { describeAssumptions } from '../../../shared/analysis/describe-assumptions.ts';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import type { TraceWindow } from '../../traces/read-window.ts';
 import { createReportDocument, GRID, INK, MUTED, SAFETY } from './report-document.ts';
@@ -34,11 +35,17 @@ export interface ShotReportInput {
   span: { from: number; to: number } | null;
   traces: ReportTrace[];
   signOff: { text: string; approved: boolean };
+  /** "Check the time base" on the version shown: its reasons, and the analyst's confirmation when there is one. */
+  timeBase: { flagged: boolean; reasons: { message: string }[]; confirmation: { name: string | null; at: Date; note: string } | null } | null;
+  /** Warnings the importer stored with each file the analysis read. */
+  captureWarnings: { fileName: string; warnings: string[] }[];
   generatedAt: Date;
 }
 
 const TRACE = '#1d4ed8';
 const MARK = '#c2410c';
+const CHECK_FILL = '#fdf1dc';
+const CHECK_EDGE = '#e0a43b';
 
 /** Rounds U to two significant digits and the value to the same place (GUM, JCGM 100:2008, 7.2.6). */
 export function formatWithUncertainty(value: number | null | undefined, u: number | null | undefined, unit: string): string {
@@ -78,6 +85,42 @@ function flatten(value: unknown, prefix = '', out: [string, string][] = []): [st
 export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
   const { doc, left, width, heading, table, finish } = createReportDocument({ title: `Shot ${input.shot.number}, ${input.campaignName}`, author: input.labName });
 
+  /** The "Check before trusting" box: the time-base flag, the analysis's warnings and the files' warnings. */
+  const checkBeforeTrusting = () => {
+    const lines: { text: string; bold?: boolean }[] = [];
+    const tb = input.timeBase;
+    if (tb?.flagged) {
+      const c = tb.confirmation;
+      lines.push({
+        text: c
+          ? `Check the time base: confirmed by ${c.name ?? 'a former member'} on ${c.at.toISOString().slice(0, 10)} ("${c.note}").`
+          : 'Check the time base: this result is not a measurement until an analyst confirms the read or a new version fixes it.',
+        bold: true,
+      });
+      for (const r of tb.reasons) lines.push({ text: `- ${r.message}` });
+    }
+    for (const w of results?.warnings ?? []) lines.push({ text: `- ${w}` });
+    for (const f of input.captureWarnings) for (const w of f.warnings) lines.push({ text: `- ${f.fileName}: ${w}` });
+    if (lines.length === 0) return;
+    const pad = 8;
+    const inner = width - 2 * pad;
+    doc.fontSize(9);
+    const title = 'Check before trusting this result';
+    const height = 2 * pad + doc.font('bold').heightOfString(title, { width: inner }) + 3 +
+      lines.reduce((sum, l) => sum + doc.font(l.bold ? 'bold' : 'regular').heightOfString(l.text, { width: inner }) + 1, 0);
+    doc.moveDown(0.5);
+    if (doc.y + height > doc.page.height - 60) doc.addPage();
+    const top = doc.y;
+    doc.rect(left, top, width, height).fillAndStroke(CHECK_FILL, CHECK_EDGE);
+    doc.font('bold').fillColor(INK).text(title, left + pad, top + pad, { width: inner });
+    doc.y += 3;
+    for (const l of lines) {
+      doc.font(l.bold ? 'bold' : 'regular').fillColor(INK).text(l.text, left + pad, doc.y, { width: inner });
+      doc.y += 1;
+    }
+    doc.y = top + height + 4;
+  };
+
   // Title block.
   doc.font('bold').fontSize(18).fillColor(INK).text(`Shot ${input.shot.number}`, left, doc.y);
   doc.font('regular').fontSize(11).fillColor(MUTED).text(`${input.campaignName} - ${input.labName}`);
@@ -99,11 +142,17 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
 
   const results = input.analysis?.results ?? null;
   const speed = results?.speed ?? null;
+  const unchecked = input.timeBase?.flagged === true && input.timeBase.confirmation === null;
   heading('Result');
   if (!speed) {
     doc.font('regular').fontSize(10).fillColor(INK).text(input.analysis ? 'No speed was measured in the current analysis.' : 'This shot has no finished analysis.');
   } else {
-    doc.font('bold').fontSize(16).fillColor(INK).text(formatWithUncertainty(speed.value, speed.uncertainty, 'm/s'));
+    doc.font('bold').fontSize(16).fillColor(unchecked ? MUTED : INK).text(formatWithUncertainty(speed.value, speed.uncertainty, 'm/s'));
+    if (unchecked) {
+      doc.font('bold').fontSize(9.5).fillColor(MARK).text(
+        `Not a measurement until the time base is checked: ${input.timeBase!.reasons[0]?.message ?? 'see below'}.`, left, doc.y, { width },
+      );
+    }
     doc.font('regular').fontSize(9).fillColor(MUTED).text(`Expanded uncertainty U = k·u_c with coverage factor k = ${speed.coverage ?? '-'} (about 95 %); u_c = ${fmt(speed.standardUncertainty, 3)} m/s.`);
     doc.moveDown(0.3);
     const derived = results?.derived;
@@ -114,6 +163,7 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
       ['Kinetic energy', derived?.kineticEnergy ? formatWithUncertainty(derived.kineticEnergy.value, derived.kineticEnergy.uncertainty, 'J') : '-'],
       ...(results?.flight ?? []).map((f) => [`Flight ${f.from.channel} to ${f.to.channel}`, formatWithUncertainty(f.speed, f.uncertainty, 'm/s')] as [string, string]),
     ]);
+    checkBeforeTrusting();
     heading('Uncertainty budget');
     const cols = [left, left + 250, left + 380];
     doc.font('bold').fontSize(9).fillColor(MUTED);
@@ -125,6 +175,12 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
       doc.text(line.group, cols[0], y, { width: 240 });
       doc.text(fmt(line.contribution, 3), cols[1], y).text(`${(line.share * 100).toFixed(1)} %`, cols[2], y);
     }
+  }
+
+  if (!speed) checkBeforeTrusting();
+  if (results?.assumptions) {
+    heading('Assumptions behind the result');
+    table(describeAssumptions(results.assumptions).map((l) => [l.label, l.text]));
   }
 
   heading('Review sign-off');
@@ -242,7 +298,6 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
     doc.moveDown(0.3).font('bold').fontSize(9).fillColor(MUTED).text('Parameters (SI units: m, kg, K, s, V; percent where named)', left, doc.y);
     const params = flatten(a.parameters);
     table(params.length > 0 ? params : [['(none)', 'engine defaults']], 200);
-    for (const warning of results?.warnings ?? []) doc.font('regular').fontSize(8.5).fillColor(MARK).text(`Note: ${warning}`, left, doc.y, { width });
   }
 
   heading('Launcher safety');

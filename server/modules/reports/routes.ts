@@ -8,6 +8,8 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
 import { readWindow, recordExtent } from '../../traces/read-window.ts';
 import { combinedChannelNames } from '../analyses/service.ts';
+import { timeBaseStatus } from '../analyses/time-base-status.ts';
+import { namesOf } from '../reviews/people.ts';
 import { fileSlug } from '../exports/to-csv.ts';
 import { labOfShot } from '../shots/routes.ts';
 import { fitCampaignLauncher } from '../trends/launcher-fit.ts';
@@ -58,7 +60,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/shots/:shotId/report.pdf',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
-      summary: 'A printable shot report (PDF): conditions, annotated traces, result with U and k, uncertainty budget, analysis version and parameters, review sign-off',
+      summary: 'A printable shot report (PDF): conditions, annotated traces, result with U and k, the "check before trusting" box (time-base flag, analysis and file warnings), uncertainty budget, assumptions, analysis version and parameters, review sign-off',
       response: { status: 200, description: 'application/pdf, as an attachment' },
       async handler(req, res) {
         const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
@@ -115,6 +117,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
           signOff = { text: 'Not signed off: waiting for review.', approved: false };
         }
 
+        const check = analysis ? timeBaseStatus(analysis, await namesOf([analysis.timeBaseConfirmedBy])) : null;
         const pdf = await buildShotReport({
           labName: lab?.name ?? '', campaignName: campaign?.name ?? '',
           shot: {
@@ -125,6 +128,11 @@ export function reportRoutes(deps: Deps): RouteDef[] {
           gateRigName: rig?.name ?? null,
           analysis: analysis ? { version: analysis.version, engineVersion: analysis.engineVersion, completedAt: analysis.completedAt, parameters: analysis.parameters, results } : null,
           span, traces, signOff, generatedAt: new Date(),
+          timeBase: check && {
+            flagged: check.flagged, reasons: check.reasons,
+            confirmation: check.confirmation && { name: check.confirmation.by?.name ?? null, at: check.confirmation.at, note: check.confirmation.note },
+          },
+          captureWarnings: captures.map((c) => ({ fileName: c.fileName, warnings: c.warnings ?? [] })),
         });
         await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.report', targetType: 'shot', targetId: shot.id, details: { version: analysis?.version ?? null, bytes: pdf.length }, ip: clientIp(req) });
         res.attachment(`${fileSlug(campaign?.name ?? 'campaign')}-shot-${shot.number}${analysis ? `-v${analysis.version}` : ''}.pdf`);

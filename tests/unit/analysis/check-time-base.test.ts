@@ -32,7 +32,7 @@ describe('the "check the time base" flag', () => {
     expect(a.timeBaseCheck!.flagged).toBe(true);
     expect(codes(a.timeBaseCheck!)).toEqual(['speed-range', 'coarse-sampling', 'time-base-assumed']);
     expect(a.timeBaseCheck!.reasons[0].message).toBe(
-      'the speed of 0.0000666 m/s (and 3 more) is outside 0.1–10 000 m/s, the range a launched projectile can have',
+      'the speed of 0.0000666 m/s (and 3 more) is outside 0.1–10\u00a0000 m/s, the range a launched projectile can have',
     );
     expect(a.timeBaseCheck!.reasons[1].message).toMatch(/^the sample interval is 1 s, above 1 ms, yet the gates show pulses/);
   });

@@ -172,7 +172,7 @@ describe('analyze CLI: assumptions, the time-base flag and file warnings', () =>
     expect(await runAnalyze(['misread.csv', '--spacing', '0.1'], io)).toBe(0);
     expect(stdout).toMatch(/^speed \(not a measurement: check the time base\): 0\.0000666 ± [\d.e-]+ m\/s/m);
     expect(stdout).toMatch(/^CHECK THE TIME BASE: this result is not a measurement until the read is checked$/m);
-    expect(stdout).toMatch(/^ {2}- the speed of 0\.0000666 m\/s .* is outside 0\.1–10 000 m\/s/m);
+    expect(stdout).toMatch(/^ {2}- the speed of 0\.0000666 m\/s .* is outside 0\.1–10\u00a0000 m\/s/m);
     expect(stdout).toMatch(/^ {2}- the sample interval is 1 s, above 1 ms/m);
     expect(stdout).toMatch(/^ {2}gate positions: ± 0\.5 mm each \(rectangular\)$/m);
     expect(stdout).toMatch(/^ {2}time-base accuracy: ± 50 ppm \(rectangular\)$/m);
