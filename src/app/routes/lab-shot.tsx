@@ -38,6 +38,9 @@ export function Component() {
           current={shot.data?.currentAnalysis ? { version: shot.data.currentAnalysis.version, state: shot.data.currentAnalysis.state } : null}
           canRequest={can(membership.role, 'reviews:request')}
           canDecide={can(membership.role, 'reviews:decide')}
+          approvalBlocked={shot.data?.currentAnalysis?.timeBaseCheck?.blocksApproval
+            ? 'Cannot be approved yet: this version is marked “check the time base”. An analyst must confirm the read or fix it in a new version; return it to ask for that.'
+            : null}
           canReadAudit={can(membership.role, 'audit:read')}
           campaignShots={campaign.data?.shots.map((s) => ({ id: s.id, number: s.number })) ?? []}
         >

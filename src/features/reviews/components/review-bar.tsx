@@ -18,6 +18,8 @@ export interface ReviewBarProps {
   current: { version: number; state: string } | null;
   canRequest: boolean;
   canDecide: boolean;
+  /** Why the version under review cannot be approved yet (it is marked "check the time base"); null when it can. */
+  approvalBlocked?: string | null;
   /** Admins and reviewers see the shot's audit trail. */
   canReadAudit?: boolean;
   /** Other shots of the campaign, to open beside this one in the comparison. */
@@ -59,7 +61,7 @@ function SendForReview({ shotId, labId, disabledReason }: { shotId: string; labI
   );
 }
 
-function Decide({ shotId, labId, version }: { shotId: string; labId: string; version: number | null }) {
+function Decide({ shotId, labId, version, blocked }: { shotId: string; labId: string; version: number | null; blocked: string | null }) {
   const decide = useDecideReview(shotId, labId);
   const [returning, setReturning] = useState(false);
   const [comment, setComment] = useState('');
@@ -69,11 +71,12 @@ function Decide({ shotId, labId, version }: { shotId: string; labId: string; ver
     return (
       <div className="space-y-2">
         <div className="flex flex-wrap gap-2">
-          <Button onClick={() => decide.mutate({ decision: 'approved', comment: comment.trim() || undefined })} disabled={decide.isPending}>
+          <Button onClick={() => decide.mutate({ decision: 'approved', comment: comment.trim() || undefined })} disabled={decide.isPending || blocked != null}>
             Approve {v}
           </Button>
           <Button variant="danger" onClick={() => setReturning(true)} disabled={decide.isPending}>Return with comment</Button>
         </div>
+        {blocked && <p className="text-xs text-signal-800" data-testid="approval-blocked">{blocked}</p>}
         {decide.isError && <ErrorNote error={decide.error} />}
       </div>
     );
@@ -163,7 +166,7 @@ export function ReviewBar(props: ReviewBarProps) {
         {headline}
         {signedOffEarlier && <p className="text-xs text-emerald-800">Version {approvedVersion} was signed off earlier; the current version is newer.</p>}
         {canRequest && (status === 'analysed' || status === 'returned') && <SendForReview shotId={shotId} labId={labId} disabledReason={notReady} />}
-        {canDecide && status === 'in_review' && <Decide shotId={shotId} labId={labId} version={reviewVersion} />}
+        {canDecide && status === 'in_review' && <Decide shotId={shotId} labId={labId} version={reviewVersion} blocked={props.approvalBlocked ?? null} />}
         {history.isError && <ErrorNote error={history.error} />}
         <div className="flex flex-wrap items-center gap-x-3 gap-y-1 text-xs">
           <span className="text-harbour-500">Export</span>

@@ -1,5 +1,5 @@
 import type { AnalysisOptions } from '../../../../shared/contracts/analysis.ts';
-import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
+import type { ShotAnalysis, TimeBaseCheckReason } from '../../../../shared/analysis/types.ts';
 
 export interface ChannelFileInfo { index: number; name: string; unit: string; sourceUnit: string; invalidCount: number; length: number }
 
@@ -33,10 +33,28 @@ export interface AnalysisSummary {
   completedAt: string | null;
 }
 
+/** An analyst's "I checked the time base" on a version marked "check the time base". */
+export interface TimeBaseConfirmation {
+  by: { id: string; name: string | null } | null;
+  at: string;
+  note: string;
+}
+
+/** Where a version stands on "check the time base" (GET …/analyses/:id, GET /api/shots/:id). */
+export interface TimeBaseStatus {
+  flagged: boolean;
+  reasons: TimeBaseCheckReason[];
+  confirmation: TimeBaseConfirmation | null;
+  /** Flagged and not confirmed: review cannot approve the version. */
+  blocksApproval: boolean;
+}
+
 export interface AnalysisFull extends AnalysisSummary {
   parameters: AnalysisOptions;
   captureIds: string[];
   results: ShotAnalysis | null;
+  /** Absent from servers before issue 10. */
+  timeBaseCheck?: TimeBaseStatus;
 }
 
 export interface ShotInfo {

@@ -1,6 +1,9 @@
+import type { ReactNode } from 'react';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import { Badge, EmptyState } from '../../../components/ui/primitives.tsx';
 import { formatMeasurement } from '../../../lib/format.ts';
+import type { TimeBaseConfirmation } from '../api/types.ts';
+import { AssumptionList, TimeBaseFlag } from './time-base-check.tsx';
 
 const BASIS_LABELS = {
   fit: 'constant-deceleration fit over all gates, speed at the first gate',
@@ -20,10 +23,25 @@ function Row({ label, value, note }: { label: string; value: string; note?: stri
   );
 }
 
-/** The headline result: speed ± U (k = 2) with its method, derived quantities, cross-checks and warnings. */
-export function ResultPanel({ results, preview }: { results: ShotAnalysis | null; preview: boolean }) {
+export interface ResultPanelProps {
+  results: ShotAnalysis | null;
+  preview: boolean;
+  /** The stored version's "I checked the time base" (none for a preview). */
+  timeBaseConfirmation?: TimeBaseConfirmation | null;
+  /** Shown under the time-base flag while it is unconfirmed (the analyst's confirmation form). */
+  confirmTimeBase?: ReactNode;
+}
+
+/**
+ * The headline result: speed ± U (k = 2) with its method, derived quantities, cross-checks, the "Check before
+ * trusting" box (the time-base flag and the warnings) and the assumptions. A result marked "check the time base"
+ * and not confirmed shows its speed greyed, with the reason, instead of as a measurement.
+ */
+export function ResultPanel({ results, preview, timeBaseConfirmation = null, confirmTimeBase }: ResultPanelProps) {
   if (!results) return <EmptyState title="No result yet">The speed appears here once the files have been read and analysed.</EmptyState>;
   const { speed, derived, fit } = results;
+  const flag = results.timeBaseCheck?.flagged ? results.timeBaseCheck : null;
+  const unchecked = flag !== null && timeBaseConfirmation === null;
   return (
     <div className="space-y-4">
       <div>
@@ -32,9 +50,14 @@ export function ResultPanel({ results, preview }: { results: ShotAnalysis | null
         </p>
         {speed ? (
           <>
-            <p className="mt-1 text-3xl font-semibold tabular-nums tracking-tight text-harbour-900" data-testid="speed">
+            <p className={`mt-1 text-3xl font-semibold tabular-nums tracking-tight ${unchecked ? 'text-harbour-300' : 'text-harbour-900'}`} data-testid="speed" data-unchecked={unchecked || undefined}>
               {formatMeasurement(speed.value, speed.uncertainty, 'm/s')}
             </p>
+            {unchecked && (
+              <p className="mt-1 text-sm font-medium text-signal-800" data-testid="speed-unchecked">
+                Not a measurement until the time base is checked: {flag.reasons[0]?.message}.
+              </p>
+            )}
             <p className="mt-1 text-sm text-harbour-600">
               {speed.method === 'flight' ? 'Time of flight' : 'Occlusion'}: {BASIS_LABELS[speed.basis]}. Expanded uncertainty, k = {speed.coverage} (about 95 %).
             </p>
@@ -43,7 +66,7 @@ export function ResultPanel({ results, preview }: { results: ShotAnalysis | null
           <p className="mt-1 text-lg font-medium text-red-800">No speed: no gate gave a usable pulse.</p>
         )}
       </div>
-      <dl className="divide-y divide-harbour-100">
+      <dl className={`divide-y divide-harbour-100 ${unchecked ? 'opacity-50' : ''}`}>
         {fit && <Row label="Deceleration" value={formatMeasurement(fit.deceleration, fit.decelerationUncertainty, 'm/s²')} note={`fit over ${fit.gates} gates`} />}
         {derived.mach && <Row label="Mach number" value={formatMeasurement(derived.mach.value, derived.mach.uncertainty)} note={derived.speedOfSound ? `c = ${formatMeasurement(derived.speedOfSound.value, derived.speedOfSound.uncertainty, 'm/s')} in dry air (USSA 1976)` : undefined} />}
         {derived.kineticEnergy && <Row label="Kinetic energy" value={formatMeasurement(derived.kineticEnergy.value, derived.kineticEnergy.uncertainty, 'J')} />}
@@ -74,14 +97,18 @@ export function ResultPanel({ results, preview }: { results: ShotAnalysis | null
           ))}
         </ul>
       )}
-      {results.warnings.length > 0 && (
-        <div role="alert" className="rounded-md bg-signal-100 px-4 py-3 text-sm text-signal-800">
+      {(results.warnings.length > 0 || flag) && (
+        <div role="alert" className="space-y-2 rounded-md bg-signal-100 px-4 py-3 text-sm text-signal-800">
           <p className="font-semibold">Check before trusting this result</p>
-          <ul className="mt-1 list-disc space-y-0.5 pl-5">
-            {results.warnings.map((w, i) => <li key={i}>{w}</li>)}
-          </ul>
+          {flag && <TimeBaseFlag check={flag} confirmation={timeBaseConfirmation}>{unchecked && confirmTimeBase}</TimeBaseFlag>}
+          {results.warnings.length > 0 && (
+            <ul className="list-disc space-y-0.5 pl-5">
+              {results.warnings.map((w, i) => <li key={i}>{w}</li>)}
+            </ul>
+          )}
         </div>
       )}
+      {results.assumptions && <AssumptionList assumptions={results.assumptions} />}
     </div>
   );
 }

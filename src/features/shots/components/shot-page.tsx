@@ -12,6 +12,7 @@ import { CaptureDrop } from './capture-drop.tsx';
 import { CaptureList } from './capture-list.tsx';
 import { PositionTimePlot } from './position-time-plot.tsx';
 import { ResultPanel } from './result-panel.tsx';
+import { ConfirmTimeBase } from './time-base-check.tsx';
 import { plottedChannels, TraceStack } from './trace-stack.tsx';
 import { UncertaintyBudget } from './uncertainty-budget.tsx';
 import { VersionHistory } from './version-history.tsx';
@@ -77,7 +78,14 @@ export function ShotPage(props: ShotPageProps) {
 
       <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,2fr)]">
         <Card title={showingPreview ? 'Result (preview)' : currentAnalysis ? `Result · version ${currentAnalysis.version}` : 'Result'}>
-          <ResultPanel results={results} preview={showingPreview} />
+          <ResultPanel
+            results={results}
+            preview={showingPreview}
+            timeBaseConfirmation={showingPreview ? null : currentAnalysis?.timeBaseCheck?.confirmation ?? null}
+            confirmTimeBase={!showingPreview && currentAnalysis && props.canRecompute
+              ? <ConfirmTimeBase shotId={shotId} analysisId={currentAnalysis.id} version={currentAnalysis.version} />
+              : null}
+          />
         </Card>
         <Card title="Scope files">
           <div className="space-y-4">
