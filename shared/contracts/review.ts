@@ -92,6 +92,9 @@ export interface TrendPoint<When = string> {
   method: string | null;
   status: string;
   analysisVersion: number;
+  /** "unchecked": the speed is marked "check the time base" and not confirmed by an analyst, so it is left out of
+   * statistics, fits and plots; "confirmed": it was; null: not marked (absent from servers before issue 10). */
+  timeBase?: 'unchecked' | 'confirmed' | null;
 }
 
 /** Summary of one group of shots' speeds, m/s. Standard deviation is the sample one (n − 1); null below two shots. */

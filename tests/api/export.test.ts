@@ -54,7 +54,7 @@ describe('campaign export', () => {
     const rows = rowsOf(res.text);
     expect(rows[0]).toEqual([
       'Shot', 'Fired at (UTC)', 'Tube pressure (kPa)', 'Seal', 'Ambient temperature (°C)', 'Ambient pressure (kPa)', 'Projectile',
-      'Speed (m/s)', 'U (m/s)', 'k', 'Method', 'Mach', 'Status', 'Review decision (this version)', 'Analysis version',
+      'Speed (m/s)', 'U (m/s)', 'k', 'Method', 'Mach', 'Status', 'Review decision (this version)', 'Analysis version', 'Time base',
     ]);
     expect(rows.length).toBe(1 + 8);
     const r1 = rows[1];
@@ -62,7 +62,7 @@ describe('campaign export', () => {
     // 2000 Pa = 2 kPa; 268.15 K − 273.15 = −5 °C (SI Brochure, 0 °C = 273.15 K); 101 325 Pa = 101.325 kPa.
     expect(r1).toEqual([
       '1', '2026-10-14T09:30:00.000Z', '2', `'${HOSTILE}`, '-5', '101.325', 'Table-tennis ball, 40 mm',
-      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'approved', 'approved', '1',
+      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'approved', 'approved', '1', '',
     ]);
     expect(rows.slice(2).map((r) => [r[0], r[3], r[7], r[12], r[13]])).toEqual([
       ['2', "'+cmd|calc", '', 'draft', ''],

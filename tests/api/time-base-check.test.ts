@@ -3,7 +3,8 @@
 // audited "I checked the time base" on that version) or a new version fixes it.
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Analysis, AuditEvent, Shot } from '../../server/db/models/index.ts';
+import { parse } from 'csv-parse/sync';
+import { Analysis, AuditEvent, Campaign, Shot } from '../../server/db/models/index.ts';
 import { ENGINE_VERSION } from '../../shared/analysis/engine-version.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
 import { analysedShot } from './review-fixtures.ts';
@@ -114,5 +115,26 @@ describe('check the time base', () => {
     expect((await get('analyst', `/api/shots/${shot.shotId}`)).body.currentAnalysis.timeBaseCheck).toMatchObject({ flagged: false, blocksApproval: false });
     expect((await post('experimenter', `/api/shots/${shot.shotId}/review-requests`)).status).toBe(201);
     expect((await post('reviewer', `/api/shots/${shot.shotId}/reviews`, { decision: 'approved' })).status).toBe(201);
+  });
+
+  it('When a flagged version is exported and trended, then it says "unchecked" and the statistics leave it out until it is confirmed', async () => {
+    const labId = h.demo.labs.hollowmere.id;
+    const campaign = await Campaign.create({ labId, name: 'Time-base check', startedOn: '2026-11-20', createdBy: null });
+    const good = await analysedShot(h, { campaignId: campaign.id, number: 1 });
+    const bad = await analysedShot(h, { campaignId: campaign.id, number: 2, misreadInterval: 1 });
+    const trends = async () => (await get('experimenter', `/api/labs/${labId}/campaigns/${campaign.id}/trends`)).body;
+    const before = await trends();
+    expect(before.points.map((p: { number: number; timeBase: string | null }) => [p.number, p.timeBase])).toEqual([[1, null], [2, 'unchecked']]);
+    expect(before.groups).toEqual([expect.objectContaining({ count: 1, mean: good.results.speed.value })]);
+
+    const csv = (await get('analyst', `/api/labs/${labId}/campaigns/${campaign.id}/export?format=csv`)).text;
+    const rows = parse(csv, { bom: true }) as string[][];
+    expect(rows[0].at(-1)).toBe('Time base');
+    expect(rows.slice(1).map((r) => [r[0], r.at(-1)])).toEqual([['1', ''], ['2', 'unchecked']]);
+
+    expect((await post('analyst', `/api/shots/${bad.shotId}/analyses/${bad.analysisId}/time-base-confirmation`, { note: 'slow roll, checked' })).status).toBe(201);
+    const after = await trends();
+    expect(after.points[1].timeBase).toBe('confirmed');
+    expect(after.groups[0].count).toBe(2);
   });
 });

@@ -25,6 +25,15 @@ export function timeBaseStatus(a: Analysis, names: Map<string, string> = new Map
   };
 }
 
+/** The time-base state in one word for tables (exports, trends): null when not flagged. */
+export function timeBaseState(a: Analysis): 'unchecked' | 'confirmed' | null {
+  const s = timeBaseStatus(a);
+  return !s.flagged ? null : s.confirmation ? 'confirmed' : 'unchecked';
+}
+
+/** Columns a table query needs for timeBaseStatus / timeBaseState besides the results. */
+export const TIME_BASE_ATTRIBUTES = ['timeBaseConfirmedBy', 'timeBaseConfirmedAt', 'timeBaseConfirmationNote'] as const;
+
 /** The 409 a reviewer gets when approving a flagged, unconfirmed version: what is wrong and the two ways out. */
 export function timeBaseUncheckedError(a: Analysis): AppError {
   const { reasons } = timeBaseStatus(a);

@@ -1,5 +1,6 @@
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import { Analysis, Campaign, Projectile, Review, Shot } from '../../db/models/index.ts';
+import { TIME_BASE_ATTRIBUTES, timeBaseState } from '../analyses/time-base-status.ts';
 import { tidy, type CsvValue } from './to-csv.ts';
 
 /** 0 °C in kelvin (exact by definition, SI Brochure 9th ed., 2.3.1). */
@@ -11,6 +12,7 @@ export const CAMPAIGN_COLUMNS = [
   ['ambientTemperatureC', 'Ambient temperature (°C)'], ['ambientPressureKpa', 'Ambient pressure (kPa)'], ['projectile', 'Projectile'],
   ['speedMps', 'Speed (m/s)'], ['uncertaintyMps', 'U (m/s)'], ['coverageFactor', 'k'], ['method', 'Method'], ['mach', 'Mach'],
   ['status', 'Status'], ['reviewDecision', 'Review decision (this version)'], ['analysisVersion', 'Analysis version'],
+  ['timeBase', 'Time base'],
 ] as const;
 export type CampaignRow = Record<(typeof CAMPAIGN_COLUMNS)[number][0], CsvValue>;
 
@@ -19,7 +21,7 @@ export async function campaignRows(campaign: Campaign): Promise<CampaignRow[]> {
   const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId: campaign.labId }, order: [['number', 'ASC']] });
   const ids = shots.map((s) => s.currentAnalysisId).filter((x): x is string => !!x);
   const [analyses, projectiles, reviews] = await Promise.all([
-    Analysis.findAll({ where: { id: ids, labId: campaign.labId }, attributes: ['id', 'version', 'results'] }),
+    Analysis.findAll({ where: { id: ids, labId: campaign.labId }, attributes: ['id', 'version', 'results', ...TIME_BASE_ATTRIBUTES] }),
     Projectile.findAll({ where: { labId: campaign.labId }, attributes: ['id', 'name'] }),
     Review.findAll({ where: { analysisId: ids, labId: campaign.labId }, attributes: ['analysisId', 'decision', 'createdAt'], order: [['createdAt', 'DESC'], ['id', 'DESC']] }),
   ]);
@@ -46,6 +48,8 @@ export async function campaignRows(campaign: Campaign): Promise<CampaignRow[]> {
       status: s.status,
       reviewDecision: (s.currentAnalysisId && latest.get(s.currentAnalysisId)) || null,
       analysisVersion: a?.version ?? null,
+      // "unchecked": the speed is marked "check the time base" and is not a measurement until an analyst confirms it.
+      timeBase: a ? timeBaseState(a) : null,
     };
   });
 }

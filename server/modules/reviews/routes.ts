@@ -9,7 +9,7 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
-import { timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
+import { TIME_BASE_ATTRIBUTES, timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
 import { notifyQueueOn, notifySafely, reviewersOf } from '../notifications/notify-people.ts';
 import { labOfShot, shotInLab } from '../shots/routes.ts';
 import { shotSummary } from '../shots/view.ts';
@@ -74,7 +74,7 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
         const analysisIds = shots.map((s) => s.reviewAnalysisId ?? s.currentAnalysisId).filter((x): x is string => !!x);
         const [campaigns, analyses, requests] = await Promise.all([
           Campaign.findAll({ where: { labId, id: [...new Set(shots.map((s) => s.campaignId))] }, attributes: ['id', 'name'] }),
-          Analysis.findAll({ where: { labId, id: analysisIds }, attributes: ['id', 'version', 'results', 'timeBaseConfirmedBy', 'timeBaseConfirmedAt', 'timeBaseConfirmationNote'] }),
+          Analysis.findAll({ where: { labId, id: analysisIds }, attributes: ['id', 'version', 'results', ...TIME_BASE_ATTRIBUTES] }),
           ReviewRequest.findAll({ where: { labId, shotId: shots.map((s) => s.id) }, order: [['createdAt', 'DESC'], ['id', 'DESC']] }),
         ]);
         const latest = new Map<string, ReviewRequest>();

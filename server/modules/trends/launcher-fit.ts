@@ -51,6 +51,7 @@ export function campaignLauncherFit(points: TrendPoint[], inputs: LauncherFitInp
   const used: TrendPoint[] = [];
   for (const p of points) {
     if (p.speed == null) leftOut.push({ number: p.number, reason: 'no speed measured' });
+    else if (p.timeBase === 'unchecked') leftOut.push({ number: p.number, reason: 'marked "check the time base"' });
     else if (!(p.uncertainty != null && p.uncertainty > 0)) leftOut.push({ number: p.number, reason: 'no uncertainty' });
     else if (p.tubePressurePa == null) leftOut.push({ number: p.number, reason: 'no tube pressure logged' });
     else if (inputs.projectile && p.projectileId !== inputs.projectile.id) leftOut.push({ number: p.number, reason: p.projectileId ? `a different projectile (${p.projectileName ?? 'unnamed'})` : 'no projectile logged' });

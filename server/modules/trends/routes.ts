@@ -12,7 +12,9 @@ export function trendRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/campaigns/:campaignId/trends',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: 'Speed ± U of every analysed shot of the campaign, with count, mean, sample standard deviation and extreme spread per seal type, projectile or for all, and the launcher model with losses fitted to the shots (launcherFit; targetSpeedMs asks what tube vacuum gives that speed)',
+      summary:
+        'Speed ± U of every analysed shot of the campaign, with count, mean, sample standard deviation and extreme spread per seal type, projectile or for all, and the launcher model with losses fitted to the shots (launcherFit; targetSpeedMs asks what tube vacuum gives that speed). ' +
+        'A speed marked "check the time base" and not yet confirmed (timeBase "unchecked") is listed but left out of the statistics and the fit',
       query: trendsQuery,
       async handler(req, res) {
         const q = res.locals.query as TrendsQuery;
@@ -25,7 +27,7 @@ export function trendRoutes(): RouteDef[] {
           const key = q.groupBy === 'seal' ? p.sealType : q.groupBy === 'projectile' ? p.projectileId ?? '' : 'all';
           const label = q.groupBy === 'seal' ? p.sealType || '(no seal logged)' : q.groupBy === 'projectile' ? p.projectileName ?? '(no projectile logged)' : 'All shots';
           const g = groups.get(key) ?? { label, speeds: [] };
-          if (p.speed != null) g.speeds.push(p.speed);
+          if (p.speed != null && p.timeBase !== 'unchecked') g.speeds.push(p.speed);
           groups.set(key, g);
         }
         const stats: TrendGroupStats[] = [...groups.entries()].map(([key, g]) => ({ key, label: g.label, ...summarizeSpeeds(g.speeds) }));

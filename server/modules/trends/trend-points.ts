@@ -1,6 +1,7 @@
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import type { TrendPoint as SharedTrendPoint } from '../../../shared/contracts/review.ts';
 import { Analysis, Projectile, Shot, type Campaign } from '../../db/models/index.ts';
+import { TIME_BASE_ATTRIBUTES, timeBaseState } from '../analyses/time-base-status.ts';
 
 /** A campaign's shot on the server (`firedAt` still a Date). */
 export type TrendPoint = SharedTrendPoint<Date>;
@@ -11,7 +12,7 @@ export async function campaignTrendPoints(campaign: Campaign): Promise<TrendPoin
   const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId }, order: [['number', 'ASC']] });
   const ids = shots.map((s) => s.currentAnalysisId).filter((x): x is string => !!x);
   const [analyses, projectiles] = await Promise.all([
-    Analysis.findAll({ where: { id: ids, labId, state: 'done' }, attributes: ['id', 'version', 'results'] }),
+    Analysis.findAll({ where: { id: ids, labId, state: 'done' }, attributes: ['id', 'version', 'results', ...TIME_BASE_ATTRIBUTES] }),
     Projectile.findAll({ where: { labId }, attributes: ['id', 'name'] }),
   ]);
   const points: TrendPoint[] = [];
@@ -24,7 +25,7 @@ export async function campaignTrendPoints(campaign: Campaign): Promise<TrendPoin
       ambientPressurePa: s.ambientPressurePa, ambientTemperatureK: s.ambientTemperatureK,
       projectileId: s.projectileId, projectileName: projectiles.find((p) => p.id === s.projectileId)?.name ?? null,
       speed: speed?.value ?? null, uncertainty: speed?.uncertainty ?? null, method: speed?.method ?? null,
-      status: s.status, analysisVersion: a.version,
+      status: s.status, analysisVersion: a.version, timeBase: timeBaseState(a),
     });
   }
   return points;
