@@ -18,6 +18,7 @@ let app: AppProcesses;
 let experimenterApi: PipelineClient;
 let labId: string;
 let shotId: string;
+let campaignId: string;
 
 beforeAll(async () => {
   harness = await createApiHarness();
@@ -26,8 +27,9 @@ beforeAll(async () => {
   app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
   experimenterApi = await apiSignIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
   const ball = await Projectile.findOne({ where: { labId, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true });
+  campaignId = demo.hollowmere.campaignIds[0];
   const created = await experimenterApi.post<{ shot: { id: string } }>(`/api/labs/${labId}/shots`, {
-    campaignId: demo.hollowmere.campaignIds[0], projectileId: ball.id, gateRigId: demo.hollowmere.gateRigIds[0], number: 301,
+    campaignId, projectileId: ball.id, gateRigId: demo.hollowmere.gateRigIds[0], number: 301,
     tubePressurePa: 2100, sealType: 'Mylar burst disc', ambientTemperatureK: 293.15, ambientPressurePa: 100_900, firedAt: new Date().toISOString(),
   });
   expect(created.status, JSON.stringify(created.body)).toBe(201);
@@ -100,6 +102,14 @@ describe('check the time base', () => {
         expect(await approve(page).isDisabled()).toBe(true);
         expect(await reviewBar(page).getByTestId('approval-blocked').textContent()).toMatch(/^Cannot be approved yet: this version is marked “check the time base”/);
         await both(page, 'time-base-unchecked');
+
+        // The campaign's trends leave the unconfirmed speed out, and say so.
+        await page.goto(`${app.baseUrl}/labs/${labId}/campaigns/${campaignId}/trends`);
+        const note = page.getByTestId('trends-unchecked');
+        await note.waitFor({ timeout: 30_000 });
+        expect(await note.textContent()).toMatch(/marked “check the time base”: shot 301\.$/);
+        await page.getByTestId('trend-vacuum').waitFor();
+        await saveScreenshot(page, 'trends-time-base-unchecked');
       } finally {
         await context.close();
       }

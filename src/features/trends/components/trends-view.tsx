@@ -146,7 +146,7 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
       number.set(key, { label: g.label, colour: g.colour, points: [] });
     }
     for (const p of points) {
-      if (p.speed == null) continue;
+      if (p.speed == null || p.timeBase === 'unchecked') continue;
       const key = groupKeyOf(p, groupBy);
       number.get(key)?.points.push({ x: p.number, y: p.speed, u: p.uncertainty });
       if (p.tubePressurePa != null && p.tubePressurePa > 0) pressure.get(key)?.points.push({ x: p.tubePressurePa / 1000, y: p.speed, u: p.uncertainty });
@@ -181,6 +181,7 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
   if (q.isPending) return <Loading what="Loading the campaign's shots" />;
   if (q.isError) return <ErrorNote error={q.error} />;
   const withSpeed = points.filter((p) => p.speed != null).length;
+  const unchecked = points.filter((p) => p.speed != null && p.timeBase === 'unchecked');
 
   return (
     <div className="space-y-6">
@@ -206,6 +207,14 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
           <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/report.pdf`} download>PDF report</a>
         </p>
       </div>
+      {unchecked.length > 0 && (
+        <p role="note" className="rounded-md bg-signal-100 px-3 py-2 text-sm text-signal-800" data-testid="trends-unchecked">
+          Left out of the plots and statistics until an analyst confirms the read, because their result is marked “check the time base”:{' '}
+          {unchecked.map((p, i) => (
+            <span key={p.shotId}>{i > 0 && ', '}<Link className="font-medium underline" to={`/labs/${labId}/shots/${p.shotId}`}>shot {p.number}</Link></span>
+          ))}.
+        </p>
+      )}
       {withSpeed === 0 && <p className="text-sm text-harbour-500">No shot of this campaign has an analysed speed yet. <Link className="underline" to={`/labs/${labId}/campaigns/${campaignId}`}>Back to the campaign</Link>.</p>}
 
       <div className="grid gap-6 xl:grid-cols-2">
