@@ -14,7 +14,7 @@ import { pollUntil, signIn as apiSignIn, simulatedCsv, type PipelineClient } fro
 import { Campaign, Projectile } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness, type DemoActor } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { launchBrowser, saveScreenshot, saveScreenshotsAtBothWidths } from '../helpers/browser.ts';
+import { saveScreenshot, saveScreenshotsAtBothWidths, signInBrowser } from '../helpers/browser.ts';
 
 const FIXTURES = path.resolve(import.meta.dirname, '../../fixtures/captures');
 const fixture = (name: string) => new Uint8Array(readFileSync(path.join(FIXTURES, name)));
@@ -64,18 +64,7 @@ afterAll(async () => {
   await harness?.close();
 });
 
-async function signedIn(role: Exclude<DemoActor, 'otherLabAdmin'>) {
-  const context = await launchBrowser();
-  const page = await context.newPage();
-  const user = harness.demo.users[role];
-  await page.goto(`${app.baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(user.email);
-  await page.getByLabel('Password').fill(user.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL('**/campaigns');
-  return { context, page };
-}
-
+const signedIn = (role: Exclude<DemoActor, 'otherLabAdmin'>) => signInBrowser(app.baseUrl, harness.demo.users[role]);
 const both = saveScreenshotsAtBothWidths;
 
 const shotUrl = (id: string) => `${app.baseUrl}/labs/${labId}/shots/${id}`;

@@ -11,7 +11,7 @@ import { Projectile } from '../../server/db/models/index.ts';
 import { simulateShot } from '../../shared/simulate/simulate-shot.ts';
 import { createApiHarness, type ApiHarness, type DemoActor } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { saveScreenshot, saveScreenshotsAtBothWidths, signInBrowser } from '../helpers/browser.ts';
 
 let harness: ApiHarness;
 let app: AppProcesses;
@@ -56,28 +56,12 @@ afterAll(async () => {
   await harness?.close();
 });
 
+/** Signed in as the role, on the shot's page with its result shown. */
 async function signedIn(role: Exclude<DemoActor, 'otherLabAdmin'>) {
-  const context = await launchBrowser();
-  const page = await context.newPage();
-  const user = harness.demo.users[role];
-  await page.goto(`${app.baseUrl}/sign-in`);
-  await page.getByLabel('E-mail').fill(user.email);
-  await page.getByLabel('Password').fill(user.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL('**/campaigns');
+  const { context, page } = await signInBrowser(app.baseUrl, harness.demo.users[role]);
   await page.goto(`${app.baseUrl}/labs/${labId}/shots/${shotId}`);
   await page.getByTestId('speed').waitFor({ timeout: 60_000 });
   return { context, page };
-}
-
-/** A screenshot at the laptop size and one at 820 wide (a tablet held upright), then back. */
-async function both(page: Page, name: string) {
-  await saveScreenshot(page, name);
-  await page.setViewportSize({ width: 820, height: 1100 });
-  await page.waitForTimeout(400);
-  await saveScreenshot(page, `${name}-820`);
-  await page.setViewportSize({ width: 1280, height: 800 });
-  await page.waitForTimeout(200);
 }
 
 const reviewBar = (page: Page) => page.getByRole('region', { name: 'Review', exact: true });
@@ -93,6 +77,8 @@ describe('check the time base', () => {
         expect(await speed.getAttribute('data-unchecked')).toBe('true');
         // 300 m/s with durations 5·10⁶ times too long: 0.00006 m/s, stated only as "not a measurement".
         expect(await speed.textContent()).toMatch(/^0\.0000600/);
+        // What derives from the speed (Mach number, energy, momentum) is faded with it.
+        expect(await page.locator('dl.opacity-50').count()).toBe(1);
         expect(await page.getByTestId('speed-unchecked').textContent()).toMatch(/^Not a measurement until the time base is checked: the speed of 0\.00006 m\/s/);
         const flag = page.getByTestId('time-base-flag');
         await flag.getByText('Check the time base').waitFor();
@@ -101,7 +87,7 @@ describe('check the time base', () => {
         await page.getByTestId('assumptions').getByText('± 0.5 mm each (rectangular)').waitFor();
         expect(await approve(page).isDisabled()).toBe(true);
         expect(await reviewBar(page).getByTestId('approval-blocked').textContent()).toMatch(/^Cannot be approved yet: this version is marked “check the time base”/);
-        await both(page, 'time-base-unchecked');
+        await saveScreenshotsAtBothWidths(page, 'time-base-unchecked');
 
         // The campaign's trends leave the unconfirmed speed out, and say so.
         await page.goto(`${app.baseUrl}/labs/${labId}/campaigns/${campaignId}/trends`);
@@ -130,6 +116,7 @@ describe('check the time base', () => {
         await flag.getByText(/“Slow-roll record at 1 s per point: the scope log confirms it\.”/).waitFor();
         expect(await page.getByTestId('speed').getAttribute('data-unchecked')).toBeNull();
         expect(await page.getByTestId('speed-unchecked').count()).toBe(0);
+        expect(await page.locator('dl.opacity-50').count()).toBe(0);
         await saveScreenshot(page, 'time-base-confirmed');
       } finally {
         await context.close();

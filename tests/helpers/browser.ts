@@ -74,6 +74,18 @@ export async function saveScreenshot(page: Page, name: string): Promise<string> 
   return file;
 }
 
+/** A new browser signed in through the sign-in page as the given user, on the campaigns page. */
+export async function signInBrowser(baseUrl: string, user: { email: string; password: string }): Promise<{ context: BrowserContext; page: Page }> {
+  const context = await launchBrowser();
+  const page = await context.newPage();
+  await page.goto(`${baseUrl}/sign-in`);
+  await page.getByLabel('E-mail').fill(user.email);
+  await page.getByLabel('Password').fill(user.password);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL('**/campaigns');
+  return { context, page };
+}
+
 /** A full-page screenshot at the laptop size and one at 820 px wide (a tablet held upright, `<name>-820`), then back. */
 export async function saveScreenshotsAtBothWidths(page: Page, name: string): Promise<void> {
   await saveScreenshot(page, name);
