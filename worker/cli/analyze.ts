@@ -133,8 +133,7 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
     capture = await (io.readCapture ?? ((path: string, options: { dt?: number }) => readCaptureFile(path, options)))(args.file, readOptions);
   } catch (error) {
     const e = error as NodeJS.ErrnoException;
-    let reason = (e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message).split('\n')[0];
-    if (args.dt === undefined && /\binterval\b/i.test(reason)) reason += ' (on the command line: --dt S)';
+    const reason = (e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message).split('\n')[0];
     // The importer's messages usually name the file already ("cannot open x.csv: no such file").
     io.stderr(reason.includes(args.file) ? `analyze: ${reason}\n` : `analyze: cannot read ${args.file}: ${reason}\n`);
     return 2;

@@ -142,14 +142,14 @@ describe('analyze CLI: assumptions, the time-base flag and file warnings', () =>
     expect((await run([path, '--spacing', '0.1', '--position-tolerance', 'half'])).stderr).toMatch(/--position-tolerance needs a number of metres, got 'half'/);
   });
 
-  it('--dt reads a file that states no interval; without it the refusal names --dt', async () => {
+  it("--dt reads a file that states no interval; without it the importer's refusal names --dt", async () => {
     const shot = simulateShot({ sampleInterval: 2e-7, length: 4000 });
     const lines = ['Sample,CH1 (V),CH2 (V)', ...Array.from(shot.channels[0].values, (v, i) => `${i},${v.toFixed(5)},${shot.channels[1].values[i].toFixed(5)}`)];
     const path = join(dir, 'no-interval.csv');
     writeFileSync(path, `${lines.join('\n')}\n`);
     const refused = await run([path, '--spacing', '0.1']);
     expect(refused.code).toBe(2);
-    expect(refused.stderr).toMatch(/interval.*\(on the command line: --dt S\)\n$/);
+    expect(refused.stderr).toMatch(/interval.*--dt/);
     const { code, stdout } = await run([path, '--spacing', '0.1', '--dt', '2e-7', '--json']);
     expect(code).toBe(0);
     const out = JSON.parse(stdout);
