@@ -96,6 +96,12 @@ describe('check the time base', () => {
         expect(await note.textContent()).toMatch(/marked “check the time base”: shot 301\.$/);
         await page.getByTestId('trend-vacuum').waitFor();
         await saveScreenshot(page, 'trends-time-base-unchecked');
+
+        // The review queue marks the row.
+        await page.goto(`${app.baseUrl}/labs/${labId}/review-queue`);
+        await page.getByTestId('queue-time-base').waitFor({ timeout: 30_000 });
+        expect(await page.getByTestId('queue-time-base').textContent()).toBe('check the time base');
+        await saveScreenshot(page, 'review-queue-time-base');
       } finally {
         await context.close();
       }

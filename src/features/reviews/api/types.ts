@@ -11,6 +11,8 @@ export interface QueueRow {
   speed: { value: number; uncertainty: number | null; method: string | null } | null;
   analysisId: string | null;
   analysisVersion: number | null;
+  /** "Check the time base": flagged, and whether it still blocks approval (absent from servers before issue 10). */
+  timeBaseCheck?: { flagged: boolean; blocksApproval: boolean } | null;
   requestId: string | null;
   requestedBy: Person | null;
   requestedAt: string | null;

@@ -62,7 +62,10 @@ export function ReviewQueueView({ labId }: { labId: string }) {
                   </p>
                 </td>
                 <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">{r.campaignName ?? '—'}</td>
-                <td className="whitespace-nowrap px-3 py-2 text-right tabular-nums">{formatMeasurement(r.speed?.value, r.speed?.uncertainty, 'm/s')}</td>
+                <td className={`whitespace-nowrap px-3 py-2 text-right tabular-nums ${r.timeBaseCheck?.blocksApproval ? 'text-harbour-300' : ''}`}>
+                  {formatMeasurement(r.speed?.value, r.speed?.uncertainty, 'm/s')}
+                  {r.timeBaseCheck?.blocksApproval && <p className="text-xs font-medium text-signal-800" data-testid="queue-time-base">check the time base</p>}
+                </td>
                 <td className="hidden whitespace-nowrap px-3 py-2 text-harbour-700 lg:table-cell">{r.speed?.method ? METHOD[r.speed.method] ?? r.speed.method : '—'}</td>
                 <td className="hidden px-3 py-2 text-harbour-700 lg:table-cell">{r.analysisVersion != null ? `v${r.analysisVersion}` : '—'}</td>
                 <td className="min-w-[11rem] px-3 py-2 text-harbour-700">

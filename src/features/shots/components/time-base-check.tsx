@@ -24,7 +24,7 @@ export function TimeBaseFlag({ check, confirmation, children }: { check: TimeBas
       ) : (
         <p className="text-xs">
           This result is not a measurement, and review cannot approve it, until an analyst confirms the read or fixes it
-          (“Fix how it is read” on the file, or a recomputation).
+          (“Change how it is read” on the file, or a recomputation).
         </p>
       )}
       {children}
