@@ -1,3 +1,4 @@
+import { useLabEventPublisher } from './lib/lab-events.ts';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import cookieParser from 'cookie-parser';
@@ -13,6 +14,7 @@ import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
 import { authRoutes } from './modules/auth/routes.ts';
 import { campaignRoutes } from './modules/campaigns/routes.ts';
+import { eventRoutes } from './modules/events/routes.ts';
 import { exportRoutes } from './modules/exports/routes.ts';
 import { captureRoutes } from './modules/captures/routes.ts';
 import { healthRoutes } from './modules/health/routes.ts';
@@ -53,6 +55,7 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...trendRoutes(),
     ...batchRoutes(deps),
     ...benchRoutes(),
+    ...eventRoutes(deps),
   ];
   routes.push({
     method: 'get',
@@ -68,6 +71,7 @@ export function allRoutes(deps: Deps): RouteDef[] {
 
 /** Builds the Express app without listening, so tests can drive it with supertest. */
 export function buildApp(deps: Deps): Express {
+  useLabEventPublisher(deps.redis);
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');

@@ -5,6 +5,7 @@ import { createMailer } from './lib/mailer.ts';
 import { LoginLimiter } from './lib/rate-limit.ts';
 import { createRedis } from './lib/redis.ts';
 import { createJobQueues } from './lib/job-queues.ts';
+import { labEventHubFor } from './modules/events/lab-event-hub.ts';
 import { createSequelize } from './db/sequelize.ts';
 import { createBlobStore } from './storage/create-blob-store.ts';
 
@@ -37,6 +38,7 @@ async function main() {
     const force = setTimeout(() => process.exit(1), 10_000);
     force.unref();
     server.closeIdleConnections();
+    await labEventHubFor(redis, logger).close();
     await new Promise<void>((resolve) => server.close(() => resolve()));
     mailer.close();
     await Promise.allSettled([sequelize.close(), redis.quit(), queues.close()]);

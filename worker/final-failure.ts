@@ -3,7 +3,8 @@ import { Op } from 'sequelize';
 import { Analysis, Capture, Shot } from '../server/db/models/index.ts';
 import { notifyPeople } from '../server/modules/notifications/notify-people.ts';
 import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
-import { settleShotFromAnalysis, settleShotFromCaptures } from './settle-shot.ts';
+import { settleShot } from '../server/modules/shots/settle-shot.ts';
+import { afterCaptureFinished } from './settle-shot.ts';
 
 /** True when this failure ends the job: its retries are spent, or it threw an UnrecoverableError. */
 export function isFinalFailure(job: Job, err: Error): boolean {
@@ -26,7 +27,7 @@ export async function recordFinalFailure(queue: string, job: Job, reason: string
     await Capture.update({ state: 'failed', progress: 100, error }, { where: { ...attempt, state: { [Op.notIn]: ['ready', 'failed'] } } });
     const capture = await Capture.findOne({ where: attempt, attributes: ['id', 'labId', 'shotId', 'uploadedBy', 'state', 'fileName'] });
     if (capture?.state !== 'failed') return;
-    await settleShotFromCaptures(capture.shotId);
+    await afterCaptureFinished(capture.shotId);
     await notifyPeople(notifyQueue(), {
       kind: 'jobFailed', labId: capture.labId, shotId: capture.shotId, eventId: String(job.id),
       recipientIds: [capture.uploadedBy], error: `${capture.fileName}: ${reason}`,
@@ -35,7 +36,7 @@ export async function recordFinalFailure(queue: string, job: Job, reason: string
     await Analysis.update({ state: 'failed', progress: 100, error, completedAt: new Date() }, { where: { id: job.data.analysisId, state: { [Op.notIn]: ['done', 'failed'] } } });
     const analysis = await Analysis.findByPk(job.data.analysisId, { attributes: ['id', 'labId', 'shotId', 'requestedBy', 'state', 'version'] });
     if (analysis?.state !== 'failed') return;
-    await settleShotFromAnalysis(analysis.shotId);
+    await settleShot(analysis.shotId);
     // An automatic analysis has no requester: the person who logged the shot hears of it instead.
     const shot = analysis.requestedBy ? null : await Shot.findByPk(analysis.shotId, { attributes: ['createdBy'] });
     await notifyPeople(notifyQueue(), {

@@ -3,12 +3,14 @@ import { fileURLToPath } from 'node:url';
 import { Worker, type Queue } from 'bullmq';
 import { Op } from 'sequelize';
 import { loadConfig, loadConfigOrExit, type Config } from '../server/config.ts';
-import { Analysis, Capture } from '../server/db/models/index.ts';
+import { Analysis, Capture, Shot } from '../server/db/models/index.ts';
+import { closeLabEventPublisher } from '../server/lib/lab-events.ts';
 import { createNotifyQueue } from '../server/modules/notifications/notify-people.ts';
 import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
 import { closeWorkerContext, workerContext } from './context.ts';
 import { isFinalFailure, recordFinalFailure } from './final-failure.ts';
 import { redisConnection } from './queues.ts';
+import { afterCaptureFinished } from './settle-shot.ts';
 
 /**
  * The job worker process: one BullMQ Worker per queue. The processors are sandboxed in worker threads
@@ -65,6 +67,12 @@ async function sweep(config: Config) {
       await queues.addAnalysis({ analysisId: a.id });
       requeued += 1;
     }
+  }
+  // A shot left "processing" by a write lost between two steps (a crash after a file was read, before its analysis
+  // was made) gets the missing step and its status again; settling is idempotent.
+  const stuck = await Shot.findAll({ where: { status: 'processing', updatedAt: { [Op.lt]: before } }, attributes: ['id'], limit: 500 });
+  for (const s of stuck) {
+    if ((await afterCaptureFinished(s.id))?.status !== 'processing') mended += 1;
   }
   if (requeued > 0) logger.info({ requeued }, 'sweep re-queued work');
   if (mended > 0) logger.info({ mended }, 'sweep recorded failures whose first write was lost');
@@ -127,6 +135,7 @@ async function main() {
     await Promise.allSettled(workers.map((w) => w.close()));
     await notifyQueueInstance?.close().catch(() => {});
     await closeWorkerContext();
+    await closeLabEventPublisher();
     process.exit(0);
   };
   process.on('SIGINT', () => void shutdown('SIGINT'));

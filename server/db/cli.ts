@@ -1,3 +1,4 @@
+import { closeLabEventPublisher } from '../lib/lab-events.ts';
 import type { Sequelize } from 'sequelize';
 import { loadConfig, type Config } from '../config.ts';
 import { createJobQueues } from '../lib/job-queues.ts';
@@ -30,6 +31,7 @@ async function main() {
     process.exitCode = 1;
   } finally {
     await sequelize.close();
+    await closeLabEventPublisher();
   }
 }
 

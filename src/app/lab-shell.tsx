@@ -6,6 +6,7 @@ import { Badge, Button } from '../components/ui/primitives.tsx';
 import { useSignOut } from '../features/auth/api/sign-out.ts';
 import { NotFoundPage } from './routes/not-found.tsx';
 import { sectionsFor } from './navigation.ts';
+import { useLabEvents } from './use-lab-events.ts';
 
 export function TopBar({ me, labId }: { me: MeView; labId?: string }) {
   const navigate = useNavigate();
@@ -49,6 +50,7 @@ export function TopBar({ me, labId }: { me: MeView; labId?: string }) {
 export function LabShell({ me }: { me: MeView }) {
   const { labId } = useParams();
   const membership = me.memberships.find((m) => m.labId === labId);
+  useLabEvents(membership ? labId : undefined);
   if (!membership) {
     return (
       <div className="min-h-screen">

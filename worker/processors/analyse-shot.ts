@@ -11,7 +11,7 @@ import { recordAudit } from '../../server/lib/audit.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
-import { settleShotFromAnalysis } from '../settle-shot.ts';
+import { settleShot } from '../../server/modules/shots/settle-shot.ts';
 
 /**
  * Analysis job: run the engine on the captures the version names (read from their stored channel files), with its stored parameters, and store the
@@ -26,6 +26,7 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   if (analysis.state === 'done' || analysis.state === 'failed') return { analysisId: analysis.id, state: analysis.state };
 
   await analysis.update({ state: 'running', progress: 10, startedAt: analysis.startedAt ?? new Date() });
+  await settleShot(analysis.shotId);
   await job.updateProgress(10);
   let results;
   try {
@@ -45,7 +46,7 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   } catch (err) {
     if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || err instanceof Error && err.name === 'ZodError') {
       await analysis.update({ state: 'failed', progress: 100, error: err.message, completedAt: new Date() });
-      await settleShotFromAnalysis(analysis.shotId);
+      await settleShot(analysis.shotId);
       throw new UnrecoverableError(err.message);
     }
     throw err;
@@ -65,9 +66,10 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
     // older version stays on record (shots.approved_analysis_id, the reviews table); a pending request about an
     // older version is withdrawn, so a reviewer never signs off numbers that are no longer the shot's.
     const wasInReview = shot.status === 'in_review' ? shot.reviewAnalysisId : null;
-    await shot.update({ currentAnalysisId: analysis.id, status: 'analysed', reviewAnalysisId: null }, { transaction });
+    await shot.update({ currentAnalysisId: analysis.id, reviewAnalysisId: null }, { transaction });
     return wasInReview ? { labId: shot.labId, shotId: shot.id, reviewedAnalysisId: wasInReview } : null;
   });
+  await settleShot(analysis.shotId);
   if (withdrawn) {
     await recordAudit({
       labId: withdrawn.labId, actorId: null, action: 'review.withdrawn', targetType: 'shot', targetId: withdrawn.shotId,

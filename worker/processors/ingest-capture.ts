@@ -1,28 +1,28 @@
-import { createHash } from 'node:crypto';
 import { UnrecoverableError, type Job } from 'bullmq';
-import { Op } from 'sequelize';
 import { ingestJobData } from '../../shared/contracts/jobs.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { Capture } from '../../server/db/models/index.ts';
-import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../../server/modules/analyses/service.ts';
+import { settleShot } from '../../server/modules/shots/settle-shot.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
-import { settleShotFromCaptures } from '../settle-shot.ts';
+import { afterCaptureFinished } from '../settle-shot.ts';
 
 /** Reads the stored raw file, writes the channel files and records what was detected: the capture is ready. */
 async function readAndStore(job: Job, capture: Capture): Promise<void> {
   const { blobStore } = workerContext();
   await capture.update({ state: 'reading', progress: 10, error: null });
+  await settleShot(capture.shotId);
   await job.updateProgress(10);
   let imported;
   try {
     imported = await readStoredCapture(blobStore, capture);
   } catch (err) {
     if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError) {
-      // A file that cannot be read stays stored and says why; retrying cannot change its bytes.
+      // A file that cannot be read stays stored and says why; retrying cannot change its bytes. The files of the
+      // shot that were read still get their analysis.
       await capture.update({ state: 'failed', progress: 100, error: err.message });
-      await settleShotFromCaptures(capture.shotId);
+      await afterCaptureFinished(capture.shotId);
       throw new UnrecoverableError(err.message);
     }
     throw err;
@@ -46,34 +46,20 @@ async function readAndStore(job: Job, capture: Capture): Promise<void> {
 
 /**
  * Ingest job: read a stored capture file, write its channels and trace pyramids, record what was detected, and
- * once every capture of the shot is read, queue the shot's automatic analysis. Runs again safely: a stale attempt
- * is skipped, a capture already read is not read again, files are overwritten with the same bytes, the automatic
- * analysis is keyed by the captures it reads.
+ * once every capture of the shot is read, queue the shot's automatic analysis (worker/settle-shot.ts) and write
+ * its status. Runs again safely: a stale attempt is skipped, a capture already read is not read again, files are
+ * overwritten with the same bytes, the automatic analysis is keyed by the captures it reads.
  */
 export default async function ingestCapture(job: Job): Promise<{ captureId: string; state: string }> {
   const data = ingestJobData.parse(job.data);
-  const { sequelize, queues, logger } = workerContext();
   const capture = await Capture.findByPk(data.captureId);
   if (!capture) throw new UnrecoverableError(`capture ${data.captureId} no longer exists`);
   if (capture.ingestAttempt !== data.attempt) return { captureId: capture.id, state: 'superseded' };
+  if (capture.removedAt) return { captureId: capture.id, state: 'removed' };
 
   // Read already: by the API while the upload arrived, or by an earlier run of this job that stopped after it.
   if (capture.state !== 'ready') await readAndStore(job, capture);
 
-  const shot = await settleShotFromCaptures(capture.shotId);
-  if (shot) {
-    // Pending first, then ready: once nothing is pending, the ready set read afterwards is final, so two ingests
-    // finishing together compute the same key. Read the other way round, one could key a stale ready set (itself
-    // only) while the other capture turned ready in between, and the shot got two automatic analyses.
-    const pending = await Capture.count({ where: { shotId: shot.id, state: { [Op.in]: ['queued', 'reading'] } } });
-    const ready = pending === 0 ? await readyCaptures(shot.id) : [];
-    if (pending === 0 && ready.length > 0) {
-      // Keyed by exactly which capture attempts it reads: two ingests finishing together make one analysis.
-      const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
-      const parameters = await defaultParameters(shot, combinedChannelNames(ready));
-      const { analysis } = await createAnalysisVersion(sequelize, { shotId: shot.id, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shot.id}-${key}` });
-      await queues.addAnalysisOrDefer({ analysisId: analysis.id }, logger);
-    }
-  }
+  await afterCaptureFinished(capture.shotId);
   return { captureId: capture.id, state: 'ready' };
 }

@@ -1,5 +1,6 @@
 import { DataTypes, Model, type CreationOptional, type InferAttributes, type InferCreationAttributes, type Sequelize, type ForeignKey } from 'sequelize';
 import type { Role } from '../../../shared/contracts/roles.ts';
+import type { ShotStatus } from '../../../shared/contracts/shot-status.ts';
 
 /*
  * Sequelize models mirror the tables the migrations create (never `sync()`). Only the data-access files of
@@ -107,7 +108,7 @@ export class GateRig extends Model<InferAttributes<GateRig>, InferCreationAttrib
   declare updatedAt: CreationOptional<Date>;
 }
 
-export type ShotStatus = 'draft' | 'processing' | 'analysed' | 'in_review' | 'approved' | 'returned' | 'failed';
+export type { ShotStatus };
 
 export class Shot extends Model<InferAttributes<Shot>, InferCreationAttributes<Shot>> {
   declare id: CreationOptional<string>;
@@ -128,6 +129,9 @@ export class Shot extends Model<InferAttributes<Shot>, InferCreationAttributes<S
   declare reviewAnalysisId: CreationOptional<string | null>;
   /** The version a reviewer signed off last (it stays on record when a later version becomes current). */
   declare approvedAnalysisId: CreationOptional<string | null>;
+  /** Set when the shot was deleted (logged by mistake): it is left out of lists, trends and exports. */
+  declare deletedAt: CreationOptional<Date | null>;
+  declare deletedBy: CreationOptional<string | null>;
   declare createdBy: string | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -152,6 +156,9 @@ export class Capture extends Model<InferAttributes<Capture>, InferCreationAttrib
   declare progress: CreationOptional<number>;
   declare warnings: CreationOptional<string[]>;
   declare uploadedBy: string | null;
+  /** Set when the file was removed from the shot (its bytes and row stay for the record). */
+  declare removedAt: CreationOptional<Date | null>;
+  declare removedBy: CreationOptional<string | null>;
   declare uploadedAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -305,7 +312,8 @@ export function initModels(sequelize: Sequelize): void {
       id, labId: uuid(), campaignId: uuid(), number: { type: DataTypes.INTEGER, allowNull: false }, firedAt: date(),
       projectileId: uuid(true), gateRigId: uuid(true), tubePressurePa: double(true), sealType: textOr(''),
       ambientTemperatureK: double(true), ambientPressurePa: double(true), notes: textOr(''), status: textOr('draft'),
-      currentAnalysisId: uuid(true), reviewAnalysisId: uuid(true), approvedAnalysisId: uuid(true), createdBy: uuid(true), ...stamps,
+      currentAnalysisId: uuid(true), reviewAnalysisId: uuid(true), approvedAnalysisId: uuid(true),
+      deletedAt: date(), deletedBy: uuid(true), createdBy: uuid(true), ...stamps,
     },
     opts('shots'),
   );
@@ -318,7 +326,7 @@ export function initModels(sequelize: Sequelize): void {
       ingestAttempt: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
       progress: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
       warnings: { type: DataTypes.JSONB, allowNull: false, defaultValue: [] },
-      uploadedBy: uuid(true),
+      uploadedBy: uuid(true), removedAt: date(), removedBy: uuid(true),
       uploadedAt: DataTypes.DATE, updatedAt: DataTypes.DATE,
     },
     opts('captures', { createdAt: 'uploadedAt' }),

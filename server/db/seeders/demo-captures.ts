@@ -7,6 +7,7 @@ import type { JobQueues } from '../../lib/job-queues.ts';
 import type { Logger } from '../../lib/logger.ts';
 import type { BlobStore } from '../../storage/blob-store.ts';
 import { Campaign, Capture, GateRig, Lab, Shot, User } from '../models/index.ts';
+import { settleShot } from '../../modules/shots/settle-shot.ts';
 
 /** The demo lab's sweep, as seeded in demo.ts. */
 const DEMO = { lab: 'hollowmere', campaign: 'Vacuum sweep, autumn 2026', uploader: 'tomas.reyl@hollowmere.example' };
@@ -67,7 +68,7 @@ export async function attachDemoCaptures(deps: { blobStore: BlobStore; queues: J
       labId: lab.id, shotId: shot.id, fileName: `sweep-shot-${String(shot.number).padStart(2, '0')}.csv`, sizeBytes: bytes.length,
       sha256, storageKey, uploadedBy: uploader.id,
     });
-    await shot.update({ status: 'processing' });
+    await settleShot(shot.id);
     // Redis away: the worker's sweep queues it once it runs.
     await deps.queues.addIngestOrDefer({ captureId: capture.id, attempt: capture.ingestAttempt }, deps.logger);
     queued++;

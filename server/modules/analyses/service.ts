@@ -4,12 +4,13 @@ import { ENGINE_VERSION } from '../../../shared/analysis/engine-version.ts';
 import { applySettings, analysisSettingsSchema } from '../../../shared/contracts/analysis-settings.ts';
 import { Analysis, Campaign, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
 import { badRequest, conflict } from '../../lib/errors.ts';
+import { settleShot } from '../shots/settle-shot.ts';
 
 export interface StoredChannel { name: string }
 
 /** Ready captures of a shot in the order the analysis combines them (upload order). */
 export async function readyCaptures(shotId: string, transaction?: Transaction) {
-  return Capture.findAll({ where: { shotId, state: 'ready' }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']], transaction });
+  return Capture.findAll({ where: { shotId, state: 'ready', removedAt: null }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']], transaction });
 }
 
 /**
@@ -101,9 +102,7 @@ export async function createAnalysisVersion(
       },
       { transaction },
     );
-    if (shot.status === 'draft' || shot.status === 'failed' || shot.status === 'analysed') {
-      await shot.update({ status: 'processing' }, { transaction });
-    }
+    await settleShot(shot.id, transaction);
     return { analysis, created: true };
   };
   return outer ? work(outer) : sequelize.transaction(work);
@@ -117,7 +116,7 @@ export function parameterProblems(error: { issues: { path: PropertyKey[]; messag
 /** Captures still being read, or analyses not yet finished: the shot is busy. */
 export async function shotIsBusy(shotId: string): Promise<boolean> {
   const [captures, analyses] = await Promise.all([
-    Capture.count({ where: { shotId, state: { [Op.in]: ['queued', 'reading'] } } }),
+    Capture.count({ where: { shotId, removedAt: null, state: { [Op.in]: ['queued', 'reading'] } } }),
     Analysis.count({ where: { shotId, state: { [Op.in]: ['queued', 'running'] } } }),
   ]);
   return captures + analyses > 0;

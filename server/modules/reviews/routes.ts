@@ -12,6 +12,7 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { TIME_BASE_ATTRIBUTES, timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
 import { notifyQueueOn, notifySafely, reviewersOf } from '../notifications/notify-people.ts';
 import { labOfShot, shotInLab } from '../shots/routes.ts';
+import { settleShot } from '../shots/settle-shot.ts';
 import { shotSummary } from '../shots/view.ts';
 import { namesOf, person } from './people.ts';
 
@@ -48,7 +49,9 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
           if (!analysis || analysis.state !== 'done') throw conflict('This shot has no finished analysis to review yet; wait for the analysis to finish (or upload a capture first).');
           if (shot.status === 'processing') throw conflict('A recomputation of this shot is still running; send it for review when it has finished.');
           const request = await ReviewRequest.create({ labId: shot.labId, shotId: shot.id, analysisId: analysis.id, requestedBy: userId, message: message ?? '' }, { transaction });
-          await shot.update({ status: 'in_review', reviewAnalysisId: analysis.id }, { transaction });
+          await shot.update({ reviewAnalysisId: analysis.id }, { transaction });
+          await settleShot(shot.id, transaction);
+          await shot.reload({ transaction });
           return { shot, request, analysis };
         });
         await recordAudit({ labId: shot.labId, actorId: userId, action: 'review.requested', targetType: 'shot', targetId: shot.id, details: { requestId: request.id, version: analysis.version, message: request.message }, ip: clientIp(req) });
@@ -125,12 +128,9 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
           }
           const request = await ReviewRequest.findOne({ where: { shotId: shot.id, analysisId }, order: [['createdAt', 'DESC'], ['id', 'DESC']], transaction });
           const review = await Review.create({ labId: shot.labId, shotId: shot.id, analysisId, reviewerId: userId, decision, comment: comment ?? '', requestId: request?.id ?? null }, { transaction });
-          await shot.update(
-            decision === 'approved'
-              ? { status: 'approved', approvedAnalysisId: analysisId, reviewAnalysisId: null }
-              : { status: 'returned', reviewAnalysisId: null },
-            { transaction },
-          );
+          await shot.update(decision === 'approved' ? { approvedAnalysisId: analysisId, reviewAnalysisId: null } : { reviewAnalysisId: null }, { transaction });
+          await settleShot(shot.id, transaction);
+          await shot.reload({ transaction });
           const version = (await Analysis.findByPk(analysisId, { attributes: ['version'], transaction }))?.version ?? null;
           return { shot, review, version, request };
         });

@@ -11,6 +11,7 @@ import { AppError, badRequest } from '../../lib/errors.ts';
 import { captureFilesPrefix, placeChannelFiles, putChannelBlobs } from '../../traces/write-channel-files.ts';
 import { captureIntake, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
+import { settleShot } from './settle-shot.ts';
 
 export const MAX_FILES_PER_UPLOAD = 32;
 
@@ -88,7 +89,7 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
       views.push({ id: capture.id, fileName: capture.fileName, sizeBytes: Number(capture.sizeBytes), sha256, state: capture.state, duplicate });
     }
     if (fresh.length > 0) {
-      if (shot.status !== 'in_review' && shot.status !== 'approved') await shot.update({ status: 'processing' });
+      await settleShot(shot.id);
       for (const entry of fresh) {
         const { capture, reader } = entry;
         await recordAudit({

@@ -9,16 +9,21 @@ export const shotKeys = {
   samples: (captureId: string, channel: string) => ['captures', captureId, 'samples', channel] as const,
 };
 
-/** True while a capture is being read or an analysis computed: the page then polls. */
+/**
+ * True while anything of the shot is pending: the page then polls. The shot's own status counts, since the server
+ * derives it from every capture and version (shared/contracts/shot-status.ts): between "file read" and "analysis
+ * created" no row is queued, yet the shot is still processing.
+ */
 export function isBusy(d: ShotDetail | undefined): boolean {
   if (!d) return false;
-  return d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
+  return d.shot.status === 'processing' || d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
 }
 
 /**
- * The shot with its captures, versions and current analysis. Progress reaches the page by polling this one
- * request every second while work is under way: states change a handful of times per shot, so polling costs
- * little, survives proxies and reconnects without extra code, and stops by itself when nothing is running.
+ * The shot with its captures, versions and current analysis. Changes reach the page two ways: the lab's event
+ * stream (src/app/use-lab-events.ts) makes it read the shot again whenever the server changed its state, and
+ * while work is under way this request is also polled every second (progress bars, and the fallback when the
+ * stream is cut by a proxy). Polling stops by itself once nothing is pending.
  */
 export const shotQueryOptions = (shotId: string) =>
   queryOptions({
