@@ -7,6 +7,7 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
+import { settleShot } from '../shots/settle-shot.ts';
 import {
   requestAnalysisBody, reingestBody, timeBaseConfirmationBody, type ImportOverrides, type TimeBaseConfirmationBody,
 } from '../../../shared/contracts/shots.ts';
@@ -155,11 +156,12 @@ export function analysisRoutes(deps: Deps): RouteDef[] {
       body: reingestBody,
       async handler(req, res) {
         const shot = await shotInLab(req);
-        const capture = await Capture.findOne({ where: { id: req.params.captureId as string, shotId: shot.id } });
+        const capture = await Capture.findOne({ where: { id: req.params.captureId as string, shotId: shot.id, removedAt: null } });
         if (!capture) throw notFound('No such capture on this shot.');
         if (capture.state === 'queued' || capture.state === 'reading') throw conflict('This capture is being read right now; wait for it to finish.');
         const { importOptions } = req.body as { importOptions: ImportOverrides };
         await capture.update({ importOptions, ingestAttempt: capture.ingestAttempt + 1, state: 'queued', progress: 0, error: null });
+        await settleShot(shot.id);
         await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'capture.reingest', targetType: 'shot', targetId: shot.id, details: { captureId: capture.id, importOptions }, ip: clientIp(req) });
         await deps.queues.addIngestOrDefer({ captureId: capture.id, attempt: capture.ingestAttempt }, deps.logger);
         res.status(202).json({ capture: captureView(capture) });

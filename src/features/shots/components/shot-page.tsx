@@ -63,7 +63,7 @@ export function ShotPage(props: ShotPageProps) {
             <Link to={props.campaignPath} className="hover:underline">{props.campaignName ?? 'Campaign'}</Link>
           </p>
           <h1 className="mt-0.5 flex items-center gap-3 text-2xl font-semibold tracking-tight">
-            Shot #{shot.number} <Badge tone={status.tone}>{status.label}</Badge>
+            Shot #{shot.number} <span data-testid="shot-status"><Badge tone={status.tone}>{status.label}</Badge></span>
             {isBusy(q.data) && <span className="text-sm font-normal text-harbour-500" role="status">working…</span>}
           </h1>
           <p className="mt-1 text-sm text-harbour-600">
