@@ -47,7 +47,9 @@ export function buildOpenApi(routes: RouteDef[], info: { version: string; server
       description: `Who may call it: ${who}`,
       parameters: [...params, ...(route.query ? queryParameters(route.query) : [])],
       responses: {
-        [ok.status]: { description: ok.description },
+        [ok.status]: 'content' in ok && ok.content
+          ? { description: ok.description, content: { [ok.content.type]: { schema: { type: 'string' }, example: ok.content.example } } }
+          : { description: ok.description },
         default: { description: 'An error, with a message meant for people', content: { 'application/json': { schema: errorSchema } } },
       },
       ...(access.kind === 'public' ? { security: [] } : {}),

@@ -32,7 +32,12 @@ export interface RouteDef {
   /** Body is multipart/form-data with files in this field (documentation; the handler receives them). */
   multipartFiles?: string;
   /** Success status and what the response holds, for the OpenAPI document. @default 200, "JSON" */
-  response?: { status: number; description: string };
+  response?: {
+    status: number;
+    description: string;
+    /** A body that is not JSON (e.g. `text/event-stream`), with an example of it for the document. */
+    content?: { type: string; example: string };
+  };
   handler: (req: Request, res: Response) => unknown;
 }
 

@@ -31,8 +31,9 @@ export function shotHasPendingWork(inputs: Pick<ShotStatusInputs, 'captures' | '
 }
 
 /**
- * - A pending review or a sign-off of the current version stays shown while more work runs: the numbers under
- *   review are still the ones on screen, and a newer version, once finished, withdraws the request itself.
+ * - A review state of the current version (waiting, signed off, returned) stays shown while more work runs: the
+ *   numbers reviewed are still the ones on screen, and a newer version, once finished, replaces the current one
+ *   (withdrawing a pending request), which then has no review yet.
  * - Otherwise any pending work makes the shot `processing`, and only pending work does: a failed file or a failed
  *   recomputation beside a finished version is a warning on that file or version, not a stuck shot.
  * - With nothing pending: a finished current version gives `analysed` (or its review state); files but no finished
@@ -40,9 +41,9 @@ export function shotHasPendingWork(inputs: Pick<ShotStatusInputs, 'captures' | '
  */
 export function deriveShotStatus(inputs: ShotStatusInputs): ShotStatus {
   const { captures, hasCurrentVersion, review } = inputs;
-  if (hasCurrentVersion && (review === 'in_review' || review === 'approved')) return review;
+  if (hasCurrentVersion && review) return review;
   if (shotHasPendingWork(inputs)) return 'processing';
-  if (hasCurrentVersion) return review ?? 'analysed';
+  if (hasCurrentVersion) return 'analysed';
   if (captures.length === 0) return 'draft';
   return 'failed';
 }

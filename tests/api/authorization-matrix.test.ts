@@ -48,6 +48,8 @@ interface Row {
   prepare?: (ctx: CaseContext) => Promise<Prepared> | Prepared;
   /** Checks the JSON of a successful answer. */
   shape?: (body: Record<string, unknown>, ctx: CaseContext) => void;
+  /** The answer is a stream that stays open: read its first frame, check it with `shape` ({ text }), hang up. */
+  stream?: true;
 }
 
 let serial = 0;
@@ -361,6 +363,11 @@ const MATRIX: Record<string, Row> = {
     prepare: async ({ h }) => ({ params: await freshAnalysedShot(h), body: { message: 'matrix' } }),
     shape: (b) => expect(b).toMatchObject({ request: { analysisVersion: 1, message: 'matrix' }, shot: { status: 'in_review' } }),
   },
+  'GET /api/labs/:labId/events': {
+    expect: [200, 200, 200, 200, 404, 401],
+    stream: true,
+    shape: (b) => expect(b.text).toContain('event: ready'),
+  },
   'GET /api/labs/:labId/review-queue': {
     expect: [200, 403, 403, 200, 404, 401],
     shape: (b) => expect(b).toEqual({ shots: expect.any(Array) }),
@@ -488,6 +495,20 @@ async function runRow(h: ApiHarness, key: string, row: Row, credential: Credenti
     for (const [name, value] of Object.entries(prepared.headers ?? (await freshAuth()))) req = req.set(name, value);
     if (prepared.attach) req = req.attach(prepared.attach.field, Buffer.from(prepared.attach.content), prepared.attach.name);
     else if (prepared.body !== undefined) req = req.send(prepared.body as object);
+    if (row.stream) {
+      // Resolve on the first chunk of an open stream and hang up (errors still arrive whole, as JSON).
+      req = req.buffer(true).parse((res, done) => {
+        let text = '';
+        res.on('data', (chunk: Buffer) => {
+          text += chunk.toString('utf8');
+          if ((res as unknown as { statusCode: number }).statusCode === 200) {
+            done(null, { text });
+            (res as unknown as { destroy(): void }).destroy();
+          }
+        });
+        res.on('end', () => done(null, (() => { try { return JSON.parse(text) as unknown; } catch { return { text }; } })()));
+      });
+    }
     const res = await req;
     actual.push(res.status);
     if (res.status !== row.expect[actual.length - 1]) {

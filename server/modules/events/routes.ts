@@ -20,7 +20,14 @@ export function eventRoutes(deps: Deps): RouteDef[] {
         "Server-sent events (text/event-stream) of the lab: `event: shot` with data {type, shotId, campaignId, state, currentVersionId} " +
         "whenever a shot's files, versions or review change its state. Starts with `event: ready`. Notices carry ids, not results: " +
         'read the shot (GET /api/shots/:shotId) for the rest. Best effort: after a reconnect, re-read what you show',
-      response: { status: 200, description: 'text/event-stream, open until the client closes it' },
+      response: {
+        status: 200,
+        description: 'text/event-stream, open until the client closes it; a `: beat` comment every 20 s',
+        content: {
+          type: 'text/event-stream',
+          example: 'retry: 3000\n\nevent: ready\ndata: {"type":"ready"}\n\nevent: shot\ndata: {"type":"shot","shotId":"…","campaignId":"…","state":"analysed","currentVersionId":"…"}\n\n',
+        },
+      },
       handler(req, res) {
         const labId = req.lab!.id;
         const userId = req.auth!.userId;

@@ -56,18 +56,12 @@ describe('deriveShotStatus', () => {
     expect(deriveShotStatus(shot({ captures: ['failed', 'failed'] }))).toBe('failed');
   });
 
-  it('When the current version is in review or signed off, then that stays shown while more work runs', () => {
-    for (const review of ['in_review', 'approved'] as const) {
+  it('When the current version is in review, signed off or returned, then that stays shown while more work runs or after it failed', () => {
+    for (const review of ['in_review', 'approved', 'returned'] as const) {
       expect(deriveShotStatus(shot({ captures: ['ready', 'queued'], analyses: ['done'], hasCurrentVersion: true, review }))).toBe(review);
       expect(deriveShotStatus(shot({ captures: ['ready'], analyses: ['done', 'running'], hasCurrentVersion: true, review }))).toBe(review);
       expect(deriveShotStatus(shot({ captures: ['ready'], analyses: ['done', 'failed'], hasCurrentVersion: true, review }))).toBe(review);
     }
-  });
-
-  it('When a returned shot is recomputed, then processing, and returned again if the recompute failed', () => {
-    expect(deriveShotStatus(shot({ captures: ['ready'], analyses: ['done'], hasCurrentVersion: true, review: 'returned' }))).toBe('returned');
-    expect(deriveShotStatus(shot({ captures: ['ready'], analyses: ['done', 'running'], hasCurrentVersion: true, review: 'returned' }))).toBe('processing');
-    expect(deriveShotStatus(shot({ captures: ['ready'], analyses: ['done', 'failed'], hasCurrentVersion: true, review: 'returned' }))).toBe('returned');
   });
 
   it('When a file was removed and none is left, then awaiting files again', () => {
