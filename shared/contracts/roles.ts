@@ -23,6 +23,8 @@ export const PERMISSIONS = {
   'outbox:read': ['admin'],
   'campaigns:write': ['admin', 'experimenter'],
   'shots:write': ['admin', 'experimenter'],
+  /** Bring back a shot deleted by mistake. */
+  'shots:restore': ['admin'],
   'analyses:write': ['admin', 'analyst'],
   'library:write': ['admin', 'analyst'],
   /** Send a shot with a finished analysis for review. */

@@ -340,6 +340,25 @@ const MATRIX: Record<string, Row> = {
     },
     shape: (b) => expect(b).toMatchObject({ version: 1, timeBaseCheck: { flagged: true, blocksApproval: false, confirmation: { note: 'matrix check' } } }),
   },
+  'DELETE /api/shots/:shotId': {
+    expect: [200, 200, 403, 403, 404, 401],
+    prepare: async ({ h }) => ({ params: { shotId: (await freshShotWithCapture(h, 'ready')).shotId } }),
+    shape: (b) => expect(b).toMatchObject({ shot: { deletedAt: expect.any(String) } }),
+  },
+  'POST /api/shots/:shotId/restore': {
+    expect: [200, 403, 403, 403, 404, 401],
+    prepare: async ({ h }) => {
+      const { shotId } = await freshShotWithCapture(h, 'ready');
+      await Shot.update({ deletedAt: new Date() }, { where: { id: shotId } });
+      return { params: { shotId } };
+    },
+    shape: (b) => expect(b).toMatchObject({ shot: { deletedAt: null } }),
+  },
+  'DELETE /api/shots/:shotId/captures/:captureId': {
+    expect: [200, 200, 403, 403, 404, 401],
+    prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'ready') }),
+    shape: (b) => expect(b).toMatchObject({ capture: { removedAt: expect.any(String) } }),
+  },
   'POST /api/shots/:shotId/captures/:captureId/reingest': {
     expect: [202, 202, 403, 403, 404, 401],
     prepare: async ({ h }) => ({ params: await freshShotWithCapture(h, 'failed'), body: { importOptions: { timeColumn: 0 } } }),

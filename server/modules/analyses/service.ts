@@ -1,9 +1,12 @@
+import { createHash } from 'node:crypto';
 import { Op, type Sequelize, type Transaction } from 'sequelize';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import { ENGINE_VERSION } from '../../../shared/analysis/engine-version.ts';
 import { applySettings, analysisSettingsSchema } from '../../../shared/contracts/analysis-settings.ts';
 import { Analysis, Campaign, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
 import { badRequest, conflict } from '../../lib/errors.ts';
+import type { JobQueues } from '../../lib/job-queues.ts';
+import type { Logger } from '../../lib/logger.ts';
 import { settleShot } from '../shots/settle-shot.ts';
 
 export interface StoredChannel { name: string }
@@ -120,4 +123,26 @@ export async function shotIsBusy(shotId: string): Promise<boolean> {
     Analysis.count({ where: { shotId, state: { [Op.in]: ['queued', 'running'] } } }),
   ]);
   return captures + analyses > 0;
+}
+
+/**
+ * Once no file of the shot is still being read, the files that were read get their automatic analysis, keyed by
+ * exactly which capture attempts it reads (so two callers finishing together make one version, and a set that
+ * already has one gets no other). Called when a file finished reading, well or badly, and when one was removed.
+ * Returns true when a version was made.
+ */
+export async function analyseReadFiles(ctx: { sequelize: Sequelize; queues: JobQueues; logger: Logger }, shotId: string): Promise<boolean> {
+  // Pending first, then ready: once nothing is pending, the ready set read afterwards is final, so two ingests
+  // finishing together compute the same key. Read the other way round, one could key a stale ready set (itself
+  // only) while the other capture turned ready in between, and the shot got two automatic analyses.
+  const pending = await Capture.count({ where: { shotId, removedAt: null, state: { [Op.in]: ['queued', 'reading'] } } });
+  if (pending > 0) return false;
+  const ready = await readyCaptures(shotId);
+  const shot = await Shot.findByPk(shotId);
+  if (!shot || shot.deletedAt || ready.length === 0) return false;
+  const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
+  const parameters = await defaultParameters(shot, combinedChannelNames(ready));
+  const { analysis, created } = await createAnalysisVersion(ctx.sequelize, { shotId, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shotId}-${key}` });
+  if (created || analysis.state === 'queued') await ctx.queues.addAnalysisOrDefer({ analysisId: analysis.id }, ctx.logger);
+  return created;
 }

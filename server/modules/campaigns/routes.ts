@@ -30,7 +30,7 @@ export function campaignRoutes(): RouteDef[] {
       async handler(req, res) {
         const campaigns = await Campaign.findAll({ where: { labId: req.lab!.id }, order: [['startedOn', 'DESC NULLS LAST'], ['name', 'ASC']] });
         const counts = (await Shot.findAll({
-          where: { labId: req.lab!.id },
+          where: { labId: req.lab!.id, deletedAt: null },
           attributes: ['campaignId', [fn('count', col('id')), 'n']],
           group: ['campaignId'],
           raw: true,
@@ -69,7 +69,7 @@ export function campaignRoutes(): RouteDef[] {
       summary: 'One campaign and its shots',
       async handler(req, res) {
         const c = await campaignInLab(req);
-        const shots = await Shot.findAll({ where: { campaignId: c.id, labId: req.lab!.id }, order: [['number', 'ASC']] });
+        const shots = await Shot.findAll({ where: { campaignId: c.id, labId: req.lab!.id, deletedAt: null }, order: [['number', 'ASC']] });
         res.json({
           campaign: campaignView(c, shots.length),
           shots: shots.map(shotSummary),
@@ -93,7 +93,7 @@ export function campaignRoutes(): RouteDef[] {
           throw err;
         }
         await recordAudit({ labId: c.labId, actorId: req.auth!.userId, action: 'campaign.updated', targetType: 'campaign', targetId: c.id, details: { before, after: changes }, ip: clientIp(req) });
-        res.json({ campaign: campaignView(c, await Shot.count({ where: { campaignId: c.id, labId: c.labId } })) });
+        res.json({ campaign: campaignView(c, await Shot.count({ where: { campaignId: c.id, labId: c.labId, deletedAt: null } })) });
       },
     },
   ];

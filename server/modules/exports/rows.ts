@@ -18,7 +18,7 @@ export type CampaignRow = Record<(typeof CAMPAIGN_COLUMNS)[number][0], CsvValue>
 
 /** One row per shot of the campaign, in shot-number order, with its current analysis's result. */
 export async function campaignRows(campaign: Campaign): Promise<CampaignRow[]> {
-  const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId: campaign.labId }, order: [['number', 'ASC']] });
+  const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId: campaign.labId, deletedAt: null }, order: [['number', 'ASC']] });
   const ids = shots.map((s) => s.currentAnalysisId).filter((x): x is string => !!x);
   const [analyses, projectiles, reviews] = await Promise.all([
     Analysis.findAll({ where: { id: ids, labId: campaign.labId }, attributes: ['id', 'version', 'results', ...TIME_BASE_ATTRIBUTES] }),

@@ -73,7 +73,7 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
       summary: 'Shots waiting for review, oldest request first, with speed ± U, who asked, the version under review and whether it is marked "check the time base"',
       async handler(req, res) {
         const labId = req.lab!.id;
-        const shots = await Shot.findAll({ where: { labId, status: 'in_review' } });
+        const shots = await Shot.findAll({ where: { labId, status: 'in_review', deletedAt: null } });
         const analysisIds = shots.map((s) => s.reviewAnalysisId ?? s.currentAnalysisId).filter((x): x is string => !!x);
         const [campaigns, analyses, requests] = await Promise.all([
           Campaign.findAll({ where: { labId, id: [...new Set(shots.map((s) => s.campaignId))] }, attributes: ['id', 'name'] }),

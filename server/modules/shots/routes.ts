@@ -9,6 +9,9 @@ import type { Deps } from '../../lib/deps.ts';
 import { badRequest, conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { namesOf } from '../reviews/people.ts';
+import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
+import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../analyses/service.ts';
+import { settleShot } from './settle-shot.ts';
 import { acceptUpload } from './uploads.ts';
 import { analysisSummary, analysisView, captureView, shotSummary } from './view.ts';
 
@@ -21,6 +24,8 @@ const shotListQuery = z.object({
   sort: z.string().regex(/^(number|firedAt|tubePressure|speed|status)(:(asc|desc))?$/, 'sort must be one of number, firedAt, tubePressure, speed, status, optionally followed by :asc or :desc (e.g. speed:desc)').optional(),
   /** Words to find in the notes or the seal type (case-insensitive). */
   q: z.string().trim().max(200).optional(),
+  /** `only`: the deleted shots (to restore one); by default deleted shots are left out. */
+  deleted: z.enum(['only']).optional(),
 });
 
 /** The current analysis's speed as a number, or NULL when there is none (a missed speed, a failed or queued analysis). */
@@ -44,6 +49,23 @@ export async function shotInLab(req: Request): Promise<Shot> {
   const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
   if (!shot) throw notFound('No such shot.');
   return shot;
+}
+
+function refuseDeleted(shot: Shot) {
+  if (shot.deletedAt) throw conflict('This shot is deleted; a lab admin can restore it first.');
+}
+
+/**
+ * The parameters of the version made after a file was removed: the current version's settings when every gate it
+ * names is still in the remaining files (the analyst's choices carry over), else the defaults for what is left.
+ */
+async function parametersAfterRemoval(shot: Shot): Promise<AnalysisOptionsInput> {
+  const remaining = await readyCaptures(shot.id);
+  const names = combinedChannelNames(remaining);
+  const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { attributes: ['parameters'] }) : null;
+  const params = current?.parameters as AnalysisOptionsInput | undefined;
+  if (params && (params.gates ?? []).every((g) => names.includes(g.channel))) return params;
+  return defaultParameters(shot, names);
 }
 
 /** Projectile and rig must belong to the shot's lab (the database enforces it too; this gives the clear message). */
@@ -139,6 +161,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
         // recompute an approved shot; the new version becomes current, the shot goes back to `analysed` (editable
         // again) and needs a new review, while the approval of the old version stays on record.
         if (shot.status === 'approved') throw conflict('This shot is signed off; its conditions can no longer change.');
+        refuseDeleted(shot);
         const body = req.body as UpdateShotBody;
         await checkLibraryRefs(shot.labId, body);
         const changes = conditionsOf(body);
@@ -158,7 +181,78 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const shot = await shotInLab(req);
         if (shot.status === 'approved') throw conflict('This shot is signed off; files can no longer be added.');
+        refuseDeleted(shot);
         res.status(202).json({ captures: await acceptUpload(deps, req, res, shot) });
+      },
+    },
+    {
+      method: 'delete',
+      path: '/api/shots/:shotId',
+      access: { kind: 'lab', permission: 'shots:write', labOf: labOfShot },
+      summary: 'Delete a shot logged by mistake: it is marked deleted (audited) and left out of lists, trends and exports; a lab admin can restore it',
+      response: { status: 200, description: 'The shot, marked deleted' },
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        if (shot.status === 'approved') throw conflict('This shot is signed off; it stays on record and cannot be deleted.');
+        if (!shot.deletedAt) {
+          await shot.update({ deletedAt: new Date(), deletedBy: req.auth!.userId });
+          await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.deleted', targetType: 'shot', targetId: shot.id, details: { number: shot.number, status: shot.status }, ip: clientIp(req) });
+          await settleShot(shot.id);
+        }
+        res.json({ shot: shotSummary(shot) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/shots/:shotId/restore',
+      access: { kind: 'lab', permission: 'shots:restore', labOf: labOfShot },
+      summary: 'Restore a deleted shot (lab admins): it is back in lists, trends and exports; audited',
+      response: { status: 200, description: 'The shot, restored' },
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        if (shot.deletedAt) {
+          const deletedAt = shot.deletedAt;
+          await shot.update({ deletedAt: null, deletedBy: null });
+          await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.restored', targetType: 'shot', targetId: shot.id, details: { number: shot.number, deletedAt }, ip: clientIp(req) });
+          await settleShot(shot.id);
+        }
+        res.json({ shot: shotSummary(shot) });
+      },
+    },
+    {
+      method: 'delete',
+      path: '/api/shots/:shotId/captures/:captureId',
+      access: { kind: 'lab', permission: 'shots:write', labOf: labOfShot },
+      summary: 'Remove a file dropped on the wrong shot: its bytes stay stored, the removal is audited, and the shot is analysed again without it',
+      response: { status: 200, description: 'The removed capture, and the new analysis version when one was made' },
+      async handler(req, res) {
+        const shot = await shotInLab(req);
+        if (shot.status === 'approved') throw conflict('This shot is signed off; its files can no longer change.');
+        refuseDeleted(shot);
+        const capture = await Capture.findOne({ where: { id: req.params.captureId as string, shotId: shot.id } });
+        if (!capture) throw notFound('No such file on this shot.');
+        if (capture.removedAt) return res.json({ capture: captureView(capture), analysis: null });
+        await capture.update({ removedAt: new Date(), removedBy: req.auth!.userId });
+        await recordAudit({
+          labId: shot.labId, actorId: req.auth!.userId, action: 'capture.removed', targetType: 'shot', targetId: shot.id,
+          details: { captureId: capture.id, file: capture.fileName, sha256: capture.sha256 }, ip: clientIp(req),
+        });
+        // The current version read this file: the shot is analysed again from what is left (or has no version).
+        const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { attributes: ['id', 'captureIds'] }) : null;
+        let made: Analysis | null = null;
+        if (current && current.captureIds.includes(capture.id)) {
+          if ((await readyCaptures(shot.id)).length > 0) {
+            const { analysis } = await createAnalysisVersion(deps.sequelize, {
+              shotId: shot.id, parametersInput: await parametersAfterRemoval(shot), requestedBy: req.auth!.userId, jobKey: `removed-${capture.id}`,
+            });
+            await deps.queues.addAnalysisOrDefer({ analysisId: analysis.id }, deps.logger);
+            made = analysis;
+          } else {
+            await shot.update({ currentAnalysisId: null, reviewAnalysisId: null });
+          }
+        }
+        await settleShot(shot.id);
+        res.json({ capture: captureView(capture), analysis: made ? analysisSummary(made) : null });
       },
     },
     {
@@ -170,7 +264,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const q = res.locals.query as z.infer<typeof shotListQuery>;
         const { limit, offset } = q;
-        const where: Record<string | symbol, unknown> = { labId: req.lab!.id };
+        const where: Record<string | symbol, unknown> = { labId: req.lab!.id, deletedAt: q.deleted === 'only' ? { [Op.ne]: null } : null };
         if (q.campaignId) where.campaignId = q.campaignId;
         if (q.status) where.status = { [Op.in]: q.status };
         if (q.q) {

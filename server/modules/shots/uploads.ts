@@ -72,7 +72,12 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
       const fileName = Buffer.from(file.originalname, 'latin1').toString('utf8').slice(0, 255) || 'capture.csv';
       let capture = await Capture.findOne({ where: { shotId: shot.id, sha256 } });
       let duplicate = true;
-      if (!capture) {
+      if (capture?.removedAt) {
+        // The same bytes as a file removed earlier: it comes back, and is read again like a new one.
+        await capture.update({ removedAt: null, removedBy: null, ingestAttempt: capture.ingestAttempt + 1, state: 'queued', progress: 0, error: null });
+        duplicate = false;
+        fresh.push({ capture, reader: null });
+      } else if (!capture) {
         try {
           capture = await Capture.create({
             labId: shot.labId, shotId: shot.id, fileName, sizeBytes: file.size, sha256, storageKey, uploadedBy: req.auth!.userId,

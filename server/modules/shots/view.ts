@@ -22,6 +22,8 @@ export function shotSummary(s: Shot) {
     /** The version waiting for review, and the version signed off last (it stays on record after a recomputation). */
     reviewAnalysisId: s.reviewAnalysisId ?? null,
     approvedAnalysisId: s.approvedAnalysisId ?? null,
+    /** Set when the shot was deleted (kept for the record; an admin can restore it). */
+    deletedAt: s.deletedAt ?? null,
   };
 }
 
@@ -42,6 +44,8 @@ export function captureView(c: Capture) {
     importOptions: c.importOptions,
     ingestAttempt: c.ingestAttempt,
     uploadedAt: c.uploadedAt,
+    /** Set when the file was removed from the shot (its bytes stay stored; versions that read it still name it). */
+    removedAt: c.removedAt ?? null,
   };
 }
 

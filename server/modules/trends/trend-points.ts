@@ -9,7 +9,7 @@ export type TrendPoint = SharedTrendPoint<Date>;
 /** Every shot of the campaign whose current analysis finished, in shot-number order. */
 export async function campaignTrendPoints(campaign: Campaign): Promise<TrendPoint[]> {
   const labId = campaign.labId;
-  const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId }, order: [['number', 'ASC']] });
+  const shots = await Shot.findAll({ where: { campaignId: campaign.id, labId, deletedAt: null }, order: [['number', 'ASC']] });
   const ids = shots.map((s) => s.currentAnalysisId).filter((x): x is string => !!x);
   const [analyses, projectiles] = await Promise.all([
     Analysis.findAll({ where: { id: ids, labId, state: 'done' }, attributes: ['id', 'version', 'results', ...TIME_BASE_ATTRIBUTES] }),
