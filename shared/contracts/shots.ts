@@ -87,3 +87,24 @@ export const importOverridesSchema = z
 export type ImportOverrides = z.infer<typeof importOverridesSchema>;
 
 export const reingestBody = z.object({ importOptions: importOverridesSchema.default({}) });
+
+/**
+ * The conditions a shot needs for its campaign's analysis and trends, with the reason shown on the forms. A shot
+ * logged without one is marked "conditions missing" until it is filled in.
+ */
+export const NEEDED_CONDITIONS = [
+  { key: 'gateRigId', label: 'gate rig', why: 'gate positions for the speed' },
+  { key: 'projectileId', label: 'projectile', why: 'its length and mass (single-gate speed, energy)' },
+  { key: 'tubePressurePa', label: 'tube vacuum', why: 'speed against vacuum level in the trends' },
+  { key: 'ambientTemperatureK', label: 'ambient temperature', why: 'the speed of sound, for the Mach number' },
+] as const;
+
+/** Labels of the needed conditions a shot lacks, in NEEDED_CONDITIONS order. */
+export function missingConditions(shot: {
+  projectileId: string | null;
+  gateRigId: string | null;
+  conditions: { tubePressurePa: number | null; ambientTemperatureK: number | null };
+}): string[] {
+  const value = { gateRigId: shot.gateRigId, projectileId: shot.projectileId, ...shot.conditions };
+  return NEEDED_CONDITIONS.filter((c) => value[c.key] == null).map((c) => c.label);
+}

@@ -3,9 +3,11 @@ import { useParams } from 'react-router-dom';
 import { can } from '../../../shared/contracts/roles.ts';
 import { campaignQueryOptions } from '../../features/campaigns/api/campaigns.ts';
 import { gateRigsQueryOptions, projectilesQueryOptions } from '../../features/library/api/library.ts';
+import { NewShotForm } from '../../features/campaigns/components/new-shot-form.tsx';
 import { ReviewBar } from '../../features/reviews/components/review-bar.tsx';
 import { ShotPage } from '../../features/shots/components/shot-page.tsx';
 import { shotQueryOptions } from '../../features/shots/api/shot.ts';
+import { SafetyCaution } from '../../features/labs/components/safety-note.tsx';
 import { useLab } from '../lab-context.ts';
 
 /** The shot workspace; the route gathers the lab's names (campaign, projectile, rig) the page shows. */
@@ -28,8 +30,13 @@ export function Component() {
       projectileName={projectile?.name ?? null}
       rigName={rig?.name ?? null}
       rigLabels={(rig?.gates ?? []).map((g) => ({ position: g.position_m, label: g.label }))}
+      labId={labId}
       canUpload={can(membership.role, 'shots:write')}
       canRecompute={can(membership.role, 'analyses:write')}
+      canRestore={can(membership.role, 'shots:restore')}
+      conditionsEditor={(close) => shot.data && (
+        <NewShotForm labId={labId} campaignId={shot.data.shot.campaignId} previous={null} editing={shot.data.shot} onCancel={close} onSaved={close} />
+      )}
       aside={
         <ReviewBar
           shotId={shotId}
@@ -44,10 +51,7 @@ export function Component() {
           canReadAudit={can(membership.role, 'audit:read')}
           campaignShots={campaign.data?.shots.map((s) => ({ id: s.id, number: s.number })) ?? []}
         >
-          <details className="rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40">
-            <summary className="cursor-pointer font-medium">Launcher safety</summary>
-            <p className="mt-1">Rated backstop and a clear exclusion zone; never fire at people. Shield evacuated tubes and wear eye and hearing protection. Your lab’s rules and trained supervision govern.</p>
-          </details>
+          <SafetyCaution />
         </ReviewBar>
       }
     />

@@ -1,3 +1,4 @@
+import { SafetyCaution } from '../../labs/components/safety-note.tsx';
 import { useState, type FormEvent } from 'react';
 import { Link } from 'react-router-dom';
 import { campaignBody } from '../../../../shared/contracts/auth.ts';
@@ -30,6 +31,7 @@ function NewCampaignForm({ labId, onDone }: { labId: string; onDone: () => void 
   };
   return (
     <form onSubmit={submit} className="grid gap-4 sm:grid-cols-[2fr_1fr]" noValidate>
+      <SafetyCaution className="sm:col-span-2" />
       <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. Burst disc trial, December" />
       <TextField label="Started on" type="date" value={startedOn} onChange={(e) => setStartedOn(e.target.value)} />
       <div className="sm:col-span-2">

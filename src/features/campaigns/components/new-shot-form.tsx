@@ -1,12 +1,14 @@
 import { useForm } from 'react-hook-form';
 import { Link, useNavigate } from 'react-router-dom';
-import { createShotBody, type CreateShotBody } from '../../../../shared/contracts/shots.ts';
+import { createShotBody, NEEDED_CONDITIONS, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../../shared/contracts/shots.ts';
 import { Button, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
 import { useGateRigs, useProjectiles, type GateRigRow, type ProjectileRow } from '../../library/api/library.ts';
 import { siFormResolver } from '../../library/utils/si-form-resolver.ts';
 import { useCreateShot } from '../api/create-shot.ts';
+import { useUpdateShot } from '../api/update-shot.ts';
 import type { ShotListRow } from '../api/shot-list.ts';
-import { celsiusToKelvin, PRESSURE_UNITS, toPascal, type PressureUnit } from '../utils/lab-units.ts';
+import { celsiusToKelvin, fromPascal, kelvinToCelsius, PRESSURE_UNITS, toPascal, type PressureUnit } from '../utils/lab-units.ts';
+import { SafetyCaution } from '../../labs/components/safety-note.tsx';
 
 /** What the person types, in lab units; converted to SI (Pa, K) only when the body is built. */
 interface NewShotValues {
@@ -34,14 +36,41 @@ function localDateTime(d: Date): string {
   return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())}T${pad(d.getHours())}:${pad(d.getMinutes())}`;
 }
 
+/** A logged shot's conditions as the API gives them (SI), for the edit form. */
+export interface LoggedShot {
+  id: string;
+  firedAt: string | null;
+  projectileId: string | null;
+  gateRigId: string | null;
+  conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
+  notes: string;
+}
+
 interface NewShotFormProps {
   labId: string;
   campaignId: string;
   /** The campaign's latest shot: its seal, projectile and rig are usually the next shot's too. */
   previous: ShotListRow | null;
   onCancel: () => void;
+  /** Correct this logged shot instead of logging a new one. */
+  editing?: LoggedShot;
+  /** After a correction was saved. */
+  onSaved?: () => void;
 }
 
+/** Shown on both forms: which conditions the campaign's analysis and trends need, and what for. */
+function NeededConditions() {
+  return (
+    <p className="text-sm text-harbour-600" data-testid="needed-conditions">
+      Needed for the analysis and trends:{' '}
+      {NEEDED_CONDITIONS.map((c, i) => (
+        <span key={c.key}>{i > 0 && '; '}<span className="font-medium text-harbour-800">{c.label}</span> ({c.why})</span>
+      ))}. A shot logged without them is marked “conditions missing” until they are filled in.
+    </p>
+  );
+}
+
+/** The shot form: log a new shot (`editing` absent) or correct a logged one. */
 export function NewShotForm(props: NewShotFormProps) {
   const projectiles = useProjectiles(props.labId);
   const rigs = useGateRigs(props.labId);
@@ -52,23 +81,46 @@ export function NewShotForm(props: NewShotFormProps) {
   return <NewShotFields {...props} projectiles={projectiles.data.projectiles} rigs={rigs.data.gateRigs} />;
 }
 
-function NewShotFields({ labId, campaignId, previous, onCancel, projectiles, rigs }: NewShotFormProps & { projectiles: ProjectileRow[]; rigs: GateRigRow[] }) {
+/** A number for a form field without binary noise (1500 Pa → "1.5" kPa, not "1.5000000000000002"). */
+const fieldNumber = (x: number | null) => (x == null ? '' : String(Number(x.toPrecision(10))));
+
+function defaultsOf(previous: ShotListRow | null, editing: LoggedShot | undefined): NewShotValues {
+  if (editing) {
+    const c = editing.conditions;
+    return {
+      tubePressure: fieldNumber(c.tubePressurePa == null ? null : fromPascal(c.tubePressurePa, 'kPa')),
+      tubePressureUnit: 'kPa',
+      sealType: c.sealType,
+      projectileId: editing.projectileId ?? '',
+      gateRigId: editing.gateRigId ?? '',
+      ambientTemperatureC: fieldNumber(c.ambientTemperatureK == null ? null : kelvinToCelsius(c.ambientTemperatureK)),
+      ambientPressureKpa: fieldNumber(c.ambientPressurePa == null ? null : fromPascal(c.ambientPressurePa, 'kPa')),
+      firedAt: editing.firedAt ? localDateTime(new Date(editing.firedAt)) : '',
+      notes: editing.notes,
+    };
+  }
+  return {
+    tubePressure: '',
+    tubePressureUnit: 'kPa',
+    sealType: previous?.conditions.sealType ?? '',
+    projectileId: previous?.projectileId ?? '',
+    gateRigId: previous?.gateRigId ?? '',
+    ambientTemperatureC: '',
+    ambientPressureKpa: '',
+    firedAt: localDateTime(new Date()),
+    notes: '',
+  };
+}
+
+function NewShotFields({ labId, campaignId, previous, onCancel, editing, onSaved, projectiles, rigs }: NewShotFormProps & { projectiles: ProjectileRow[]; rigs: GateRigRow[] }) {
   const navigate = useNavigate();
   const create = useCreateShot(labId);
+  const update = useUpdateShot(labId, editing?.id ?? '');
+  const mutation = editing ? update : create;
   const { register, handleSubmit, formState: { errors, isSubmitting } } = useForm<NewShotValues, unknown, CreateShotBody>({
-    defaultValues: {
-      tubePressure: '',
-      tubePressureUnit: 'kPa',
-      sealType: previous?.conditions.sealType ?? '',
-      projectileId: previous?.projectileId ?? '',
-      gateRigId: previous?.gateRigId ?? '',
-      ambientTemperatureC: '',
-      ambientPressureKpa: '',
-      firedAt: localDateTime(new Date()),
-      notes: '',
-    },
+    defaultValues: defaultsOf(previous, editing),
     resolver: siFormResolver<NewShotValues, CreateShotBody>({
-      schema: createShotBody,
+      schema: editing ? updateShotBody.extend({ campaignId: createShotBody.shape.campaignId }) : createShotBody,
       fieldOf: (path) => FIELD_OF[String(path[0])] ?? String(path[0] ?? ''),
       toBody: (v, read) => ({
         campaignId,
@@ -87,6 +139,12 @@ function NewShotFields({ labId, campaignId, previous, onCancel, projectiles, rig
 
   const submit = handleSubmit(async (body) => {
     try {
+      if (editing) {
+        const { campaignId: _campaign, ...changes } = body;
+        await update.mutateAsync(changes satisfies UpdateShotBody);
+        onSaved?.();
+        return;
+      }
       const { shot } = await create.mutateAsync(body);
       navigate(`/labs/${labId}/shots/${shot.id}`);
     } catch {
@@ -98,8 +156,10 @@ function NewShotFields({ labId, campaignId, previous, onCancel, projectiles, rig
   const noRigs = rigs.length === 0;
 
   return (
-    <form onSubmit={submit} noValidate aria-label="New shot" className="space-y-5">
-      {previous && (
+    <form onSubmit={submit} noValidate aria-label={editing ? 'Shot conditions' : 'New shot'} className="space-y-5">
+      <NeededConditions />
+      {!editing && <SafetyCaution />}
+      {!editing && previous && (
         <p className="text-sm text-harbour-500">Seal, projectile and rig are taken from shot #{previous.number}; change them if this shot differs.</p>
       )}
       <fieldset className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
@@ -162,11 +222,15 @@ function NewShotFields({ labId, campaignId, previous, onCancel, projectiles, rig
       </div>
 
       {errors.root && <ErrorNote error={new Error(errors.root.message)} />}
-      {create.isError && <ErrorNote error={create.error} />}
+      {mutation.isError && <ErrorNote error={mutation.error} />}
       <div className="flex flex-wrap items-center gap-2">
-        <Button type="submit" disabled={isSubmitting || create.isPending}>{create.isPending ? 'Logging…' : 'Log shot and add files'}</Button>
+        {editing ? (
+          <Button type="submit" disabled={isSubmitting || update.isPending}>{update.isPending ? 'Saving…' : 'Save conditions'}</Button>
+        ) : (
+          <Button type="submit" disabled={isSubmitting || create.isPending}>{create.isPending ? 'Logging…' : 'Log shot and add files'}</Button>
+        )}
         <Button variant="ghost" onClick={onCancel}>Cancel</Button>
-        <span className="text-xs text-harbour-500">Next: drop the scope files on the shot's page.</span>
+        <span className="text-xs text-harbour-500">{editing ? 'The change is kept in the audit trail, with the values before and after.' : "Next: drop the scope files on the shot's page."}</span>
       </div>
     </form>
   );

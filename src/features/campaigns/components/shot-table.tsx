@@ -1,4 +1,5 @@
 import { useEffect, useState } from 'react';
+import { missingConditions } from '../../../../shared/contracts/shots.ts';
 import { SHOT_STATUS, shotStatus } from '../../../lib/shot-status.ts';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { Badge, Button, EmptyState, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
@@ -16,7 +17,11 @@ function methodLabel(speed: NonNullable<ShotListRow['speed']>): string {
   return speed.method === 'flight' ? 'time of flight' : (speed.method ?? '');
 }
 
-const reviewWords = (r: NonNullable<ShotListRow['review']>) => `${r.decision === 'approved' ? 'Approved' : 'Sent back'} ${formatDate(r.decidedAt)}`;
+/** The review decision in the words of the status badges (src/lib/shot-status.ts): signed off, returned. */
+const decisionWord = (d: NonNullable<ShotListRow['review']>['decision']) => (d === 'approved' ? 'Signed off' : 'Returned');
+const reviewWords = (r: NonNullable<ShotListRow['review']>) => `${decisionWord(r.decision)} ${formatDate(r.decidedAt)}`;
+/** The compare page shows two to four shots. */
+const MAX_COMPARE = 4;
 
 /** Words for each order in the narrow-screen sort menu: [ascending, descending]. */
 const SORT_CHOICES: Record<ShotSortField, [string, string]> = {
@@ -116,9 +121,21 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
   const shotUrl = (id: string) => `/labs/${labId}/shots/${id}`;
   const total = list.data?.total ?? 0;
   const pages = Math.max(1, Math.ceil(total / PAGE_SIZE));
+  const [picked, setPicked] = useState<{ id: string; number: number }[]>([]);
+  const isPicked = (id: string) => picked.some((p) => p.id === id);
+  const toggle = (row: ShotListRow) =>
+    setPicked((p) => (p.some((x) => x.id === row.id) ? p.filter((x) => x.id !== row.id) : p.length < MAX_COMPARE ? [...p, { id: row.id, number: row.number }] : p));
 
   return (
     <div className="space-y-4">
+      <div className="flex flex-wrap items-center gap-3 text-sm" data-testid="compare-picker">
+        <Button variant="secondary" disabled={picked.length < 2} onClick={() => navigate(`/labs/${labId}/compare?shots=${picked.map((p) => p.id).join(',')}`)}>
+          Compare {picked.length >= 2 ? `${picked.length} shots` : 'shots'}
+        </Button>
+        <span className="text-harbour-500">
+          {picked.length < 2 ? 'Tick two to four shots to see them side by side.' : `Shots ${picked.map((p) => `#${p.number}`).join(', ')} ticked (at most ${MAX_COMPARE}).`}
+        </span>
+      </div>
       <div className="flex flex-wrap items-center gap-3">
         <SearchBox value={params.q} onChange={(q) => update({ q })} />
         <select
@@ -175,7 +192,8 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
             <table className="min-w-full text-sm" aria-label="Shots">
               <thead className="text-left text-xs uppercase tracking-wide text-harbour-500">
                 <tr>
-                  <SortHeader field="number" label="Shot" params={params} onSort={onSort} className="pl-5" />
+                  <th scope="col" className="w-8 py-2 pl-5"><span className="sr-only">Compare</span></th>
+                  <SortHeader field="number" label="Shot" params={params} onSort={onSort} className="pl-2" />
                   <SortHeader field="firedAt" label="Fired" params={params} onSort={onSort} className="hidden lg:table-cell" />
                   <SortHeader field="tubePressure" label="Tube" params={params} onSort={onSort} align="right" />
                   <th scope="col" className="hidden px-3 py-2 font-medium lg:table-cell">Seal · ambient</th>
@@ -187,9 +205,20 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
               <tbody className="divide-y divide-harbour-100">
                 {list.data.shots.map((s) => {
                   const status = shotStatus(s.status);
+                  const missing = missingConditions(s);
                   return (
                     <tr key={s.id} onClick={() => navigate(shotUrl(s.id))} className="cursor-pointer align-top hover:bg-harbour-50">
-                      <td className="py-2 pr-3 pl-5 font-medium tabular-nums">
+                      <td className="py-2 pl-5" onClick={(e) => e.stopPropagation()}>
+                        <input
+                          type="checkbox"
+                          aria-label={`Compare shot ${s.number}`}
+                          checked={isPicked(s.id)}
+                          disabled={!isPicked(s.id) && picked.length >= MAX_COMPARE}
+                          onChange={() => toggle(s)}
+                          className="h-4 w-4 accent-harbour-700"
+                        />
+                      </td>
+                      <td className="py-2 pr-3 pl-2 font-medium tabular-nums">
                         <Link to={shotUrl(s.id)} onClick={(e) => e.stopPropagation()} className="text-harbour-800 hover:underline">#{s.number}</Link>
                         {/* Below 1024 px the narrower columns fold into their neighbours instead of scrolling sideways. */}
                         <span className="block text-xs font-normal text-harbour-500 lg:hidden">{formatDateTime(s.firedAt)}</span>
@@ -217,12 +246,15 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
                       </td>
                       <td className="px-3 py-2 pr-5 lg:pr-3">
                         <Badge tone={status.tone}>{status.label}</Badge>
+                        {missing.length > 0 && (
+                          <span className="mt-1 block text-xs whitespace-nowrap text-signal-800" title={`Missing: ${missing.join(', ')}`} data-testid="conditions-missing">conditions missing</span>
+                        )}
                         {s.review && <span className="mt-1 block text-xs whitespace-nowrap text-harbour-500 lg:hidden">{reviewWords(s.review)}</span>}
                       </td>
                       <td className="hidden px-3 py-2 pr-5 whitespace-nowrap lg:table-cell">
                         {s.review ? (
                           <>
-                            <Badge tone={s.review.decision === 'approved' ? 'good' : 'bad'}>{s.review.decision === 'approved' ? 'Approved' : 'Sent back'}</Badge>
+                            <Badge tone={s.review.decision === 'approved' ? 'good' : 'bad'}>{decisionWord(s.review.decision)}</Badge>
                             <span className="block text-xs text-harbour-500">{formatDate(s.review.decidedAt)}</span>
                           </>
                         ) : <span className="text-harbour-300">—</span>}

@@ -14,3 +14,16 @@ export function SafetyNote() {
     </aside>
   );
 }
+
+/** The same cautions folded into one line, for forms and side panels (new campaign, new shot, shot page, trends). */
+export function SafetyCaution({ className = '' }: { className?: string }) {
+  return (
+    <details className={`rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40 ${className}`} data-testid="safety-caution">
+      <summary className="cursor-pointer font-medium">Launcher safety</summary>
+      <p className="mt-1">
+        Rated backstop and a clear exclusion zone; never fire at people. Shield evacuated tubes and wear eye and hearing protection; burst
+        discs and pressurised variants add pressure-vessel hazards. Your lab’s rules and trained supervision govern.
+      </p>
+    </details>
+  );
+}

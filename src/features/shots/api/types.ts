@@ -18,6 +18,8 @@ export interface CaptureInfo {
   importOptions: Record<string, unknown>;
   ingestAttempt: number;
   uploadedAt: string;
+  /** Set when the file was removed from the shot (kept stored and in older versions). */
+  removedAt?: string | null;
 }
 
 export interface AnalysisSummary {
@@ -68,6 +70,8 @@ export interface ShotInfo {
   conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
   notes: string;
   currentAnalysisId: string | null;
+  /** Set when the shot was deleted (an admin can restore it). */
+  deletedAt?: string | null;
 }
 
 export interface ShotDetail {

@@ -2,8 +2,9 @@ import { useState, type FormEvent } from 'react';
 import type { TimeBaseOrigin } from '../../../../shared/contracts/capture.ts';
 import { importOverridesSchema, type ImportOverrides } from '../../../../shared/contracts/shots.ts';
 import { Badge, Button, ErrorNote, SelectField, TextField } from '../../../components/ui/primitives.tsx';
-import { formatSeconds } from '../../../lib/format.ts';
+import { formatDateTime, formatSeconds } from '../../../lib/format.ts';
 import { useReingest } from '../api/captures.ts';
+import { useRemoveCapture } from '../api/shot-corrections.ts';
 import type { CaptureInfo } from '../api/types.ts';
 
 const STATE = {
@@ -124,10 +125,30 @@ function HowItWasRead({ capture }: { capture: CaptureInfo }) {
   );
 }
 
-export function CaptureList({ shotId, captures, canEdit }: { shotId: string; captures: CaptureInfo[]; canEdit: boolean }) {
-  const [fixing, setFixing] = useState<string | null>(null);
-  if (captures.length === 0) return null;
+/** Asks before removing a file from the shot; says what happens to its bytes and to the analysis. */
+function RemoveFile({ labId, shotId, capture }: { labId: string; shotId: string; capture: CaptureInfo }) {
+  const remove = useRemoveCapture(labId, shotId);
+  const [asking, setAsking] = useState(false);
+  if (!asking) return <Button variant="ghost" className="!py-1 text-xs" onClick={() => setAsking(true)}>Remove</Button>;
   return (
+    <span className="flex flex-wrap items-center gap-2 rounded-md bg-red-50 px-2 py-1 text-xs text-red-900 ring-1 ring-red-200" role="group" aria-label={`Remove ${capture.fileName}`}>
+      Remove {capture.fileName} from this shot? The file stays stored and in the audit trail; the shot is analysed again without it.
+      <Button variant="secondary" className="!py-0.5 text-xs" disabled={remove.isPending} onClick={() => remove.mutate(capture.id, { onSuccess: () => setAsking(false) })}>
+        {remove.isPending ? 'Removing…' : 'Remove file'}
+      </Button>
+      <Button variant="ghost" className="!py-0.5 text-xs" onClick={() => setAsking(false)}>Keep</Button>
+      {remove.isError && <ErrorNote error={remove.error} />}
+    </span>
+  );
+}
+
+export function CaptureList({ labId, shotId, captures: all, canEdit }: { labId: string; shotId: string; captures: CaptureInfo[]; canEdit: boolean }) {
+  const [fixing, setFixing] = useState<string | null>(null);
+  const captures = all.filter((c) => !c.removedAt);
+  const removed = all.filter((c) => c.removedAt);
+  if (all.length === 0) return null;
+  return (
+    <div className="space-y-2">
     <ul className="divide-y divide-harbour-100" data-testid="capture-list">
       {captures.map((c) => {
         const state = STATE[c.state];
@@ -146,6 +167,7 @@ export function CaptureList({ shotId, captures, canEdit }: { shotId: string; cap
                     {c.state === 'failed' ? 'Fix how it is read' : 'Change how it is read'}
                   </Button>
                 )}
+                {canEdit && c.state !== 'queued' && c.state !== 'reading' && <RemoveFile labId={labId} shotId={shotId} capture={c} />}
               </span>
             </div>
             {(c.state === 'queued' || c.state === 'reading') && (
@@ -170,5 +192,11 @@ export function CaptureList({ shotId, captures, canEdit }: { shotId: string; cap
         );
       })}
     </ul>
+    {removed.length > 0 && (
+      <p className="text-xs text-harbour-500" data-testid="removed-files">
+        Removed from this shot (still stored, listed in the audit trail): {removed.map((c) => `${c.fileName} (${formatDateTime(c.removedAt!)})`).join(', ')}
+      </p>
+    )}
+    </div>
   );
 }
