@@ -94,7 +94,7 @@ export const reingestBody = z.object({ importOptions: importOverridesSchema.defa
  */
 export const NEEDED_CONDITIONS = [
   { key: 'gateRigId', label: 'gate rig', why: 'gate positions for the speed' },
-  { key: 'projectileId', label: 'projectile', why: 'its length and mass (single-gate speed, energy)' },
+  { key: 'projectileId', label: 'projectile', why: 'its length and mass, for the single-gate speed' },
   { key: 'tubePressurePa', label: 'tube vacuum', why: 'speed against vacuum level in the trends' },
   { key: 'ambientTemperatureK', label: 'ambient temperature', why: 'the speed of sound, for the Mach number' },
 ] as const;
