@@ -83,7 +83,7 @@ describe('campaign page', () => {
       const row5 = shotTable(page).locator('tbody tr', { hasText: '#5' });
       await expect(row5.textContent()).resolves.toContain('249.77 ± 0.42 m/s');
       await expect(row5.textContent()).resolves.toContain('time of flight, fit');
-      await expect(shotTable(page).locator('tbody tr', { hasText: '#2' }).textContent()).resolves.toContain('Approved');
+      await expect(shotTable(page).locator('tbody tr', { hasText: '#2' }).textContent()).resolves.toContain('Signed off');
       await saveScreenshot(page, 'campaign-table-laptop');
 
       // The form: a bad ambient temperature is refused with the server schema's own message, under its field.

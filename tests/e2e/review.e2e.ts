@@ -218,7 +218,11 @@ describe('review', () => {
       const { context, page } = await signedIn('reviewer');
       try {
         await page.goto(shotUrl(shotA));
-        await reviewBar(page).getByRole('button', { name: 'Approve version 2' }).click();
+        await reviewBar(page).getByRole('button', { name: 'Approve version 2…' }).click();
+        // The confirmation says which version is frozen.
+        const confirm = reviewBar(page).getByRole('group', { name: 'Confirm sign-off' });
+        expect(await confirm.textContent()).toContain('Sign off version 2? Its numbers are frozen');
+        await confirm.getByRole('button', { name: 'Sign off version 2' }).click();
         await page.getByTestId('signed-off').getByText('Signed off: version 2').waitFor();
         await reviewBar(page).getByText(/signed off v2/).first().waitFor();
         expect(await reviewBar(page).getByRole('link', { name: 'PDF report' }).getAttribute('href')).toBe(`/api/shots/${shotA}/report.pdf`);

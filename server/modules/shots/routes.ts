@@ -96,11 +96,12 @@ export async function shotDetail(shot: Shot) {
   // transaction, so a version seen as done here is never shown beside the shot as it was before that commit.
   await shot.reload();
   const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
-  const names = await namesOf([current?.timeBaseConfirmedBy]);
+  const names = await namesOf([current?.timeBaseConfirmedBy, ...analyses.map((a) => a.requestedBy)]);
   return {
     shot: shotSummary(shot),
     captures: captures.map(captureView),
-    analyses: analyses.map(analysisSummary),
+    // Who asked for each version (null: made automatically when the files were read).
+    analyses: analyses.map((a) => ({ ...analysisSummary(a), requestedByName: a.requestedBy ? names.get(a.requestedBy) ?? null : null })),
     currentAnalysis: current ? analysisView(current, names) : null,
   };
 }

@@ -66,13 +66,31 @@ function Decide({ shotId, labId, version, blocked }: { shotId: string; labId: st
   const [returning, setReturning] = useState(false);
   const [comment, setComment] = useState('');
   const [missing, setMissing] = useState(false);
+  const [confirming, setConfirming] = useState(false);
   const v = version != null ? `version ${version}` : 'this version';
+  if (confirming) {
+    return (
+      <div className="space-y-2 rounded-md bg-emerald-50 px-3 py-2 ring-1 ring-emerald-200" role="group" aria-label="Confirm sign-off">
+        <p className="text-sm text-emerald-900">
+          Sign off {v}? Its numbers are frozen as the shot’s result: conditions and files can no longer change, and a later
+          recomputation becomes a new version that needs its own review.
+        </p>
+        <div className="flex flex-wrap gap-2">
+          <Button onClick={() => decide.mutate({ decision: 'approved', comment: comment.trim() || undefined }, { onSettled: () => setConfirming(false) })} disabled={decide.isPending}>
+            Sign off {v}
+          </Button>
+          <Button variant="ghost" onClick={() => setConfirming(false)}>Cancel</Button>
+        </div>
+        {decide.isError && <ErrorNote error={decide.error} />}
+      </div>
+    );
+  }
   if (!returning) {
     return (
       <div className="space-y-2">
         <div className="flex flex-wrap gap-2">
-          <Button onClick={() => decide.mutate({ decision: 'approved', comment: comment.trim() || undefined })} disabled={decide.isPending || blocked != null}>
-            Approve {v}
+          <Button onClick={() => setConfirming(true)} disabled={decide.isPending || blocked != null}>
+            Approve {v}…
           </Button>
           <Button variant="danger" onClick={() => setReturning(true)} disabled={decide.isPending}>Return with comment</Button>
         </div>

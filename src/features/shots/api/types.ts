@@ -30,6 +30,8 @@ export interface AnalysisSummary {
   error: string | null;
   engineVersion: string;
   requestedBy: string | null;
+  /** Name of the person who asked for this version (GET /api/shots/:shotId only); null when automatic. */
+  requestedByName?: string | null;
   createdAt: string;
   startedAt: string | null;
   completedAt: string | null;

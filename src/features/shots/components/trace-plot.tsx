@@ -157,10 +157,15 @@ function drawAnnotations(u: uPlot, a: Annotations) {
   ctx.save();
   ctx.textAlign = 'left';
   ctx.textBaseline = 'alphabetic';
-  const labels = a.gates.map((g) => `${a.gateLabel(g.position)} · ${(g.position * 1000).toFixed(1)} mm${g.status === 'missed' ? ' · missed' : ''}`);
+  // A gate named like its channel ("Gate A" on channel "Gate A") is not named twice: "Gate A · 0.0 mm".
+  const labels = a.gates.map((g) => {
+    const name = a.gateLabel(g.position);
+    const where = `${(g.position * 1000).toFixed(1)} mm${g.status === 'missed' ? ' · missed' : ''}`;
+    return name === a.title ? where : `${name} · ${where}`;
+  });
   ctx.fillStyle = '#0d2133';
   ctx.font = font(12, 600);
-  ctx.fillText([a.title, ...labels].join('   '), left + 6 * dpr, top - 8 * dpr);
+  ctx.fillText(labels.length > 0 ? `${a.title} · ${labels.join('   ')}` : a.title, left + 6 * dpr, top - 8 * dpr);
   if (a.preview) {
     ctx.fillStyle = SIGNAL;
     ctx.font = font(11, 600);

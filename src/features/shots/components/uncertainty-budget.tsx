@@ -10,17 +10,18 @@ export function UncertaintyBudget({ speed }: { speed: SpeedResult | null }) {
   return (
     <div>
       <table className="w-full text-sm">
-        <thead className="text-left text-xs uppercase tracking-wide text-harbour-500">
+        {/* No upper-casing here: u (standard) and U (expanded) are different quantities (GUM 2.3.1, 2.3.5). */}
+        <thead className="text-left text-xs text-harbour-500">
           <tr>
             <th scope="col" className="py-1 font-medium">Source</th>
-            <th scope="col" className="py-1 text-right font-medium">u contribution</th>
+            <th scope="col" className="py-1 text-right font-medium">Contribution to <i>u</i></th>
             <th scope="col" className="w-2/5 py-1 pl-4 font-medium">Share of variance</th>
           </tr>
         </thead>
         <tbody className="divide-y divide-harbour-100">
           {rows.map((b) => (
             <tr key={b.group}>
-              <td className="py-1.5 capitalize">{b.group}</td>
+              <td className="py-1.5">{b.group.charAt(0).toUpperCase() + b.group.slice(1)}</td>
               <td className="py-1.5 text-right tabular-nums">{b.contribution.toPrecision(2)} m/s</td>
               <td className="py-1.5 pl-4">
                 <div className="flex items-center gap-2">
@@ -35,9 +36,9 @@ export function UncertaintyBudget({ speed }: { speed: SpeedResult | null }) {
         </tbody>
         <tfoot>
           <tr className="border-t border-harbour-200 font-medium">
-            <td className="py-1.5">Combined standard uncertainty u_c</td>
+            <td className="py-1.5">Combined standard uncertainty <i>u</i><sub>c</sub></td>
             <td className="py-1.5 text-right tabular-nums">{speed.standardUncertainty.toPrecision(2)} m/s</td>
-            <td className="py-1.5 pl-4 text-xs text-harbour-600">U = k·u_c = {speed.uncertainty.toPrecision(2)} m/s (k = {speed.coverage})</td>
+            <td className="py-1.5 pl-4 text-xs text-harbour-600"><i>U</i> = <i>k</i>·<i>u</i><sub>c</sub> = {speed.uncertainty.toPrecision(2)} m/s (<i>k</i> = {speed.coverage})</td>
           </tr>
         </tfoot>
       </table>

@@ -44,7 +44,7 @@ export function VersionHistory({ shotId, analyses, currentId }: { shotId: string
     <div className="space-y-4">
       <table className="w-full text-sm" data-testid="versions">
         <thead className="text-left text-xs uppercase tracking-wide text-harbour-500">
-          <tr><th className="py-1 font-medium">Version</th><th className="py-1 font-medium">State</th><th className="py-1 font-medium">Asked</th><th className="py-1 text-center font-medium">from</th><th className="py-1 text-center font-medium">to</th></tr>
+          <tr><th className="py-1 font-medium">Version</th><th className="py-1 font-medium">State</th><th className="py-1 font-medium">Asked by</th><th className="py-1 text-center font-medium">from</th><th className="py-1 text-center font-medium">to</th></tr>
         </thead>
         <tbody className="divide-y divide-harbour-100">
           {analyses.map((v) => (
@@ -53,7 +53,7 @@ export function VersionHistory({ shotId, analyses, currentId }: { shotId: string
               <td className="py-1.5">
                 {v.state === 'done' ? 'done' : v.state === 'failed' ? <span className="text-red-800" title={v.error ?? ''}>failed</span> : `${v.state} ${v.progress} %`}
               </td>
-              <td className="py-1.5 text-harbour-600">{formatDateTime(v.createdAt)} · {v.requestedBy ? 'by hand' : 'automatic'}</td>
+              <td className="py-1.5 text-harbour-600">{v.requestedBy ? v.requestedByName ?? 'a former member' : 'automatic, when the files were read'} · {formatDateTime(v.createdAt)}</td>
               <td className="py-1.5 text-center"><input type="radio" name="diff-from" aria-label={`Compare from v${v.version}`} disabled={v.state !== 'done'} checked={from === v.id} onChange={() => setA(v.id)} /></td>
               <td className="py-1.5 text-center"><input type="radio" name="diff-to" aria-label={`Compare to v${v.version}`} disabled={v.state !== 'done'} checked={to === v.id} onChange={() => setB(v.id)} /></td>
             </tr>
