@@ -130,9 +130,11 @@ describe('shot workspace', () => {
       await expect.poll(async () => (await page.getByTestId('speed').textContent()) ?? '', { timeout: 30_000 }).toMatch(/^31\d(\.\d+)? ± /);
       const diff = page.getByTestId('version-diff');
       await diff.getByText('v1 → v2').waitFor({ timeout: 30_000 });
-      await diff.getByText('threshold.level').waitFor();
-      await diff.getByText('gates[1].position').waitFor();
-      await diff.getByText(/^speed\./).first().waitFor();
+      // In the analyst panel's words and units: "Threshold level 50 % → 45 %", "Gate 2 position 150 mm → 100 mm".
+      const row = (label: string) => diff.locator('tr', { has: page.getByText(label, { exact: true }) });
+      expect((await row('Threshold level').textContent())?.replace(/\s+/g, ' ')).toBe('Threshold level50 %→45 %');
+      expect((await row('Gate 2 position').textContent())?.replace(/\s+/g, ' ')).toBe('Gate 2 position150 mm→100 mm');
+      expect(await diff.getByTestId('diff-speed').textContent()).toMatch(/^Speed: 4\d\d(\.\d+)? ± [\d.]+ m\/s → 31\d(\.\d+)? ± [\d.]+ m\/s \(−3\d\.\d %\)$/);
       await diff.scrollIntoViewIfNeeded();
       await saveScreenshot(page, 'shot-v2-diff');
     } finally {

@@ -42,7 +42,20 @@ export function diffVersions(a: Analysis, b: Analysis) {
     parameters: changes(a.parameters, b.parameters),
     // The options echo inside the results repeats the parameters; compare the results proper.
     results: changes(stripOptions(a.results), stripOptions(b.results)),
+    /** The speed of each version whole (value ± U, m/s), for the headline "Speed: x ± U → y ± U". */
+    speed: { from: speedOf(a.results), to: speedOf(b.results) },
+    /** How each version's threshold is expressed ("percent" or "volts"), to word its level. */
+    thresholdUnit: { from: thresholdUnitOf(a.parameters), to: thresholdUnitOf(b.parameters) },
   };
+}
+
+function speedOf(results: unknown): { value: number; uncertainty: number } | null {
+  const s = (results as { speed?: { value?: unknown; uncertainty?: unknown } | null } | null)?.speed;
+  return s && typeof s.value === 'number' && typeof s.uncertainty === 'number' ? { value: s.value, uncertainty: s.uncertainty } : null;
+}
+
+function thresholdUnitOf(parameters: unknown): 'percent' | 'volts' {
+  return (parameters as { threshold?: { unit?: string } } | null)?.threshold?.unit === 'volts' ? 'volts' : 'percent';
 }
 
 function stripOptions(results: unknown): unknown {

@@ -211,9 +211,9 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
                 <tbody className="divide-y divide-harbour-100">
                   {params.filter((p) => !onlyDiffering || p.differs).map((p) => (
                     <tr key={p.path} data-differs={p.differs ? 'true' : 'false'}>
-                      <th scope="row" className="px-2 py-1 text-left font-mono font-normal text-harbour-600">{p.path}</th>
-                      {p.values.map((v, i) => (
-                        <td key={i} className={`px-2 py-1 font-mono ${p.differs ? 'bg-signal-100 font-semibold text-signal-800' : 'text-harbour-700'}`}>{v}</td>
+                      <th scope="row" className="px-2 py-1 text-left font-normal text-harbour-700" title={p.path}>{p.label}</th>
+                      {p.shown.map((v, i) => (
+                        <td key={i} className={`break-words px-2 py-1 tabular-nums ${p.differs ? 'bg-signal-100 font-semibold text-signal-800' : 'text-harbour-700'}`}>{v}</td>
                       ))}
                     </tr>
                   ))}

@@ -84,6 +84,14 @@ export interface ShotDetail {
 }
 
 export interface DiffEntry { path: string; kind: 'added' | 'removed' | 'changed'; from?: unknown; to?: unknown }
-export interface VersionDiff { from: AnalysisSummary; to: AnalysisSummary; engineChanged: boolean; parameters: DiffEntry[]; results: DiffEntry[] }
+export interface VersionDiff {
+  from: AnalysisSummary;
+  to: AnalysisSummary;
+  engineChanged: boolean;
+  parameters: DiffEntry[];
+  results: DiffEntry[];
+  speed?: { from: { value: number; uncertainty: number } | null; to: { value: number; uncertainty: number } | null };
+  thresholdUnit?: { from: 'percent' | 'volts'; to: 'percent' | 'volts' };
+}
 
 export type { TraceWindow } from '../../../lib/trace-window.ts';

@@ -1,30 +1,82 @@
 import { useState } from 'react';
 import { Badge, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
-import { formatDateTime } from '../../../lib/format.ts';
+import { labelParameter, labelResult, raw, type LabelGroup } from '../../../../shared/contracts/analysis-labels.ts';
+import { formatDateTime, formatMeasurement } from '../../../lib/format.ts';
 import { useVersionDiff } from '../api/analyses.ts';
-import type { AnalysisSummary, DiffEntry } from '../api/types.ts';
+import type { AnalysisSummary, DiffEntry, VersionDiff } from '../api/types.ts';
 
-const show = (v: unknown) => (v === undefined ? '—' : typeof v === 'number' ? String(Number(v.toPrecision(8))) : JSON.stringify(v));
+interface DiffRow { key: string; group: LabelGroup; label: string; path: string; from: string; to: string; rawFrom: string; rawTo: string }
 
-function DiffTable({ title, entries, limit }: { title: string; entries: DiffEntry[]; limit?: number }) {
-  const rows = limit ? entries.slice(0, limit) : entries;
+const GROUP_ORDER: LabelGroup[] = ['Result', 'Settings', 'Gates', 'Budget'];
+const GROUP_TITLE: Record<LabelGroup, string> = { Result: 'Result', Settings: 'Analysis settings', Gates: 'Gates and crossings', Budget: 'Uncertainty budget' };
+
+/** Diff entries in the lab's words, each with its raw path and values kept for "show raw values". */
+function rowsOf(entries: DiffEntry[], label: (path: string) => { group: LabelGroup; label: string; format: (v: unknown) => string }): DiffRow[] {
+  return entries.map((d) => {
+    const l = label(d.path);
+    return { key: `${d.path}:${d.kind}`, group: l.group, label: l.label, path: d.path, from: d.from === undefined ? '—' : l.format(d.from), to: d.to === undefined ? '—' : l.format(d.to), rawFrom: raw(d.from), rawTo: raw(d.to) };
+  });
+}
+
+/** One group of changed values; long groups open on request, so every changed row can be seen. */
+function DiffGroup({ group, rows, showRaw }: { group: LabelGroup; rows: DiffRow[]; showRaw: boolean }) {
+  const table = (
+    <table className="w-full table-fixed text-xs">
+      <tbody className="divide-y divide-harbour-100">
+        {rows.map((r) => (
+          <tr key={r.key}>
+            <td className="w-2/5 py-1 pr-2 text-harbour-800">{r.label}{showRaw && <span className="block break-all font-mono text-[11px] text-harbour-500">{r.path}</span>}</td>
+            <td className="break-words py-1 pr-2 text-red-800">{showRaw ? r.rawFrom : r.from}</td>
+            <td className="w-4 py-1 text-harbour-400" aria-hidden>→</td>
+            <td className="break-words py-1 text-emerald-800">{showRaw ? r.rawTo : r.to}</td>
+          </tr>
+        ))}
+      </tbody>
+    </table>
+  );
+  const title = `${GROUP_TITLE[group]} (${rows.length} changed)`;
+  if (rows.length <= 12) {
+    return <div><h4 className="mb-1 text-xs font-semibold text-harbour-600">{title}</h4>{table}</div>;
+  }
   return (
-    <div>
-      <h4 className="mb-1 text-xs font-semibold uppercase tracking-wide text-harbour-500">{title} ({entries.length})</h4>
-      {entries.length === 0 ? <p className="text-sm text-harbour-500">No change.</p> : (
-        <table className="w-full table-fixed text-xs">
-          <tbody className="divide-y divide-harbour-100">
-            {rows.map((d) => (
-              <tr key={d.path + d.kind}>
-                <td className="w-2/5 break-all py-1 pr-2 font-mono text-harbour-700">{d.path}</td>
-                <td className="break-all py-1 pr-2 text-red-800">{show(d.from)}</td>
-                <td className="break-all py-1 text-emerald-800">{show(d.to)}</td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+    <details>
+      <summary className="cursor-pointer text-xs font-semibold text-harbour-600">{title}: show them all</summary>
+      <div className="mt-1">{table}</div>
+    </details>
+  );
+}
+
+/** What changed from one version to another: the speed first, then settings, gates and budget, in words and units. */
+function VersionDiffView({ diff }: { diff: VersionDiff }) {
+  const [showRaw, setShowRaw] = useState(false);
+  const params = rowsOf(diff.parameters, (p) => labelParameter(p, { thresholdUnit: diff.thresholdUnit?.to }));
+  // Speed value and U are the headline; the remaining result rows are listed by group.
+  const results = rowsOf(diff.results, labelResult).filter((r) => r.path !== 'speed.value' && r.path !== 'speed.uncertainty');
+  const all = [...params, ...results];
+  const s = diff.speed;
+  const change = s?.from && s.to ? ((s.to.value - s.from.value) / s.from.value) * 100 : null;
+  return (
+    <div className="space-y-3">
+      <p className="text-sm font-medium">
+        v{diff.from.version} → v{diff.to.version}{diff.engineChanged && ' (engine version changed)'}
+      </p>
+      {s && (s.from || s.to) && (
+        <p className="text-sm" data-testid="diff-speed">
+          Speed: {s.from ? formatMeasurement(s.from.value, s.from.uncertainty, 'm/s') : 'none'} → {s.to ? formatMeasurement(s.to.value, s.to.uncertainty, 'm/s') : 'none'}
+          {change != null && ` (${change >= 0 ? '+' : '−'}${Math.abs(change).toFixed(Math.abs(change) < 0.1 ? 2 : 1)} %)`}
+        </p>
       )}
-      {limit && entries.length > limit && <p className="mt-1 text-xs text-harbour-500">…and {entries.length - limit} more changed values.</p>}
+      {all.length === 0 && <p className="text-sm text-harbour-500">No other change.</p>}
+      {GROUP_ORDER.map((g) => {
+        const rows = all.filter((r) => r.group === g);
+        return rows.length > 0 && <DiffGroup key={g} group={g} rows={rows} showRaw={showRaw} />;
+      })}
+      {all.length > 0 && (
+        <label className="flex items-center gap-2 text-xs text-harbour-600">
+          <input type="checkbox" checked={showRaw} onChange={(e) => setShowRaw(e.target.checked)} className="h-3.5 w-3.5 accent-harbour-700" />
+          Show raw stored values and their paths
+        </label>
+      )}
     </div>
   );
 }
@@ -38,8 +90,6 @@ export function VersionHistory({ shotId, analyses, currentId }: { shotId: string
   const to = b ?? done[0]?.id ?? null;
   const diff = useVersionDiff(shotId, from, to);
   if (analyses.length === 0) return <p className="text-sm text-harbour-500">No analysis yet.</p>;
-  // Results changes that matter most come first.
-  const ranked = (entries: DiffEntry[]) => [...entries].sort((x, y) => Number(!x.path.startsWith('speed')) - Number(!y.path.startsWith('speed')));
   return (
     <div className="space-y-4">
       <table className="w-full text-sm" data-testid="versions">
@@ -67,13 +117,7 @@ export function VersionHistory({ shotId, analyses, currentId }: { shotId: string
         <div className="space-y-3 rounded-md bg-harbour-50 p-3" data-testid="version-diff">
           {diff.isPending && <Loading what="Comparing" />}
           {diff.isError && <ErrorNote error={diff.error} />}
-          {diff.data && (
-            <>
-              <p className="text-sm font-medium">v{diff.data.from.version} → v{diff.data.to.version}{diff.data.engineChanged && ' (engine version changed)'}</p>
-              <DiffTable title="Parameters" entries={diff.data.parameters} />
-              <DiffTable title="Results" entries={ranked(diff.data.results)} limit={12} />
-            </>
-          )}
+          {diff.data && <VersionDiffView diff={diff.data} />}
         </div>
       )}
     </div>

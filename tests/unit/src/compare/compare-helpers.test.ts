@@ -51,8 +51,10 @@ describe('parameterDifferences', () => {
     const rows = parameterDifferences([a, b]);
     expect(rows.filter((r) => r.differs).map((r) => r.path)).toEqual(['gates[1].position', 'threshold.level']);
     expect(rows.find((r) => r.path === 'threshold.level')!.values).toEqual(['50', '45']);
-    expect(rows.find((r) => r.path === 'threshold.hysteresis')).toEqual({ path: 'threshold.hysteresis', values: ['10', '10'], differs: false });
-    expect(rows.find((r) => r.path === 'smoothing')).toEqual({ path: 'smoothing', values: ['null', 'null'], differs: false });
+    expect(rows.find((r) => r.path === 'threshold.hysteresis')).toEqual({ path: 'threshold.hysteresis', label: 'Hysteresis ±', values: ['10', '10'], shown: ['10 %', '10 %'], differs: false });
+    expect(rows.find((r) => r.path === 'smoothing')).toEqual({ path: 'smoothing', label: 'Savitzky–Golay smoothing', values: ['null', 'null'], shown: ['off (the raw trace)', 'off (the raw trace)'], differs: false });
+    // In the analyst panel's words and units (metres shown as millimetres).
+    expect(rows.find((r) => r.path === 'gates[1].position')).toMatchObject({ label: 'Gate 2 position', shown: ['100 mm', '150 mm'] });
   });
 
   it('When rows are listed, then each path appears once and in sorted order, so the table reads the same every time', () => {
@@ -65,7 +67,7 @@ describe('parameterDifferences', () => {
   it('When one shot has a setting the other lacks (a third gate, no analysis at all), then the gap shows as "—" and differs', () => {
     const c = { ...a, gates: [...a.gates, { channel: 'CH3', position: 0.2 }] };
     const rows = parameterDifferences([a, c, null]);
-    expect(rows.find((r) => r.path === 'gates[2].channel')).toEqual({ path: 'gates[2].channel', values: ['—', '"CH3"', '—'], differs: true });
+    expect(rows.find((r) => r.path === 'gates[2].channel')).toEqual({ path: 'gates[2].channel', label: 'Gate 3 channel', values: ['—', '"CH3"', '—'], shown: ['—', 'CH3', '—'], differs: true });
     expect(rows.find((r) => r.path === 'threshold.unit')!.values).toEqual(['"percent"', '"percent"', '—']);
     expect(rows.every((r) => r.differs)).toBe(true);
   });
@@ -73,8 +75,8 @@ describe('parameterDifferences', () => {
   it('When a value is an empty list or object, then it still gets a row, so "no gates" differs from "two gates"', () => {
     const rows = parameterDifferences([{ gates: [] }, { gates: [{ channel: 'CH1' }] }]);
     expect(rows).toEqual([
-      { path: 'gates', values: ['[]', '—'], differs: true },
-      { path: 'gates[0].channel', values: ['—', '"CH1"'], differs: true },
+      { path: 'gates', label: 'Gates', values: ['[]', '—'], shown: ['[]', '—'], differs: true },
+      { path: 'gates[0].channel', label: 'Gate 1 channel', values: ['—', '"CH1"'], shown: ['—', 'CH1'], differs: true },
     ]);
   });
 });

@@ -1,0 +1,39 @@
+// Analysis parameters and results in the lab's words and units (shared/contracts/analysis-labels.ts). Expected
+// wording follows the analyst panel; conversions are exact SI prefixes and 0 °C = 273.15 K (SI Brochure, 9th ed.).
+import { describe, expect, it } from 'vitest';
+import { labelParameter, labelResult } from '../../../shared/contracts/analysis-labels.ts';
+
+const say = (l: { label: string; format: (v: unknown) => string }, from: unknown, to: unknown) => `${l.label}: ${l.format(from)} → ${l.format(to)}`;
+
+describe('labelParameter', () => {
+  it('When settings change, then each reads as the panel names it, with its unit', () => {
+    expect(say(labelParameter('threshold.level'), 50, 30)).toBe('Threshold level: 50 % → 30 %');
+    expect(say(labelParameter('threshold.level', { thresholdUnit: 'volts' }), 2.5, 2)).toBe('Threshold level: 2.5 V → 2 V');
+    expect(say(labelParameter('gates[1].position'), 0.15, 0.1)).toBe('Gate 2 position: 150 mm → 100 mm');
+    expect(say(labelParameter('projectile.mass'), 0.0027, 0.00275)).toBe('Mass: 2.7 g → 2.75 g');
+    expect(say(labelParameter('ambient.temperature'), 293.15, 294.65)).toBe('Ambient temperature: 20 °C → 21.5 °C');
+    expect(say(labelParameter('levels.trimFraction'), 0.01, 0)).toBe('Outlying samples set aside at each end: 1 % → 0 %');
+    expect(say(labelParameter('smoothing'), null, { windowSize: 11, polynomial: 2 })).toBe('Savitzky–Golay smoothing: off (the raw trace) → window 11 samples, order 2');
+    expect(say(labelParameter('monteCarloDraws'), 0, 200000)).toBe('Monte Carlo check: off → 200000 draws');
+  });
+
+  it('When a path has no rule, then it is shown as it is stored, never blank', () => {
+    expect(say(labelParameter('somethingNew.inFuture'), 1, 2)).toBe('somethingNew.inFuture: 1 → 2');
+  });
+
+  it('When settings are grouped, then gates apart from the other settings', () => {
+    expect(labelParameter('gates[0].channel').group).toBe('Gates');
+    expect(labelParameter('threshold.hysteresis').group).toBe('Settings');
+  });
+});
+
+describe('labelResult', () => {
+  it('When results change, then speed, budget and crossings read in words and units, grouped', () => {
+    expect(say(labelResult('speed.value'), 287.3, 290.4)).toBe('Speed: 287.3 m/s → 290.4 m/s');
+    expect(labelResult('speed.budget[0].share')).toMatchObject({ group: 'Budget', label: 'Budget line 1: share of variance' });
+    expect(labelResult('speed.budget[0].share').format(0.255)).toBe('25.5 %');
+    expect(labelResult('gates[2].pulses[0].start')).toMatchObject({ group: 'Gates', label: 'Gate 3, pulse 1: entry' });
+    expect(labelResult('gates[2].pulses[0].start').format(0.000123456)).toBe('123.456 µs');
+    expect(labelResult('derived.mach.value')).toMatchObject({ group: 'Result', label: 'Mach number' });
+  });
+});
