@@ -56,7 +56,11 @@ describe('shot report PDF', () => {
     expect(text).toContain('Gate A: Gate A at 0 m');
     expect(text).toContain('Gate C: Gate C at 0.3 m');
     expect(text).toMatch(/Version\s+1/);
-    expect(text).toContain('Parameters');
+    // The settings in the analyst panel's words and units, not the stored paths.
+    expect(text).toContain('Analysis settings');
+    expect(text).toMatch(/Threshold level\s+50 %/);
+    expect(text).toMatch(/Gate 3 position\s+300 mm/);
+    expect(text).not.toMatch(/gates\[0\]|trimFraction|^\s*seed\b/m);
     expect(text).toContain('Launcher safety');
     expect(text).toContain('rated backstop');
 

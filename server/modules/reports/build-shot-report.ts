@@ -1,4 +1,5 @@
 import { describeAssumptions } from '../../../shared/analysis/describe-assumptions.ts';
+import { labelParameter } from '../../../shared/contracts/analysis-labels.ts';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import type { TraceWindow } from '../../traces/read-window.ts';
 import { createReportDocument, GRID, INK, MUTED, SAFETY } from './report-document.ts';
@@ -67,15 +68,25 @@ function timeUnit(span: number): { scale: number; unit: string } {
   return { scale: 1, unit: 's' };
 }
 
-function flatten(value: unknown, prefix = '', out: [string, string][] = []): [string, string][] {
+/** Leaf settings of the parameters, path → stored value (lists of plain values stay whole). */
+function flatten(value: unknown, prefix = '', out: [string, unknown][] = []): [string, unknown][] {
   if (value && typeof value === 'object' && !Array.isArray(value)) {
     for (const [k, v] of Object.entries(value as Record<string, unknown>)) flatten(v, prefix ? `${prefix}.${k}` : k, out);
   } else if (Array.isArray(value) && value.some((v) => v && typeof v === 'object')) {
     value.forEach((v, i) => flatten(v, `${prefix}[${i}]`, out));
   } else {
-    out.push([prefix, Array.isArray(value) ? value.join(', ') : String(value)]);
+    out.push([prefix, value]);
   }
   return out;
+}
+
+/** The analysis settings in the analyst panel's words and units ("Threshold level 50 %", "Gate 2 position 150 mm"). */
+function settingsInWords(parameters: unknown): [string, string][] {
+  const thresholdUnit = (parameters as { threshold?: { unit?: string } } | null)?.threshold?.unit === 'volts' ? 'volts' : 'percent';
+  return flatten(parameters).map(([path, value]) => {
+    const l = labelParameter(path, { thresholdUnit });
+    return [l.label, l.format(value)];
+  });
 }
 
 /**
@@ -295,8 +306,8 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
       ['Engine', a.engineVersion],
       ['Completed', a.completedAt ? `${a.completedAt.toISOString().replace('T', ' ').slice(0, 19)} UTC` : '-'],
     ]);
-    doc.moveDown(0.3).font('bold').fontSize(9).fillColor(MUTED).text('Parameters (SI units: m, kg, K, s, V; percent where named)', left, doc.y);
-    const params = flatten(a.parameters);
+    doc.moveDown(0.3).font('bold').fontSize(9).fillColor(MUTED).text('Analysis settings', left, doc.y);
+    const params = settingsInWords(a.parameters);
     table(params.length > 0 ? params : [['(none)', 'engine defaults']], 200);
   }
 
