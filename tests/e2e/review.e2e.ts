@@ -87,7 +87,7 @@ describe('review', () => {
         await reviewBar(page).getByText('Version 1 is waiting for review').waitFor();
         await reviewBar(page).getByText(/sent v1 for review/).first().waitFor();
         // An experimenter cannot decide.
-        expect(await reviewBar(page).getByRole('button', { name: /^Approve/ }).count()).toBe(0);
+        expect(await reviewBar(page).getByRole('button', { name: /^Sign off/ }).count()).toBe(0);
         await both(page, 'review-sent');
       } finally {
         await context.close();
@@ -218,7 +218,7 @@ describe('review', () => {
       const { context, page } = await signedIn('reviewer');
       try {
         await page.goto(shotUrl(shotA));
-        await reviewBar(page).getByRole('button', { name: 'Approve version 2…' }).click();
+        await reviewBar(page).getByRole('button', { name: 'Sign off version 2…' }).click();
         // The confirmation says which version is frozen.
         const confirm = reviewBar(page).getByRole('group', { name: 'Confirm sign-off' });
         expect(await confirm.textContent()).toContain('Sign off version 2? Its numbers are frozen');

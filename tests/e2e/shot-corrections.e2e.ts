@@ -121,6 +121,17 @@ describe('correcting shots', () => {
       await bothWidths(admin, 'shot-deleted-admin');
       await admin.getByRole('button', { name: 'Restore shot' }).click();
       await admin.getByTestId('shot-deleted').waitFor({ state: 'detached' });
+
+      // The audit trail tells it in sentences, with the shot as a link, filtered to this shot.
+      await admin.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/audit`);
+      await admin.getByLabel('Shot', { exact: true }).selectOption({ label: `#${made.body.shot.number} · Vacuum sweep, autumn 2026` });
+      const trail = admin.getByRole('list', { name: 'Audit trail' });
+      const sentences = (await trail.locator(':scope > li p').allTextContents()).map((t) => t.replace(/\s+/g, ' ').trim());
+      expect(sentences).toContain(`Tomas Reyl deleted shot #${made.body.shot.number} of Vacuum sweep, autumn 2026`);
+      expect(sentences).toContain(`Tomas Reyl removed the file wrong-shot.csv from shot #${made.body.shot.number} of Vacuum sweep, autumn 2026`);
+      expect(sentences).toContain(`Ines Calder restored shot #${made.body.shot.number} of Vacuum sweep, autumn 2026`);
+      await admin.getByLabel('Kind of event').selectOption({ label: 'Files added or removed' });
+      await bothWidths(admin, 'audit-filtered');
     } finally {
       await browser.close();
       await adminBrowser.close();

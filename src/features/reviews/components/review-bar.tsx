@@ -90,7 +90,7 @@ function Decide({ shotId, labId, version, blocked }: { shotId: string; labId: st
       <div className="space-y-2">
         <div className="flex flex-wrap gap-2">
           <Button onClick={() => setConfirming(true)} disabled={decide.isPending || blocked != null}>
-            Approve {v}…
+            Sign off {v}…
           </Button>
           <Button variant="danger" onClick={() => setReturning(true)} disabled={decide.isPending}>Return with comment</Button>
         </div>

@@ -1,7 +1,13 @@
 import { useState } from 'react';
 import { ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
+import { auditSentence } from '../../../lib/audit-sentence.ts';
 import { formatDateTime } from '../../../lib/format.ts';
 import { useShotAudit } from '../api/shot-audit.ts';
+
+const sentence = (e: { action: string; actor: string | null; details: Record<string, unknown> | null }) => {
+  const s = auditSentence({ ...e, details: e.details ?? {} }, { thisShot: true });
+  return `${s.who} ${s.verb}${s.shot ? ` ${s.shot}` : ''}${s.rest}`;
+};
 
 /** The shot's audit trail, loaded when opened (append-only on the server; shown to admins and reviewers). */
 export function ShotAuditList({ shotId, status }: { shotId: string; status: string }) {
@@ -19,7 +25,7 @@ export function ShotAuditList({ shotId, status }: { shotId: string; status: stri
             {q.data.map((e) => (
               <li key={e.id} className="flex gap-2">
                 <span className="shrink-0 text-harbour-500">{formatDateTime(e.at)}</span>
-                <span><span className="font-mono text-harbour-800">{e.action}</span> · {e.actor ?? 'system'}</span>
+                <span>{sentence(e)}</span>
               </li>
             ))}
           </ol>
