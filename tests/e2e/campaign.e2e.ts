@@ -63,7 +63,7 @@ const campaignUrl = () => `${app.baseUrl}/labs/${harness.demo.labs.hollowmere.id
 const shotTable = (page: Page) => page.getByRole('table', { name: 'Shots' });
 /** Shot numbers of the table's rows, top to bottom. */
 const rowNumbers = async (page: Page) =>
-  (await shotTable(page).locator('tbody tr td:first-child a').allTextContents()).map((t) => Number(t.replace('#', '')));
+  (await shotTable(page).locator('tbody tr td:nth-child(2) a').allTextContents()).map((t) => Number(t.replace('#', '')));
 /** Waits until the table shows exactly these shot numbers (the server answers each change). */
 async function expectRows(page: Page, expected: number[]) {
   await expect.poll(() => rowNumbers(page), { timeout: 10_000 }).toEqual(expected);

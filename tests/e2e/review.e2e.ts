@@ -184,7 +184,8 @@ describe('review', () => {
         await reviewBar(page).getByText(/Gate B is 100 mm from gate A/).first().waitFor();
         await page.getByLabel('Position (mm)').nth(1).fill('100');
         await page.getByRole('button', { name: 'Recompute and keep as a new version' }).click();
-        await page.getByText('Version 2 queued.').waitFor();
+        // The "Version 2 queued." note may already be gone: the lab's event stream rebuilds the panel on version 2 as soon as it is done.
+        await page.getByTestId('versions').getByText('v2').waitFor({ timeout: 120_000 });
         await expect.poll(async () => (await page.getByTestId('versions').textContent()) ?? '', { timeout: 120_000 }).toMatch(/v2\s*current/);
         await expect.poll(async () => (await page.getByTestId('speed').textContent()) ?? '', { timeout: 30_000 }).toMatch(/^31\d(\.\d+)? ± /);
         await reviewBar(page).getByText('Version 2 not reviewed yet.').waitFor({ timeout: 30_000 });
@@ -236,9 +237,10 @@ describe('review', () => {
         // The shot's own audit trail (reviewers and admins) records the whole round.
         await reviewBar(page).getByText('Audit trail of this shot').click();
         const audit = reviewBar(page).getByRole('list', { name: 'Audit trail of this shot' });
-        await audit.getByText('review.approved').waitFor();
-        await audit.getByText('review.returned').waitFor();
-        expect(await audit.getByText('review.requested').count()).toBe(2);
+        // In sentences: "Marek Vintner signed off this shot (version 2)".
+        await audit.getByText('Marek Vintner signed off this shot (version 2)').waitFor();
+        await audit.getByText(/^Marek Vintner returned this shot \(version 1\)/).waitFor();
+        expect(await audit.getByText(/ sent this shot \(version \d\) for review/).count()).toBe(2);
         await both(page, 'review-approved');
         await page.goto(`${app.baseUrl}/labs/${labId}/review-queue`);
         await page.getByRole('heading', { name: 'Review queue' }).waitFor();
