@@ -49,7 +49,8 @@ function DiffGroup({ group, rows, showRaw }: { group: LabelGroup; rows: DiffRow[
 /** What changed from one version to another: the speed first, then settings, gates and budget, in words and units. */
 function VersionDiffView({ diff }: { diff: VersionDiff }) {
   const [showRaw, setShowRaw] = useState(false);
-  const params = rowsOf(diff.parameters, (p) => labelParameter(p, { thresholdUnit: diff.thresholdUnit?.to }));
+  // Every parameter (the gate map included) is a setting; "Gates and crossings" holds what the engine found.
+  const params = rowsOf(diff.parameters, (p) => ({ ...labelParameter(p, { thresholdUnit: diff.thresholdUnit?.to }), group: 'Settings' as const }));
   // Speed value and U are the headline; the remaining result rows are listed by group.
   const results = rowsOf(diff.results, labelResult).filter((r) => r.path !== 'speed.value' && r.path !== 'speed.uncertainty');
   const all = [...params, ...results];
