@@ -7,12 +7,13 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import type { Job } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Analysis, Projectile } from '../../server/db/models/index.ts';
+import { Analysis } from '../../server/db/models/index.ts';
 import { QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
 import { recordFinalFailure } from '../../worker/final-failure.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { logDemoShot } from '../helpers/demo-shots.ts';
 import { openEventStream } from '../helpers/event-stream.ts';
 
 interface ShotDetail {
@@ -27,7 +28,6 @@ let app: AppProcesses;
 let dataDir: string;
 let experimenter: PipelineClient;
 let analyst: PipelineClient;
-let ballId: string;
 
 // A text file renamed .csv: what a person drops by mistake.
 const notAScopeFile = new TextEncoder().encode('Shopping list\nmilk\neggs\n');
@@ -40,7 +40,6 @@ beforeAll(async () => {
   app = await startAppProcesses({ env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_LOG_LEVEL: 'warn' } });
   experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
   analyst = await signIn(app.baseUrl, demo.users.analyst.email, demo.users.analyst.password);
-  ballId = (await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
 }, 120_000);
 
 afterAll(async () => {
@@ -49,13 +48,7 @@ afterAll(async () => {
   if (dataDir) rmSync(dataDir, { recursive: true, force: true });
 });
 
-async function newShot(): Promise<string> {
-  const res = await experimenter.post<{ shot: { id: string } }>(`/api/labs/${demo.labs.hollowmere.id}/shots`, {
-    campaignId: demo.hollowmere.campaignIds[0], projectileId: ballId, gateRigId: demo.hollowmere.gateRigIds[0],
-  });
-  expect(res.status, JSON.stringify(res.body)).toBe(201);
-  return res.body.shot.id;
-}
+const newShot = async () => (await logDemoShot(experimenter, demo)).id;
 
 const detail = async (shotId: string) => (await experimenter.get<ShotDetail>(`/api/shots/${shotId}`)).body;
 

@@ -4,24 +4,23 @@
 // ticked in the campaign table and compared. Screenshots at 1280 and 820 px.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
-import { AuditEvent, Projectile } from '../../server/db/models/index.ts';
+import { AuditEvent } from '../../server/db/models/index.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { logDemoShot } from '../helpers/demo-shots.ts';
 
 let harness: ApiHarness;
 let demo: DemoWorld;
 let app: AppProcesses;
 let api: PipelineClient;
-let ballId: string;
 
 beforeAll(async () => {
   harness = await createApiHarness();
   demo = await harness.resetDatabase();
   app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
   api = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
-  ballId = (await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
 }, 120_000);
 
 afterAll(async () => {
@@ -88,9 +87,7 @@ describe('correcting shots', () => {
   }, 120_000);
 
   it('When a wrong file is removed and a mistaken shot deleted, then the file is listed as removed and an admin restores the shot', async () => {
-    const made = await api.post<{ shot: { id: string; number: number } }>(`/api/labs/${demo.labs.hollowmere.id}/shots`, {
-      campaignId: demo.hollowmere.campaignIds[0], projectileId: ballId, gateRigId: demo.hollowmere.gateRigIds[0], tubePressurePa: 1500, ambientTemperatureK: 293.15,
-    });
+    const made = { body: { shot: await logDemoShot(api, demo, { tubePressurePa: 1500, ambientTemperatureK: 293.15 }) } };
     const shotId = made.body.shot.id;
     await api.upload(shotId, [{ name: 'shot-run.csv', bytes: simulatedCsv({ speed: 300, seed: 41 }).bytes }, { name: 'wrong-shot.csv', bytes: simulatedCsv({ speed: 250, seed: 42 }).bytes }]);
     await pollUntil(async () => ((await api.get<{ shot: { status: string } }>(`/api/shots/${shotId}`)).body.shot.status === 'analysed' ? true : undefined), { timeoutMs: 60_000, what: 'analysed' });

@@ -6,18 +6,18 @@
 // "Processing" without "Send for review", the plot stayed blank until a reload).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
-import { Analysis, Projectile, Shot } from '../../server/db/models/index.ts';
+import { Analysis, Shot } from '../../server/db/models/index.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { logDemoShot } from '../helpers/demo-shots.ts';
 
 let harness: ApiHarness;
 let demo: DemoWorld;
 let app: AppProcesses;
 let experimenter: PipelineClient;
 let analyst: PipelineClient;
-let ballId: string;
 
 beforeAll(async () => {
   harness = await createApiHarness();
@@ -25,7 +25,6 @@ beforeAll(async () => {
   app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
   experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
   analyst = await signIn(app.baseUrl, demo.users.analyst.email, demo.users.analyst.password);
-  ballId = (await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
 }, 120_000);
 
 afterAll(async () => {
@@ -35,10 +34,7 @@ afterAll(async () => {
 
 /** A shot with one simulated three-gate file (300 m/s through the demo rig), read and analysed. */
 async function analysedShot(seed: number): Promise<string> {
-  const made = await experimenter.post<{ shot: { id: string } }>(`/api/labs/${demo.labs.hollowmere.id}/shots`, {
-    campaignId: demo.hollowmere.campaignIds[0], projectileId: ballId, gateRigId: demo.hollowmere.gateRigIds[0],
-  });
-  const shotId = made.body.shot.id;
+  const shotId = (await logDemoShot(experimenter, demo)).id;
   await experimenter.upload(shotId, [{ name: 'three-gates.csv', bytes: simulatedCsv({ speed: 300, seed }).bytes }]);
   await pollUntil(async () => ((await experimenter.get<{ shot: { status: string } }>(`/api/shots/${shotId}`)).body.shot.status === 'analysed' ? true : undefined), { timeoutMs: 60_000, what: 'the shot to be analysed' });
   return shotId;

@@ -51,6 +51,16 @@ export async function shotInLab(req: Request): Promise<Shot> {
   return shot;
 }
 
+/** Deletes or restores a shot (a repeat changes nothing), audited with what it was. */
+async function markDeleted(req: Request, shot: Shot, deleted: boolean): Promise<Shot> {
+  if (!!shot.deletedAt === deleted) return shot;
+  const was = { number: shot.number, status: shot.status, deletedAt: shot.deletedAt };
+  await shot.update(deleted ? { deletedAt: new Date(), deletedBy: req.auth!.userId } : { deletedAt: null, deletedBy: null });
+  await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: deleted ? 'shot.deleted' : 'shot.restored', targetType: 'shot', targetId: shot.id, details: was, ip: clientIp(req) });
+  await settleShot(shot.id);
+  return shot;
+}
+
 function refuseDeleted(shot: Shot) {
   if (shot.deletedAt) throw conflict('This shot is deleted; a lab admin can restore it first.');
 }
@@ -195,12 +205,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const shot = await shotInLab(req);
         if (shot.status === 'approved') throw conflict('This shot is signed off; it stays on record and cannot be deleted.');
-        if (!shot.deletedAt) {
-          await shot.update({ deletedAt: new Date(), deletedBy: req.auth!.userId });
-          await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.deleted', targetType: 'shot', targetId: shot.id, details: { number: shot.number, status: shot.status }, ip: clientIp(req) });
-          await settleShot(shot.id);
-        }
-        res.json({ shot: shotSummary(shot) });
+        res.json({ shot: shotSummary(await markDeleted(req, shot, true)) });
       },
     },
     {
@@ -210,14 +215,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       summary: 'Restore a deleted shot (lab admins): it is back in lists, trends and exports; audited',
       response: { status: 200, description: 'The shot, restored' },
       async handler(req, res) {
-        const shot = await shotInLab(req);
-        if (shot.deletedAt) {
-          const deletedAt = shot.deletedAt;
-          await shot.update({ deletedAt: null, deletedBy: null });
-          await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.restored', targetType: 'shot', targetId: shot.id, details: { number: shot.number, deletedAt }, ip: clientIp(req) });
-          await settleShot(shot.id);
-        }
-        res.json({ shot: shotSummary(shot) });
+        res.json({ shot: shotSummary(await markDeleted(req, await shotInLab(req), false)) });
       },
     },
     {
