@@ -4,6 +4,7 @@ import jwt from 'jsonwebtoken';
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
+import { isStreamRoute, readStreamStart } from '../helpers/stream-start.ts';
 import { ApiToken, AuditEvent, Campaign, Invitation, Lab, Membership, Shot, User } from '../../server/db/models/index.ts';
 import { SESSION_COOKIE } from '../../server/lib/authenticate.ts';
 import { readFakeOutbox } from '../../server/dev/fake-smtp.ts';
@@ -631,7 +632,8 @@ describe('lab isolation', () => {
       // Act
       let madeUp = false;
       const url = route.path.replace(/:(\w+)/g, (_, name: string) => own[name] ?? ((madeUp = true), crypto.randomUUID()));
-      const res = await request(h.app).get(url).set('Cookie', cookie);
+      const get = request(h.app).get(url).set('Cookie', cookie);
+      const res = await (isStreamRoute(route) ? readStreamStart(get) : get);
       // Assert
       // The seeded shots have no analysis yet: exporting one is refused with 409 (and still tells nothing of Sandgate).
       const needsAnalysis = /^\/api\/shots\/:shotId\/(export|report\.pdf)$/.test(route.path);

@@ -11,6 +11,7 @@ import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { Analysis, AnalysisBatch, ApiToken, Campaign, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
+import { readStreamStart } from '../helpers/stream-start.ts';
 import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
 
 /** Column order of every row. `null` is the signed-out caller. */
@@ -514,20 +515,7 @@ async function runRow(h: ApiHarness, key: string, row: Row, credential: Credenti
     for (const [name, value] of Object.entries(prepared.headers ?? (await freshAuth()))) req = req.set(name, value);
     if (prepared.attach) req = req.attach(prepared.attach.field, Buffer.from(prepared.attach.content), prepared.attach.name);
     else if (prepared.body !== undefined) req = req.send(prepared.body as object);
-    if (row.stream) {
-      // Resolve on the first chunk of an open stream and hang up (errors still arrive whole, as JSON).
-      req = req.buffer(true).parse((res, done) => {
-        let text = '';
-        res.on('data', (chunk: Buffer) => {
-          text += chunk.toString('utf8');
-          if ((res as unknown as { statusCode: number }).statusCode === 200) {
-            done(null, { text });
-            (res as unknown as { destroy(): void }).destroy();
-          }
-        });
-        res.on('end', () => done(null, (() => { try { return JSON.parse(text) as unknown; } catch { return { text }; } })()));
-      });
-    }
+    if (row.stream) req = readStreamStart(req);
     const res = await req;
     actual.push(res.status);
     if (res.status !== row.expect[actual.length - 1]) {
