@@ -1,5 +1,5 @@
 import { UnrecoverableError, type Job } from 'bullmq';
-import { Op } from 'sequelize';
+import { Op, type Transaction } from 'sequelize';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
@@ -12,6 +12,23 @@ import { readStoredChannels } from '../../server/traces/read-stored-channels.ts'
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { settleShot } from '../../server/modules/shots/settle-shot.ts';
+
+/**
+ * Makes the finished version the shot's current one when it is the newest; returns the withdrawn review request's
+ * details when an older version was waiting for review.
+ */
+async function makeCurrentVersion(analysis: Analysis, transaction: Transaction) {
+  const shot = await Shot.findByPk(analysis.shotId, { transaction, lock: transaction.LOCK.UPDATE });
+  if (!shot) return null;
+  const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction }) : null;
+  if (current && current.version >= analysis.version) return null;
+  // A newer version becomes current whatever the review state, and needs a review of its own: an approval of an
+  // older version stays on record (shots.approved_analysis_id, the reviews table); a pending request about an
+  // older version is withdrawn, so a reviewer never signs off numbers that are no longer the shot's.
+  const wasInReview = shot.status === 'in_review' ? shot.reviewAnalysisId : null;
+  await shot.update({ currentAnalysisId: analysis.id, reviewAnalysisId: null }, { transaction });
+  return wasInReview ? { labId: shot.labId, shotId: shot.id, reviewedAnalysisId: wasInReview } : null;
+}
 
 /**
  * Analysis job: run the engine on the captures the version names (read from their stored channel files), with its stored parameters, and store the
@@ -52,24 +69,18 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
     throw err;
   }
 
+  // The version's state, the shot's pointer and the shot's status change in one transaction: nobody reads the new
+  // current version beside the old status (e.g. still "approved" for the version before).
   const withdrawn = await sequelize.transaction(async (transaction) => {
     const [updated] = await Analysis.update(
       { state: 'done', progress: 100, results: JSON.parse(JSON.stringify(results)), completedAt: new Date(), error: null },
       { where: { id: analysis.id, state: { [Op.ne]: 'done' } }, transaction },
     );
     if (updated === 0) return null;
-    const shot = await Shot.findByPk(analysis.shotId, { transaction, lock: transaction.LOCK.UPDATE });
-    if (!shot) return null;
-    const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction }) : null;
-    if (current && current.version >= analysis.version) return null;
-    // A newer version becomes current whatever the review state, and needs a review of its own: an approval of an
-    // older version stays on record (shots.approved_analysis_id, the reviews table); a pending request about an
-    // older version is withdrawn, so a reviewer never signs off numbers that are no longer the shot's.
-    const wasInReview = shot.status === 'in_review' ? shot.reviewAnalysisId : null;
-    await shot.update({ currentAnalysisId: analysis.id, reviewAnalysisId: null }, { transaction });
-    return wasInReview ? { labId: shot.labId, shotId: shot.id, reviewedAnalysisId: wasInReview } : null;
+    const moved = await makeCurrentVersion(analysis, transaction);
+    await settleShot(analysis.shotId, transaction);
+    return moved;
   });
-  await settleShot(analysis.shotId);
   if (withdrawn) {
     await recordAudit({
       labId: withdrawn.labId, actorId: null, action: 'review.withdrawn', targetType: 'shot', targetId: withdrawn.shotId,
