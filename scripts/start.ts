@@ -17,6 +17,9 @@ const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 process.chdir(root);
 // The children run the compiled build (dist/node, made by buildNode below), not TypeScript through tsx.
 const compiled = (script: string): string => join(root, NODE_BUILD_DIR, script.replace(/\.ts$/, '.js'));
+// Everything this process and its children write (passwords, Redis's files, uploads, channel files, logs) is for
+// this user alone; the data folder itself is opened up just enough for the postgres user to pass through.
+process.umask(0o077);
 const say = (line: string): void => console.log(`[start] ${line}`);
 
 const services: RunningService[] = [];
@@ -108,12 +111,14 @@ async function chooseDataDir(): Promise<string> {
   const chosen = process.env.GATEPOST_DATA_DIR;
   const dir = resolve(chosen || join(root, '.data'));
   mkdirSync(dir, { recursive: true });
+  // The postgres user must pass through to its cluster folder; listing or reading the rest needs no one else.
+  chmodSync(dir, 0o711);
   if (await postgresCanUse(dir)) return dir;
   if (chosen) throw new ServiceError(`GATEPOST_DATA_DIR=${chosen}: the postgres user cannot enter it (a parent folder is private)`);
   const fallback = `/var/tmp/gatepost-${createHash('sha256').update(root).digest('hex').slice(0, 12)}`;
   say(`the postgres user cannot enter ${dir} (a parent folder is private); keeping the data in ${fallback} instead`);
-  mkdirSync(fallback, { recursive: true, mode: 0o755 });
-  chmodSync(fallback, 0o755);
+  mkdirSync(fallback, { recursive: true, mode: 0o711 });
+  chmodSync(fallback, 0o711);
   return fallback;
 }
 
@@ -180,10 +185,16 @@ async function main(): Promise<void> {
   const dataDir = await chooseDataDir();
   say(`data folder ${dataDir}`);
   const secret = jwtSecret(dataDir);
+  // A data folder of an earlier version was readable by every local user: close what it holds (the cluster folder
+  // belongs to the postgres user and is private already).
+  for (const entry of readdirSync(dataDir, { withFileTypes: true })) {
+    if (entry.name !== 'postgres') chmodSync(join(dataDir, entry.name), entry.isDirectory() ? 0o700 : 0o600);
+  }
 
-  await startService(() => startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), say }));
+  // The generated passwords of both are kept in the data folder (mode 600), like the JWT secret.
+  await startService(() => startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), secretsDir: dataDir, say }));
   if (shuttingDown) return;
-  await startService(() => startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, say }));
+  await startService(() => startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, secretsDir: dataDir, say }));
   if (shuttingDown) return;
   const [postgres, redis] = services;
 
