@@ -24,6 +24,7 @@ import { outboxRoutes } from './modules/outbox/routes.ts';
 import { reportRoutes } from './modules/reports/routes.ts';
 import { reviewRoutes } from './modules/reviews/routes.ts';
 import { shotRoutes } from './modules/shots/routes.ts';
+import { storageRoutes } from './modules/storage/routes.ts';
 import { tokenRoutes } from './modules/tokens/routes.ts';
 import { batchRoutes } from './modules/batches/routes.ts';
 import { benchRoutes } from './modules/bench/routes.ts';
@@ -38,6 +39,7 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...authRoutes(deps),
     ...tokenRoutes(),
     ...labRoutes(),
+    ...storageRoutes(deps),
     ...invitationRoutes(deps),
     ...outboxRoutes(deps),
     ...campaignRoutes(),

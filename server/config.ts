@@ -46,6 +46,14 @@ const schema = z.object({
    * so their channels are stored when the last byte is; smaller ones are read by the worker. -1: never.
    */
   readUploadsFromBytes: z.coerce.number().int().min(-1).default(16 * 1024 ** 2),
+  /** Largest upload request (all its files together), refused from its Content-Length before anything is read. */
+  uploadRequestLimitBytes: z.coerce.number().int().positive().default(4 * 1024 ** 3),
+  /** Most channels one capture file may hold; a file with more is refused before its samples are read. */
+  maxChannelsPerCapture: z.coerce.number().int().min(1).default(64),
+  /** Most samples per channel of one capture file (a deep scope record holds tens of millions). */
+  maxSamplesPerChannel: z.coerce.number().int().min(2).default(50_000_000),
+  /** Storage each lab may fill (raw files plus the channel files read from them); 0 for no quota. */
+  labStorageQuotaBytes: z.coerce.number().int().min(0).default(50 * 1024 ** 3),
   /** How long a worker holds a job before another may take it over (stalled-job recovery), ms. */
   jobLockMs: z.coerce.number().int().min(1000).default(30_000),
   /** How often the worker re-queues captures and analyses whose job never reached Redis, ms. */
@@ -84,6 +92,10 @@ const envNames: Record<keyof Config, string> = {
   s3ForcePathStyle: 'GATEPOST_S3_FORCE_PATH_STYLE',
   uploadLimitBytes: 'GATEPOST_UPLOAD_LIMIT_BYTES',
   readUploadsFromBytes: 'GATEPOST_READ_UPLOADS_FROM_BYTES',
+  uploadRequestLimitBytes: 'GATEPOST_UPLOAD_REQUEST_LIMIT_BYTES',
+  maxChannelsPerCapture: 'GATEPOST_MAX_CHANNELS_PER_CAPTURE',
+  maxSamplesPerChannel: 'GATEPOST_MAX_SAMPLES_PER_CHANNEL',
+  labStorageQuotaBytes: 'GATEPOST_LAB_STORAGE_QUOTA_BYTES',
   jobLockMs: 'GATEPOST_JOB_LOCK_MS',
   sweepIntervalMs: 'GATEPOST_SWEEP_INTERVAL_MS',
 };

@@ -189,6 +189,10 @@ const MATRIX: Record<string, Row> = {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b) => expect(b).toMatchObject({ members: expect.arrayContaining([expect.objectContaining({ email: 'ines.calder@hollowmere.example', role: 'admin' })]) }),
   },
+  'GET /api/labs/:labId/storage': {
+    expect: [200, 403, 403, 403, 404, 401],
+    shape: (b) => expect(b).toMatchObject({ storage: { usedBytes: expect.any(Number) }, limits: { channelsPerCapture: 64 } }),
+  },
   'PATCH /api/labs/:labId/members/:userId': {
     expect: [200, 403, 403, 403, 404, 401],
     prepare: async ({ demo }) => ({ params: { userId: await freshMember(demo) }, body: { role: 'reviewer' } }),

@@ -6,20 +6,24 @@ import { ImportError } from '../../shared/import/import-error.ts';
 import { Capture } from '../../server/db/models/index.ts';
 import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../../server/modules/analyses/service.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
+import { AppError } from '../../server/lib/errors.ts';
+import { assertStorageRoom, estimateChannelFileBytes } from '../../server/modules/storage/service.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { settleShotFromCaptures } from '../settle-shot.ts';
 
 /** Reads the stored raw file, writes the channel files and records what was detected: the capture is ready. */
 async function readAndStore(job: Job, capture: Capture): Promise<void> {
-  const { blobStore } = workerContext();
+  const { blobStore, config } = workerContext();
   await capture.update({ state: 'reading', progress: 10, error: null });
   await job.updateProgress(10);
   let imported;
   try {
-    imported = await readStoredCapture(blobStore, capture);
+    imported = await readStoredCapture(blobStore, capture, { maxChannels: config.maxChannelsPerCapture, maxSamples: config.maxSamplesPerChannel });
+    const channelBytes = estimateChannelFileBytes(imported.length, imported.channels.length, imported.time.kind === 'explicit');
+    await assertStorageRoom(config, capture.labId, channelBytes, 'Reading this file into channels');
   } catch (err) {
-    if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError) {
+    if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || (err instanceof AppError && err.code === 'storage_quota')) {
       // A file that cannot be read stays stored and says why; retrying cannot change its bytes.
       await capture.update({ state: 'failed', progress: 100, error: err.message });
       await settleShotFromCaptures(capture.shotId);

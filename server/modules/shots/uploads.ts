@@ -11,12 +11,16 @@ import { AppError, badRequest } from '../../lib/errors.ts';
 import { captureFilesPrefix, placeChannelFiles, putChannelBlobs } from '../../traces/write-channel-files.ts';
 import { captureIntake, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
+import { formatBytes } from '../../../shared/units/format-bytes.ts';
+import { assertStorageRoom } from '../storage/service.ts';
 
 export const MAX_FILES_PER_UPLOAD = 32;
 
 /** Runs multer on this request (after the access guard, so nobody unauthorised can fill the disk). */
 function receiveFiles(deps: Deps, req: Request, res: Response): Promise<(Express.Multer.File & ReceivedFile)[]> {
-  const storage = captureIntake({ store: deps.blobStore, uploadsDir: path.join(deps.config.dataDir, 'uploads'), readFromBytes: deps.config.readUploadsFromBytes });
+  const storage = captureIntake({ store: deps.blobStore, uploadsDir: path.join(deps.config.dataDir, 'uploads'), readFromBytes: deps.config.readUploadsFromBytes,
+    limits: { maxChannels: deps.config.maxChannelsPerCapture, maxSamples: deps.config.maxSamplesPerChannel },
+  });
   const upload = multer({
     storage,
     limits: { fileSize: deps.config.uploadLimitBytes, files: MAX_FILES_PER_UPLOAD },
@@ -38,6 +42,13 @@ function receiveFiles(deps: Deps, req: Request, res: Response): Promise<(Express
   });
 }
 
+function assertRequestSize(deps: Deps, bytes: number): void {
+  if (bytes <= deps.config.uploadRequestLimitBytes) return;
+  throw new AppError(413, 'bad_upload',
+    `This upload is ${formatBytes(bytes)}; this installation accepts at most ${formatBytes(deps.config.uploadRequestLimitBytes)} per upload. ` +
+    'Send the files in several uploads. Nothing was stored.');
+}
+
 export interface UploadedCaptureView {
   id: string;
   fileName: string;
@@ -54,10 +65,20 @@ export interface UploadedCaptureView {
  * the capture row is the record of work to do, so nothing is lost.
  */
 export async function acceptUpload(deps: Deps, req: Request, res: Response, shot: Shot): Promise<UploadedCaptureView[]> {
+  // The request's declared size is checked against both limits before a byte of it is read.
+  const declared = Number(req.headers['content-length']);
+  if (Number.isFinite(declared)) {
+    assertRequestSize(deps, declared);
+    await assertStorageRoom(deps.config, shot.labId, declared, 'This upload');
+  }
   const files = await receiveFiles(deps, req, res);
   const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
   try {
     if (files.length === 0) throw badRequest('No file received: send one or more scope CSV files in the multipart field "files".');
+    // A body sent without Content-Length (chunked) is checked once received, before anything is stored.
+    const received = files.reduce((sum, file) => sum + file.size, 0);
+    assertRequestSize(deps, received);
+    await assertStorageRoom(deps.config, shot.labId, received, 'This upload');
     const views: UploadedCaptureView[] = [];
     for (const file of files) {
       const { sha256 } = file;

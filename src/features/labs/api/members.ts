@@ -9,6 +9,7 @@ export const labKeys = {
   members: (labId: string) => [...labKeys.all(labId), 'members'] as const,
   invitations: (labId: string) => [...labKeys.all(labId), 'invitations'] as const,
   outbox: (labId: string) => [...labKeys.all(labId), 'outbox'] as const,
+  storage: (labId: string) => [...labKeys.all(labId), 'storage'] as const,
   audit: (labId: string) => [...labKeys.all(labId), 'audit'] as const,
   campaigns: (labId: string) => [...labKeys.all(labId), 'campaigns'] as const,
   campaign: (labId: string, id: string) => [...labKeys.campaigns(labId), id] as const,

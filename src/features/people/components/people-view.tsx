@@ -5,6 +5,7 @@ import { Badge, Button, Card, EmptyState, ErrorNote, Loading, SelectField, TextF
 import { formatDate } from '../../../lib/format.ts';
 import { useChangeRole, useMembers } from '../../labs/api/members.ts';
 import { useInvitations, useInvite, useWithdrawInvitation } from '../api/invitations.ts';
+import { StorageCard } from './storage-card.tsx';
 
 function InviteForm({ labId }: { labId: string }) {
   const invite = useInvite(labId);
@@ -95,6 +96,7 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
           <Invitations labId={labId} />
         </Card>
       )}
+      {isAdmin && <StorageCard labId={labId} />}
     </div>
   );
 }
