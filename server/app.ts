@@ -38,7 +38,7 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...healthRoutes(deps),
     ...authRoutes(deps),
     ...tokenRoutes(),
-    ...labRoutes(),
+    ...labRoutes(deps),
     ...storageRoutes(deps),
     ...invitationRoutes(deps),
     ...outboxRoutes(deps),

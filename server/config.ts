@@ -23,9 +23,12 @@ const schema = z.object({
   mailFrom: z.string().default('Gatepost <no-reply@gatepost.invalid>'),
   /** "fake": mail goes to the local fake SMTP server and admins can read it in the app (development, tests). */
   mailOutbox: z.enum(['fake', 'smtp']).default('fake'),
-  /** Failed sign-ins allowed per account (and per address) in one window before sign-in is refused. */
+  /** Failed sign-ins allowed on one account from one address in a window before that address is refused for it. */
   loginMaxFailures: z.coerce.number().int().min(1).default(5),
   loginWindowSeconds: z.coerce.number().int().min(1).default(15 * 60),
+  /** Progressive delay of sign-ins once failures pile up: first step, doubling up to the longest, ms. */
+  loginDelayStepMs: z.coerce.number().int().min(0).default(250),
+  loginMaxDelayMs: z.coerce.number().int().min(0).default(8000),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   clientDir: z.string().default('dist/client'),
   /** Where raw files and channel files are kept: "local" (under `<dataDir>/blobs`) or an S3-compatible bucket. */
@@ -81,6 +84,8 @@ const envNames: Record<keyof Config, string> = {
   mailOutbox: 'GATEPOST_MAIL_OUTBOX',
   loginMaxFailures: 'GATEPOST_LOGIN_MAX_FAILURES',
   loginWindowSeconds: 'GATEPOST_LOGIN_WINDOW_SECONDS',
+  loginDelayStepMs: 'GATEPOST_LOGIN_DELAY_STEP_MS',
+  loginMaxDelayMs: 'GATEPOST_LOGIN_MAX_DELAY_MS',
   logLevel: 'GATEPOST_LOG_LEVEL',
   clientDir: 'GATEPOST_CLIENT_DIR',
   storage: 'GATEPOST_STORAGE',

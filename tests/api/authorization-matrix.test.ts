@@ -202,6 +202,10 @@ const MATRIX: Record<string, Row> = {
     expect: [204, 403, 403, 403, 404, 401],
     prepare: async ({ demo }) => ({ params: { userId: await freshMember(demo) } }),
   },
+  'POST /api/labs/:labId/members/:userId/unlock-sign-in': {
+    expect: [204, 403, 403, 403, 404, 401],
+    prepare: async ({ demo }) => ({ params: { userId: demo.users.experimenter.id } }),
+  },
   'GET /api/labs/:labId/invitations': {
     expect: [200, 403, 403, 403, 404, 401],
     shape: (b) => expect(b).toEqual({ invitations: expect.any(Array) }),
