@@ -72,7 +72,9 @@ export function allRoutes(deps: Deps): RouteDef[] {
 export function buildApp(deps: Deps): Express {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // X-Forwarded-For only from the proxy the settings name (GATEPOST_TRUST_PROXY); otherwise the socket's address.
+  const proxies = deps.config.trustProxy.split(',').map((p) => p.trim()).filter(Boolean);
+  app.set('trust proxy', proxies.length > 0 ? proxies : false);
   app.use(
     helmet({
       contentSecurityPolicy: {

@@ -29,6 +29,12 @@ const schema = z.object({
   /** Progressive delay of sign-ins once failures pile up: first step, doubling up to the longest, ms. */
   loginDelayStepMs: z.coerce.number().int().min(0).default(250),
   loginMaxDelayMs: z.coerce.number().int().min(0).default(8000),
+  /**
+   * The reverse proxy in front of the API, whose X-Forwarded-For is believed (the client's address for sign-in
+   * limits and the audit trail): addresses or subnets, comma-separated (e.g. "127.0.0.1" or "10.0.0.0/8"). Unset:
+   * no proxy, the header is ignored, so no local client can forge its address.
+   */
+  trustProxy: z.string().default(''),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   clientDir: z.string().default('dist/client'),
   /** Where raw files and channel files are kept: "local" (under `<dataDir>/blobs`) or an S3-compatible bucket. */
@@ -86,6 +92,7 @@ const envNames: Record<keyof Config, string> = {
   loginWindowSeconds: 'GATEPOST_LOGIN_WINDOW_SECONDS',
   loginDelayStepMs: 'GATEPOST_LOGIN_DELAY_STEP_MS',
   loginMaxDelayMs: 'GATEPOST_LOGIN_MAX_DELAY_MS',
+  trustProxy: 'GATEPOST_TRUST_PROXY',
   logLevel: 'GATEPOST_LOG_LEVEL',
   clientDir: 'GATEPOST_CLIENT_DIR',
   storage: 'GATEPOST_STORAGE',

@@ -29,3 +29,10 @@ export function useChangeRole(labId: string) {
     onSettled: () => queryClient.invalidateQueries({ queryKey: labKeys.members(labId) }),
   });
 }
+
+/** Clears a member's failed sign-ins (lab admins), so a member refused after mistyped passwords can sign in at once. */
+export function useUnlockSignIn(labId: string) {
+  return useMutation({
+    mutationFn: (userId: string) => api.post(`/api/labs/${labId}/members/${userId}/unlock-sign-in`, {}),
+  });
+}
