@@ -8,6 +8,7 @@ import type { Deps } from './lib/deps.ts';
 import { createErrorHandler } from './lib/error-handler.ts';
 import { notFound } from './lib/errors.ts';
 import { buildOpenApi } from './lib/openapi.ts';
+import { createSameOriginCheck } from './lib/same-origin.ts';
 import { mountRoutes, type RouteDef } from './lib/routes.ts';
 import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
@@ -100,6 +101,7 @@ export function buildApp(deps: Deps): Express {
     res.set('Cache-Control', 'no-store');
     next();
   });
+  app.use('/api', createSameOriginCheck(deps.config.publicUrl));
   app.use('/api', createAuthenticate({ jwtSecret: deps.config.jwtSecret, redis: deps.redis }));
 
   const router = express.Router();
