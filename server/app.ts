@@ -38,7 +38,7 @@ export function allRoutes(deps: Deps): RouteDef[] {
   const routes: RouteDef[] = [
     ...healthRoutes(deps),
     ...authRoutes(deps),
-    ...tokenRoutes(),
+    ...tokenRoutes(deps),
     ...labRoutes(deps),
     ...storageRoutes(deps),
     ...invitationRoutes(deps),

@@ -199,8 +199,9 @@ describe('sign-in rate limit', () => {
 });
 
 describe('personal API tokens', () => {
-  async function createToken(cookie: string, body: object) {
-    const res = await request(h.app).post('/api/me/tokens').set('Cookie', cookie).send(body);
+  /** Creates a token in a session of `user`, confirmed with the user's password (issue 12, item 6). */
+  async function createToken(user: { id: string; password: string }, body: object) {
+    const res = await request(h.app).post('/api/me/tokens').set('Cookie', h.sessionCookie(user.id)).send({ ...body, password: user.password });
     expect(res.status).toBe(201);
     return res.body as { token: { id: string; prefix: string }; secret: string };
   }
@@ -209,7 +210,7 @@ describe('personal API tokens', () => {
   it('When a personal API token is sent as Bearer, then the API knows the user and shows via "token"', async () => {
     // Arrange
     const analyst = demo.users.analyst;
-    const { token, secret } = await createToken(h.sessionCookie(analyst.id), { name: 'nightly export' });
+    const { token, secret } = await createToken(analyst, { name: 'nightly export' });
     // Act
     const res = await me(secret);
     // Assert
@@ -219,7 +220,7 @@ describe('personal API tokens', () => {
     const row = await ApiToken.findByPk(token.id, { rejectOnEmpty: true });
     expect(row.tokenHash).toBe(sha256Hex(secret));
     expect(secret.startsWith(token.prefix)).toBe(true);
-    const list = await request(h.app).get('/api/me/tokens').set('Authorization', `Bearer ${secret}`);
+    const list = await request(h.app).get('/api/me/tokens').set('Cookie', h.sessionCookie(analyst.id));
     expect(JSON.stringify(list.body)).not.toContain(secret);
     expect(list.body.tokens[0]).toMatchObject({ id: token.id, name: 'nightly export', lastUsedAt: expect.any(String), revokedAt: null });
   });
@@ -227,7 +228,7 @@ describe('personal API tokens', () => {
   it('When the token is revoked, then it stops working with 401', async () => {
     // Arrange
     const cookie = h.sessionCookie(demo.users.experimenter.id);
-    const { token, secret } = await createToken(cookie, { name: 'rig logger' });
+    const { token, secret } = await createToken(demo.users.experimenter, { name: 'rig logger' });
     expect((await me(secret)).status).toBe(200);
     // Act
     const revoke = await request(h.app).delete(`/api/me/tokens/${token.id}`).set('Cookie', cookie);
@@ -240,7 +241,7 @@ describe('personal API tokens', () => {
 
   it('When the token has expired, then it stops working with 401', async () => {
     // Arrange
-    const { token, secret } = await createToken(h.sessionCookie(demo.users.reviewer.id), { name: 'weekly report', expiresInDays: 1 });
+    const { token, secret } = await createToken(demo.users.reviewer, { name: 'weekly report', expiresInDays: 1 });
     expect((await me(secret)).status).toBe(200);
     // Act: move its expiry into the past, as a day passing would.
     await h.sequelize.query("UPDATE api_tokens SET expires_at = now() - interval '1 second' WHERE id = $1", { bind: [token.id] });
@@ -251,7 +252,7 @@ describe('personal API tokens', () => {
 
   it("When a user tries to revoke another user's token, then the answer is 404 and the token keeps working", async () => {
     // Arrange
-    const { token, secret } = await createToken(h.sessionCookie(demo.users.analyst.id), { name: 'private script' });
+    const { token, secret } = await createToken(demo.users.analyst, { name: 'private script' });
     // Act
     const res = await request(h.app).delete(`/api/me/tokens/${token.id}`).set('Cookie', h.sessionCookie(demo.users.admin.id));
     // Assert
@@ -520,7 +521,7 @@ describe('security headers', () => {
 describe('audit trail', () => {
   it('When raw SQL tries to UPDATE or DELETE audit events, then the database refuses and the rows stay', async () => {
     // Arrange: at least one event exists (creating an API token is audited).
-    await request(h.app).post('/api/me/tokens').set('Cookie', h.sessionCookie(demo.users.analyst.id)).send({ name: 'audit probe' });
+    await request(h.app).post('/api/me/tokens').set('Cookie', h.sessionCookie(demo.users.analyst.id)).send({ name: 'audit probe', password: demo.users.analyst.password });
     const before = await AuditEvent.count();
     expect(before).toBeGreaterThan(0);
     // Act + Assert

@@ -238,7 +238,7 @@ describe('When Redis is briefly down while a file is uploaded', () => {
     const shotId = await newShot(exitRigId);
     // Sessions are checked against Redis (revoked sign-ins); API tokens only against PostgreSQL, so a script with
     // a token can still upload while Redis is away.
-    const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'redis outage script' });
+    const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'redis outage script', password: demo.users.experimenter.password });
     expect(created.status).toBe(201);
     const bearer = { authorization: `Bearer ${created.body.secret}` };
     const redis = throwawayRedis();

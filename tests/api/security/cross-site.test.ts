@@ -51,7 +51,7 @@ describe('cross-site requests with the session cookie', () => {
   });
 
   it('When a script sends a Bearer token, then Origin and Sec-Fetch-Site do not matter', async () => {
-    const created = await request(h.app).post('/api/me/tokens').set('Cookie', h.sessionCookie(demo.users.experimenter.id)).send({ name: 'bench script' });
+    const created = await request(h.app).post('/api/me/tokens').set('Cookie', h.sessionCookie(demo.users.experimenter.id)).send({ name: 'bench script', password: demo.users.experimenter.password });
     expect(created.status).toBe(201);
     const res = await upload({ Authorization: `Bearer ${created.body.secret}`, Origin: 'http://127.0.0.1:9999', 'Sec-Fetch-Site': 'same-site' }, 'bearer');
     expect(res.status).toBe(202);
