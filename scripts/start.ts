@@ -10,7 +10,7 @@ import {
   DEFAULT_PORTS, ServiceError, ensureDebianPackages, isPortFree, portFromEnv, postgresCanUse, startPostgres, startRedis,
   type RunningService,
 } from './lib/services.ts';
-import { describeExit, spawnChild, waitForHttp, type ChildHandle } from './lib/processes.ts';
+import { describeExit, spawnChild, superviseChild, waitForHttp, type SupervisedChild } from './lib/processes.ts';
 import { buildNode, nodeBuildIsCurrent, NODE_BUILD_DIR } from './lib/build-node.ts';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
@@ -25,7 +25,7 @@ const say = (line: string): void => console.log(`[start] ${line}`);
 const services: RunningService[] = [];
 // A database being started when a stop request comes: the shutdown waits for it, then stops it too.
 let serviceStarting: Promise<unknown> = Promise.resolve();
-const children: ChildHandle[] = [];
+const children: Array<{ stop(timeoutMs?: number): Promise<unknown> }> = [];
 let shuttingDown: Promise<never> | null = null;
 
 /** Stops the children (newest first), then Redis, then PostgreSQL, and exits with `code`. Runs once. */
@@ -93,13 +93,13 @@ async function step(name: string, command: string, args: string[], env: NodeJS.P
   if (status.code !== 0) await shutdown(1, `${name} failed (${describeExit(status)}): stopping everything`);
 }
 
-/** A long-running child; its exit while we are not shutting down stops everything with a non-zero code. */
-function keepRunning(name: string, script: string, env: NodeJS.ProcessEnv): ChildHandle {
-  const child = spawnChild({ name, command: process.execPath, args: [compiled(script)], env });
+/**
+ * A long-running child: if it crashes, it is started again after a growing wait (1 s, 2 s, … 30 s) while the rest
+ * keeps running; a job it was running is taken over by the next worker (BullMQ's stalled-job recovery).
+ */
+function keepRunning(name: string, script: string, env: NodeJS.ProcessEnv): SupervisedChild {
+  const child = superviseChild({ name, command: process.execPath, args: [compiled(script)], env, say: (line) => console.error(`[start] ${line}`) });
   children.push(child);
-  void child.exited.then((status) => {
-    if (!shuttingDown) void shutdown(1, `${name} exited unexpectedly (${describeExit(status)}): stopping everything`);
-  });
   return child;
 }
 
@@ -233,7 +233,8 @@ async function main(): Promise<void> {
   const worker = keepRunning('worker', 'worker/index.ts', env);
 
   try {
-    await waitForHttp(`${publicUrl}/api/health`, { timeoutMs: 90_000, watch: [api, worker] });
+    // A child that cannot even start (a bad setting) fails the start instead of being restarted for ever.
+    await waitForHttp(`${publicUrl}/api/health`, { timeoutMs: 90_000, watch: [api.current(), worker.current()] });
   } catch (error) {
     if (!shuttingDown) await shutdown(1, `${(error as Error).message}: stopping everything`);
     return;
