@@ -198,7 +198,9 @@ async function main(): Promise<void> {
   if (shuttingDown) return;
   const [postgres, redis] = services;
 
-  const publicUrl = `http://127.0.0.1:${webPort}`;
+  // The server listens on loopback; the address people use may be a reverse proxy's (https: Secure cookies, HSTS).
+  const localUrl = `http://127.0.0.1:${webPort}`;
+  const publicUrl = process.env.GATEPOST_PUBLIC_URL || localUrl;
   const env: NodeJS.ProcessEnv = {
     ...process.env,
     GATEPOST_DATABASE_URL: postgres.url,
@@ -234,18 +236,18 @@ async function main(): Promise<void> {
 
   try {
     // A child that cannot even start (a bad setting) fails the start instead of being restarted for ever.
-    await waitForHttp(`${publicUrl}/api/health`, { timeoutMs: 90_000, watch: [api.current(), worker.current()] });
+    await waitForHttp(`${localUrl}/api/health`, { timeoutMs: 90_000, watch: [api.current(), worker.current()] });
   } catch (error) {
     if (!shuttingDown) await shutdown(1, `${(error as Error).message}: stopping everything`);
     return;
   }
-  const firstPage = await fetch(`${publicUrl}/`).then((response) => response.status, (error: Error) => error.message);
+  const firstPage = await fetch(`${localUrl}/`).then((response) => response.status, (error: Error) => error.message);
   if (shuttingDown) return;
   // performance.now() counts from the start of this process, so the time includes Node's own start-up.
   const seconds = (performance.now() / 1000).toFixed(1);
   const lines = [
     '',
-    `Gatepost is running at ${publicUrl}  (ready in ${seconds} s)`,
+    `Gatepost is running at ${publicUrl}  (ready in ${seconds} s)${publicUrl === localUrl ? '' : `; it listens on ${localUrl}`}`,
     ...(firstPage === 200 ? [] : [`  warning: GET / answered ${firstPage}, not 200`]),
     '',
     'Demo sign-ins (role, e-mail, password):',

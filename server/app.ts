@@ -111,6 +111,8 @@ export function buildApp(deps: Deps): Express {
 
   const clientDir = path.resolve(deps.config.clientDir);
   if (existsSync(path.join(clientDir, 'index.html'))) {
+    // A build folder left over from an earlier version may still hold source maps: never serve them.
+    app.use((req, _res, next) => (req.path.endsWith('.map') ? next(notFound('No such file.')) : next()));
     app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
     app.get('/{*splat}', (_req, res) => res.sendFile(path.join(clientDir, 'index.html')));
   }

@@ -114,6 +114,12 @@ const envNames: Record<keyof Config, string> = {
 
 export class ConfigError extends Error {}
 
+/** True for http(s) URLs of this machine only: localhost, 127.0.0.0/8 or ::1. */
+export function isLoopbackUrl(url: string): boolean {
+  const host = new URL(url).hostname.replace(/^\[|\]$/g, '');
+  return host === 'localhost' || host === '::1' || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(host);
+}
+
 /** Reads the configuration from `env`; `overrides` (tests) win over the environment. */
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
   const raw: Record<string, unknown> = {};
@@ -130,8 +136,12 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     throw new ConfigError(`Invalid configuration:\n  ${lines.join('\n  ')}`);
   }
   const config = parsed.data;
-  if (config.nodeEnv === 'production' && config.jwtSecret.startsWith('development-only')) {
-    throw new ConfigError('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
+  if (config.jwtSecret.startsWith('development-only')) {
+    // Anyone who reads this file could sign sessions with it: only a loopback-only development server may use it.
+    if (config.nodeEnv === 'production') throw new ConfigError('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
+    if (!isLoopbackUrl(config.publicUrl)) {
+      throw new ConfigError(`Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set when GATEPOST_PUBLIC_URL (${config.publicUrl}) is not a loopback address`);
+    }
   }
   return config;
 }
