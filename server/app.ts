@@ -9,6 +9,7 @@ import { createErrorHandler } from './lib/error-handler.ts';
 import { notFound } from './lib/errors.ts';
 import { buildOpenApi } from './lib/openapi.ts';
 import { createSameOriginCheck } from './lib/same-origin.ts';
+import { rejectUnstorableText } from './lib/text-input.ts';
 import { mountRoutes, type RouteDef } from './lib/routes.ts';
 import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
@@ -91,7 +92,7 @@ export function buildApp(deps: Deps): Express {
     }),
   );
   app.use(cookieParser());
-  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', express.json({ limit: '1mb' }), rejectUnstorableText);
   app.use('/api', (req, res, next) => {
     const started = process.hrtime.bigint();
     res.on('finish', () => {

@@ -37,6 +37,11 @@ function receiveFiles(deps: Deps, req: Request, res: Response): Promise<(Express
         };
         return reject(new AppError(err.code === 'LIMIT_FILE_SIZE' ? 413 : 400, 'bad_upload', messages[err.code] ?? `Upload refused: ${err.message}`));
       }
+      // busboy's own parse errors: the body is not well-formed multipart (a NUL in a file name ends up here too).
+      if (err instanceof Error && /^(Malformed|Unexpected end of form|Multipart: Boundary not found)/.test(err.message)) {
+        return reject(new AppError(400, 'bad_upload',
+          `The upload is not well-formed multipart/form-data (${err.message.toLowerCase()}); a file name holding a NUL or another control character does this. Nothing was stored.`));
+      }
       reject(err);
     });
   });
@@ -65,6 +70,11 @@ export interface UploadedCaptureView {
  * the capture row is the record of work to do, so nothing is lost.
  */
 export async function acceptUpload(deps: Deps, req: Request, res: Response, shot: Shot): Promise<UploadedCaptureView[]> {
+  // busboy reads plain multipart only; a compressed body would fail half-way through.
+  const encoding = (req.headers['content-encoding'] ?? 'identity').toLowerCase();
+  if (encoding !== 'identity') {
+    throw new AppError(400, 'bad_upload', `Send the files without Content-Encoding (this upload came as ${encoding}); scope CSV files are taken as they are. Nothing was stored.`);
+  }
   // The request's declared size is checked against both limits before a byte of it is read.
   const declared = Number(req.headers['content-length']);
   if (Number.isFinite(declared)) {
