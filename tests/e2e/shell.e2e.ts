@@ -41,6 +41,27 @@ async function signIn(page: Page, email: string, password: string) {
 const navLabels = (page: Page) => page.getByRole('navigation', { name: 'Lab sections' }).getByRole('link').allTextContents();
 
 describe('client shell', () => {
+  it('When sign-out fails (Redis away: 503), then the page says so and stays, instead of pretending the session ended (issue 12, item 11)', async () => {
+    const user = harness.demo.users.analyst;
+    const context = await launchBrowser();
+    try {
+      const page = await context.newPage();
+      await signIn(page, user.email, user.password);
+      await page.waitForURL(`**/labs/${harness.demo.labs.hollowmere.id}/campaigns`);
+      // The answer the API gives while Redis is down (tests/api/security/sign-out.test.ts), served to the page.
+      await page.route('**/api/auth/logout', (route) => route.fulfill({
+        status: 503, contentType: 'application/json',
+        body: JSON.stringify({ error: { code: 'service_unavailable', message: 'Sign-out could not be recorded just now, so you are still signed in. Try again in a moment.' } }),
+      }));
+      await page.getByRole('button', { name: 'Sign out' }).click();
+      await page.getByRole('alert').filter({ hasText: 'Sign-out failed' }).waitFor();
+      expect(page.url()).toContain('/campaigns');
+      await saveScreenshot(page, 'shell-sign-out-failed');
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
   for (const role of Object.keys(NAV_BY_ROLE) as (keyof typeof NAV_BY_ROLE)[]) {
     it(`When the ${role} signs in, then they see their lab with the ${role}'s navigation, and sign-out ends the session`, async () => {
       const user = harness.demo.users[role];

@@ -5,7 +5,7 @@ import { recordAudit } from '../../lib/audit.ts';
 import { revokedSessionKey, SESSION_COOKIE } from '../../lib/authenticate.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
-import { AppError, tooManyRequests } from '../../lib/errors.ts';
+import { AppError, serviceUnavailable, tooManyRequests } from '../../lib/errors.ts';
 import { verifyAgainstDummy, verifyPassword } from '../../lib/passwords.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { signSession } from '../../lib/tokens.ts';
@@ -94,7 +94,12 @@ export function authRoutes(deps: Deps): RouteDef[] {
         const auth = req.auth;
         if (auth?.via === 'session' && auth.sessionId && auth.expiresAt) {
           const ttl = Math.max(1, Math.ceil((auth.expiresAt.getTime() - Date.now()) / 1000));
-          await deps.redis.set(revokedSessionKey(auth.sessionId), '1', 'EX', ttl);
+          try {
+            await deps.redis.set(revokedSessionKey(auth.sessionId), '1', 'EX', ttl);
+          } catch (err) {
+            // The cookie stays: the session is still valid, and the person must know it (issue 12, item 11).
+            throw serviceUnavailable('Sign-out could not be recorded just now, so you are still signed in. Try again in a moment.', err);
+          }
           await recordAudit({ labId: null, actorId: auth.userId, action: 'auth.logout', ip: clientIp(req) });
         }
         res.clearCookie(SESSION_COOKIE, { path: '/' });
