@@ -289,8 +289,11 @@ describe('invitations', () => {
     expect(peek.status).toBe(404);
     expect(ownOutbox.status).toBe(200);
     expect(ownOutbox.body.messages).toEqual([]);
-    const link = /https?:\/\/\S+\/invite\/([A-Za-z0-9_-]+)/.exec(mail!.text);
-    expect(link, mail!.text).not.toBeNull();
+    // The admin sees that it was sent, not the link (issue 12, item 9); the addressee's mailbox holds it.
+    expect(mail!.text).toContain('/invite/[only the addressee sees this link]');
+    const delivered = (await readFakeOutbox(h.redis)).find((m) => m.to.includes(email))!;
+    const link = /https?:\/\/\S+\/invite\/([A-Za-z0-9_-]+)/.exec(delivered.text);
+    expect(link, delivered.text).not.toBeNull();
     expect(link![0].startsWith(h.config.publicUrl)).toBe(true);
     const token = link![1];
 
