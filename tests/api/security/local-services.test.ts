@@ -4,33 +4,15 @@
 // version (trust for everyone, Redis without a password).
 import { execFileSync } from 'node:child_process';
 import { chmodSync, mkdirSync, mkdtempSync, readFileSync, rmSync, statSync } from 'node:fs';
-import { createRequire } from 'node:module';
 import { connect } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Redis from 'ioredis';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { query } from '../../helpers/pg-query.ts';
 import {
   findPostgresBinDir, freePort, scramSha256Verifier, startPostgres, startRedis, stopPostgresAt, type RunningService,
 } from '../../../scripts/lib/services.ts';
-
-// pg ships no type declarations (@types/pg is not installed); this is the part of its API used here.
-interface PgClient {
-  connect(): Promise<void>;
-  query(sql: string, values?: unknown[]): Promise<{ rows: Array<Record<string, unknown>> }>;
-  end(): Promise<void>;
-}
-const { Client } = createRequire(import.meta.url)('pg') as { Client: new (options: { connectionString: string }) => PgClient };
-
-async function query(url: string, sql: string): Promise<Array<Record<string, unknown>>> {
-  const client = new Client({ connectionString: url });
-  await client.connect();
-  try {
-    return (await client.query(sql)).rows;
-  } finally {
-    await client.end();
-  }
-}
 
 /** `url` with its user, password or database changed: what another local program might try. */
 function variant(url: string, change: { user?: string; password?: string; database?: string }): string {
