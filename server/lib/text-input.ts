@@ -2,6 +2,7 @@ import type { NextFunction, Request, Response } from 'express';
 import { badRequest } from './errors.ts';
 
 /** A NUL character, or a UTF-16 surrogate without its partner (no Unicode character; PostgreSQL stores neither). */
+// eslint-disable-next-line no-control-regex -- NUL is exactly what this looks for.
 const UNSTORABLE = /\u0000|[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
 
 /** The first place in `value` holding a string PostgreSQL cannot store, as a path ("notes", "gates[1].name"). */
