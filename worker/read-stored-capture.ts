@@ -13,7 +13,7 @@ import { checkChannelCount, checkSampleCount, type CaptureLimits } from './impor
  */
 export async function readStoredCapture(store: BlobStore, capture: Capture, limits: CaptureLimits = {}): Promise<ImportedCapture> {
   // The installation's limits win over anything stored with the capture.
-  const options = { ...((capture.importOptions ?? {}) as Record<string, unknown>), ...limits };
+  const options: Record<string, unknown> = { ...((capture.importOptions ?? {}) as Record<string, unknown>), ...limits };
   const local = store.localPathOf?.(capture.storageKey);
   const read = async (extra: Record<string, unknown>) => {
     const stream: Readable = store.openRead(capture.storageKey);
