@@ -8,5 +8,6 @@ export default defineConfig({
     port: Number(process.env.GATEPOST_VITE_PORT ?? 5173),
     proxy: { '/api': `http://127.0.0.1:${process.env.GATEPOST_PORT ?? 8640}` },
   },
-  build: { outDir: 'dist/client', sourcemap: true },
+  // No source maps: the production build does not hand out its sources (issue 12, item 13).
+  build: { outDir: 'dist/client', sourcemap: false },
 });

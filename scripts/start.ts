@@ -10,19 +10,22 @@ import {
   DEFAULT_PORTS, ServiceError, ensureDebianPackages, isPortFree, portFromEnv, postgresCanUse, startPostgres, startRedis,
   type RunningService,
 } from './lib/services.ts';
-import { describeExit, spawnChild, waitForHttp, type ChildHandle } from './lib/processes.ts';
+import { describeExit, spawnChild, superviseChild, waitForHttp, type SupervisedChild } from './lib/processes.ts';
 import { buildNode, nodeBuildIsCurrent, NODE_BUILD_DIR } from './lib/build-node.ts';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 process.chdir(root);
 // The children run the compiled build (dist/node, made by buildNode below), not TypeScript through tsx.
 const compiled = (script: string): string => join(root, NODE_BUILD_DIR, script.replace(/\.ts$/, '.js'));
+// Everything this process and its children write (passwords, Redis's files, uploads, channel files, logs) is for
+// this user alone; the data folder itself is opened up just enough for the postgres user to pass through.
+process.umask(0o077);
 const say = (line: string): void => console.log(`[start] ${line}`);
 
 const services: RunningService[] = [];
 // A database being started when a stop request comes: the shutdown waits for it, then stops it too.
 let serviceStarting: Promise<unknown> = Promise.resolve();
-const children: ChildHandle[] = [];
+const children: Array<{ stop(timeoutMs?: number): Promise<unknown> }> = [];
 let shuttingDown: Promise<never> | null = null;
 
 /** Stops the children (newest first), then Redis, then PostgreSQL, and exits with `code`. Runs once. */
@@ -90,13 +93,13 @@ async function step(name: string, command: string, args: string[], env: NodeJS.P
   if (status.code !== 0) await shutdown(1, `${name} failed (${describeExit(status)}): stopping everything`);
 }
 
-/** A long-running child; its exit while we are not shutting down stops everything with a non-zero code. */
-function keepRunning(name: string, script: string, env: NodeJS.ProcessEnv): ChildHandle {
-  const child = spawnChild({ name, command: process.execPath, args: [compiled(script)], env });
+/**
+ * A long-running child: if it crashes, it is started again after a growing wait (1 s, 2 s, … 30 s) while the rest
+ * keeps running; a job it was running is taken over by the next worker (BullMQ's stalled-job recovery).
+ */
+function keepRunning(name: string, script: string, env: NodeJS.ProcessEnv): SupervisedChild {
+  const child = superviseChild({ name, command: process.execPath, args: [compiled(script)], env, say: (line) => console.error(`[start] ${line}`) });
   children.push(child);
-  void child.exited.then((status) => {
-    if (!shuttingDown) void shutdown(1, `${name} exited unexpectedly (${describeExit(status)}): stopping everything`);
-  });
   return child;
 }
 
@@ -108,12 +111,14 @@ async function chooseDataDir(): Promise<string> {
   const chosen = process.env.GATEPOST_DATA_DIR;
   const dir = resolve(chosen || join(root, '.data'));
   mkdirSync(dir, { recursive: true });
+  // The postgres user must pass through to its cluster folder; listing or reading the rest needs no one else.
+  chmodSync(dir, 0o711);
   if (await postgresCanUse(dir)) return dir;
   if (chosen) throw new ServiceError(`GATEPOST_DATA_DIR=${chosen}: the postgres user cannot enter it (a parent folder is private)`);
   const fallback = `/var/tmp/gatepost-${createHash('sha256').update(root).digest('hex').slice(0, 12)}`;
   say(`the postgres user cannot enter ${dir} (a parent folder is private); keeping the data in ${fallback} instead`);
-  mkdirSync(fallback, { recursive: true, mode: 0o755 });
-  chmodSync(fallback, 0o755);
+  mkdirSync(fallback, { recursive: true, mode: 0o711 });
+  chmodSync(fallback, 0o711);
   return fallback;
 }
 
@@ -180,14 +185,22 @@ async function main(): Promise<void> {
   const dataDir = await chooseDataDir();
   say(`data folder ${dataDir}`);
   const secret = jwtSecret(dataDir);
+  // A data folder of an earlier version was readable by every local user: close what it holds (the cluster folder
+  // belongs to the postgres user and is private already).
+  for (const entry of readdirSync(dataDir, { withFileTypes: true })) {
+    if (entry.name !== 'postgres') chmodSync(join(dataDir, entry.name), entry.isDirectory() ? 0o700 : 0o600);
+  }
 
-  await startService(() => startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), say }));
+  // The generated passwords of both are kept in the data folder (mode 600), like the JWT secret.
+  await startService(() => startPostgres({ dir: join(dataDir, 'postgres'), port: pgPort, durable: true, log: join(dataDir, 'postgres.log'), secretsDir: dataDir, say }));
   if (shuttingDown) return;
-  await startService(() => startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, say }));
+  await startService(() => startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, secretsDir: dataDir, say }));
   if (shuttingDown) return;
   const [postgres, redis] = services;
 
-  const publicUrl = `http://127.0.0.1:${webPort}`;
+  // The server listens on loopback; the address people use may be a reverse proxy's (https: Secure cookies, HSTS).
+  const localUrl = `http://127.0.0.1:${webPort}`;
+  const publicUrl = process.env.GATEPOST_PUBLIC_URL || localUrl;
   const env: NodeJS.ProcessEnv = {
     ...process.env,
     GATEPOST_DATABASE_URL: postgres.url,
@@ -222,18 +235,19 @@ async function main(): Promise<void> {
   const worker = keepRunning('worker', 'worker/index.ts', env);
 
   try {
-    await waitForHttp(`${publicUrl}/api/health`, { timeoutMs: 90_000, watch: [api, worker] });
+    // A child that cannot even start (a bad setting) fails the start instead of being restarted for ever.
+    await waitForHttp(`${localUrl}/api/health`, { timeoutMs: 90_000, watch: [api.current(), worker.current()] });
   } catch (error) {
     if (!shuttingDown) await shutdown(1, `${(error as Error).message}: stopping everything`);
     return;
   }
-  const firstPage = await fetch(`${publicUrl}/`).then((response) => response.status, (error: Error) => error.message);
+  const firstPage = await fetch(`${localUrl}/`).then((response) => response.status, (error: Error) => error.message);
   if (shuttingDown) return;
   // performance.now() counts from the start of this process, so the time includes Node's own start-up.
   const seconds = (performance.now() / 1000).toFixed(1);
   const lines = [
     '',
-    `Gatepost is running at ${publicUrl}  (ready in ${seconds} s)`,
+    `Gatepost is running at ${publicUrl}  (ready in ${seconds} s)${publicUrl === localUrl ? '' : `; it listens on ${localUrl}`}`,
     ...(firstPage === 200 ? [] : [`  warning: GET / answered ${firstPage}, not 200`]),
     '',
     'Demo sign-ins (role, e-mail, password):',

@@ -10,7 +10,7 @@ import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
 import { constants } from 'node:os';
 import {
-  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, startPostgres, startRedis, stopPostgresAt, stopRedisByPidFile,
+  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, redactUrl, startPostgres, startRedis, stopPostgresAt, stopRedisByPidFile,
   type RunningService,
 } from './lib/services.ts';
 import { describeExit, spawnChild, type ChildHandle } from './lib/processes.ts';
@@ -23,6 +23,8 @@ if (command.length === 0) {
   process.exit(2);
 }
 
+// What this process creates (the passwords, Redis's folder) is for its own user alone.
+process.umask(0o077);
 // A closed pipe (`npm run test:api | head`) must not crash this process before it has stopped the services.
 for (const stream of [process.stdout, process.stderr]) stream.on('error', () => undefined);
 
@@ -99,8 +101,8 @@ async function main(): Promise<number> {
   await sweepAbandonedRuns();
   folder = mkdtempSync(join(tmpdir(), FOLDER_PREFIX));
   writeFileSync(join(folder, OWNER_FILE), String(process.pid));
-  // mkdtemp makes the folder private (700); the postgres user must be able to enter it.
-  chmodSync(folder, 0o755);
+  // mkdtemp makes the folder private (700); the postgres user must be able to enter it (and need not list it).
+  chmodSync(folder, 0o711);
   const [pgPort, redisPort] = [await freePort(), await freePort()];
   services.push(await startPostgres({ dir: join(folder, 'postgres'), port: pgPort, durable: false, log: join(folder, 'postgres.log'), say }));
   if (stopSignal) return signalExitCode(stopSignal);
@@ -130,7 +132,7 @@ async function main(): Promise<number> {
   } else {
     say('server/db/cli.ts does not exist yet: no migrations to run');
   }
-  say(`PostgreSQL ${postgres.url} and Redis ${redis.url} ready in ${((performance.now() - startedAt) / 1000).toFixed(1)} s`);
+  say(`PostgreSQL ${redactUrl(postgres.url)} and Redis ${redactUrl(redis.url)} ready in ${((performance.now() - startedAt) / 1000).toFixed(1)} s`);
 
   say(`running: ${command.join(' ')}`);
   return new Promise<number>((resolveCode) => {

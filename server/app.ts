@@ -9,6 +9,8 @@ import type { Deps } from './lib/deps.ts';
 import { createErrorHandler } from './lib/error-handler.ts';
 import { notFound } from './lib/errors.ts';
 import { buildOpenApi } from './lib/openapi.ts';
+import { createSameOriginCheck } from './lib/same-origin.ts';
+import { rejectUnstorableText } from './lib/text-input.ts';
 import { mountRoutes, type RouteDef } from './lib/routes.ts';
 import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
@@ -26,6 +28,7 @@ import { outboxRoutes } from './modules/outbox/routes.ts';
 import { reportRoutes } from './modules/reports/routes.ts';
 import { reviewRoutes } from './modules/reviews/routes.ts';
 import { shotRoutes } from './modules/shots/routes.ts';
+import { storageRoutes } from './modules/storage/routes.ts';
 import { tokenRoutes } from './modules/tokens/routes.ts';
 import { batchRoutes } from './modules/batches/routes.ts';
 import { benchRoutes } from './modules/bench/routes.ts';
@@ -38,8 +41,9 @@ export function allRoutes(deps: Deps): RouteDef[] {
   const routes: RouteDef[] = [
     ...healthRoutes(deps),
     ...authRoutes(deps),
-    ...tokenRoutes(),
-    ...labRoutes(),
+    ...tokenRoutes(deps),
+    ...labRoutes(deps),
+    ...storageRoutes(deps),
     ...invitationRoutes(deps),
     ...outboxRoutes(deps),
     ...campaignRoutes(),
@@ -74,7 +78,9 @@ export function buildApp(deps: Deps): Express {
   useLabEventPublisher(deps.redis);
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // X-Forwarded-For only from the proxy the settings name (GATEPOST_TRUST_PROXY); otherwise the socket's address.
+  const proxies = deps.config.trustProxy.split(',').map((p) => p.trim()).filter(Boolean);
+  app.set('trust proxy', proxies.length > 0 ? proxies : false);
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -90,7 +96,7 @@ export function buildApp(deps: Deps): Express {
     }),
   );
   app.use(cookieParser());
-  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', express.json({ limit: '1mb' }), rejectUnstorableText);
   app.use('/api', (req, res, next) => {
     const started = process.hrtime.bigint();
     res.on('finish', () => {
@@ -100,6 +106,7 @@ export function buildApp(deps: Deps): Express {
     res.set('Cache-Control', 'no-store');
     next();
   });
+  app.use('/api', createSameOriginCheck(deps.config.publicUrl));
   app.use('/api', createAuthenticate({ jwtSecret: deps.config.jwtSecret, redis: deps.redis }));
 
   const router = express.Router();
@@ -109,6 +116,8 @@ export function buildApp(deps: Deps): Express {
 
   const clientDir = path.resolve(deps.config.clientDir);
   if (existsSync(path.join(clientDir, 'index.html'))) {
+    // A build folder left over from an earlier version may still hold source maps: never serve them.
+    app.use((req, _res, next) => (req.path.endsWith('.map') ? next(notFound('No such file.')) : next()));
     app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
     app.get('/{*splat}', (_req, res) => res.sendFile(path.join(clientDir, 'index.html')));
   }

@@ -23,9 +23,18 @@ const schema = z.object({
   mailFrom: z.string().default('Gatepost <no-reply@gatepost.invalid>'),
   /** "fake": mail goes to the local fake SMTP server and admins can read it in the app (development, tests). */
   mailOutbox: z.enum(['fake', 'smtp']).default('fake'),
-  /** Failed sign-ins allowed per account (and per address) in one window before sign-in is refused. */
+  /** Failed sign-ins allowed on one account from one address in a window before that address is refused for it. */
   loginMaxFailures: z.coerce.number().int().min(1).default(5),
   loginWindowSeconds: z.coerce.number().int().min(1).default(15 * 60),
+  /** Progressive delay of sign-ins once failures pile up: first step, doubling up to the longest, ms. */
+  loginDelayStepMs: z.coerce.number().int().min(0).default(250),
+  loginMaxDelayMs: z.coerce.number().int().min(0).default(8000),
+  /**
+   * The reverse proxy in front of the API, whose X-Forwarded-For is believed (the client's address for sign-in
+   * limits and the audit trail): addresses or subnets, comma-separated (e.g. "127.0.0.1" or "10.0.0.0/8"). Unset:
+   * no proxy, the header is ignored, so no local client can forge its address.
+   */
+  trustProxy: z.string().default(''),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   clientDir: z.string().default('dist/client'),
   /** Where raw files and channel files are kept: "local" (under `<dataDir>/blobs`) or an S3-compatible bucket. */
@@ -46,6 +55,14 @@ const schema = z.object({
    * so their channels are stored when the last byte is; smaller ones are read by the worker. -1: never.
    */
   readUploadsFromBytes: z.coerce.number().int().min(-1).default(16 * 1024 ** 2),
+  /** Largest upload request (all its files together), refused from its Content-Length before anything is read. */
+  uploadRequestLimitBytes: z.coerce.number().int().positive().default(4 * 1024 ** 3),
+  /** Most channels one capture file may hold; a file with more is refused before its samples are read. */
+  maxChannelsPerCapture: z.coerce.number().int().min(1).default(64),
+  /** Most samples per channel of one capture file (a deep scope record holds tens of millions). */
+  maxSamplesPerChannel: z.coerce.number().int().min(2).default(50_000_000),
+  /** Storage each lab may fill (raw files plus the channel files read from them); 0 for no quota. */
+  labStorageQuotaBytes: z.coerce.number().int().min(0).default(50 * 1024 ** 3),
   /** How long a worker holds a job before another may take it over (stalled-job recovery), ms. */
   jobLockMs: z.coerce.number().int().min(1000).default(30_000),
   /** How often the worker re-queues captures and analyses whose job never reached Redis, ms. */
@@ -73,6 +90,9 @@ const envNames: Record<keyof Config, string> = {
   mailOutbox: 'GATEPOST_MAIL_OUTBOX',
   loginMaxFailures: 'GATEPOST_LOGIN_MAX_FAILURES',
   loginWindowSeconds: 'GATEPOST_LOGIN_WINDOW_SECONDS',
+  loginDelayStepMs: 'GATEPOST_LOGIN_DELAY_STEP_MS',
+  loginMaxDelayMs: 'GATEPOST_LOGIN_MAX_DELAY_MS',
+  trustProxy: 'GATEPOST_TRUST_PROXY',
   logLevel: 'GATEPOST_LOG_LEVEL',
   clientDir: 'GATEPOST_CLIENT_DIR',
   storage: 'GATEPOST_STORAGE',
@@ -84,11 +104,21 @@ const envNames: Record<keyof Config, string> = {
   s3ForcePathStyle: 'GATEPOST_S3_FORCE_PATH_STYLE',
   uploadLimitBytes: 'GATEPOST_UPLOAD_LIMIT_BYTES',
   readUploadsFromBytes: 'GATEPOST_READ_UPLOADS_FROM_BYTES',
+  uploadRequestLimitBytes: 'GATEPOST_UPLOAD_REQUEST_LIMIT_BYTES',
+  maxChannelsPerCapture: 'GATEPOST_MAX_CHANNELS_PER_CAPTURE',
+  maxSamplesPerChannel: 'GATEPOST_MAX_SAMPLES_PER_CHANNEL',
+  labStorageQuotaBytes: 'GATEPOST_LAB_STORAGE_QUOTA_BYTES',
   jobLockMs: 'GATEPOST_JOB_LOCK_MS',
   sweepIntervalMs: 'GATEPOST_SWEEP_INTERVAL_MS',
 };
 
 export class ConfigError extends Error {}
+
+/** True for http(s) URLs of this machine only: localhost, 127.0.0.0/8 or ::1. */
+export function isLoopbackUrl(url: string): boolean {
+  const host = new URL(url).hostname.replace(/^\[|\]$/g, '');
+  return host === 'localhost' || host === '::1' || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(host);
+}
 
 /** Reads the configuration from `env`; `overrides` (tests) win over the environment. */
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Partial<Config> = {}): Config {
@@ -106,8 +136,12 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     throw new ConfigError(`Invalid configuration:\n  ${lines.join('\n  ')}`);
   }
   const config = parsed.data;
-  if (config.nodeEnv === 'production' && config.jwtSecret.startsWith('development-only')) {
-    throw new ConfigError('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
+  if (config.jwtSecret.startsWith('development-only')) {
+    // Anyone who reads this file could sign sessions with it: only a loopback-only development server may use it.
+    if (config.nodeEnv === 'production') throw new ConfigError('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
+    if (!isLoopbackUrl(config.publicUrl)) {
+      throw new ConfigError(`Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set when GATEPOST_PUBLIC_URL (${config.publicUrl}) is not a loopback address`);
+    }
   }
   return config;
 }

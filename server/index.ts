@@ -2,7 +2,7 @@ import { loadConfigOrExit } from './config.ts';
 import { buildApp } from './app.ts';
 import { createLogger } from './lib/logger.ts';
 import { createMailer } from './lib/mailer.ts';
-import { LoginLimiter } from './lib/rate-limit.ts';
+import { createLoginLimiter } from './lib/rate-limit.ts';
 import { createRedis } from './lib/redis.ts';
 import { createJobQueues } from './lib/job-queues.ts';
 import { labEventHubFor } from './modules/events/lab-event-hub.ts';
@@ -17,7 +17,7 @@ async function main() {
   const redis = createRedis(config.redisUrl);
   redis.on('error', (err) => logger.warn({ err: err.message }, 'redis connection problem'));
   const mailer = createMailer(config);
-  const loginLimiter = new LoginLimiter(redis, { maxFailures: config.loginMaxFailures, windowSeconds: config.loginWindowSeconds });
+  const loginLimiter = createLoginLimiter(redis, config);
   const blobStore = createBlobStore(config);
   const queues = createJobQueues(config.redisUrl);
   const app = buildApp({ config, logger, sequelize, redis, mailer, loginLimiter, queues, blobStore });

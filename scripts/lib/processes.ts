@@ -136,3 +136,72 @@ export async function waitForHttp(url: string, options: { timeoutMs?: number; wa
     await new Promise((resolve) => setTimeout(resolve, 150));
   }
 }
+
+export interface SupervisedOptions extends ChildOptions {
+  /**
+   * Wait before the first restart after a crash; each further crash doubles it, up to `maxBackoffMs`.
+   * @default 1000
+   */
+  backoffMs?: number;
+  /** @default 30000 */
+  maxBackoffMs?: number;
+  /**
+   * A run at least this long counts as healthy: the next crash waits `backoffMs` again.
+   * @default 60000
+   */
+  stableMs?: number;
+  /** Where the supervisor says what it does ("worker exited (signal SIGKILL); restarting in 1 s"). @default stderr */
+  say?: (line: string) => void;
+}
+
+export interface SupervisedChild {
+  readonly name: string;
+  /** The process running now (a new one after each restart). */
+  current(): ChildHandle;
+  /** How many times it was restarted. */
+  restarts(): number;
+  /** Stops the child and cancels any restart to come; resolves when it has exited. */
+  stop(timeoutMs?: number): Promise<ExitStatus>;
+}
+
+/**
+ * Runs a long-lived child and starts it again when it exits (issue 12, item 7): a crashed worker or API server is
+ * restarted with a growing wait, logged, while everything else keeps running. Only `stop()` ends it for good.
+ */
+export function superviseChild(options: SupervisedOptions): SupervisedChild {
+  const { backoffMs = 1000, maxBackoffMs = 30_000, stableMs = 60_000, say = (line: string) => process.stderr.write(`${line}\n`) } = options;
+  let child = spawnChild(options);
+  let startedAt = Date.now();
+  let restarts = 0;
+  let wait = backoffMs;
+  let stopping = false;
+  let timer: NodeJS.Timeout | null = null;
+  const watch = (handle: ChildHandle): void => {
+    void handle.exited.then((status) => {
+      if (stopping) return;
+      if (Date.now() - startedAt >= stableMs) wait = backoffMs;
+      say(`[${options.name}] exited (${describeExit(status)}); restarting in ${wait / 1000} s`);
+      timer = setTimeout(() => {
+        timer = null;
+        if (stopping) return;
+        restarts++;
+        child = spawnChild(options);
+        startedAt = Date.now();
+        say(`[${options.name}] restarted (pid ${child.pid}, restart ${restarts})`);
+        watch(child);
+      }, wait);
+      wait = Math.min(maxBackoffMs, wait * 2);
+    });
+  };
+  watch(child);
+  return {
+    name: options.name,
+    current: () => child,
+    restarts: () => restarts,
+    stop: (timeoutMs) => {
+      stopping = true;
+      if (timer) clearTimeout(timer);
+      return child.stop(timeoutMs);
+    },
+  };
+}

@@ -4,6 +4,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 import { Umzug, SequelizeStorage } from 'umzug';
 import type { Sequelize } from 'sequelize';
 import pg from 'pg';
+import { postgresTls } from './sequelize.ts';
 
 const migrationsDir = path.join(path.dirname(fileURLToPath(import.meta.url)), 'migrations');
 
@@ -31,7 +32,8 @@ export function createMigrator(sequelize: Sequelize) {
  */
 export async function migrateUp(sequelize: Sequelize, databaseUrl: string): Promise<string[]> {
   const lockId = 0x6761_7465; // arbitrary, constant for Gatepost
-  const lock = new pg.Client({ connectionString: databaseUrl });
+  const { url, ssl } = postgresTls(databaseUrl);
+  const lock = new pg.Client({ connectionString: url, ssl });
   await lock.connect();
   try {
     await lock.query('SELECT pg_advisory_lock($1)', [lockId]);

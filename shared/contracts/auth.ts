@@ -35,6 +35,8 @@ export const apiTokenBody = z.object({
   name: z.string().trim().min(1, 'Name the token after the script that uses it.').max(100),
   /** Days until the token stops working; omit for a token that lasts until revoked. */
   expiresInDays: z.number().int().min(1).max(366).optional(),
+  /** The account's password, typed again: a token outlives the session, so it is made only by its owner in person. */
+  password: z.string('Type your password to confirm.').min(1, 'Type your password to confirm.').max(1024),
 });
 export type ApiTokenBody = z.infer<typeof apiTokenBody>;
 

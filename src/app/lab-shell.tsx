@@ -36,11 +36,16 @@ export function TopBar({ me, labId }: { me: MeView; labId?: string }) {
             variant="secondary"
             className="!py-1.5"
             disabled={signOut.isPending}
-            onClick={() => signOut.mutate(undefined, { onSettled: () => navigate('/sign-in', { replace: true }) })}
+            onClick={() => signOut.mutate(undefined, { onSuccess: () => navigate('/sign-in', { replace: true }) })}
           >
             Sign out
           </Button>
         </div>
+        {signOut.isError && (
+          <p role="alert" className="basis-full text-right text-sm text-red-200">
+            Sign-out failed: {signOut.error.message}
+          </p>
+        )}
       </div>
     </header>
   );

@@ -65,7 +65,7 @@ beforeAll(async () => {
   work = mkdtempSync(path.join(tmpdir(), 'gatepost-bench-'));
   app = await startAppProcesses({ env: { GATEPOST_DATA_DIR: dataDir } });
   experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
-  const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'bench PC' });
+  const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'bench PC', password: demo.users.experimenter.password });
   expect(created.status).toBe(201);
   token = created.body.secret;
   // A campaign whose first shot was logged by hand with the ball and a two-gate rig 100 mm apart: the uploader's

@@ -288,3 +288,11 @@ describe('GET /api/captures/:captureId/window', () => {
     }
   });
 });
+
+describe('GET /api/captures/:captureId/samples', () => {
+  it('When the raw samples are read, then they are not kept in the browser cache after sign-out (no-store, issue 12 item 13)', async () => {
+    const res = await request(app).get(`/api/captures/${explicitId}/samples`).query({ channel: 'CH1' }).set('Cookie', asAnalyst);
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.headers['cache-control']).toBe('no-store');
+  });
+});

@@ -14,6 +14,7 @@ import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { ingestJobId, QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
 import { readStoredCapture } from '../../worker/read-stored-capture.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { redisEndpoint } from '../../server/lib/redis.ts';
 
 const SCENARIO_SPEEDS = [95.567, 133.193, 162.666, 185.936, 203.678, 218.947, 230.178, 238.05];
 
@@ -23,8 +24,7 @@ let ingest: Queue;
 beforeAll(async () => {
   h = await createApiHarness();
   await h.resetDatabase();
-  const u = new URL(h.config.redisUrl);
-  ingest = new Queue(QUEUE_NAMES.ingest, { connection: { host: u.hostname, port: Number(u.port) } });
+  ingest = new Queue(QUEUE_NAMES.ingest, { connection: redisEndpoint(h.config.redisUrl) });
 });
 afterAll(async () => {
   await ingest?.close();

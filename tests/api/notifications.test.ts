@@ -15,6 +15,7 @@ import { Projectile } from '../../server/db/models/index.ts';
 import { QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
 import { createApiHarness, freeLoopbackPort, type ApiHarness } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { redisEndpoint } from '../../server/lib/redis.ts';
 
 let h: ApiHarness;
 let app: AppProcesses;
@@ -34,8 +35,7 @@ beforeAll(async () => {
   app = await startAppProcesses({
     env: { GATEPOST_SMTP_PORT: String(smtpPort), GATEPOST_DATA_DIR: dataDir, GATEPOST_JWT_SECRET: h.config.jwtSecret, GATEPOST_LOG_LEVEL: 'warn' },
   });
-  const u = new URL(h.config.redisUrl);
-  notifyQueue = new Queue(QUEUE_NAMES.notify, { connection: { host: u.hostname, port: Number(u.port) } });
+  notifyQueue = new Queue(QUEUE_NAMES.notify, { connection: redisEndpoint(h.config.redisUrl) });
 }, 120_000);
 
 afterAll(async () => {

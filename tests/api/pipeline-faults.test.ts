@@ -17,6 +17,7 @@ import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../benc
 import { spawnChild, type ChildHandle } from '../../scripts/lib/processes.ts';
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
+import { redisEndpoint } from '../../server/lib/redis.ts';
 
 interface ShotDetail {
   shot: { id: string; status: string; currentAnalysisId: string | null };
@@ -203,13 +204,14 @@ describe('When two worker processes share the queue', () => {
   }, 180_000);
 });
 
-/** The throwaway Redis of scripts/with-services.sh, shut down and started again with the settings it ran with. */
+/** The throwaway Redis of scripts/with-services.sh, shut down and started again from its config file. */
 function throwawayRedis() {
-  const port = new URL(process.env.GATEPOST_TEST_REDIS_URL!).port;
-  const cli = (...args: string[]) => execFileSync('redis-cli', ['-h', '127.0.0.1', '-p', port, ...args], { encoding: 'utf8', timeout: 5_000, stdio: ['ignore', 'pipe', 'ignore'] });
-  // CONFIG GET answers name/value lines; these are the settings the server was started with.
-  const config = (name: string) => cli('config', 'get', name).split('\n')[1] ?? '';
-  const settings = { dir: config('dir'), pidfile: config('pidfile'), logfile: config('logfile'), save: config('save'), appendonly: config('appendonly') };
+  const url = new URL(process.env.GATEPOST_TEST_REDIS_URL!);
+  // The password goes to redis-cli through the environment, as scripts/lib/services.ts does (never in `ps`).
+  const cli = (...args: string[]) => execFileSync('redis-cli', ['-h', '127.0.0.1', '-p', url.port, ...args], {
+    encoding: 'utf8', timeout: 5_000, stdio: ['ignore', 'pipe', 'ignore'], env: { ...process.env, REDISCLI_AUTH: decodeURIComponent(url.password) },
+  });
+  const configFile = path.join(process.env.GATEPOST_TEST_TMP_DIR!, 'redis', 'redis.conf');
   const running = () => {
     try {
       return cli('ping').trim() === 'PONG';
@@ -225,10 +227,7 @@ function throwawayRedis() {
     },
     start: async () => {
       if (running()) return;
-      execFileSync('redis-server', [
-        '--bind', '127.0.0.1', '--port', port, '--daemonize', 'yes', '--pidfile', settings.pidfile, '--logfile', settings.logfile,
-        '--dir', settings.dir, '--save', settings.save, '--appendonly', settings.appendonly,
-      ]);
+      execFileSync('redis-server', [configFile]);
       await pollUntil(async () => (running() ? true : undefined), { timeoutMs: 20_000, what: 'Redis to answer again' });
     },
   };
@@ -239,7 +238,7 @@ describe('When Redis is briefly down while a file is uploaded', () => {
     const shotId = await newShot(exitRigId);
     // Sessions are checked against Redis (revoked sign-ins); API tokens only against PostgreSQL, so a script with
     // a token can still upload while Redis is away.
-    const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'redis outage script' });
+    const created = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'redis outage script', password: demo.users.experimenter.password });
     expect(created.status).toBe(201);
     const bearer = { authorization: `Bearer ${created.body.secret}` };
     const redis = throwawayRedis();
@@ -372,7 +371,7 @@ describe('When a job gave up for good but writing that down was lost (the databa
     const up = await experimenter.upload<{ captures: { id: string }[] }>(shotId, [{ name: 'lost-write.csv', bytes: new TextEncoder().encode('not,a scope\nfile,at all\n') }]);
     expect(up.status).toBe(202);
     const captureId = up.body.captures[0].id;
-    const connection = { host: new URL(h.config.redisUrl).hostname, port: Number(new URL(h.config.redisUrl).port) };
+    const connection = redisEndpoint(h.config.redisUrl);
     const ingest = new Queue(QUEUE_NAMES.ingest, { connection });
     const notify = new Queue(QUEUE_NAMES.notify, { connection });
     try {

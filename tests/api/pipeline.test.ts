@@ -15,6 +15,7 @@ import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../benc
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { expectForward, settleShot } from '../helpers/settle-shot.ts';
+import { redisEndpoint } from '../../server/lib/redis.ts';
 
 const fixture = (name: string) => new Uint8Array(readFileSync(path.join(import.meta.dirname, '../../fixtures/captures', name)));
 const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex');
@@ -304,8 +305,7 @@ describe('When a shot gets one file per channel', () => {
 describe('When a file cannot be read', () => {
   let queue: Queue;
   beforeAll(() => {
-    const u = new URL(process.env.GATEPOST_TEST_REDIS_URL!);
-    queue = new Queue(QUEUE_NAMES.ingest, { connection: { host: u.hostname, port: Number(u.port), maxRetriesPerRequest: null } });
+    queue = new Queue(QUEUE_NAMES.ingest, { connection: { ...redisEndpoint(process.env.GATEPOST_TEST_REDIS_URL!), maxRetriesPerRequest: null } });
   });
   afterAll(async () => {
     await queue?.close();

@@ -10,6 +10,7 @@ import { AuditEvent, Membership, Shot, User } from '../../server/db/models/index
 import { QUEUE_NAMES, type NotifyJobData } from '../../shared/contracts/jobs.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
 import { analysedShot } from './review-fixtures.ts';
+import { redisEndpoint } from '../../server/lib/redis.ts';
 
 let h: ApiHarness;
 let notifyQueue: Queue;
@@ -18,7 +19,7 @@ let sandgateReviewer: string;
 beforeAll(async () => {
   h = await createApiHarness();
   await h.resetDatabase();
-  notifyQueue = new Queue(QUEUE_NAMES.notify, { connection: { host: new URL(h.config.redisUrl).hostname, port: Number(new URL(h.config.redisUrl).port) } });
+  notifyQueue = new Queue(QUEUE_NAMES.notify, { connection: redisEndpoint(h.config.redisUrl) });
   const user = await User.create({ email: 'rhea.moss@sandgate.example', name: 'Rhea Moss', passwordHash: 'not-used' });
   await Membership.create({ labId: h.demo.labs.sandgate.id, userId: user.id, role: 'reviewer' });
   sandgateReviewer = user.id;

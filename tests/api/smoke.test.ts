@@ -23,7 +23,7 @@ describe('throwaway PostgreSQL', () => {
   afterAll(() => client.end());
 
   it('When connecting to GATEPOST_TEST_DATABASE_URL, then it is the gatepost database on loopback', async () => {
-    expect(url).toMatch(/^postgres:\/\/postgres@127\.0\.0\.1:\d+\/gatepost$/);
+    expect(url).toMatch(/^postgres:\/\/gatepost:[A-Za-z0-9_-]+@127\.0\.0\.1:\d+\/gatepost$/);
     const { rows } = await client.query('SELECT current_database() AS db, inet_server_addr()::text AS addr');
     expect(rows[0]).toEqual({ db: 'gatepost', addr: '127.0.0.1/32' });
   });
@@ -54,7 +54,7 @@ describe('throwaway Redis', () => {
   });
 
   it('When a key is set with an expiry, then it reads back and carries the expiry', async () => {
-    expect(url).toMatch(/^redis:\/\/127\.0\.0\.1:\d+$/);
+    expect(url).toMatch(/^redis:\/\/:[A-Za-z0-9_-]+@127\.0\.0\.1:\d+$/);
     const key = `smoke:${randomUUID()}`;
     await redis.set(key, 'gate A → gate B', 'EX', 60);
     expect(await redis.get(key)).toBe('gate A → gate B');

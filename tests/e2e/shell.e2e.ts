@@ -3,6 +3,7 @@
 // another lab's pages staying closed. Screenshots go to .test-artifacts/screenshots/ to be looked at.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
+import { readFakeOutbox } from '../../server/dev/fake-smtp.ts';
 import { createApiHarness, type ApiHarness, type DemoActor } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
@@ -41,6 +42,27 @@ async function signIn(page: Page, email: string, password: string) {
 const navLabels = (page: Page) => page.getByRole('navigation', { name: 'Lab sections' }).getByRole('link').allTextContents();
 
 describe('client shell', () => {
+  it('When sign-out fails (Redis away: 503), then the page says so and stays, instead of pretending the session ended (issue 12, item 11)', async () => {
+    const user = harness.demo.users.analyst;
+    const context = await launchBrowser();
+    try {
+      const page = await context.newPage();
+      await signIn(page, user.email, user.password);
+      await page.waitForURL(`**/labs/${harness.demo.labs.hollowmere.id}/campaigns`);
+      // The answer the API gives while Redis is down (tests/api/security/sign-out.test.ts), served to the page.
+      await page.route('**/api/auth/logout', (route) => route.fulfill({
+        status: 503, contentType: 'application/json',
+        body: JSON.stringify({ error: { code: 'service_unavailable', message: 'Sign-out could not be recorded just now, so you are still signed in. Try again in a moment.' } }),
+      }));
+      await page.getByRole('button', { name: 'Sign out' }).click();
+      await page.getByRole('alert').filter({ hasText: 'Sign-out failed' }).waitFor();
+      expect(page.url()).toContain('/campaigns');
+      await saveScreenshot(page, 'shell-sign-out-failed');
+    } finally {
+      await context.close();
+    }
+  }, 60_000);
+
   for (const role of Object.keys(NAV_BY_ROLE) as (keyof typeof NAV_BY_ROLE)[]) {
     it(`When the ${role} signs in, then they see their lab with the ${role}'s navigation, and sign-out ends the session`, async () => {
       const user = harness.demo.users[role];
@@ -100,9 +122,12 @@ describe('client shell', () => {
       const message = page.locator('li', { hasText: 'invited you to Hollowmere Ballistics Lab' });
       await message.waitFor();
       await saveScreenshot(page, 'shell-outbox');
-      const body = (await message.locator('pre').textContent()) ?? '';
-      const link = body.match(/https?:\/\/\S+\/invite\/\S+/)?.[0];
-      expect(link, `no invitation link in:\n${body}`).toBeDefined();
+      // The admin sees that it was sent, not its link (issue 12, item 9); the addressee's mailbox (the fake
+      // server's store) holds it.
+      expect(await message.locator('pre').textContent()).toContain('/invite/[only the addressee sees this link]');
+      const delivered = (await readFakeOutbox(harness.redis)).find((m) => m.to.includes('noor.halvorsen@hollowmere.example'));
+      const link = delivered?.text.match(/https?:\/\/\S+\/invite\/\S+/)?.[0];
+      expect(link, `no invitation link in:\n${delivered?.text}`).toBeDefined();
 
       // The mail carries the configured public URL; follow its path on the server under test.
       const guest = await guestContext.newPage();

@@ -19,7 +19,7 @@ import { SESSION_COOKIE } from '../../server/lib/authenticate.ts';
 import type { Deps } from '../../server/lib/deps.ts';
 import { createLogger } from '../../server/lib/logger.ts';
 import { createMailer, type Mailer } from '../../server/lib/mailer.ts';
-import { LoginLimiter } from '../../server/lib/rate-limit.ts';
+import { createLoginLimiter } from '../../server/lib/rate-limit.ts';
 import { createJobQueues } from '../../server/lib/job-queues.ts';
 import { signSession } from '../../server/lib/tokens.ts';
 import { LocalDiskStore } from '../../server/storage/local-disk-store.ts';
@@ -125,6 +125,9 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
     // themselves, yet long enough that three argon2 checks on a loaded 2-core machine (~1 s each seen) fit in it.
     loginMaxFailures: 3,
     loginWindowSeconds: 10,
+    // Delays as the real ones (doubling to a cap) but in milliseconds, so failure loops stay quick.
+    loginDelayStepMs: 5,
+    loginMaxDelayMs: 40,
     logLevel: (process.env.GATEPOST_TEST_LOG_LEVEL as Config['logLevel'] | undefined) ?? 'silent',
     publicUrl: 'http://127.0.0.1:8640',
     ...options.config,
@@ -132,7 +135,7 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
   const logger = createLogger(config.logLevel, 'api-test');
   const sequelize = createSequelize(config.databaseUrl);
   const mailer = createMailer(config);
-  const loginLimiter = new LoginLimiter(redis, { maxFailures: config.loginMaxFailures, windowSeconds: config.loginWindowSeconds });
+  const loginLimiter = createLoginLimiter(redis, config);
   // Blobs of this test run only, in a temp folder removed by close().
   const blobDir = mkdtempSync(path.join(tmpdir(), 'gatepost-blobs-'));
   const blobStore = new LocalDiskStore(blobDir);

@@ -16,6 +16,7 @@ import { lineStartOffset } from '../../shared/import/line-start-offset.ts';
 import { readCaptureStream, type ReadCaptureStreamOptions } from './read-capture-stream.ts';
 import { scanFileRange } from './scan-file-range.ts';
 import type { ScanRangeReply, ScanRangeRequest } from './scan-range-worker.ts';
+import { checkChannelCount, checkSampleCount } from './capture-limits.ts';
 
 export interface ReadCaptureFileOptions extends ReadCaptureStreamOptions {
   /** Threads for the scan of a large plain file (1 or 2). @default 2 when the file exceeds `parallelFromBytes` and 2+ cores exist, else 1 */
@@ -114,6 +115,7 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     if (decoded.encoding === 'utf-16le' || decoded.encoding === 'utf-16be') return null;
     const lines = splitLines(decoded.text);
     const plan = detectCapturePlan(lines, { ...options, encoding: decoded.encoding, partial: true });
+    checkChannelCount(plan.channels.length, options);
     if (lines.slice(plan.dataStartLine - 1).some((l) => l.includes('"'))) return null;
     const eol = head.subarray(0, cut).includes(10) ? 10 : 13;
     const dataOffset = lineStartOffset(head, plan.dataStartLine);
@@ -136,6 +138,8 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     };
     const lines0 = count(dataOffset, split);
     const lines1 = count(split, size);
+    // Before any array is made: a footer of a few lines may count here too, which no limit worth setting notices.
+    checkSampleCount(lines0 + lines1, options);
     const cap0 = lines0 + 1;
     const capacity = cap0 + lines1 + 1;
     // An evenly spaced time column is checked on the fly (TimeGridHull) instead of being kept.

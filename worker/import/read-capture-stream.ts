@@ -9,8 +9,9 @@ import { TimeGridHull } from '../../shared/import/time-grid-hull.ts';
 import { finishCapture, isFooterText } from './finish-capture.ts';
 import { headTimeHint } from './head-time-hint.ts';
 import { lineStartOffset } from '../../shared/import/line-start-offset.ts';
+import { checkChannelCount, checkSampleCount, type CaptureLimits } from './capture-limits.ts';
 
-export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions {
+export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions, CaptureLimits {
   /** Bytes read before the layout must be clear; a file with no data rows in them is refused. @default 256 KiB */
   headBytes?: number;
   /** Longest line accepted in the data; a longer one means the file is not a capture. @default 1 MiB */
@@ -93,6 +94,7 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     const decoded = decodeCaptureBytes(head.subarray(0, cut), { encoding: options.encoding });
     const lines = splitLines(decoded.text);
     const plan = detectCapturePlan(lines, { ...options, encoding: decoded.encoding, partial: !done });
+    checkChannelCount(plan.channels.length, options);
     const dataLines = lines.slice(plan.dataStartLine - 1, plan.dataStartLine + 200);
     const fast = decoded.encoding !== 'utf-16le' && decoded.encoding !== 'utf-16be' && !dataLines.some((l) => l.includes('"'));
     const lineEnding = decoded.text.includes('\r\n') ? 'CRLF' : decoded.text.includes('\n') ? 'LF' : 'CR';
@@ -120,6 +122,8 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
       invalidCounts: plan.channels.map(() => 0),
     };
     const finish = async (footerText: string | null): Promise<ImportedCapture> => {
+      // Arrays sized from the file's length never fill up on the way, so the count is checked here too.
+      checkSampleCount(state.row, options);
       const source = { ...sourceInfo, reader: 'stream', bytesRead: consumed };
       if (reserve) {
         const cut = (v: Float64Array) => {
@@ -164,6 +168,8 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
       }
       let stop = stopAt > 0 ? scanNumericRows(work, 0, stopAt, spec, out, state) : null;
       while (stop !== null && stop.kind === 'full') {
+        // Full: every row so far is stored and at least one more is waiting.
+        checkSampleCount(state.row + 1, options);
         if (reserve && capacity >= most) throw new ImportError('the file grew while it was being read; read it again when the scope has finished writing it');
         capacity = reserve ? Math.min(most, Math.ceil(capacity * 1.25)) : capacity * 2;
         grow(out, capacity);

@@ -4,21 +4,25 @@ import { ImportError } from '../../shared/import/import-error.ts';
 import { Capture } from '../../server/db/models/index.ts';
 import { settleShot } from '../../server/modules/shots/settle-shot.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
+import { AppError } from '../../server/lib/errors.ts';
+import { assertStorageRoom, estimateChannelFileBytes } from '../../server/modules/storage/service.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { afterCaptureFinished } from '../settle-shot.ts';
 
 /** Reads the stored raw file, writes the channel files and records what was detected: the capture is ready. */
 async function readAndStore(job: Job, capture: Capture): Promise<void> {
-  const { blobStore } = workerContext();
+  const { blobStore, config } = workerContext();
   await capture.update({ state: 'reading', progress: 10, error: null });
   await settleShot(capture.shotId);
   await job.updateProgress(10);
   let imported;
   try {
-    imported = await readStoredCapture(blobStore, capture);
+    imported = await readStoredCapture(blobStore, capture, { maxChannels: config.maxChannelsPerCapture, maxSamples: config.maxSamplesPerChannel });
+    const channelBytes = estimateChannelFileBytes(imported.length, imported.channels.length, imported.time.kind === 'explicit');
+    await assertStorageRoom(config, capture.labId, channelBytes, 'Reading this file into channels');
   } catch (err) {
-    if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError) {
+    if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || (err instanceof AppError && err.code === 'storage_quota')) {
       // A file that cannot be read stays stored and says why; retrying cannot change its bytes. The files of the
       // shot that were read still get their analysis.
       await capture.update({ state: 'failed', progress: 100, error: err.message });

@@ -5,7 +5,7 @@ import { recordAudit } from '../../lib/audit.ts';
 import { revokedSessionKey, SESSION_COOKIE } from '../../lib/authenticate.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
-import { AppError, tooManyRequests } from '../../lib/errors.ts';
+import { AppError, serviceUnavailable, tooManyRequests } from '../../lib/errors.ts';
 import { verifyAgainstDummy, verifyPassword } from '../../lib/passwords.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { signSession } from '../../lib/tokens.ts';
@@ -24,6 +24,29 @@ export function startSession(res: Response, deps: Deps, userId: string): Date {
   return claims.expiresAt;
 }
 
+/** Tells the account's owner about repeated failed sign-ins; a mail server that is away must not change the answer. */
+async function mailOwnerAboutFailures(deps: Deps, user: User, ip: string, failures: number): Promise<void> {
+  const minutes = Math.round(deps.config.loginWindowSeconds / 60);
+  try {
+    await deps.mailer.send({
+      to: user.email,
+      subject: 'Failed sign-ins to your Gatepost account',
+      text: [
+        `Hello ${user.name},`,
+        '',
+        `${failures} attempts to sign in to your Gatepost account (${user.email}) failed within ${minutes} minutes, the latest from the address ${ip} at ${new Date().toISOString()}.`,
+        '',
+        'If that was you, nothing needs doing. If it was not, someone may be guessing your password: sign in and change it, and tell your lab admin.',
+        'Further attempts are slowed down; your own sign-in keeps working.',
+        '',
+        `Gatepost, ${deps.config.publicUrl}`,
+      ].join('\n'),
+    });
+  } catch (err) {
+    deps.logger.warn({ err: (err as Error).message, userId: user.id }, 'could not mail the owner about failed sign-ins');
+  }
+}
+
 export function authRoutes(deps: Deps): RouteDef[] {
   return [
     {
@@ -35,19 +58,25 @@ export function authRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const { email, password } = req.body as LoginBody;
         const ip = clientIp(req);
-        const limit = await deps.loginLimiter.reserve(email, ip);
-        if (limit.blocked) {
-          res.set('Retry-After', String(limit.retryAfterSeconds));
-          const minutes = Math.ceil(limit.retryAfterSeconds / 60);
+        const attempt = await deps.loginLimiter.reserve(email, ip);
+        // Guessing gets slower with every failure on the account (from anywhere) or from this address; a right
+        // password still gets in, only later.
+        if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
+        if (attempt.blocked) {
+          res.set('Retry-After', String(attempt.retryAfterSeconds));
+          const minutes = Math.ceil(attempt.retryAfterSeconds / 60);
           throw tooManyRequests(
-            `Too many failed sign-ins. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, or ask a lab admin to check your account.`,
-            limit.retryAfterSeconds,
+            `Too many failed sign-ins to this account from your address. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, ` +
+              'or ask a lab admin to unlock your sign-in (People page).',
+            attempt.retryAfterSeconds,
           );
         }
         const user = await User.findOne({ where: { email } });
         const ok = user && !user.disabledAt ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
         if (!ok || !user) {
           await recordAudit({ labId: null, actorId: user?.id ?? null, action: 'auth.login_failed', details: { email }, ip });
+          // Once per window, when the account's failures from every address reach the limit.
+          if (user && attempt.accountAttempts === deps.loginLimiter.maxFailures) await mailOwnerAboutFailures(deps, user, ip, attempt.accountAttempts);
           throw new AppError(401, 'invalid_credentials', 'That e-mail and password do not match an account.');
         }
         await deps.loginLimiter.release(email, ip);
@@ -65,7 +94,12 @@ export function authRoutes(deps: Deps): RouteDef[] {
         const auth = req.auth;
         if (auth?.via === 'session' && auth.sessionId && auth.expiresAt) {
           const ttl = Math.max(1, Math.ceil((auth.expiresAt.getTime() - Date.now()) / 1000));
-          await deps.redis.set(revokedSessionKey(auth.sessionId), '1', 'EX', ttl);
+          try {
+            await deps.redis.set(revokedSessionKey(auth.sessionId), '1', 'EX', ttl);
+          } catch (err) {
+            // The cookie stays: the session is still valid, and the person must know it (issue 12, item 11).
+            throw serviceUnavailable('Sign-out could not be recorded just now, so you are still signed in. Try again in a moment.', err);
+          }
           await recordAudit({ labId: null, actorId: auth.userId, action: 'auth.logout', ip: clientIp(req) });
         }
         res.clearCookie(SESSION_COOKIE, { path: '/' });

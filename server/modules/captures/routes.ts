@@ -97,7 +97,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
         if (previewBytes(files.length, files.channels.length, files.time.kind === 'explicit') > PREVIEW_MEMORY_BYTES) {
           throw new AppError(413, 'too_large', `This record has ${files.length.toLocaleString('en')} samples in ${files.channels.length} channel${files.channels.length === 1 ? '' : 's'}, more than the live preview holds in a browser tab (${Math.round(PREVIEW_MEMORY_BYTES / 1e6)} MB). Recompute on the server instead.`);
         }
-        res.set({ 'Content-Type': 'application/octet-stream', 'Content-Length': String(bytes), 'X-Sample-Count': String(files.length), 'Cache-Control': 'private, max-age=3600' });
+        res.set({ 'Content-Type': 'application/octet-stream', 'Content-Length': String(bytes), 'X-Sample-Count': String(files.length), 'Cache-Control': 'no-store' });
         const stream = deps.blobStore.openRead(key);
         stream.on('error', (err) => res.destroy(err));
         stream.pipe(res);

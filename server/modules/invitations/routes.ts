@@ -1,4 +1,4 @@
-import { Op } from 'sequelize';
+import { Op, UniqueConstraintError } from 'sequelize';
 import {
   acceptInvitationBody,
   invitationBody,
@@ -170,7 +170,13 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
         } else {
           if (!name) throw new AppError(400, 'bad_request', 'Please correct the request: name: Enter your name.');
           parseInput(newPasswordSchema, password);
-          user = await User.create({ email: invitation.email, name, passwordHash: await hashPassword(password) });
+          try {
+            user = await User.create({ email: invitation.email, name, passwordHash: await hashPassword(password) });
+          } catch (err) {
+            // The same link accepted twice at once: the other request made the account (issue 12, item 9).
+            if (err instanceof UniqueConstraintError) throw conflict('This invitation is being accepted in another window or was just used. Sign in instead.');
+            throw err;
+          }
         }
         const accepted = await deps.sequelize.transaction(async (transaction) => {
           // Marking it accepted only while still open makes a double submit harmless.

@@ -4,13 +4,14 @@ import { Lab, Membership, User } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import { conflict, notFound } from '../../lib/errors.ts';
+import type { Deps } from '../../lib/deps.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 
 async function adminCount(labId: string): Promise<number> {
   return Membership.count({ where: { labId, role: 'admin' } });
 }
 
-export function labRoutes(): RouteDef[] {
+export function labRoutes(deps: Deps): RouteDef[] {
   return [
     {
       method: 'get',
@@ -73,6 +74,24 @@ export function labRoutes(): RouteDef[] {
         }
         await membership.destroy();
         await recordAudit({ labId: req.lab!.id, actorId: req.auth!.userId, action: 'member.removed', targetType: 'user', targetId: membership.userId as string, details: { role: membership.role }, ip: clientIp(req) });
+        res.status(204).end();
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/labs/:labId/members/:userId/unlock-sign-in',
+      access: { kind: 'lab', permission: 'members:manage' },
+      summary: "Clear a member's failed sign-ins, from every address, so they can sign in again at once",
+      response: { status: 204, description: 'Unlocked' },
+      async handler(req, res) {
+        const membership = await Membership.findOne({
+          where: { labId: req.lab!.id, userId: req.params.userId as string },
+          include: [{ model: User, attributes: ['email'], required: true }],
+        });
+        if (!membership) throw notFound('No such member in this lab.');
+        const { email } = (membership as unknown as { User: User }).User;
+        await deps.loginLimiter.unlock(email);
+        await recordAudit({ labId: req.lab!.id, actorId: req.auth!.userId, action: 'member.sign_in_unlocked', targetType: 'user', targetId: membership.userId as string, ip: clientIp(req) });
         res.status(204).end();
       },
     },

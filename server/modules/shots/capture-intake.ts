@@ -6,6 +6,7 @@ import type { Request } from 'express';
 import type { StorageEngine } from 'multer';
 import type { BlobStore } from '../../storage/blob-store.ts';
 import { UploadReader } from './upload-reader.ts';
+import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 
 /** What the intake adds to each multer file. */
 export interface ReceivedFile {
@@ -25,6 +26,8 @@ export interface CaptureIntakeOptions {
   uploadsDir: string;
   /** Read files in a thread while they arrive when the request is at least this long; -1: never. */
   readFromBytes: number;
+  /** The installation's limits on one capture file, for the read while the upload arrives. @default none */
+  limits?: CaptureLimits;
   /** Reads at once in this process at most (each holds a capture's samples in memory). @default 2 */
   maxReads?: number;
 }
@@ -44,7 +47,7 @@ const SYNC_EVERY = 64 << 20;
  * route then names the blob by its hash.
  */
 export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
-  const { store, uploadsDir, readFromBytes, maxReads = 2 } = options;
+  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {} } = options;
   const receive = async (req: Request, stream: Readable): Promise<ReceivedFile> => {
     const onStoreDisk = store.stagingPath !== undefined && store.adoptFile !== undefined;
     let file: string;
@@ -57,7 +60,7 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
     let reader: UploadReader | null = null;
     if (readFromBytes >= 0 && Number.isFinite(requestBytes) && requestBytes >= readFromBytes && reading < maxReads) {
       reading += 1;
-      reader = new UploadReader(requestBytes, () => { reading -= 1; });
+      reader = new UploadReader(requestBytes, () => { reading -= 1; }, limits);
     }
     const hash = createHash('sha256');
     const fh = await open(file, 'wx');

@@ -4,6 +4,7 @@
 import { parentPort } from 'node:worker_threads';
 import { channelFilesOf } from '../../traces/write-channel-files.ts';
 import { readCaptureStream } from '../../../worker/import/read-capture-stream.ts';
+import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 import type { UploadReaderReply, UploadReaderRequest } from './upload-reader.ts';
 
 const port = parentPort!;
@@ -27,9 +28,10 @@ async function* arriving(): AsyncGenerator<Uint8Array> {
   }
 }
 
-async function read(sizeHint: number): Promise<void> {
+async function read(sizeHint: number, limits: CaptureLimits): Promise<void> {
   try {
-    const capture = await readCaptureStream(arriving(), { sizeHint });
+    // The installation's limits refuse a too wide or too deep file here too; the worker then says why.
+    const capture = await readCaptureStream(arriving(), { sizeHint, ...limits });
     const { files, blobs } = channelFilesOf(capture);
     // Each blob's bytes get a buffer of their own to hand over (a Float64 channel's bytes view the read's array).
     const owned = blobs.map(({ key, bytes }) => ({ key, bytes: bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? bytes : bytes.slice() }));
@@ -43,7 +45,7 @@ async function read(sizeHint: number): Promise<void> {
 }
 
 port.on('message', (message: UploadReaderRequest) => {
-  if (message.type === 'start') void read(message.sizeHint);
+  if (message.type === 'start') void read(message.sizeHint, message.limits);
   else if (message.type === 'end') ended = true;
   // After a failed read nothing more is scanned; the block is only counted so the sender is never held up.
   else if (failed) post({ type: 'taken', bytes: message.bytes.byteLength });

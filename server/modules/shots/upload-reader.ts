@@ -1,8 +1,9 @@
 import { Worker } from 'node:worker_threads';
 import type { PreparedChannelFiles } from '../../traces/write-channel-files.ts';
+import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 
 export type UploadReaderRequest =
-  | { type: 'start'; sizeHint: number }
+  | { type: 'start'; sizeHint: number; limits: CaptureLimits }
   | { type: 'block'; bytes: Uint8Array }
   | { type: 'end' };
 
@@ -37,7 +38,7 @@ export class UploadReader {
   readonly outcome: Promise<UploadRead | { problem: string }>;
 
   /** `onClose` is called once, when the reader is closed. */
-  constructor(sizeHint: number, private readonly onClose: () => void = () => {}) {
+  constructor(sizeHint: number, private readonly onClose: () => void = () => {}, limits: CaptureLimits = {}) {
     this.worker = new Worker(new URL('./upload-reader-thread.boot.mjs', import.meta.url));
     this.worker.unref();
     this.outcome = new Promise((resolve) => {
@@ -59,7 +60,7 @@ export class UploadReader {
       this.worker.on('error', (error) => fail(`the reading thread failed: ${error.message}`));
       this.worker.on('exit', () => fail('the reading thread stopped'));
     });
-    this.send({ type: 'start', sizeHint });
+    this.send({ type: 'start', sizeHint, limits });
   }
 
   private send(message: UploadReaderRequest, transfer: ArrayBuffer[] = []) {

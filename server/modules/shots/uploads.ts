@@ -12,12 +12,16 @@ import { captureFilesPrefix, placeChannelFiles, putChannelBlobs } from '../../tr
 import { captureIntake, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
 import { settleShot } from './settle-shot.ts';
+import { formatBytes } from '../../../shared/units/format-bytes.ts';
+import { assertStorageRoom } from '../storage/service.ts';
 
 export const MAX_FILES_PER_UPLOAD = 32;
 
 /** Runs multer on this request (after the access guard, so nobody unauthorised can fill the disk). */
 function receiveFiles(deps: Deps, req: Request, res: Response): Promise<(Express.Multer.File & ReceivedFile)[]> {
-  const storage = captureIntake({ store: deps.blobStore, uploadsDir: path.join(deps.config.dataDir, 'uploads'), readFromBytes: deps.config.readUploadsFromBytes });
+  const storage = captureIntake({ store: deps.blobStore, uploadsDir: path.join(deps.config.dataDir, 'uploads'), readFromBytes: deps.config.readUploadsFromBytes,
+    limits: { maxChannels: deps.config.maxChannelsPerCapture, maxSamples: deps.config.maxSamplesPerChannel },
+  });
   const upload = multer({
     storage,
     limits: { fileSize: deps.config.uploadLimitBytes, files: MAX_FILES_PER_UPLOAD },
@@ -34,9 +38,21 @@ function receiveFiles(deps: Deps, req: Request, res: Response): Promise<(Express
         };
         return reject(new AppError(err.code === 'LIMIT_FILE_SIZE' ? 413 : 400, 'bad_upload', messages[err.code] ?? `Upload refused: ${err.message}`));
       }
+      // busboy's own parse errors: the body is not well-formed multipart (a NUL in a file name ends up here too).
+      if (err instanceof Error && /^(Malformed|Unexpected end of form|Multipart: Boundary not found)/.test(err.message)) {
+        return reject(new AppError(400, 'bad_upload',
+          `The upload is not well-formed multipart/form-data (${err.message.toLowerCase()}); a file name holding a NUL or another control character does this. Nothing was stored.`));
+      }
       reject(err);
     });
   });
+}
+
+function assertRequestSize(deps: Deps, bytes: number): void {
+  if (bytes <= deps.config.uploadRequestLimitBytes) return;
+  throw new AppError(413, 'bad_upload',
+    `This upload is ${formatBytes(bytes)}; this installation accepts at most ${formatBytes(deps.config.uploadRequestLimitBytes)} per upload. ` +
+    'Send the files in several uploads. Nothing was stored.');
 }
 
 export interface UploadedCaptureView {
@@ -55,10 +71,25 @@ export interface UploadedCaptureView {
  * the capture row is the record of work to do, so nothing is lost.
  */
 export async function acceptUpload(deps: Deps, req: Request, res: Response, shot: Shot): Promise<UploadedCaptureView[]> {
+  // busboy reads plain multipart only; a compressed body would fail half-way through.
+  const encoding = (req.headers['content-encoding'] ?? 'identity').toLowerCase();
+  if (encoding !== 'identity') {
+    throw new AppError(400, 'bad_upload', `Send the files without Content-Encoding (this upload came as ${encoding}); scope CSV files are taken as they are. Nothing was stored.`);
+  }
+  // The request's declared size is checked against both limits before a byte of it is read.
+  const declared = Number(req.headers['content-length']);
+  if (Number.isFinite(declared)) {
+    assertRequestSize(deps, declared);
+    await assertStorageRoom(deps.config, shot.labId, declared, 'This upload');
+  }
   const files = await receiveFiles(deps, req, res);
   const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
   try {
     if (files.length === 0) throw badRequest('No file received: send one or more scope CSV files in the multipart field "files".');
+    // A body sent without Content-Length (chunked) is checked once received, before anything is stored.
+    const received = files.reduce((sum, file) => sum + file.size, 0);
+    assertRequestSize(deps, received);
+    await assertStorageRoom(deps.config, shot.labId, received, 'This upload');
     const views: UploadedCaptureView[] = [];
     for (const file of files) {
       const { sha256 } = file;

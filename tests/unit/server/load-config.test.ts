@@ -77,6 +77,18 @@ describe('loadConfig', () => {
     expect(message).toBe('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
   });
 
+  it('When the public URL is not loopback, then the development JWT secret is refused whatever NODE_ENV says (issue 12, item 14)', () => {
+    for (const url of ['https://gatepost.lab.example', 'http://192.168.1.20:8640', 'http://[2001:db8::1]:8640']) {
+      expect(configError(() => loadConfig({ NODE_ENV: 'development', GATEPOST_PUBLIC_URL: url }))).toBe(
+        `Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set when GATEPOST_PUBLIC_URL (${url}) is not a loopback address`,
+      );
+    }
+    for (const url of ['http://127.0.0.1:8640', 'http://localhost:5173', 'http://[::1]:8640', 'http://127.0.1.1:8640']) {
+      expect(loadConfig({ NODE_ENV: 'development', GATEPOST_PUBLIC_URL: url }).publicUrl, url).toBe(url);
+    }
+    expect(loadConfig({ GATEPOST_PUBLIC_URL: 'https://gatepost.lab.example', GATEPOST_JWT_SECRET: PRODUCTION_SECRET }).jwtSecret).toBe(PRODUCTION_SECRET);
+  });
+
   it('When running in production with a real secret, then the configuration loads', () => {
     const config = loadConfig({ NODE_ENV: 'production', GATEPOST_JWT_SECRET: PRODUCTION_SECRET });
     expect(config).toMatchObject({ nodeEnv: 'production', jwtSecret: PRODUCTION_SECRET });

@@ -9,6 +9,7 @@ export const labKeys = {
   members: (labId: string) => [...labKeys.all(labId), 'members'] as const,
   invitations: (labId: string) => [...labKeys.all(labId), 'invitations'] as const,
   outbox: (labId: string) => [...labKeys.all(labId), 'outbox'] as const,
+  storage: (labId: string) => [...labKeys.all(labId), 'storage'] as const,
   audit: (labId: string) => [...labKeys.all(labId), 'audit'] as const,
   campaigns: (labId: string) => [...labKeys.all(labId), 'campaigns'] as const,
   campaign: (labId: string, id: string) => [...labKeys.campaigns(labId), id] as const,
@@ -26,5 +27,12 @@ export function useChangeRole(labId: string) {
   return useMutation({
     mutationFn: ({ userId, role }: { userId: string; role: Role }) => api.patch(`/api/labs/${labId}/members/${userId}`, { role }),
     onSettled: () => queryClient.invalidateQueries({ queryKey: labKeys.members(labId) }),
+  });
+}
+
+/** Clears a member's failed sign-ins (lab admins), so a member refused after mistyped passwords can sign in at once. */
+export function useUnlockSignIn(labId: string) {
+  return useMutation({
+    mutationFn: (userId: string) => api.post(`/api/labs/${labId}/members/${userId}/unlock-sign-in`, {}),
   });
 }

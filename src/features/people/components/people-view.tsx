@@ -3,8 +3,9 @@ import { invitationBody } from '../../../../shared/contracts/auth.ts';
 import { ROLE_LABELS, ROLES, type Role } from '../../../../shared/contracts/roles.ts';
 import { Badge, Button, Card, EmptyState, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
 import { formatDate } from '../../../lib/format.ts';
-import { useChangeRole, useMembers } from '../../labs/api/members.ts';
+import { useChangeRole, useUnlockSignIn, useMembers } from '../../labs/api/members.ts';
 import { useInvitations, useInvite, useWithdrawInvitation } from '../api/invitations.ts';
+import { StorageCard } from './storage-card.tsx';
 
 function InviteForm({ labId }: { labId: string }) {
   const invite = useInvite(labId);
@@ -58,6 +59,7 @@ function Invitations({ labId }: { labId: string }) {
 export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmin: boolean; myUserId: string }) {
   const members = useMembers(labId);
   const changeRole = useChangeRole(labId);
+  const unlock = useUnlockSignIn(labId);
   return (
     <div className="space-y-6">
       <Card title="Members">
@@ -65,6 +67,12 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
         {members.isError && <ErrorNote error={members.error} />}
         {members.data?.members.length === 0 && <EmptyState title="No members" />}
         {changeRole.isError && <div className="mb-3"><ErrorNote error={changeRole.error} /></div>}
+        {unlock.isError && <div className="mb-3"><ErrorNote error={unlock.error} /></div>}
+        {unlock.isSuccess && (
+          <p role="status" className="mb-3 text-sm text-emerald-700">
+            {members.data?.members.find((m) => m.userId === unlock.variables)?.name ?? 'The member'} can sign in again at once.
+          </p>
+        )}
         <ul className="divide-y divide-harbour-100">
           {members.data?.members.map((m) => (
             <li key={m.userId} className="flex flex-wrap items-center justify-between gap-3 py-3">
@@ -73,6 +81,12 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
                 <span className="block text-sm text-harbour-500">{m.email}</span>
               </span>
               {isAdmin ? (
+                <span className="flex items-center gap-2">
+                  {m.userId !== myUserId && (
+                    <Button variant="ghost" className="!py-1 text-sm" title="Clear failed sign-ins, from every address" onClick={() => unlock.mutate(m.userId)}>
+                      Unlock sign-in
+                    </Button>
+                  )}
                 <select
                   aria-label={`Role of ${m.name}`}
                   value={m.role}
@@ -81,6 +95,7 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
                 >
                   {ROLES.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
                 </select>
+                </span>
               ) : (
                 <Badge>{ROLE_LABELS[m.role]}</Badge>
               )}
@@ -95,6 +110,7 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
           <Invitations labId={labId} />
         </Card>
       )}
+      {isAdmin && <StorageCard labId={labId} />}
     </div>
   );
 }

@@ -10,15 +10,16 @@ export function TokensView() {
   const revoke = useRevokeToken();
   const [name, setName] = useState('');
   const [days, setDays] = useState('90');
+  const [password, setPassword] = useState('');
   const [problem, setProblem] = useState<string>();
   const [secret, setSecret] = useState<string>();
 
   const submit = (e: FormEvent) => {
     e.preventDefault();
-    const parsed = apiTokenBody.safeParse({ name, expiresInDays: days ? Number(days) : undefined });
+    const parsed = apiTokenBody.safeParse({ name, expiresInDays: days ? Number(days) : undefined, password });
     if (!parsed.success) return setProblem(parsed.error.issues[0].message);
     setProblem(undefined);
-    create.mutate(parsed.data, { onSuccess: (r) => { setSecret(r.secret); setName(''); } });
+    create.mutate(parsed.data, { onSuccess: (r) => { setSecret(r.secret); setName(''); setPassword(''); } });
   };
 
   return (
@@ -27,9 +28,10 @@ export function TokensView() {
         <p className="mb-4 text-sm text-harbour-600">
           Scripts send a token as <code className="rounded bg-harbour-100 px-1">Authorization: Bearer …</code> and act as you, with your roles.
         </p>
-        <form onSubmit={submit} className="grid items-end gap-3 sm:grid-cols-[2fr_1fr_auto]" noValidate>
+        <form onSubmit={submit} className="grid items-end gap-3 sm:grid-cols-[2fr_1fr_1.2fr_auto]" noValidate>
           <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. nightly export script" />
           <TextField label="Expires after (days)" type="number" min={1} max={366} value={days} onChange={(e) => setDays(e.target.value)} hint="Empty: until revoked" />
+          <TextField label="Your password" type="password" autoComplete="current-password" value={password} onChange={(e) => setPassword(e.target.value)} hint="To confirm it is you" />
           <Button type="submit" disabled={create.isPending}>Create token</Button>
         </form>
         {(problem || create.isError) && <div className="mt-3"><ErrorNote error={create.error ?? new Error(problem)} /></div>}

@@ -138,3 +138,23 @@ describe('countLineEnds', () => {
     }
   });
 });
+
+describe('readCaptureFile with the installation\'s limits (issue 12)', () => {
+  const tooDeep = 'the file holds more than 7,999 samples per channel, the most this installation reads (setting GATEPOST_MAX_SAMPLES_PER_CHANNEL). Export a shorter record or a lower sample rate.';
+  const tooWide = 'the file has 2 channels; this installation reads at most 1 per capture (setting GATEPOST_MAX_CHANNELS_PER_CAPTURE). Export only the channels of the gates, or split the file.';
+
+  it('When a file has one sample per channel more than maxSamples, then both readers refuse it; at the limit they read it', async () => {
+    const path = save('limit.csv', written().bytes);
+    for (const threads of [1, 2] as const) {
+      expect((await rejection(readCaptureFile(path, { threads, headBytes: 4096, maxSamples: 7_999 }))).message, `threads ${threads}`).toBe(tooDeep);
+      expect((await readCaptureFile(path, { threads, headBytes: 4096, maxSamples: 8_000 })).length).toBe(8000);
+    }
+  });
+
+  it('When a file has more channels than maxChannels, then both readers refuse it before reading samples', async () => {
+    const path = save('wide.csv', written().bytes);
+    for (const threads of [1, 2] as const) {
+      expect((await rejection(readCaptureFile(path, { threads, headBytes: 4096, maxChannels: 1 }))).message, `threads ${threads}`).toBe(tooWide);
+    }
+  });
+});
