@@ -160,7 +160,7 @@ describe('When a browser or a script listens to GET /api/labs/:labId/events', ()
   });
 
   it('then a personal API token (Bearer) works too, and another lab hears nothing of this lab', async () => {
-    const made = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'event listener' });
+    const made = await experimenter.post<{ secret: string }>('/api/me/tokens', { name: 'event listener', password: demo.users.experimenter.password });
     expect(made.status).toBe(201);
     const own = await openEventStream(`${app.baseUrl}/api/labs/${demo.labs.hollowmere.id}/events`, { authorization: `Bearer ${made.body.secret}` });
     const other = await signIn(app.baseUrl, demo.users.otherLabAdmin.email, demo.users.otherLabAdmin.password);

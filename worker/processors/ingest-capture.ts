@@ -56,6 +56,8 @@ async function readAndStore(job: Job, capture: Capture): Promise<void> {
  */
 export default async function ingestCapture(job: Job): Promise<{ captureId: string; state: string }> {
   const data = ingestJobData.parse(job.data);
+  // The context opens the database (and so sets up the models) in this worker thread: before any query.
+  workerContext();
   const capture = await Capture.findByPk(data.captureId);
   if (!capture) throw new UnrecoverableError(`capture ${data.captureId} no longer exists`);
   if (capture.ingestAttempt !== data.attempt) return { captureId: capture.id, state: 'superseded' };
