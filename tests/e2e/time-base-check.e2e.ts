@@ -65,7 +65,7 @@ async function signedIn(role: Exclude<DemoActor, 'otherLabAdmin'>) {
 }
 
 const reviewBar = (page: Page) => page.getByRole('region', { name: 'Review', exact: true });
-const approve = (page: Page) => reviewBar(page).getByRole('button', { name: 'Approve version 1' });
+const approve = (page: Page) => reviewBar(page).getByRole('button', { name: 'Sign off version 1…' });
 
 describe('check the time base', () => {
   it('When the worker reads 1 s per sample, then the speed is greyed with the reason and approval waits until an analyst confirms the read', async () => {
@@ -136,6 +136,8 @@ describe('check the time base', () => {
         expect(await approve(page).isDisabled()).toBe(false);
         expect(await reviewBar(page).getByTestId('approval-blocked').count()).toBe(0);
         await approve(page).click();
+        // Signing off asks first, naming the version that is frozen.
+        await reviewBar(page).getByRole('group', { name: 'Confirm sign-off' }).getByRole('button', { name: 'Sign off version 1' }).click();
         await page.getByTestId('signed-off').waitFor();
       } finally {
         await context.close();
