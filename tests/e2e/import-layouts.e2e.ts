@@ -5,10 +5,10 @@
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { createDemoShotRow } from '../helpers/demo-shots.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
-import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
+import { launchBrowser, saveScreenshot, signInOnPage } from '../helpers/browser.ts';
 
 const FIXTURES = path.resolve(import.meta.dirname, '../../fixtures/captures');
 
@@ -19,14 +19,7 @@ let shotId: string;
 beforeAll(async () => {
   harness = await createApiHarness();
   const demo = await harness.resetDatabase();
-  const rig = await GateRig.findByPk(demo.hollowmere.gateRigIds[0], { rejectOnEmpty: true });
-  const ball = await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true });
-  const shot = await Shot.create({
-    labId: demo.labs.hollowmere.id, campaignId: demo.hollowmere.campaignIds[0], number: 102, firedAt: new Date(),
-    projectileId: ball.id, gateRigId: rig.id, tubePressurePa: 1800, ambientTemperatureK: 293.15,
-    ambientPressurePa: 100_900, createdBy: demo.users.experimenter.id,
-  });
-  shotId = shot.id;
+  shotId = await createDemoShotRow(demo, 102);
   app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
 }, 120_000);
 
@@ -42,11 +35,7 @@ describe('how a file was read', () => {
     try {
       const page = await browser.newPage();
       await page.setViewportSize({ width: 1280, height: 900 });
-      await page.goto(`${app.baseUrl}/sign-in`);
-      await page.getByLabel('E-mail').fill(demo.users.experimenter.email);
-      await page.getByLabel('Password').fill(demo.users.experimenter.password);
-      await page.getByRole('button', { name: 'Sign in' }).click();
-      await page.waitForURL('**/campaigns');
+      await signInOnPage(page, app.baseUrl, demo.users.experimenter);
       await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${shotId}`);
       await page.getByText('Drop the scope’s CSV exports here').waitFor();
       let numbers = 'Sample,Gate A\n';

@@ -6,8 +6,9 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Capture, GateRig, Projectile, Shot } from '../../server/db/models/index.ts';
+import { Capture } from '../../server/db/models/index.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
+import { createDemoShotRow } from '../helpers/demo-shots.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { launchBrowser, saveScreenshot } from '../helpers/browser.ts';
 
@@ -22,14 +23,7 @@ beforeAll(async () => {
   harness = await createApiHarness();
   const demo = await harness.resetDatabase();
   // The demo rig's gates are 150 mm apart; these captures were made with 100 mm: the analyst fixes that below.
-  const rig = await GateRig.findByPk(demo.hollowmere.gateRigIds[0], { rejectOnEmpty: true });
-  const ball = await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true });
-  const shot = await Shot.create({
-    labId: demo.labs.hollowmere.id, campaignId: demo.hollowmere.campaignIds[0], number: 101, firedAt: new Date(),
-    projectileId: ball.id, gateRigId: rig.id, tubePressurePa: 1800, ambientTemperatureK: 293.15,
-    ambientPressurePa: 100_900, createdBy: demo.users.experimenter.id,
-  });
-  shotId = shot.id;
+  shotId = await createDemoShotRow(demo, 101);
   app = await startAppProcesses({ env: { GATEPOST_SMTP_PORT: String(harness.smtpPort), GATEPOST_LOG_LEVEL: 'warn' } });
 }, 120_000);
 
