@@ -33,7 +33,7 @@ export function assembleCapture(plan: CapturePlan, body: CaptureBody, source: Re
   for (const check of plan.timeChecks) {
     const printed = body.values[check.channel];
     if (check.rebuild) {
-      time = rebuildTimeBase(printed, length, time, plan, check.column);
+      time = rebuildTimeBase(printed, length, time, check.column);
     } else {
       checkSameTimes(printed, length, time, plan, check.column);
     }
@@ -103,7 +103,7 @@ function checkSameTimes(printed: Float64Array, length: number, time: TimeBase, p
  * start is the least-squares offset of the printed times from i·dt (their rounding averages out), and every
  * printed time must lie within its own print resolution of the grid, or the stated interval is not the file's.
  */
-function rebuildTimeBase(printed: Float64Array, length: number, time: TimeBase, plan: CapturePlan, column: number): TimeBase {
+function rebuildTimeBase(printed: Float64Array, length: number, time: TimeBase, column: number): TimeBase {
   if (time.kind !== 'uniform') throw new Error('a rebuilt time base starts from the stated interval');
   const { dt } = time;
   let sum = 0;
@@ -132,6 +132,5 @@ function rebuildTimeBase(printed: Float64Array, length: number, time: TimeBase, 
   if (worst > allowed) {
     throw new ImportError(`the printed times of column ${column + 1} do not follow the stated sample interval ${dt} s: at sample ${(at + 1).toLocaleString('en')} the file says ${printed[at]} s, the interval gives ${t0 + at * dt} s; check the interval (the "Fix how it is read" form, or --dt)`);
   }
-  void plan;
   return { kind: 'uniform', t0, dt, jitter: worst };
 }
