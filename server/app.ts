@@ -12,6 +12,7 @@ import { buildOpenApi } from './lib/openapi.ts';
 import { createSameOriginCheck } from './lib/same-origin.ts';
 import { rejectUnstorableText } from './lib/text-input.ts';
 import { mountRoutes, type RouteDef } from './lib/routes.ts';
+import { accountRoutes } from './modules/account/routes.ts';
 import { analysisRoutes } from './modules/analyses/routes.ts';
 import { auditRoutes } from './modules/audit/routes.ts';
 import { authRoutes } from './modules/auth/routes.ts';
@@ -42,6 +43,7 @@ export function allRoutes(deps: Deps): RouteDef[] {
     ...healthRoutes(deps),
     ...authRoutes(deps),
     ...tokenRoutes(deps),
+    ...accountRoutes(deps),
     ...labRoutes(deps),
     ...storageRoutes(deps),
     ...invitationRoutes(deps),

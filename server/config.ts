@@ -29,6 +29,10 @@ const schema = z.object({
   /** Progressive delay of sign-ins once failures pile up: first step, doubling up to the longest, ms. */
   loginDelayStepMs: z.coerce.number().int().min(0).default(250),
   loginMaxDelayMs: z.coerce.number().int().min(0).default(8000),
+  /** How long a password reset link works, minutes. */
+  passwordResetMinutes: z.coerce.number().int().min(5).max(24 * 60).default(30),
+  /** Reset e-mails sent to one address per hour at most; further requests get the same answer and no mail. */
+  passwordResetMailsPerHour: z.coerce.number().int().min(1).default(3),
   /**
    * The reverse proxy in front of the API, whose X-Forwarded-For is believed (the client's address for sign-in
    * limits and the audit trail): addresses or subnets, comma-separated (e.g. "127.0.0.1" or "10.0.0.0/8"). Unset:
@@ -92,6 +96,8 @@ const envNames: Record<keyof Config, string> = {
   loginWindowSeconds: 'GATEPOST_LOGIN_WINDOW_SECONDS',
   loginDelayStepMs: 'GATEPOST_LOGIN_DELAY_STEP_MS',
   loginMaxDelayMs: 'GATEPOST_LOGIN_MAX_DELAY_MS',
+  passwordResetMinutes: 'GATEPOST_PASSWORD_RESET_MINUTES',
+  passwordResetMailsPerHour: 'GATEPOST_PASSWORD_RESET_MAILS_PER_HOUR',
   trustProxy: 'GATEPOST_TRUST_PROXY',
   logLevel: 'GATEPOST_LOG_LEVEL',
   clientDir: 'GATEPOST_CLIENT_DIR',

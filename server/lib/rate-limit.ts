@@ -10,6 +10,8 @@ export interface LoginLimiterOptions {
   delayStepMs?: number;
   /** The longest delay: a right password is answered at most this late, never refused. @default 8000 */
   maxDelayMs?: number;
+  /** Redis key prefix, so other guarded actions (password reset requests) count apart from sign-ins. @default 'gp:login-fail' */
+  prefix?: string;
 }
 
 export interface LoginAttempt {
@@ -42,9 +44,10 @@ export class LoginLimiter {
   private readonly windowSeconds: number;
   private readonly delayStepMs: number;
   private readonly maxDelayMs: number;
+  private readonly prefix: string;
 
   constructor(private readonly redis: Redis, options: LoginLimiterOptions = {}) {
-    const { maxFailures = 5, windowSeconds = 900, delayStepMs = 250, maxDelayMs = 8000 } = options;
+    const { maxFailures = 5, windowSeconds = 900, delayStepMs = 250, maxDelayMs = 8000, prefix = 'gp:login-fail' } = options;
     if (!(maxFailures >= 1)) throw new RangeError('maxFailures must be at least 1');
     if (!(windowSeconds >= 1)) throw new RangeError('windowSeconds must be at least 1');
     if (!(delayStepMs >= 0) || !(maxDelayMs >= 0)) throw new RangeError('delayStepMs and maxDelayMs must be 0 or more');
@@ -52,14 +55,15 @@ export class LoginLimiter {
     this.windowSeconds = windowSeconds;
     this.delayStepMs = delayStepMs;
     this.maxDelayMs = maxDelayMs;
+    this.prefix = prefix;
   }
 
   private keys(email: string, address: string) {
     return {
-      pair: `gp:login-fail:pair:${email}\n${address}`,
-      pairs: `gp:login-fail:pairs:${email}`,
-      account: `gp:login-fail:acct:${email}`,
-      address: `gp:login-fail:addr:${address}`,
+      pair: `${this.prefix}:pair:${email}\n${address}`,
+      pairs: `${this.prefix}:pairs:${email}`,
+      account: `${this.prefix}:acct:${email}`,
+      address: `${this.prefix}:addr:${address}`,
     };
   }
 

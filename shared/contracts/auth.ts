@@ -31,6 +31,39 @@ export type AcceptInvitationBody = z.infer<typeof acceptInvitationBody>;
 
 export const memberRoleBody = z.object({ role: roleSchema });
 
+/** Change password (account page): the current one, and a new one under the same rule as sign-up. */
+export const changePasswordBody = z
+  .object({
+    currentPassword: z.string('Type your current password.').min(1, 'Type your current password.').max(1024),
+    newPassword: newPasswordSchema,
+    /** Also revoke every personal API token (scripts stop until given a new one). @default false */
+    alsoRevokeTokens: z.boolean().default(false),
+  })
+  .refine((b) => b.newPassword !== b.currentPassword, { path: ['newPassword'], message: 'Choose a password different from your current one.' });
+export type ChangePasswordBody = z.input<typeof changePasswordBody>;
+
+/** Sign out everywhere: every browser session of the account, this one too; tokens only when asked. */
+export const signOutEverywhereBody = z.object({
+  /** Also revoke every personal API token. @default false */
+  alsoRevokeTokens: z.boolean().default(false),
+});
+export type SignOutEverywhereBody = z.input<typeof signOutEverywhereBody>;
+
+/** "Forgot password?": the address to send a reset link to. */
+export const passwordResetRequestBody = z.object({ email: emailSchema });
+export type PasswordResetRequestBody = z.infer<typeof passwordResetRequestBody>;
+
+/** Setting a new password with the secret from a reset e-mail. */
+export const passwordResetCompleteBody = z.object({
+  token: z.string('The reset link is incomplete: open it again from the e-mail.').min(16, 'The reset link is incomplete: open it again from the e-mail.').max(200),
+  password: newPasswordSchema,
+});
+export type PasswordResetCompleteBody = z.infer<typeof passwordResetCompleteBody>;
+
+/** The one answer to a reset request, whether or not the address has an account. */
+export const PASSWORD_RESET_REQUESTED_MESSAGE =
+  'If an account uses that address, a link to set a new password is on its way. It works once and expires soon; check your spam folder if it does not arrive.';
+
 export const apiTokenBody = z.object({
   name: z.string().trim().min(1, 'Name the token after the script that uses it.').max(100),
   /** Days until the token stops working; omit for a token that lasts until revoked. */

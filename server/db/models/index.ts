@@ -21,8 +21,23 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare name: string;
   declare passwordHash: string;
   declare disabledAt: CreationOptional<Date | null>;
+  /** Who disabled the account (migration 0008). */
+  declare disabledBy: CreationOptional<string | null>;
+  /** Raised by sign-out-everywhere, a password change or reset: sessions of an older generation stop working. */
+  declare sessionGeneration: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
+}
+
+/** A single-use password reset link (migration 0008); only the SHA-256 of its secret is kept. */
+export class PasswordReset extends Model<InferAttributes<PasswordReset>, InferCreationAttributes<PasswordReset>> {
+  declare id: CreationOptional<string>;
+  declare userId: ForeignKey<User['id']>;
+  declare tokenHash: string;
+  declare expiresAt: Date;
+  declare usedAt: CreationOptional<Date | null>;
+  declare requestedIp: string | null;
+  declare createdAt: CreationOptional<Date>;
 }
 
 export class Membership extends Model<InferAttributes<Membership>, InferCreationAttributes<Membership>> {
@@ -271,8 +286,15 @@ export function initModels(sequelize: Sequelize): void {
   const opts = (tableName: string, extra: object = {}) => ({ sequelize, tableName, underscored: true, ...extra });
   Lab.init({ id, name: text(), slug: text(), ...stamps }, opts('labs'));
   User.init(
-    { id, email: text(), name: text(), passwordHash: text(), disabledAt: date(), ...stamps },
+    {
+      id, email: text(), name: text(), passwordHash: text(), disabledAt: date(), disabledBy: uuid(true),
+      sessionGeneration: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 }, ...stamps,
+    },
     opts('users'),
+  );
+  PasswordReset.init(
+    { id, userId: uuid(), tokenHash: text(), expiresAt: date(false), usedAt: date(), requestedIp: text(true), createdAt: DataTypes.DATE },
+    opts('password_resets', { updatedAt: false }),
   );
   Membership.init({ id, labId: uuid(), userId: uuid(), role: text(), ...stamps }, opts('memberships'));
   ApiToken.init(
@@ -390,6 +412,7 @@ export function initModels(sequelize: Sequelize): void {
   User.hasMany(ApiToken, { foreignKey: 'userId' });
   // authenticate.ts loads a token together with its user.
   ApiToken.belongsTo(User, { foreignKey: 'userId' });
+  PasswordReset.belongsTo(User, { foreignKey: 'userId' });
   Lab.hasMany(Invitation, { foreignKey: 'labId' });
   Lab.hasMany(Campaign, { foreignKey: 'labId' });
   Campaign.hasMany(Shot, { foreignKey: 'campaignId' });

@@ -3,6 +3,7 @@ import { loginBody, type LoginBody } from '../../../shared/contracts/auth.ts';
 import { User } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { revokedSessionKey, SESSION_COOKIE } from '../../lib/authenticate.ts';
+import { publishAccountChanged } from '../../lib/account-events.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, serviceUnavailable, tooManyRequests } from '../../lib/errors.ts';
@@ -11,9 +12,12 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { signSession } from '../../lib/tokens.ts';
 import { meView } from './service.ts';
 
-/** Signs the user in on this response: a fresh session JWT in an httpOnly, SameSite cookie. */
-export function startSession(res: Response, deps: Deps, userId: string): Date {
-  const { token, claims } = signSession(userId, deps.config.jwtSecret, deps.config.sessionHours);
+/**
+ * Signs the user in on this response: a fresh session JWT in an httpOnly, SameSite cookie. `generation` is the
+ * account's current session generation (users.session_generation): a session of an older one is refused.
+ */
+export function startSession(res: Response, deps: Deps, userId: string, generation: number): Date {
+  const { token, claims } = signSession(userId, deps.config.jwtSecret, deps.config.sessionHours, generation);
   res.cookie(SESSION_COOKIE, token, {
     httpOnly: true,
     sameSite: 'lax',
@@ -72,7 +76,12 @@ export function authRoutes(deps: Deps): RouteDef[] {
           );
         }
         const user = await User.findOne({ where: { email } });
-        const ok = user && !user.disabledAt ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
+        const ok = user ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
+        if (ok && user?.disabledAt) {
+          // Said only to someone who knows the password: a disabled account is not a secret from its owner.
+          await recordAudit({ labId: null, actorId: user.id, action: 'auth.login_refused_disabled', ip });
+          throw new AppError(403, 'account_disabled', 'This account has been disabled by a lab admin. Ask your lab admin to enable it again.');
+        }
         if (!ok || !user) {
           await recordAudit({ labId: null, actorId: user?.id ?? null, action: 'auth.login_failed', details: { email }, ip });
           // Once per window, when the account's failures from every address reach the limit.
@@ -80,7 +89,7 @@ export function authRoutes(deps: Deps): RouteDef[] {
           throw new AppError(401, 'invalid_credentials', 'That e-mail and password do not match an account.');
         }
         await deps.loginLimiter.release(email, ip);
-        const expiresAt = startSession(res, deps, user.id);
+        const expiresAt = startSession(res, deps, user.id, user.sessionGeneration);
         await recordAudit({ labId: null, actorId: user.id, action: 'auth.login', ip });
         res.json(await meView(user.id, 'session', expiresAt));
       },
@@ -101,6 +110,7 @@ export function authRoutes(deps: Deps): RouteDef[] {
             throw serviceUnavailable('Sign-out could not be recorded just now, so you are still signed in. Try again in a moment.', err);
           }
           await recordAudit({ labId: null, actorId: auth.userId, action: 'auth.logout', ip: clientIp(req) });
+          await publishAccountChanged(deps.redis, auth.userId);
         }
         res.clearCookie(SESSION_COOKIE, { path: '/' });
         res.status(204).end();

@@ -1,11 +1,14 @@
 import type { Response } from 'express';
 import type { Redis } from 'ioredis';
+import { ACCOUNT_CHANGED_CHANNEL } from '../../lib/account-events.ts';
 import { LAB_EVENT_PATTERN, labIdOfChannel } from '../../lib/lab-events.ts';
 import type { Logger } from '../../lib/logger.ts';
 
 interface Client {
   res: Response;
   userId: string;
+  /** Re-checks the stream's credential and membership; false ends the stream. */
+  stillAllowed: () => Promise<boolean>;
 }
 
 /**
@@ -52,7 +55,30 @@ export class LabEventHub {
     this.subscriber = sub;
     sub.on('error', (err: Error) => this.logger.warn({ err: err.message }, 'lab event subscription: redis problem'));
     sub.on('pmessage', (_pattern: string, channel: string, message: string) => this.deliver(channel, message));
+    sub.on('message', (channel: string, message: string) => {
+      if (channel === ACCOUNT_CHANGED_CHANNEL) this.recheckAccount(message);
+    });
     sub.psubscribe(LAB_EVENT_PATTERN).catch((err: Error) => this.logger.warn({ err: err.message }, 'lab event subscription failed; clients poll'));
+    sub.subscribe(ACCOUNT_CHANGED_CHANNEL).catch((err: Error) => this.logger.warn({ err: err.message }, 'account change subscription failed; streams re-check at each beat'));
+  }
+
+  /** An account's credentials changed: each of its streams re-checks and ends if no longer allowed. */
+  private recheckAccount(message: string) {
+    let userId: unknown;
+    try {
+      userId = (JSON.parse(message) as { userId?: unknown }).userId;
+    } catch {
+      return;
+    }
+    for (const set of this.clients.values()) {
+      for (const c of set) {
+        if (c.userId !== userId) continue;
+        c.stillAllowed().then(
+          (ok) => { if (!ok) c.res.end(); },
+          (err: Error) => this.logger.warn({ err: err.message }, 'event stream re-check failed; next beat retries'),
+        );
+      }
+    }
   }
 
   private deliver(channel: string, message: string) {

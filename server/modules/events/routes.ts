@@ -1,4 +1,5 @@
 import { Membership } from '../../db/models/index.ts';
+import { checkCredential, presentedCredential } from '../../lib/authenticate.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { tooManyRequests } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
@@ -6,7 +7,11 @@ import { labEventHubFor } from './lab-event-hub.ts';
 
 /** Streams one person may hold open at once in one API process (a few tabs; a runaway script is refused). */
 export const MAX_STREAMS_PER_USER = 12;
-/** A comment line this often keeps proxies from closing an idle stream and re-checks the caller's membership. */
+/**
+ * A comment line this often keeps proxies from closing an idle stream and re-checks the caller's credential (signed
+ * out, revoked, disabled) and membership. A change to the account ends its streams at once through Redis
+ * (server/lib/account-events.ts); the beat is the fallback when that notice is missed.
+ */
 export const HEARTBEAT_MS = 20_000;
 
 export function eventRoutes(deps: Deps): RouteDef[] {
@@ -35,11 +40,17 @@ export function eventRoutes(deps: Deps): RouteDef[] {
         res.status(200).set({ 'Content-Type': 'text/event-stream; charset=utf-8', 'Cache-Control': 'no-store', Connection: 'keep-alive', 'X-Accel-Buffering': 'no' });
         res.flushHeaders();
         res.write('retry: 3000\n\nevent: ready\ndata: {"type":"ready"}\n\n');
-        const remove = hub.add(labId, { res, userId });
+        const presented = presentedCredential(req)!;
+        const stillAllowed = async () => {
+          const check = await checkCredential(presented, { jwtSecret: deps.config.jwtSecret, redis: deps.redis });
+          if ('error' in check || check.auth.userId !== userId) return false;
+          return (await Membership.count({ where: { labId, userId } })) > 0;
+        };
+        const remove = hub.add(labId, { res, userId, stillAllowed });
         const heartbeat = setInterval(() => {
-          // A member removed from the lab stops hearing of it at the next beat.
-          Membership.count({ where: { labId, userId } }).then(
-            (n) => (n > 0 ? res.write(': beat\n\n') : res.end()),
+          // A member removed from the lab, or a session signed out or disabled, stops hearing of it at the next beat.
+          stillAllowed().then(
+            (ok) => (ok ? res.write(': beat\n\n') : res.end()),
             () => res.write(': beat\n\n'),
           );
         }, HEARTBEAT_MS);

@@ -166,6 +166,7 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
           if (!(await verifyPassword(user.passwordHash, password))) {
             throw new AppError(401, 'invalid_credentials', `${invitation.email} already has an account: enter its password to join ${lab.name}.`);
           }
+          if (user.disabledAt) throw new AppError(403, 'account_disabled', 'This account has been disabled by a lab admin, so it cannot join a lab. Ask the lab admin who disabled it.');
           await deps.loginLimiter.release(invitation.email, ip);
         } else {
           if (!name) throw new AppError(400, 'bad_request', 'Please correct the request: name: Enter your name.');
@@ -191,7 +192,7 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
         });
         if (!accepted) throw new AppError(410, 'invitation_closed', 'This invitation has already been used.');
         await recordAudit({ labId: lab.id, actorId: user.id, action: 'invitation.accepted', targetType: 'invitation', targetId: invitation.id, details: { role: invitation.role }, ip });
-        const expiresAt = startSession(res, deps, user.id);
+        const expiresAt = startSession(res, deps, user.id, user.sessionGeneration ?? 0);
         res.json(await meView(user.id, 'session', expiresAt));
       },
     },

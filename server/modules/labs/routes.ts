@@ -1,14 +1,24 @@
 import { memberRoleBody } from '../../../shared/contracts/auth.ts';
 import type { Role } from '../../../shared/contracts/roles.ts';
 import { Lab, Membership, User } from '../../db/models/index.ts';
+import { Op } from 'sequelize';
+import { publishAccountChanged } from '../../lib/account-events.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import { conflict, notFound } from '../../lib/errors.ts';
 import type { Deps } from '../../lib/deps.ts';
 import type { RouteDef } from '../../lib/routes.ts';
+import { endAllSessions } from '../account/service.ts';
 
+/** Admins of the lab whose accounts are enabled: a disabled admin cannot run the lab. */
 async function adminCount(labId: string): Promise<number> {
-  return Membership.count({ where: { labId, role: 'admin' } });
+  return Membership.count({ where: { labId, role: 'admin' }, include: [{ model: User, attributes: [], where: { disabledAt: null }, required: true }] });
+}
+
+async function memberOf(labId: string, userId: string): Promise<{ membership: Membership; user: User }> {
+  const membership = await Membership.findOne({ where: { labId, userId }, include: [{ model: User, required: true }] });
+  if (!membership) throw notFound('No such member in this lab.');
+  return { membership, user: (membership as unknown as { User: User }).User };
 }
 
 export function labRoutes(deps: Deps): RouteDef[] {
@@ -37,7 +47,7 @@ export function labRoutes(deps: Deps): RouteDef[] {
         res.json({
           members: rows.map((m) => {
             const u = (m as unknown as { User: User }).User;
-            return { userId: u.id, name: u.name, email: u.email, role: m.role, since: m.createdAt, active: !u.disabledAt };
+            return { userId: u.id, name: u.name, email: u.email, role: m.role, since: m.createdAt, active: !u.disabledAt, disabledAt: u.disabledAt };
           }),
         });
       },
@@ -93,6 +103,56 @@ export function labRoutes(deps: Deps): RouteDef[] {
         await deps.loginLimiter.unlock(email);
         await recordAudit({ labId: req.lab!.id, actorId: req.auth!.userId, action: 'member.sign_in_unlocked', targetType: 'user', targetId: membership.userId as string, ip: clientIp(req) });
         res.status(204).end();
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/labs/:labId/members/:userId/disable',
+      access: { kind: 'lab', permission: 'members:manage' },
+      summary:
+        "Disable a member's account: it cannot sign in, and its sessions, API tokens and event streams stop at once. " +
+        'Its work, audit trail and versions stay. Not yourself, not the last admin, not an account that is also in a lab you do not run',
+      async handler(req, res) {
+        const labId = req.lab!.id;
+        const actorId = req.auth!.userId;
+        const { membership, user } = await memberOf(labId, req.params.userId as string);
+        if (user.id === actorId) throw conflict('You cannot disable your own account. Ask another admin of the lab.');
+        if (!user.disabledAt) {
+          if (membership.role === 'admin' && (await adminCount(labId)) <= 1) {
+            throw conflict('A lab needs at least one enabled admin. Make someone else admin first.');
+          }
+          // An account is one person's across labs: an admin of this lab must not lock them out of a lab they do
+          // not run. Such a member is removed from this lab instead.
+          const elsewhere = await Membership.findAll({ where: { userId: user.id, labId: { [Op.ne]: labId } }, attributes: ['labId'] });
+          for (const other of elsewhere) {
+            const actorThere = await Membership.findOne({ where: { labId: other.labId as string, userId: actorId }, attributes: ['role'] });
+            if (actorThere?.role !== 'admin') {
+              throw conflict(`${user.name} also works in another lab, so their account cannot be disabled from here. Remove them from this lab instead.`);
+            }
+          }
+          await deps.sequelize.transaction(async (transaction) => {
+            await User.update({ disabledAt: new Date(), disabledBy: actorId }, { where: { id: user.id }, transaction });
+            await endAllSessions(user.id, transaction);
+          });
+          await recordAudit({ labId, actorId, action: 'member.disabled', targetType: 'user', targetId: user.id, details: { role: membership.role }, ip: clientIp(req) });
+          await publishAccountChanged(deps.redis, user.id);
+        }
+        res.json({ userId: user.id, active: false });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/labs/:labId/members/:userId/enable',
+      access: { kind: 'lab', permission: 'members:manage' },
+      summary: "Enable a disabled member's account again: they sign in anew (old sessions stay ended); their API tokens work again",
+      async handler(req, res) {
+        const labId = req.lab!.id;
+        const { membership, user } = await memberOf(labId, req.params.userId as string);
+        if (user.disabledAt) {
+          await User.update({ disabledAt: null, disabledBy: null }, { where: { id: user.id } });
+          await recordAudit({ labId, actorId: req.auth!.userId, action: 'member.enabled', targetType: 'user', targetId: user.id, details: { role: membership.role }, ip: clientIp(req) });
+        }
+        res.json({ userId: user.id, active: true });
       },
     },
   ];

@@ -2,6 +2,7 @@ import { apiTokenBody, type ApiTokenBody } from '../../../shared/contracts/auth.
 import type { Request } from 'express';
 import { ApiToken, User } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
+import { publishAccountChanged } from '../../lib/account-events.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, notFound, tooManyRequests } from '../../lib/errors.ts';
@@ -84,6 +85,8 @@ export function tokenRoutes(deps: Deps): RouteDef[] {
         if (!row) throw notFound('No such token.');
         if (!row.revokedAt) await row.update({ revokedAt: new Date() });
         await recordAudit({ labId: null, actorId: req.auth!.userId, action: 'token.revoked', targetType: 'api_token', targetId: row.id, ip: clientIp(req) });
+        // An event stream opened with the token ends now, not at its next beat.
+        await publishAccountChanged(deps.redis, req.auth!.userId);
         res.status(204).end();
       },
     },
