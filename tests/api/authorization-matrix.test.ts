@@ -8,9 +8,11 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { allRoutes } from '../../server/app.ts';
 import { createHash } from 'node:crypto';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { Analysis, AnalysisBatch, ApiToken, Campaign, Capture, GateRig, Invitation, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
+import { Analysis, AnalysisBatch, ApiToken, Campaign, Capture, GateRig, Invitation, Membership, PasswordReset, Projectile, Shot, User } from '../../server/db/models/index.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
-import { newApiToken, newInvitationSecret } from '../../server/lib/tokens.ts';
+import { newApiToken, newInvitationSecret, newPasswordResetSecret, signSession } from '../../server/lib/tokens.ts';
+import { SESSION_COOKIE } from '../../server/lib/authenticate.ts';
+import { hashPassword } from '../../server/lib/passwords.ts';
 import { readStreamStart } from '../helpers/stream-start.ts';
 import { createApiHarness, type ApiHarness, type DemoActor, type DemoUser, type DemoWorld } from '../helpers/api-harness.ts';
 
@@ -64,6 +66,23 @@ async function freshMember(demo: DemoWorld): Promise<string> {
   await Membership.create({ labId: demo.labs.hollowmere.id, userId: user.id, role: 'analyst' });
   return user.id;
 }
+
+const THROWAWAY_PASSWORD = 'throwaway password 12a';
+let throwawayHash: Promise<string> | undefined;
+
+/** An account of its own (in no lab) with a known password, for the rows that change the caller's account. */
+async function throwawayAccount(): Promise<User> {
+  throwawayHash ??= hashPassword(THROWAWAY_PASSWORD);
+  return User.create({ email: `${unique('throwaway')}@example.org`, name: 'Matrix Throwaway', passwordHash: await throwawayHash });
+}
+
+/** Credential headers of a given account, of the kind under test. */
+async function credentialOf(userId: string, credential: Credential): Promise<Record<string, string>> {
+  if (credential === 'token') return apiTokenHeader(userId);
+  const { token } = signSession(userId, matrixJwtSecret, 1);
+  return { Cookie: `${SESSION_COOKIE}=${token}` };
+}
+let matrixJwtSecret = '';
 
 /** A pending Hollowmere invitation whose secret link the test knows. */
 async function freshInvitation(demo: DemoWorld): Promise<{ id: string; secret: string }> {
@@ -188,6 +207,42 @@ const MATRIX: Record<string, Row> = {
       return { params: { tokenId: row.id } };
     },
   },
+  // Account routes act on the caller's own account; a throwaway account stands in for each signed-in caller, so
+  // changing a password or ending sessions cannot disturb the demo accounts the other rows use.
+  'POST /api/me/password': {
+    expect: [200, 200, 200, 200, 200, 401],
+    tokenExpect: [403, 403, 403, 403, 403, 401],
+    prepare: async ({ user, credential }) => {
+      const stand = await throwawayAccount();
+      return {
+        headers: user ? await credentialOf(stand.id, credential) : {},
+        body: { currentPassword: THROWAWAY_PASSWORD, newPassword: 'another long password' },
+      };
+    },
+    shape: (b, { credential }) => expect(b).toMatchObject({ via: credential, tokensRevoked: 0 }),
+  },
+  'POST /api/me/sign-out-everywhere': {
+    expect: [200, 200, 200, 200, 200, 401],
+    tokenExpect: [403, 403, 403, 403, 403, 401],
+    prepare: async ({ user, credential }) => ({ headers: user ? await credentialOf((await throwawayAccount()).id, credential) : {}, body: {} }),
+    shape: (b) => expect(b).toEqual({ sessionsSignedOut: 'all', tokensRevoked: 0 }),
+  },
+  'POST /api/auth/password-reset': {
+    // Public: the same answer whoever asks and whether or not the address has an account.
+    expect: [202, 202, 202, 202, 202, 202],
+    prepare: () => ({ body: { email: `${unique('forgetful')}@example.org` } }),
+    shape: (b) => expect(b).toEqual({ message: expect.stringContaining('If an account uses that address') }),
+  },
+  'POST /api/auth/password-reset/complete': {
+    // Public: the secret from the e-mail is the credential.
+    expect: [204, 204, 204, 204, 204, 204],
+    prepare: async () => {
+      const stand = await throwawayAccount();
+      const { secret, hash } = newPasswordResetSecret();
+      await PasswordReset.create({ userId: stand.id, tokenHash: hash, expiresAt: new Date(Date.now() + 600_000), requestedIp: null });
+      return { body: { token: secret, password: 'a brand new password' } };
+    },
+  },
   'GET /api/labs/:labId': {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b, { demo, actor }) => expect(b).toEqual({ lab: { id: demo.labs.hollowmere.id, name: 'Hollowmere Ballistics Lab', slug: 'hollowmere' }, role: actor }),
@@ -212,6 +267,20 @@ const MATRIX: Record<string, Row> = {
   'POST /api/labs/:labId/members/:userId/unlock-sign-in': {
     expect: [204, 403, 403, 403, 404, 401],
     prepare: async ({ demo }) => ({ params: { userId: demo.users.experimenter.id } }),
+  },
+  'POST /api/labs/:labId/members/:userId/disable': {
+    expect: [200, 403, 403, 403, 404, 401],
+    prepare: async ({ demo }) => ({ params: { userId: await freshMember(demo) } }),
+    shape: (b) => expect(b).toEqual({ userId: expect.any(String), active: false }),
+  },
+  'POST /api/labs/:labId/members/:userId/enable': {
+    expect: [200, 403, 403, 403, 404, 401],
+    prepare: async ({ demo }) => {
+      const userId = await freshMember(demo);
+      await User.update({ disabledAt: new Date() }, { where: { id: userId } });
+      return { params: { userId } };
+    },
+    shape: (b) => expect(b).toEqual({ userId: expect.any(String), active: true }),
   },
   'GET /api/labs/:labId/invitations': {
     expect: [200, 403, 403, 403, 404, 401],
@@ -546,13 +615,14 @@ const titleOf = (row: Row, credential: Credential) => ACTORS.map((a, i) => `${ac
 
 // Public routes that never read the caller's credential and cost an argon2 hash per call: the session pass covers
 // them, the token pass skips them to keep the suite fast.
-const CREDENTIAL_BLIND = new Set(['POST /api/auth/login', 'POST /api/invitations/:token/accept']);
+const CREDENTIAL_BLIND = new Set(['POST /api/auth/login', 'POST /api/invitations/:token/accept', 'POST /api/auth/password-reset/complete']);
 
 describe('authorization matrix', () => {
   let h: ApiHarness;
   beforeAll(async () => {
     h = await createApiHarness();
     await h.resetDatabase();
+    matrixJwtSecret = h.config.jwtSecret;
   });
   afterAll(() => h?.close());
 

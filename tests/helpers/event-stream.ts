@@ -10,6 +10,8 @@ export interface EventStreamReader {
   events: StreamEvent[];
   /** Resolves with the first event (already received or to come) that satisfies `match`; rejects after `timeoutMs`. */
   waitFor(match: (e: StreamEvent) => boolean, timeoutMs?: number): Promise<StreamEvent>;
+  /** Resolves when the server ends the stream (or it is closed here). */
+  ended: Promise<void>;
   close(): void;
 }
 
@@ -26,6 +28,9 @@ export async function openEventStream(url: string, headers: Record<string, strin
       w.resolve(e);
     }
   };
+  let markEnded: () => void = () => undefined;
+  const ended = new Promise<void>((resolve) => { markEnded = resolve; });
+  if (!response.ok || !response.body) markEnded();
   if (response.ok && response.body) {
     void (async () => {
       const decoder = new TextDecoder();
@@ -49,6 +54,7 @@ export async function openEventStream(url: string, headers: Record<string, strin
       } catch {
         // aborted by close()
       }
+      markEnded();
     })();
   }
   return {
@@ -63,6 +69,7 @@ export async function openEventStream(url: string, headers: Record<string, strin
         waiters.push({ match, resolve: (e) => { clearTimeout(timer); resolve(e); } });
       });
     },
+    ended,
     close: () => controller.abort(),
   };
 }
