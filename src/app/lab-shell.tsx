@@ -31,6 +31,7 @@ export function TopBar({ me, labId }: { me: MeView; labId?: string }) {
         )}
         <div className="ml-auto flex items-center gap-3 text-sm">
           <span className="hidden text-harbour-100 md:inline" data-testid="signed-in-as">{me.user.name}</span>
+          <Link to="/account" className="rounded px-2 py-1 text-harbour-100 hover:bg-harbour-700">Account</Link>
           <Link to="/account/tokens" className="rounded px-2 py-1 text-harbour-100 hover:bg-harbour-700">API tokens</Link>
           <Button
             variant="secondary"

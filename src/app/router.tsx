@@ -6,6 +6,9 @@ export const router = createBrowserRouter([
   { path: '/', lazy: () => import('./routes/home.tsx'), errorElement: <RouteError /> },
   { path: '/sign-in', lazy: () => import('./routes/sign-in.tsx') },
   { path: '/invite/:token', lazy: () => import('./routes/invite.tsx') },
+  { path: '/forgot-password', lazy: () => import('./routes/forgot-password.tsx') },
+  { path: '/reset-password', lazy: () => import('./routes/reset-password.tsx') },
+  { path: '/account', lazy: () => import('./routes/account.tsx') },
   { path: '/account/tokens', lazy: () => import('./routes/account-tokens.tsx') },
   // Full screen, without the lab's frame: the display beside the launcher.
   { path: '/labs/:labId/campaigns/:campaignId/bench', lazy: () => import('./routes/lab-campaign-bench.tsx'), errorElement: <RouteError /> },

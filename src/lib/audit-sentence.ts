@@ -33,6 +33,7 @@ export const AUDIT_KINDS: Record<string, string> = {
   invitation: 'Invitations',
   token: 'API tokens',
   auth: 'Sign-ins',
+  account: 'Passwords and sessions',
 };
 
 const CONDITION_WORDS: Record<string, string> = {
@@ -78,6 +79,13 @@ export function auditSentence(e: AuditEventLike, options: { thisShot?: boolean }
     case 'invitation.withdrawn': return { who, verb: 'withdrew an invitation', shot: null, rest: '' };
     case 'member.role_changed': return { who, verb: "changed a member's role", shot: null, rest: ` from ${ROLE_WORDS[str(d.from)] ?? str(d.from)} to ${ROLE_WORDS[str(d.to)] ?? str(d.to)}` };
     case 'member.removed': return { who, verb: 'removed a member', shot: null, rest: ` (${ROLE_WORDS[str(d.role)] ?? str(d.role)})` };
+    case 'member.disabled': return { who, verb: 'disabled the account of', shot: null, rest: ` ${str(d.name) || 'a member'} (${ROLE_WORDS[str(d.role)] ?? str(d.role)}): signed out everywhere, tokens stopped` };
+    case 'member.enabled': return { who, verb: 'enabled the account of', shot: null, rest: ` ${str(d.name) || 'a member'} again` };
+    case 'member.sign_in_unlocked': return { who, verb: "cleared a member's failed sign-ins", shot: null, rest: '' };
+    case 'account.password_changed': return { who, verb: 'changed their password', shot: null, rest: ' (other sessions signed out)' };
+    case 'account.signed_out_everywhere': return { who, verb: 'signed out everywhere', shot: null, rest: '' };
+    case 'account.password_reset_requested': return { who, verb: 'asked for a password reset link', shot: null, rest: '' };
+    case 'account.password_reset': return { who, verb: 'set a new password with a reset link', shot: null, rest: ' (every session signed out)' };
     case 'token.created': return { who, verb: 'made a personal API token', shot: null, rest: '' };
     case 'token.revoked': return { who, verb: 'revoked a personal API token', shot: null, rest: '' };
     case 'auth.login': return { who, verb: 'signed in', shot: null, rest: '' };

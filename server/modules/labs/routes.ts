@@ -134,7 +134,7 @@ export function labRoutes(deps: Deps): RouteDef[] {
             await User.update({ disabledAt: new Date(), disabledBy: actorId }, { where: { id: user.id }, transaction });
             await endAllSessions(user.id, transaction);
           });
-          await recordAudit({ labId, actorId, action: 'member.disabled', targetType: 'user', targetId: user.id, details: { role: membership.role }, ip: clientIp(req) });
+          await recordAudit({ labId, actorId, action: 'member.disabled', targetType: 'user', targetId: user.id, details: { role: membership.role, name: user.name }, ip: clientIp(req) });
           await publishAccountChanged(deps.redis, user.id);
         }
         res.json({ userId: user.id, active: false });
@@ -150,7 +150,7 @@ export function labRoutes(deps: Deps): RouteDef[] {
         const { membership, user } = await memberOf(labId, req.params.userId as string);
         if (user.disabledAt) {
           await User.update({ disabledAt: null, disabledBy: null }, { where: { id: user.id } });
-          await recordAudit({ labId, actorId: req.auth!.userId, action: 'member.enabled', targetType: 'user', targetId: user.id, details: { role: membership.role }, ip: clientIp(req) });
+          await recordAudit({ labId, actorId: req.auth!.userId, action: 'member.enabled', targetType: 'user', targetId: user.id, details: { role: membership.role, name: user.name }, ip: clientIp(req) });
         }
         res.json({ userId: user.id, active: true });
       },

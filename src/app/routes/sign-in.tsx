@@ -1,5 +1,5 @@
 import { useState, type FormEvent } from 'react';
-import { Navigate, useNavigate, useSearchParams } from 'react-router-dom';
+import { Link, Navigate, useNavigate, useSearchParams } from 'react-router-dom';
 import { loginBody } from '../../../shared/contracts/auth.ts';
 import { Wordmark } from '../../components/ui/logo.tsx';
 import { Button, ErrorNote, TextField } from '../../components/ui/primitives.tsx';
@@ -39,9 +39,20 @@ export function Component() {
           <Wordmark />
           <h1 className="mt-8 text-2xl font-semibold tracking-tight">Sign in</h1>
           <p className="mt-1 text-sm text-harbour-500">Use the account your lab admin invited you with.</p>
+          {params.get('reset') === 'done' && (
+            <p role="status" className="mt-4 rounded-md bg-emerald-50 px-3 py-2 text-sm text-emerald-900 ring-1 ring-emerald-200">
+              Your new password is set and every browser was signed out. Sign in with the new password.
+            </p>
+          )}
+          {params.get('signed-out') === 'everywhere' && (
+            <p role="status" className="mt-4 rounded-md bg-emerald-50 px-3 py-2 text-sm text-emerald-900 ring-1 ring-emerald-200">
+              You are signed out of every browser.
+            </p>
+          )}
           <form className="mt-8 space-y-4" onSubmit={submit} noValidate>
             <TextField label="E-mail" type="email" autoComplete="username" value={email} onChange={(e) => setEmail(e.target.value)} error={fieldErrors.email} required />
             <TextField label="Password" type="password" autoComplete="current-password" value={password} onChange={(e) => setPassword(e.target.value)} error={fieldErrors.password} required />
+            <p className="-mt-2 text-right text-sm"><Link to="/forgot-password" className="text-harbour-700 underline">Forgot password?</Link></p>
             {signIn.isError && <ErrorNote error={signIn.error} />}
             <Button type="submit" className="w-full" disabled={signIn.isPending}>{signIn.isPending ? 'Signing in…' : 'Sign in'}</Button>
           </form>

@@ -2,7 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { api } from '../../../lib/api-client.ts';
 import type { Role } from '../../../../shared/contracts/roles.ts';
 
-export interface Member { userId: string; name: string; email: string; role: Role; since: string; active: boolean }
+export interface Member { userId: string; name: string; email: string; role: Role; since: string; active: boolean; disabledAt?: string | null }
 
 export const labKeys = {
   all: (labId: string) => ['labs', labId] as const,
@@ -34,5 +34,18 @@ export function useChangeRole(labId: string) {
 export function useUnlockSignIn(labId: string) {
   return useMutation({
     mutationFn: (userId: string) => api.post(`/api/labs/${labId}/members/${userId}/unlock-sign-in`, {}),
+  });
+}
+
+/** Disables or enables a member's account (lab admins): disabled, it cannot sign in and its sessions and tokens stop. */
+export function useSetMemberActive(labId: string) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: ({ userId, active }: { userId: string; active: boolean }) =>
+      api.post<{ userId: string; active: boolean }>(`/api/labs/${labId}/members/${userId}/${active ? 'enable' : 'disable'}`, {}),
+    onSettled: () => {
+      void queryClient.invalidateQueries({ queryKey: labKeys.members(labId) });
+      void queryClient.invalidateQueries({ queryKey: labKeys.audit(labId) });
+    },
   });
 }

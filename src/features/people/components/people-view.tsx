@@ -3,7 +3,7 @@ import { invitationBody } from '../../../../shared/contracts/auth.ts';
 import { ROLE_LABELS, ROLES, type Role } from '../../../../shared/contracts/roles.ts';
 import { Badge, Button, Card, EmptyState, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
 import { formatDate } from '../../../lib/format.ts';
-import { useChangeRole, useUnlockSignIn, useMembers } from '../../labs/api/members.ts';
+import { useChangeRole, useSetMemberActive, useUnlockSignIn, useMembers, type Member } from '../../labs/api/members.ts';
 import { useInvitations, useInvite, useWithdrawInvitation } from '../api/invitations.ts';
 import { StorageCard } from './storage-card.tsx';
 
@@ -56,10 +56,30 @@ function Invitations({ labId }: { labId: string }) {
   );
 }
 
+/** Asks before disabling: says what happens, and that it can be undone. */
+function DisableConfirm({ member, pending, onConfirm, onCancel }: { member: Member; pending: boolean; onConfirm: () => void; onCancel: () => void }) {
+  return (
+    <div role="alertdialog" aria-label={`Disable ${member.name}`} className="mt-2 w-full rounded-md bg-red-50 p-3 text-sm text-red-900 ring-1 ring-red-200">
+      <p className="font-medium">Disable {member.name}'s account?</p>
+      <p className="mt-1">
+        They are signed out everywhere at once, cannot sign in, and their API tokens stop working. Their shots, analyses,
+        reviews and audit trail stay. You can enable the account again later.
+      </p>
+      <div className="mt-3 flex flex-wrap gap-2">
+        <Button variant="danger" className="!py-1 text-sm" disabled={pending} onClick={onConfirm}>{pending ? 'Disabling…' : `Disable ${member.name}`}</Button>
+        <Button variant="ghost" className="!py-1 text-sm" onClick={onCancel}>Cancel</Button>
+      </div>
+    </div>
+  );
+}
+
 export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmin: boolean; myUserId: string }) {
   const members = useMembers(labId);
   const changeRole = useChangeRole(labId);
   const unlock = useUnlockSignIn(labId);
+  const setActive = useSetMemberActive(labId);
+  const [confirming, setConfirming] = useState<string>();
+  const nameOf = (userId: string | undefined) => members.data?.members.find((m) => m.userId === userId)?.name ?? 'The member';
   return (
     <div className="space-y-6">
       <Card title="Members">
@@ -68,6 +88,14 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
         {members.data?.members.length === 0 && <EmptyState title="No members" />}
         {changeRole.isError && <div className="mb-3"><ErrorNote error={changeRole.error} /></div>}
         {unlock.isError && <div className="mb-3"><ErrorNote error={unlock.error} /></div>}
+        {setActive.isError && <div className="mb-3"><ErrorNote error={setActive.error} /></div>}
+        {setActive.isSuccess && (
+          <p role="status" className="mb-3 text-sm text-emerald-700">
+            {setActive.data.active
+              ? `${nameOf(setActive.data.userId)} can sign in again (with a new sign-in; their API tokens work again).`
+              : `${nameOf(setActive.data.userId)} is disabled and signed out everywhere.`}
+          </p>
+        )}
         {unlock.isSuccess && (
           <p role="status" className="mb-3 text-sm text-emerald-700">
             {members.data?.members.find((m) => m.userId === unlock.variables)?.name ?? 'The member'} can sign in again at once.
@@ -76,17 +104,27 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
         <ul className="divide-y divide-harbour-100">
           {members.data?.members.map((m) => (
             <li key={m.userId} className="flex flex-wrap items-center justify-between gap-3 py-3">
-              <span>
+              <span className={m.active ? '' : 'text-harbour-500'}>
                 <span className="font-medium">{m.name}</span>{m.userId === myUserId && <span className="text-harbour-500"> (you)</span>}
+                {!m.active && <span className="ml-2"><Badge tone="neutral">disabled</Badge></span>}
                 <span className="block text-sm text-harbour-500">{m.email}</span>
               </span>
               {isAdmin ? (
-                <span className="flex items-center gap-2">
-                  {m.userId !== myUserId && (
+                <span className="flex flex-wrap items-center gap-2">
+                  {m.userId !== myUserId && m.active && (
                     <Button variant="ghost" className="!py-1 text-sm" title="Clear failed sign-ins, from every address" onClick={() => unlock.mutate(m.userId)}>
                       Unlock sign-in
                     </Button>
                   )}
+                  {m.userId !== myUserId && (m.active ? (
+                    <Button variant="ghost" className="!py-1 text-sm text-red-700" onClick={() => { setActive.reset(); setConfirming(m.userId); }}>
+                      Disable…
+                    </Button>
+                  ) : (
+                    <Button variant="ghost" className="!py-1 text-sm" onClick={() => setActive.mutate({ userId: m.userId, active: true })}>
+                      Enable
+                    </Button>
+                  ))}
                 <select
                   aria-label={`Role of ${m.name}`}
                   value={m.role}
@@ -98,6 +136,14 @@ export function PeopleView({ labId, isAdmin, myUserId }: { labId: string; isAdmi
                 </span>
               ) : (
                 <Badge>{ROLE_LABELS[m.role]}</Badge>
+              )}
+              {confirming === m.userId && m.active && (
+                <DisableConfirm
+                  member={m}
+                  pending={setActive.isPending}
+                  onCancel={() => setConfirming(undefined)}
+                  onConfirm={() => setActive.mutate({ userId: m.userId, active: false }, { onSettled: () => setConfirming(undefined) })}
+                />
               )}
             </li>
           ))}
