@@ -121,3 +121,28 @@ export function createLoginLimiter(redis: Redis, config: Config): LoginLimiter {
     maxDelayMs: config.loginMaxDelayMs,
   });
 }
+
+/**
+ * A plain cap on an action that guards no secret (sign out everywhere, a password change that went through,
+ * disabling or enabling members): at most `max` per `windowSeconds` per key, counted in Redis like the sign-in
+ * limiter (SET NX EX + INCR in one MULTI, so the window starts at the first action and always expires).
+ */
+export class ActionLimiter {
+  constructor(
+    private readonly redis: Redis,
+    private readonly name: string,
+    private readonly max: number,
+    private readonly windowSeconds: number,
+  ) {
+    if (!(max >= 1) || !(windowSeconds >= 1)) throw new RangeError('max and windowSeconds must be at least 1');
+  }
+
+  /** Counts one action of `key`; says whether it is over the cap, and for how long. */
+  async take(key: string): Promise<{ allowed: boolean; retryAfterSeconds: number }> {
+    const k = `gp:action:${this.name}:${key}`;
+    const replies = await this.redis.multi().set(k, '0', 'EX', this.windowSeconds, 'NX').incr(k).ttl(k).exec();
+    const count = Number(replies?.[1]?.[1] ?? 0);
+    const ttl = Number(replies?.[2]?.[1] ?? this.windowSeconds);
+    return { allowed: count <= this.max, retryAfterSeconds: Math.max(1, ttl) };
+  }
+}

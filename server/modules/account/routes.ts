@@ -16,7 +16,7 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, tooManyRequests } from '../../lib/errors.ts';
 import { hashPassword } from '../../lib/passwords.ts';
-import { LoginLimiter } from '../../lib/rate-limit.ts';
+import { ActionLimiter, LoginLimiter } from '../../lib/rate-limit.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { newPasswordResetSecret, sha256Hex } from '../../lib/tokens.ts';
 import { startSession } from '../auth/routes.ts';
@@ -28,7 +28,11 @@ import {
   mailPasswordChanged,
   requireSession,
   revokeAllTokens,
+  takeAction,
 } from './service.ts';
+
+/** Password changes and sign-outs everywhere that went through, per account (each ends sessions and may send mail). */
+export const ACCOUNT_ACTIONS_PER_15_MIN = 10;
 
 const RESET_LINK_CLOSED = 'This reset link has expired or was already used. Ask for a new one with "Forgot password?" on the sign-in page.';
 
@@ -66,6 +70,8 @@ export function accountRoutes(deps: Deps): RouteDef[] {
     delayStepMs: config.loginDelayStepMs,
     maxDelayMs: config.loginMaxDelayMs,
   });
+
+  const accountActions = new ActionLimiter(deps.redis, 'account', ACCOUNT_ACTIONS_PER_15_MIN, 900);
 
   /** Makes and mails a reset link; runs after the answer has gone, so its cost and outcome cannot be timed. */
   async function sendResetMail(email: string, ip: string, accountRequests: number): Promise<void> {
@@ -112,6 +118,7 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         const { currentPassword, newPassword, alsoRevokeTokens } = changePasswordBody.parse(req.body);
         const user = await User.findByPk(req.auth!.userId, { rejectOnEmpty: true });
         await checkCurrentPassword(deps, req, user, currentPassword, 'currentPassword');
+        await takeAction(accountActions, user.id, 'Your password was changed');
         const passwordHash = await hashPassword(newPassword);
         const { generation, tokensRevoked } = await deps.sequelize.transaction(async (transaction) => {
           await User.update({ passwordHash }, { where: { id: user.id }, transaction });
@@ -139,6 +146,7 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         requireSession(req, 'Signing out everywhere is done');
         const { alsoRevokeTokens } = signOutEverywhereBody.parse(req.body);
         const userId = req.auth!.userId;
+        await takeAction(accountActions, userId, 'You signed out everywhere');
         const tokensRevoked = await deps.sequelize.transaction(async (transaction) => {
           const tokens = alsoRevokeTokens ? await revokeAllTokens(userId, transaction) : 0;
           await endAllSessions(userId, transaction);

@@ -6,6 +6,7 @@ import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, tooManyRequests } from '../../lib/errors.ts';
 import { verifyPassword } from '../../lib/passwords.ts';
+import type { ActionLimiter } from '../../lib/rate-limit.ts';
 
 /**
  * Ends every browser session of the account: raises its session generation, so each session JWT made before
@@ -31,6 +32,15 @@ export async function revokeAllTokens(userId: string, transaction?: Transaction)
 /** Closes every reset link of the account still open (after a password change or a completed reset). */
 export async function closeOpenResets(userId: string, transaction?: Transaction): Promise<void> {
   await PasswordReset.update({ usedAt: new Date() }, { where: { userId, usedAt: null, expiresAt: { [Op.gt]: new Date() } }, transaction });
+}
+
+/** Throws 429 when the action limiter says so. */
+export async function takeAction(limiter: ActionLimiter, key: string, what: string): Promise<void> {
+  const { allowed, retryAfterSeconds } = await limiter.take(key);
+  if (!allowed) {
+    const minutes = Math.ceil(retryAfterSeconds / 60);
+    throw tooManyRequests(`${what} too often just now. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`, retryAfterSeconds);
+  }
 }
 
 /** Routes of the account itself (change password, sign out everywhere) need the browser, not an API token. */

@@ -8,7 +8,8 @@ import { clientIp } from '../../lib/client-ip.ts';
 import { conflict, notFound } from '../../lib/errors.ts';
 import type { Deps } from '../../lib/deps.ts';
 import type { RouteDef } from '../../lib/routes.ts';
-import { endAllSessions } from '../account/service.ts';
+import { ActionLimiter } from '../../lib/rate-limit.ts';
+import { endAllSessions, takeAction } from '../account/service.ts';
 
 /** Admins of the lab whose accounts are enabled: a disabled admin cannot run the lab. */
 async function adminCount(labId: string): Promise<number> {
@@ -21,7 +22,11 @@ async function memberOf(labId: string, userId: string): Promise<{ membership: Me
   return { membership, user: (membership as unknown as { User: User }).User };
 }
 
+/** Disables and enables one admin may make in 15 minutes (a slip of a script, a stolen session). */
+export const MEMBER_STATE_CHANGES_PER_15_MIN = 30;
+
 export function labRoutes(deps: Deps): RouteDef[] {
+  const memberStateChanges = new ActionLimiter(deps.redis, 'member-state', MEMBER_STATE_CHANGES_PER_15_MIN, 900);
   return [
     {
       method: 'get',
@@ -115,6 +120,7 @@ export function labRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const labId = req.lab!.id;
         const actorId = req.auth!.userId;
+        await takeAction(memberStateChanges, actorId, 'Accounts were disabled or enabled');
         const { membership, user } = await memberOf(labId, req.params.userId as string);
         if (user.id === actorId) throw conflict('You cannot disable your own account. Ask another admin of the lab.');
         if (!user.disabledAt) {
@@ -147,6 +153,7 @@ export function labRoutes(deps: Deps): RouteDef[] {
       summary: "Enable a disabled member's account again: they sign in anew (old sessions stay ended); their API tokens work again",
       async handler(req, res) {
         const labId = req.lab!.id;
+        await takeAction(memberStateChanges, req.auth!.userId, 'Accounts were disabled or enabled');
         const { membership, user } = await memberOf(labId, req.params.userId as string);
         if (user.disabledAt) {
           await User.update({ disabledAt: null, disabledBy: null }, { where: { id: user.id } });

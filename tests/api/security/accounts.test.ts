@@ -9,7 +9,9 @@ import { ApiToken, AuditEvent, Membership, PasswordReset, User } from '../../../
 import { readFakeOutbox, type FakeMail } from '../../../server/dev/fake-smtp.ts';
 import { SESSION_COOKIE } from '../../../server/lib/authenticate.ts';
 import { hashPassword } from '../../../server/lib/passwords.ts';
-import { newApiToken, sha256Hex } from '../../../server/lib/tokens.ts';
+import { newApiToken, sha256Hex, signSession } from '../../../server/lib/tokens.ts';
+import { ACCOUNT_ACTIONS_PER_15_MIN } from '../../../server/modules/account/routes.ts';
+import { MEMBER_STATE_CHANGES_PER_15_MIN } from '../../../server/modules/labs/routes.ts';
 import { PASSWORD_RESET_REQUESTED_MESSAGE } from '../../../shared/contracts/auth.ts';
 import { openEventStream } from '../../helpers/event-stream.ts';
 import { cookiePair, createApiHarness, setCookieFor, type ApiHarness, type DemoWorld } from '../../helpers/api-harness.ts';
@@ -156,6 +158,17 @@ describe('sign out everywhere', () => {
     expect((await me({ Cookie: await signIn(email, password) })).status).toBe(200);
   });
 
+  it('When someone signs out everywhere over and over, then past the cap the answer is 429', async () => {
+    const { id } = demo.users.analyst;
+    const statuses: number[] = [];
+    for (let i = 0; i < ACCOUNT_ACTIONS_PER_15_MIN + 1; i += 1) {
+      const { sessionGeneration } = (await User.findByPk(id))!;
+      const { token } = signSession(id, h.config.jwtSecret, 1, sessionGeneration);
+      statuses.push((await request(h.app).post('/api/me/sign-out-everywhere').set('Cookie', `${SESSION_COOKIE}=${token}`).send({})).status);
+    }
+    expect(statuses).toEqual([...Array(ACCOUNT_ACTIONS_PER_15_MIN).fill(200), 429]);
+  });
+
   it('When the owner also revokes tokens, then the tokens stop as well', async () => {
     const { email, password, id } = demo.users.reviewer;
     const script = await tokenOf(id);
@@ -293,6 +306,12 @@ describe('a lab admin disables a member', () => {
     expect(await actions(demo.users.admin.id)).toEqual(expect.arrayContaining(['member.disabled', 'member.enabled']));
   });
 
+  it('When an admin disables and enables over and over, then past the cap the answer is 429', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < MEMBER_STATE_CHANGES_PER_15_MIN + 1; i += 1) statuses.push((await enable(demo.users.reviewer.id)).status);
+    expect(statuses).toEqual([...Array(MEMBER_STATE_CHANGES_PER_15_MIN).fill(200), 429]);
+  });
+
   it('When an admin tries to disable themselves, then 409', async () => {
     const res = await disable(demo.users.admin.id);
     expect(res.status).toBe(409);
@@ -315,6 +334,20 @@ describe('a lab admin disables a member', () => {
     expect(res.status).toBe(409);
     expect(res.body.error.message).toContain('cannot be disabled from here');
     expect((await User.findByPk(id))!.disabledAt).toBeNull();
+  });
+});
+
+describe('the API document', () => {
+  it('When a script reads /api/openapi.json, then the account routes are described', async () => {
+    const doc = await request(h.app).get('/api/openapi.json');
+    for (const [path, method] of [
+      ['/api/me/password', 'post'], ['/api/me/sign-out-everywhere', 'post'], ['/api/auth/password-reset', 'post'],
+      ['/api/auth/password-reset/complete', 'post'], ['/api/labs/{labId}/members/{userId}/disable', 'post'],
+      ['/api/labs/{labId}/members/{userId}/enable', 'post'],
+    ] as const) {
+      expect(doc.body.paths[path]?.[method], `${method} ${path}`).toMatchObject({ summary: expect.any(String) });
+    }
+    expect(doc.body.paths['/api/me/password'].post.requestBody.content['application/json'].schema.required).toEqual(['currentPassword', 'newPassword']);
   });
 });
 
