@@ -5,11 +5,11 @@ import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { ApiToken, AuditEvent, Membership, PasswordReset, User } from '../../../server/db/models/index.ts';
+import { ApiToken, AuditEvent, Invitation, Membership, PasswordReset, User } from '../../../server/db/models/index.ts';
 import { readFakeOutbox, type FakeMail } from '../../../server/dev/fake-smtp.ts';
 import { SESSION_COOKIE } from '../../../server/lib/authenticate.ts';
 import { hashPassword } from '../../../server/lib/passwords.ts';
-import { newApiToken, sha256Hex, signSession } from '../../../server/lib/tokens.ts';
+import { newApiToken, newInvitationSecret, sha256Hex, signSession } from '../../../server/lib/tokens.ts';
 import { ACCOUNT_ACTIONS_PER_15_MIN } from '../../../server/modules/account/routes.ts';
 import { MEMBER_STATE_CHANGES_PER_15_MIN } from '../../../server/modules/labs/routes.ts';
 import { PASSWORD_RESET_REQUESTED_MESSAGE } from '../../../shared/contracts/auth.ts';
@@ -310,6 +310,21 @@ describe('a lab admin disables a member', () => {
     const statuses: number[] = [];
     for (let i = 0; i < MEMBER_STATE_CHANGES_PER_15_MIN + 1; i += 1) statuses.push((await enable(demo.users.reviewer.id)).status);
     expect(statuses).toEqual([...Array(MEMBER_STATE_CHANGES_PER_15_MIN).fill(200), 429]);
+  });
+
+  it('When a disabled account accepts an invitation to another lab with its right password, then 403 and it joins nothing', async () => {
+    const { email, password, id } = demo.users.analyst;
+    await User.update({ disabledAt: new Date() }, { where: { id } });
+    const { secret, hash } = newInvitationSecret();
+    await Invitation.create({
+      labId: demo.labs.sandgate.id, email, role: 'analyst', tokenHash: hash, invitedBy: demo.users.otherLabAdmin.id,
+      expiresAt: new Date(Date.now() + 86_400_000),
+    });
+    const res = await request(h.app).post(`/api/invitations/${secret}/accept`).send({ password });
+    expect(res.status).toBe(403);
+    expect(res.body.error.code).toBe('account_disabled');
+    expect(setCookieFor(res.headers, SESSION_COOKIE)).toBeUndefined();
+    expect(await Membership.count({ where: { userId: id, labId: demo.labs.sandgate.id } })).toBe(0);
   });
 
   it('When an admin tries to disable themselves, then 409', async () => {
