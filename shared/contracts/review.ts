@@ -50,8 +50,20 @@ export const notificationPreferencesBody = z
 export type NotificationPreferencesBody = z.infer<typeof notificationPreferencesBody>;
 
 /** GET …/export?format=csv|json */
+/**
+ * Which shots a campaign's trends or export cover: every analysed shot (the default, as before; the signed-off ones
+ * are marked), or only those whose current version a reviewer signed off.
+ */
+export const SHOT_SELECTIONS = ['all', 'signed-off'] as const;
+export type ShotSelection = (typeof SHOT_SELECTIONS)[number];
+const shotSelection = z.enum(SHOT_SELECTIONS, 'shots must be all or signed-off').default('all')
+  .describe('all (default): every shot, signed-off ones marked; signed-off: only shots whose current analysis version a reviewer signed off (approved)');
+
 export const exportQuery = z.object({
   format: z.enum(['csv', 'json'], 'format must be csv or json').default('csv'),
+  shots: shotSelection,
+  precision: z.enum(['rounded', 'full'], 'precision must be rounded or full').default('rounded')
+    .describe('CSV only. rounded (default): each value with an uncertainty is rounded to it (uncertainty to 2 significant digits, value to the same decimal place, JCGM 100:2008 §7.2.6); full: every number as computed. JSON is always full precision'),
 });
 export type ExportQuery = z.infer<typeof exportQuery>;
 
@@ -59,7 +71,37 @@ const positive = (name: string) => z.coerce.number().positive(`${name} must be a
 
 /** GET /api/labs/:labId/campaigns/:campaignId/trends */
 export const trendsQuery = z.object({
-  groupBy: z.enum(['seal', 'projectile', 'none'], 'groupBy must be seal, projectile or none').default('none'),
+  groupBy: z.enum(['seal', 'projectile', 'vacuum', 'none'], 'groupBy must be seal, projectile, vacuum or none').default('none')
+    .describe('Statistics per seal type, projectile, tube vacuum level (binned, see vacuumEdgesPa) or for all shots'),
+  shots: shotSelection,
+  /**
+   * Bin edges of tube pressure, Pa, increasing, comma separated ("1000,2000,5000,10000"); absent: one bin per decade
+   * (1–10 kPa, 10–100 kPa, …). Only used with groupBy=vacuum.
+   */
+  vacuumEdgesPa: z.string().optional()
+    .transform((text, ctx) => {
+      if (text == null || text.trim() === '') return undefined;
+      const parts = text.split(',').map((t) => t.trim());
+      const edges: number[] = [];
+      for (const [i, t] of parts.entries()) {
+        const x = Number(t);
+        if (t === '' || !Number.isFinite(x) || x <= 0) {
+          ctx.addIssue({ code: 'custom', message: `vacuumEdgesPa: edge ${i + 1} ("${t}") is not a positive number of pascals` });
+          return z.NEVER;
+        }
+        if (edges.length > 0 && x <= edges[edges.length - 1]) {
+          ctx.addIssue({ code: 'custom', message: `vacuumEdgesPa: edge ${i + 1} (${x} Pa) must be greater than the one before (${edges[edges.length - 1]} Pa)` });
+          return z.NEVER;
+        }
+        edges.push(x);
+      }
+      if (edges.length < 2 || edges.length > 20) {
+        ctx.addIssue({ code: 'custom', message: `vacuumEdgesPa needs 2 to 20 edges; got ${edges.length}` });
+        return z.NEVER;
+      }
+      return edges;
+    })
+    .describe('With groupBy=vacuum: bin edges of tube pressure in Pa, increasing, comma separated (e.g. 1000,2000,5000,10000). Default: one bin per decade'),
   /** Launcher tube length, m (for the client's model overlay; echoed back). */
   tubeLengthM: positive('tubeLengthM'),
   /** Tube bore, m. */
@@ -95,6 +137,10 @@ export interface TrendPoint<When = string> {
   /** "unchecked": the speed is marked "check the time base" and not confirmed by an analyst, so it is left out of
    * statistics, fits and plots; "confirmed": it was; null: not marked (absent from servers before issue 10). */
   timeBase?: 'unchecked' | 'confirmed' | null;
+  /** A reviewer signed off the current analysis version (shot status "approved"). Absent from servers before issue 11. */
+  signedOff?: boolean;
+  /** Key of the statistics group this shot falls in (the `groups[].key` of the same answer). */
+  group?: string;
 }
 
 /** Summary of one group of shots' speeds, m/s. Standard deviation is the sample one (n − 1); null below two shots. */
@@ -104,6 +150,10 @@ export interface TrendGroupStats {
   count: number;
   mean: number | null;
   standardDeviation: number | null;
+  /** Standard error of the mean, s/√n, m/s; null below two shots. Absent from servers before issue 11. */
+  standardError?: number | null;
   /** max − min, m/s */
   extremeSpread: number | null;
+  /** For vacuum bins: the bin's tube pressure range, Pa (low inclusive, high exclusive; null: open end). */
+  range?: { lowPa: number | null; highPa: number | null } | null;
 }

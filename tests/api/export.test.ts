@@ -46,7 +46,8 @@ const rowsOf = (csv: string) => parse(csv, { bom: true, relax_column_count: fals
 
 describe('campaign export', () => {
   it('When the campaign is exported as CSV, then there is one row per shot in lab units, formula-like text is quoted off and numbers stay numbers', async () => {
-    const res = await request(h.app).get(`/api/labs/${h.demo.labs.hollowmere.id}/campaigns/${campaignId}/export?format=csv`).set(as('analyst'));
+    // Full precision here, to compare with the stored result (rounding: tests/api/trends-vacuum-signed-off.test.ts).
+    const res = await request(h.app).get(`/api/labs/${h.demo.labs.hollowmere.id}/campaigns/${campaignId}/export?format=csv&precision=full`).set(as('analyst'));
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toBe('text/csv; charset=utf-8');
     expect(res.headers['content-disposition']).toBe('attachment; filename=export-check-winter-2026-shots.csv');
@@ -54,7 +55,7 @@ describe('campaign export', () => {
     const rows = rowsOf(res.text);
     expect(rows[0]).toEqual([
       'Shot', 'Fired at (UTC)', 'Tube pressure (kPa)', 'Seal', 'Ambient temperature (°C)', 'Ambient pressure (kPa)', 'Projectile',
-      'Speed (m/s)', 'U (m/s)', 'k', 'Method', 'Mach', 'Status', 'Review decision (this version)', 'Analysis version', 'Time base',
+      'Speed (m/s)', 'U (m/s)', 'k', 'Method', 'Mach', 'Status', 'Review decision (this version)', 'Analysis version', 'Time base', 'Signed off',
     ]);
     expect(rows.length).toBe(1 + 8);
     const r1 = rows[1];
@@ -62,7 +63,7 @@ describe('campaign export', () => {
     // 2000 Pa = 2 kPa; 268.15 K − 273.15 = −5 °C (SI Brochure, 0 °C = 273.15 K); 101 325 Pa = 101.325 kPa.
     expect(r1).toEqual([
       '1', '2026-10-14T09:30:00.000Z', '2', `'${HOSTILE}`, '-5', '101.325', 'Table-tennis ball, 40 mm',
-      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'approved', 'approved', '1', '',
+      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'approved', 'approved', '1', '', 'yes',
     ]);
     expect(rows.slice(2).map((r) => [r[0], r[3], r[7], r[12], r[13]])).toEqual([
       ['2', "'+cmd|calc", '', 'draft', ''],

@@ -55,7 +55,7 @@ describe('campaign trends', () => {
     expect(bySeal.Mylar).toMatchObject({ label: 'Mylar', count: 3, mean: 303, extremeSpread: 7 });
     expect(bySeal.Mylar.standardDeviation).toBeCloseTo(3.605551275463989, 12);
     // Paper: one speed (310; shot 5 has none): no standard deviation from one value, spread 0.
-    expect(bySeal.Paper).toEqual({ key: 'Paper', label: 'Paper', count: 1, mean: 310, standardDeviation: null, extremeSpread: 0 });
+    expect(bySeal.Paper).toEqual({ key: 'Paper', label: 'Paper', count: 1, mean: 310, standardDeviation: null, standardError: null, extremeSpread: 0 });
   });
 
   it('When grouped by projectile or not at all, then the groups follow', async () => {
@@ -77,7 +77,7 @@ describe('campaign trends', () => {
   it('When the query is wrong, then the answer names the parameter', async () => {
     const bad = await trends('?groupBy=colour');
     expect(bad.status).toBe(400);
-    expect(bad.body.error.message).toContain('groupBy must be seal, projectile or none');
+    expect(bad.body.error.message).toContain('groupBy must be seal, projectile, vacuum or none');
     const negative = await trends('?tubeLengthM=-1');
     expect(negative.status).toBe(400);
     expect(negative.body.error.message).toContain('tubeLengthM must be a positive number');

@@ -27,35 +27,38 @@ export function exportRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/campaigns/:campaignId/export',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: "The campaign's shots and results as a CSV or JSON file (one row per shot; lab units: kPa, °C); the JSON file also carries the launcher model fitted to the shots (launcherFit, SI units)",
+      summary: "The campaign's shots and results as a CSV or JSON file (one row per shot; lab units: kPa, °C; a Signed off column; shots=signed-off keeps only signed-off shots); " +
+        'the CSV rounds each speed to its U (precision=full for every digit); the JSON file is full precision and also carries the launcher model fitted to the shots (launcherFit, SI units)',
       query: exportQuery,
       response: { status: 200, description: 'A CSV (text/csv) or JSON file, as an attachment' },
       async handler(req, res) {
-        const { format } = res.locals.query as ExportQuery;
+        const { format, shots, precision } = res.locals.query as ExportQuery;
         const campaign = await Campaign.findOne({ where: { id: req.params.campaignId as string, labId: req.lab!.id } });
         if (!campaign) throw notFound('No such campaign.');
-        const rows = await campaignRows(campaign);
-        await recordAudit({ labId: campaign.labId, actorId: req.auth!.userId, action: 'campaign.exported', targetType: 'campaign', targetId: campaign.id, details: { format, shots: rows.length }, ip: clientIp(req) });
-        // JSON carries the launcher model fitted to the campaign's shots beside the rows (SI units); CSV stays one row per shot.
-        const launcherFit = format === 'json' ? await fitCampaignLauncher(campaign, await campaignTrendPoints(campaign)) : undefined;
-        send(res, format, `${fileSlug(campaign.name)}-shots`, CAMPAIGN_COLUMNS, rows, { campaign: { id: campaign.id, name: campaign.name }, exportedAt: new Date().toISOString(), launcherFit });
+        // JSON keeps every number as computed; the CSV is rounded to each value's uncertainty unless asked otherwise.
+        const rows = await campaignRows(campaign, { shots, precision: format === 'csv' ? precision : 'full' });
+        await recordAudit({ labId: campaign.labId, actorId: req.auth!.userId, action: 'campaign.exported', targetType: 'campaign', targetId: campaign.id, details: { format, shots: rows.length, selection: shots, ...(format === 'csv' ? { precision } : {}) }, ip: clientIp(req) });
+        // JSON carries the launcher model fitted to the exported shots beside the rows (SI units); CSV stays one row per shot.
+        const points = format === 'json' ? await campaignTrendPoints(campaign) : [];
+        const launcherFit = format === 'json' ? await fitCampaignLauncher(campaign, shots === 'signed-off' ? points.filter((p) => p.signedOff) : points) : undefined;
+        send(res, format, `${fileSlug(campaign.name)}-shots${shots === 'signed-off' ? '-signed-off' : ''}`, CAMPAIGN_COLUMNS, rows, { campaign: { id: campaign.id, name: campaign.name }, shots, exportedAt: new Date().toISOString(), launcherFit });
       },
     },
     {
       method: 'get',
       path: '/api/shots/:shotId/export',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
-      summary: "The current analysis's gate crossings, pulses and speed lines as a CSV or JSON file (SI units)",
+      summary: "The current analysis's gate crossings, pulses and speed lines as a CSV or JSON file (SI units; the CSV rounds each speed to its U unless precision=full; shots does not apply)",
       query: exportQuery,
       response: { status: 200, description: 'A CSV (text/csv) or JSON file, as an attachment' },
       async handler(req, res) {
-        const { format } = res.locals.query as ExportQuery;
+        const { format, precision } = res.locals.query as ExportQuery;
         const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
         if (!shot) throw notFound('No such shot.');
         const analysis = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
         if (!analysis || analysis.state !== 'done') throw conflict('This shot has no finished analysis to export yet.');
         const campaign = await Campaign.findByPk(shot.campaignId, { attributes: ['name'] });
-        const rows = shotRows(analysis.results as Partial<ShotAnalysis> | null);
+        const rows = shotRows(analysis.results as Partial<ShotAnalysis> | null, format === 'csv' ? precision : 'full');
         await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.exported', targetType: 'shot', targetId: shot.id, details: { format, version: analysis.version }, ip: clientIp(req) });
         send(res, format, `${fileSlug(campaign?.name ?? 'campaign')}-shot-${shot.number}-v${analysis.version}`, SHOT_COLUMNS, rows, {
           shot: { id: shot.id, number: shot.number, campaign: campaign?.name ?? null }, analysisVersion: analysis.version, exportedAt: new Date().toISOString(),

@@ -4,19 +4,21 @@ export interface SpeedSummary {
   mean: number | null;
   /** Sample standard deviation (n − 1 in the denominator), m/s; null below two shots. */
   standardDeviation: number | null;
+  /** Standard error of the mean, s/√n (the sample standard deviation over √n), m/s; null below two shots. */
+  standardError: number | null;
   /** max − min, m/s; null for no shots (0 for one). */
   extremeSpread: number | null;
 }
 
 /**
- * Count, mean, sample standard deviation and extreme spread of a group's speeds. Two passes (mean first, then the
+ * Count, mean, sample standard deviation, standard error of the mean and extreme spread of a group's speeds. Two passes (mean first, then the
  * squared deviations from it) avoid the cancellation of the one-pass sum-of-squares formula (NIST/SEMATECH
  * e-Handbook of Statistical Methods, 1.3.5.6; Chan, Golub & LeVeque, Am. Stat. 37(3) 1983).
  */
 export function summarizeSpeeds(values: readonly number[]): SpeedSummary {
   if (!Array.isArray(values)) throw new TypeError('values must be an array of speeds in m/s');
   const n = values.length;
-  if (n === 0) return { count: 0, mean: null, standardDeviation: null, extremeSpread: null };
+  if (n === 0) return { count: 0, mean: null, standardDeviation: null, standardError: null, extremeSpread: null };
   let sum = 0;
   let min = Infinity;
   let max = -Infinity;
@@ -30,5 +32,6 @@ export function summarizeSpeeds(values: readonly number[]): SpeedSummary {
   const mean = sum / n;
   let squares = 0;
   for (let i = 0; i < n; i++) squares += (values[i] - mean) ** 2;
-  return { count: n, mean, standardDeviation: n > 1 ? Math.sqrt(squares / (n - 1)) : null, extremeSpread: max - min };
+  const standardDeviation = n > 1 ? Math.sqrt(squares / (n - 1)) : null;
+  return { count: n, mean, standardDeviation, standardError: standardDeviation == null ? null : standardDeviation / Math.sqrt(n), extremeSpread: max - min };
 }

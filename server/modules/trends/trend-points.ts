@@ -26,6 +26,8 @@ export async function campaignTrendPoints(campaign: Campaign): Promise<TrendPoin
       projectileId: s.projectileId, projectileName: projectiles.find((p) => p.id === s.projectileId)?.name ?? null,
       speed: speed?.value ?? null, uncertainty: speed?.uncertainty ?? null, method: speed?.method ?? null,
       status: s.status, analysisVersion: a.version, timeBase: timeBaseState(a),
+      // "approved" is derived from the review of the current version only (shared/contracts/shot-status.ts).
+      signedOff: s.status === 'approved',
     });
   }
   return points;
