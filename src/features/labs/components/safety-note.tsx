@@ -16,10 +16,17 @@ export function SafetyNote() {
 }
 
 /** The same cautions folded into one line, for forms and side panels (new campaign, new shot, shot page, trends). */
-export function SafetyCaution({ className = '' }: { className?: string }) {
+export function SafetyCaution({ className = '', open = false, lead }: {
+  className?: string;
+  /** Shown unfolded (beside a prediction of near-sonic speeds). */
+  open?: boolean;
+  /** A sentence before the cautions saying why they matter here. */
+  lead?: string;
+}) {
   return (
-    <details className={`rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40 ${className}`} data-testid="safety-caution">
+    <details open={open} className={`rounded-md bg-signal-100/60 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400/40 ${className}`} data-testid="safety-caution">
       <summary className="cursor-pointer font-medium">Launcher safety</summary>
+      {lead && <p className="mt-1 font-medium">{lead}</p>}
       <p className="mt-1">
         Rated backstop and a clear exclusion zone; never fire at people. Shield evacuated tubes and wear eye and hearing protection; burst
         discs and pressurised variants add pressure-vessel hazards. Your lab’s rules and trained supervision govern.

@@ -6,8 +6,11 @@ import 'uplot/dist/uPlot.min.css';
 export interface TrendSeries {
   label: string;
   colour: string;
-  /** x in display units (kPa or shot number), y in m/s, u = expanded uncertainty in m/s (null: no bar). */
-  points: { x: number; y: number; u: number | null }[];
+  /**
+   * x in display units (kPa or shot number), y in m/s, u = expanded uncertainty in m/s (null: no bar); `signedOff`
+   * true draws a filled marker, false a hollow one (undefined: filled, as for residuals).
+   */
+  points: { x: number; y: number; u: number | null; signedOff?: boolean }[];
 }
 
 export interface ReferenceLine { y: number; label: string; colour: string }
@@ -58,7 +61,14 @@ export function TrendPlot({ xLabel, logX = false, integerX = false, series, curv
   useEffect(() => {
     if (!box.current || width === 0) return;
     // One aligned table: each group's points and the curve on the union of their x values (empty groups left out).
-    const shown = series.filter((s) => s.points.length > 0);
+    // A group whose points say whether they are signed off is drawn as two marker sets: filled (signed off) and hollow.
+    const shown = series.flatMap((s) => {
+      if (!s.points.some((p) => p.signedOff === false)) return [{ ...s, hollow: false }];
+      return [
+        { ...s, points: s.points.filter((p) => p.signedOff !== false), hollow: false },
+        { ...s, points: s.points.filter((p) => p.signedOff === false), hollow: true },
+      ];
+    }).filter((s) => s.points.length > 0);
     const lines = curves.filter((c) => c.x.length > 0);
     const tables: uPlot.AlignedData[] = shown.map((s) => {
       const sorted = [...s.points].sort((a, b) => a.x - b.x);
@@ -103,7 +113,10 @@ export function TrendPlot({ xLabel, logX = false, integerX = false, series, curv
       ],
       series: [
         {},
-        ...shown.map((s) => ({ label: s.label, stroke: s.colour, fill: s.colour, paths: () => null, points: { show: true, size: 7, fill: s.colour, stroke: s.colour } })),
+        ...shown.map((s) => ({
+          label: s.label, stroke: s.colour, fill: s.colour, paths: () => null,
+          points: s.hollow ? { show: true, size: 8, width: 1.5, fill: '#ffffff', stroke: s.colour } : { show: true, size: 7, fill: s.colour, stroke: s.colour },
+        })),
         ...lines.map((line) => ({ label: line.label, stroke: line.colour, width: 2, dash: line.dash, spanGaps: true, points: { show: false } })),
       ],
       hooks: {

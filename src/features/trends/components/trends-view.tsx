@@ -1,10 +1,13 @@
 import { useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
 import { launcherModel, type LauncherPrediction } from '../../../../shared/physics/launcher-model.ts';
+import { formatMeasurement, roundToUncertainty } from '../../../../shared/units/format-measurement.ts';
 import { Button, Card, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
 import { useUpdateCampaign } from '../../campaigns/api/campaigns.ts';
 import { millimetresToMetres } from '../../campaigns/utils/lab-units.ts';
-import { groupKeyOf, useCampaignTrends, type GroupBy, type TrendPoint } from '../api/campaign-trends.ts';
+import { SafetyCaution } from '../../labs/components/safety-note.tsx';
+import { groupKeyOf, useCampaignTrends, type GroupBy, type ShotSelection, type TrendPoint } from '../api/campaign-trends.ts';
+import { oneTwoFiveEdgesPa, parseEdgesKpa, type VacuumBinning } from '../lib/vacuum-edges.ts';
 import { LauncherCautions, LauncherFitCard } from './launcher-fit-card.tsx';
 import { TrendPlot, type ReferenceLine, type TrendCurve, type TrendSeries } from './trend-plot.tsx';
 
@@ -16,7 +19,8 @@ const ZERO_LINE: ReferenceLine[] = [{ y: 0, label: '', colour: '#365d7a' }];
 
 export interface ProjectileChoice { id: string; name: string; massKg: number; diameterM: number }
 
-const ms = (x: number | null) => (x == null ? '—' : `${x.toFixed(1)} m/s`);
+/** A speed to 0.1 m/s, rounded in decimal (234.15 → 234.2; toFixed would give 234.1 from the binary 234.1499…). */
+const ms = (x: number | null) => (x == null ? '—' : `${roundToUncertainty(x, 0.1, 1).value} m/s`);
 
 /** Reads a positive number typed in lab units; the message names the field and says what is wrong. */
 function positive(text: string, name: string): { value: number | null; error?: string } {
@@ -90,8 +94,18 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
   canEditCampaign: boolean;
 }) {
   const [groupBy, setGroupBy] = useState<GroupBy>('seal');
-  const q = useCampaignTrends(labId, campaignId, groupBy);
+  const [shots, setShots] = useState<ShotSelection>('all');
+  const [binning, setBinning] = useState<VacuumBinning>('1-2-5');
+  const [edgesText, setEdgesText] = useState('1, 2, 5, 10');
+  const [csvPrecision, setCsvPrecision] = useState<'rounded' | 'full'>('rounded');
+  // 1–2–5 edges around the pressures already on screen (the answer before this one, while it loads).
+  const [pressuresSeen, setPressuresSeen] = useState<string>('');
+  const typedEdges = parseEdgesKpa(edgesText);
+  const vacuumEdgesPa = binning === 'decade' ? null : binning === 'custom' ? typedEdges.edgesPa : oneTwoFiveEdgesPa(pressuresSeen.split(',').map((x) => (x ? Number(x) : null)));
+  const q = useCampaignTrends(labId, campaignId, { groupBy, shots, vacuumEdgesPa });
   const points = useMemo(() => q.data?.points ?? [], [q.data]);
+  const pressureKey = points.map((p) => p.tubePressurePa ?? '').join(',');
+  if (pressureKey !== pressuresSeen && q.data) setPressuresSeen(pressureKey);
   const stored = q.data?.campaign ?? null;
   const saveLauncher = useUpdateCampaign(labId, campaignId);
 
@@ -148,8 +162,8 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
     for (const p of points) {
       if (p.speed == null || p.timeBase === 'unchecked') continue;
       const key = groupKeyOf(p, groupBy);
-      number.get(key)?.points.push({ x: p.number, y: p.speed, u: p.uncertainty });
-      if (p.tubePressurePa != null && p.tubePressurePa > 0) pressure.get(key)?.points.push({ x: p.tubePressurePa / 1000, y: p.speed, u: p.uncertainty });
+      number.get(key)?.points.push({ x: p.number, y: p.speed, u: p.uncertainty, signedOff: p.signedOff });
+      if (p.tubePressurePa != null && p.tubePressurePa > 0) pressure.get(key)?.points.push({ x: p.tubePressurePa / 1000, y: p.speed, u: p.uncertainty, signedOff: p.signedOff });
       else skipped++;
     }
     return { byPressure: [...pressure.values()], byNumber: [...number.values()], leftOff: skipped };
@@ -181,6 +195,9 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
   if (q.isPending) return <Loading what="Loading the campaign's shots" />;
   if (q.isError) return <ErrorNote error={q.error} />;
   const withSpeed = points.filter((p) => p.speed != null).length;
+  const signedOffCount = points.filter((p) => p.signedOff).length;
+  const exportBase = `/api/labs/${labId}/campaigns/${campaignId}/export`;
+  const selection = shots === 'signed-off' ? '&shots=signed-off' : '';
   const unchecked = points.filter((p) => p.speed != null && p.timeBase === 'unchecked');
 
   return (
@@ -190,23 +207,63 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
           <SelectField label="Group by" value={groupBy} onChange={(e) => setGroupBy(e.target.value as GroupBy)}>
             <option value="seal">Seal type</option>
             <option value="projectile">Projectile</option>
+            <option value="vacuum">Tube vacuum (binned)</option>
             <option value="none">No grouping</option>
+          </SelectField>
+        </div>
+        {groupBy === 'vacuum' && (
+          <div className="w-48">
+            <SelectField label="Pressure bins" value={binning} onChange={(e) => setBinning(e.target.value as VacuumBinning)}>
+              <option value="1-2-5">1–2–5 steps (kPa)</option>
+              <option value="decade">One per decade</option>
+              <option value="custom">My own edges</option>
+            </SelectField>
+          </div>
+        )}
+        {groupBy === 'vacuum' && binning === 'custom' && (
+          <div className="w-56">
+            <TextField label="Bin edges (kPa)" value={edgesText} onChange={(e) => setEdgesText(e.target.value)} error={typedEdges.error} hint="Increasing, e.g. 1, 2, 5, 10" />
+          </div>
+        )}
+        <div className="w-56">
+          <SelectField label="Shots" value={shots} onChange={(e) => setShots(e.target.value as ShotSelection)}>
+            <option value="all">All (signed off marked)</option>
+            <option value="signed-off">Signed off only</option>
           </SelectField>
         </div>
         <ul className="flex flex-wrap gap-x-4 gap-y-1 pb-2 text-sm" aria-label="Groups">
           {[...groupLabels.values()].map((g) => (
             <li key={g.label} className="inline-flex items-center gap-1.5"><span className="h-3 w-3 rounded-full" style={{ background: g.colour }} aria-hidden />{g.label}</li>
           ))}
+          {shots === 'all' && (
+            <li className="inline-flex items-center gap-1.5" data-testid="signed-off-legend">
+              <span className="h-3 w-3 rounded-full bg-harbour-700" aria-hidden />signed off
+              <span className="ml-2 h-3 w-3 rounded-full border-2 border-harbour-700 bg-white" aria-hidden />not signed off
+            </li>
+          )}
           {model && <li className="inline-flex items-center gap-1.5"><span className="h-0 w-5 border-t-2 border-dashed" style={{ borderColor: MODEL_COLOUR }} aria-hidden />zeroth order</li>}
           {fitted && <li className="inline-flex items-center gap-1.5"><span className="h-2.5 w-5 rounded-sm" style={{ background: 'rgba(196, 122, 18, 0.3)', borderTop: `2px solid ${FIT_COLOUR}` }} aria-hidden />fitted model, k = {fitted.coverageFactor} band</li>}
         </ul>
-        <p className="ml-auto pb-2 text-sm text-harbour-600">
-          Export the campaign’s shots:{' '}
-          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/export?format=csv`} download>CSV</a>{' · '}
-          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/export?format=json`} download>JSON</a>{' · '}
+        <div className="ml-auto flex flex-wrap items-end gap-3 pb-2 text-sm text-harbour-600">
+          <div className="w-44">
+            <SelectField label="CSV numbers" value={csvPrecision} onChange={(e) => setCsvPrecision(e.target.value as 'rounded' | 'full')}>
+              <option value="rounded">Rounded to their U</option>
+              <option value="full">Full precision</option>
+            </SelectField>
+          </div>
+          <p className="pb-2">
+          Export {shots === 'signed-off' ? 'the signed-off shots' : 'the campaign’s shots'}:{' '}
+          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`${exportBase}?format=csv${selection}${csvPrecision === 'full' ? '&precision=full' : ''}`} download data-testid="export-csv">CSV</a>{' · '}
+          <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`${exportBase}?format=json${selection}`} download>JSON</a>{' · '}
           <a className="font-medium text-harbour-800 underline-offset-2 hover:underline" href={`/api/labs/${labId}/campaigns/${campaignId}/report.pdf`} download>PDF report</a>
-        </p>
+          </p>
+        </div>
       </div>
+      {shots === 'signed-off' && (
+        <p role="status" className="text-sm text-harbour-700" data-testid="signed-off-filter-note">
+          Showing only shots whose current version a reviewer signed off ({signedOffCount}). The statistics, the fitted model and the exports cover these shots only.
+        </p>
+      )}
       {unchecked.length > 0 && (
         <p role="note" className="rounded-md bg-signal-100 px-3 py-2 text-sm text-signal-800" data-testid="trends-unchecked">
           Left out of the plots and statistics until an analyst confirms the read, because their result is marked “check the time base”:{' '}
@@ -251,25 +308,37 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
         <Card title="Spread per group">
           <table className="w-full text-sm" aria-label="Statistics per group">
             <thead className="text-left text-xs font-semibold uppercase tracking-wide text-harbour-600">
-              <tr><th className="py-1.5 pr-2">Group</th><th className="px-2 text-right">Shots</th><th className="px-2 text-right">Mean</th><th className="px-2 text-right">SD</th><th className="pl-2 text-right">Extreme spread</th></tr>
+              <tr><th className="py-1.5 pr-2">{groupBy === 'vacuum' ? 'Tube pressure' : 'Group'}</th><th className="px-2 text-right">n</th><th className="px-2 text-right">Mean</th><th className="px-2 text-right">SD</th><th className="px-2 text-right">SE</th><th className="pl-2 text-right">Extreme spread</th></tr>
             </thead>
-            <tbody className="divide-y divide-harbour-100 tabular-nums">
+            <tbody className="divide-y divide-harbour-100 whitespace-nowrap tabular-nums">
               {(q.data.groups ?? []).map((g) => (
                 <tr key={g.key}>
-                  <td className="py-1.5 pr-2"><span className="mr-1.5 inline-block h-2.5 w-2.5 rounded-full" style={{ background: groupLabels.get(g.key)?.colour }} aria-hidden />{g.label}</td>
+                  <td className="whitespace-normal py-1.5 pr-2"><span className="mr-1.5 inline-block h-2.5 w-2.5 rounded-full" style={{ background: groupLabels.get(g.key)?.colour }} aria-hidden />{g.label}</td>
                   <td className="px-2 text-right">{g.count}</td>
                   <td className="px-2 text-right">{ms(g.mean)}</td>
                   <td className="px-2 text-right">{ms(g.standardDeviation)}</td>
+                  <td className="px-2 text-right">{ms(g.standardError ?? null)}</td>
                   <td className="pl-2 text-right">{ms(g.extremeSpread)}</td>
                 </tr>
               ))}
             </tbody>
           </table>
-          <p className="mt-2 text-xs text-harbour-500">SD is the sample standard deviation (n − 1), shown from two shots up; extreme spread is fastest − slowest.</p>
+          <p className="mt-2 text-xs text-harbour-500">
+            n counts shots with a speed; SD is the sample standard deviation (n − 1) and SE the standard error of the mean (SD/√n), shown from two shots up;
+            extreme spread is fastest − slowest.{groupBy === 'vacuum' ? ' A bin holds pressures from its lower edge up to, not including, its upper edge.' : ''}
+          </p>
+          <p role="note" className={`mt-2 rounded-md px-3 py-2 text-xs ring-1 ${groupBy === 'vacuum' || groupBy === 'none' ? 'bg-signal-100 text-signal-800 ring-signal-400/60' : 'bg-harbour-50 text-harbour-700 ring-harbour-100'}`} data-testid="not-repeatability">
+            A spread across a pressure sweep is not a repeatability figure: the speed follows the tube vacuum, so the SD of shots at different pressures
+            mixes that trend with shot-to-shot scatter. For repeatability, compare shots fired at the same vacuum, seal and projectile{groupBy === 'vacuum' ? ', and keep bins narrow' : ''}.
+          </p>
         </Card>
 
         <Card title="Launcher model">
           <div className="space-y-3">
+            <SafetyCaution
+              open
+              lead={`This model predicts speeds near and above the speed of sound${model ? ` (up to ${model.atVacuum.speed.toFixed(0)} m/s here)` : ''}. Treat every shot as dangerous whatever the prediction says.`}
+            />
             <LauncherInputs fields={fields} set={set} errors={errors} />
             <LauncherSources
               tube={edited.length != null ? 'typed' : stored?.tubeLengthM != null ? 'campaign' : 'none'}
@@ -312,6 +381,44 @@ export function TrendsView({ labId, campaignId, projectiles, canEditCampaign }: 
           </div>
         </Card>
       </div>
+
+      <ShotsTable labId={labId} points={points} groupBy={groupBy} groupLabels={groupLabels} />
     </div>
+  );
+}
+
+/** Every shot on the plots, with its group and whether a reviewer signed off its current version. */
+function ShotsTable({ labId, points, groupBy, groupLabels }: {
+  labId: string; points: TrendPoint[]; groupBy: GroupBy; groupLabels: Map<string, { label: string; colour: string }>;
+}) {
+  if (points.length === 0) return null;
+  return (
+    <Card title="Shots">
+      <div className="overflow-x-auto">
+        <table className="w-full text-sm" aria-label="Shots on these plots">
+          <thead className="text-left text-xs font-semibold uppercase tracking-wide text-harbour-600">
+            <tr>
+              <th className="py-1.5 pr-2">Shot</th><th className="px-2 text-right">Tube pressure (kPa)</th><th className="px-2">Seal</th><th className="px-2">Group</th>
+              <th className="px-2 text-right">Speed ± U (k = 2)</th><th className="pl-2">Signed off</th>
+            </tr>
+          </thead>
+          <tbody className="divide-y divide-harbour-100 tabular-nums">
+            {points.map((p) => {
+              const g = groupLabels.get(groupKeyOf(p, groupBy));
+              return (
+                <tr key={p.shotId} data-signed-off={p.signedOff ? 'yes' : 'no'}>
+                  <td className="py-1.5 pr-2"><Link className="font-medium text-harbour-800 underline-offset-2 hover:underline" to={`/labs/${labId}/shots/${p.shotId}`}>#{p.number}</Link></td>
+                  <td className="px-2 text-right">{p.tubePressurePa == null ? '—' : plain(p.tubePressurePa / 1000)}</td>
+                  <td className="px-2">{p.sealType || '—'}</td>
+                  <td className="px-2"><span className="mr-1.5 inline-block h-2.5 w-2.5 rounded-full" style={{ background: g?.colour }} aria-hidden />{g?.label ?? '—'}</td>
+                  <td className="px-2 text-right">{p.timeBase === 'unchecked' ? 'check the time base' : formatMeasurement(p.speed, p.uncertainty, 'm/s')}</td>
+                  <td className="pl-2">{p.signedOff ? <span className="rounded-full bg-emerald-50 px-2 py-0.5 text-xs font-medium text-emerald-800 ring-1 ring-emerald-200">✓ signed off</span> : <span className="text-harbour-400">—</span>}</td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </div>
+    </Card>
   );
 }
