@@ -6,7 +6,7 @@ import { createLogger } from '../lib/logger.ts';
 import { createBlobStore } from '../storage/create-blob-store.ts';
 import { createMigrator, migrateUp } from './migrator.ts';
 import { attachDemoCaptures } from './seeders/demo-captures.ts';
-import { seedDemo, demoAccounts } from './seeders/demo.ts';
+import { seedDemo, seedDemoMoreShots, demoAccounts } from './seeders/demo.ts';
 import { createSequelize } from './sequelize.ts';
 
 /**
@@ -58,7 +58,9 @@ async function run(command: string, config: Config, sequelize: Sequelize): Promi
       const seeded = await seedDemo(sequelize);
       console.log(seeded ? `Seeded the demo labs (${demoAccounts.length} accounts).` : 'Demo labs already present; left as they are.');
       if (seeded) {
-        // The demo sweep's scope files, read and analysed by the worker once it starts.
+        const more = await seedDemoMoreShots(sequelize);
+        console.log(`Logged ${more} more demo shot(s) (the seal comparison and Sandgate's drop calibration).`);
+        // The demo's scope files, read and analysed by the worker once it starts.
         const queues = createJobQueues(config.redisUrl);
         try {
           const n = await attachDemoCaptures({ blobStore: createBlobStore(config), queues, logger: createLogger(config.logLevel, 'seed') });

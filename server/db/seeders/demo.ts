@@ -65,6 +65,12 @@ export async function seedDemo(sequelize: Sequelize): Promise<boolean> {
       beamWidthM: 0.001, sensorType: 'phototransistor',
       notes: 'Gates on one aluminium rail, 150 mm pitch, measured with a steel rule.',
     }, { transaction });
+    await Projectile.create({
+      labId: sandgate.id, name: 'Steel ball, 25.4 mm', material: 'chrome steel',
+      // A 1 inch bearing ball: (4/3)·π·(12.7 mm)³ × 7.85 g/cm³ (a handbook density of steel, from memory) = 67.4 g.
+      diameterM: 0.0254, diameterToleranceM: 0.00001, massKg: 0.0674, massToleranceKg: 0.0002,
+      notes: 'Bearing ball for the drop calibration.',
+    }, { transaction });
     await GateRig.create({
       labId: sandgate.id, name: 'Drop tower pair',
       gates: [
@@ -104,3 +110,71 @@ export async function seedDemo(sequelize: Sequelize): Promise<boolean> {
   });
   return true;
 }
+
+/** The seals of the demo's seal comparison, with the absolute pressure at which each lets go (invented for the demo). */
+export const DEMO_SEALS = [
+  { sealType: 'Polyester film, 50 µm', exitSealPressurePa: null },
+  { sealType: 'Aluminium foil, 20 µm', exitSealPressurePa: 150_000 },
+  { sealType: 'Kraft paper, 80 g/m²', exitSealPressurePa: 200_000 },
+] as const;
+
+/** Heights above the upper gate from which the demo's drop calibration releases its ball, m (invented). */
+export const DEMO_DROP_HEIGHTS_M = [0.2, 0.35, 0.5, 0.8];
+
+/**
+ * The demo's second campaign and second lab get a few shots each (their scope files come from demo-captures.ts):
+ * Hollowmere's seal comparison, two shots per seal at the best vacuum its pump reaches, and Sandgate's drop
+ * calibration, a steel ball dropped through its two gates from four heights. Separate from seedDemo, which the
+ * tests use as their base world. Only campaigns without shots get them; returns how many shots were made.
+ */
+export async function seedDemoMoreShots(sequelize: Sequelize): Promise<number> {
+  const hollowmere = await Lab.findOne({ where: { slug: 'hollowmere' } });
+  const sandgate = await Lab.findOne({ where: { slug: 'sandgate' } });
+  if (!hollowmere || !sandgate) return 0;
+  const seals = await Campaign.findOne({ where: { labId: hollowmere.id, name: 'Seal comparison' } });
+  const drops = await Campaign.findOne({ where: { labId: sandgate.id, name: 'Drop calibration' } });
+  const [tomas, sam] = await Promise.all([
+    User.findOne({ where: { email: 'tomas.reyl@hollowmere.example' } }),
+    User.findOne({ where: { email: 'sam.whitlow@sandgate.example' } }),
+  ]);
+  const [ball, rig, steel, pair] = await Promise.all([
+    Projectile.findOne({ where: { labId: hollowmere.id, name: 'Table-tennis ball, 40 mm' } }),
+    GateRig.findOne({ where: { labId: hollowmere.id, name: 'Exit rig, three gates' } }),
+    Projectile.findOne({ where: { labId: sandgate.id, name: 'Steel ball, 25.4 mm' } }),
+    GateRig.findOne({ where: { labId: sandgate.id, name: 'Drop tower pair' } }),
+  ]);
+  let made = 0;
+  await sequelize.transaction(async (transaction) => {
+    if (seals && ball && rig && (await Shot.count({ where: { campaignId: seals.id }, transaction })) === 0) {
+      for (let i = 0; i < 6; i++) {
+        const seal = DEMO_SEALS[i % 3];
+        await Shot.create({
+          labId: hollowmere.id, campaignId: seals.id, number: i + 1,
+          firedAt: new Date(Date.UTC(2026, 10, 20 + Math.floor(i / 3), 10 + (i % 3), 40)),
+          projectileId: ball.id, gateRigId: rig.id,
+          // The best the pump reaches drifts a little from shot to shot.
+          tubePressurePa: [1.05, 1.1, 1.0, 1.05, 1.1, 1.0][i] * kPa, sealType: seal.sealType,
+          ambientTemperatureK: celsius(20.5 + (i % 2) * 0.5), ambientPressurePa: 101.2 * kPa,
+          notes: i === 2 ? 'Paper seal torn cleanly; fibres in the catch box.' : '',
+          createdBy: tomas?.id ?? null,
+        }, { transaction });
+        made++;
+      }
+    }
+    if (drops && steel && pair && (await Shot.count({ where: { campaignId: drops.id }, transaction })) === 0) {
+      for (const [i, h] of DEMO_DROP_HEIGHTS_M.entries()) {
+        await Shot.create({
+          labId: sandgate.id, campaignId: drops.id, number: i + 1,
+          firedAt: new Date(Date.UTC(2026, 8, 1, 14, 10 + 5 * i)),
+          projectileId: steel.id, gateRigId: pair.id, tubePressurePa: null, sealType: '',
+          ambientTemperatureK: celsius(22), ambientPressurePa: 100.4 * kPa,
+          notes: `Released ${Math.round(h * 1000)} mm above the upper gate.`,
+          createdBy: sam?.id ?? null,
+        }, { transaction });
+        made++;
+      }
+    }
+  });
+  return made;
+}
+
