@@ -241,6 +241,10 @@ async function main(): Promise<void> {
     if (!shuttingDown) await shutdown(1, `${(error as Error).message}: stopping everything`);
     return;
   }
+  // The demo's review scene needs the sweep analysed first: recorded beside the running app, once (a failure only says so).
+  const reviews = spawnChild({ name: 'demo', command: process.execPath, args: [compiled('server/db/cli.ts'), 'demo-reviews'], env });
+  children.push(reviews);
+  void reviews.exited.then(() => { if (children.includes(reviews)) children.splice(children.indexOf(reviews), 1); });
   const firstPage = await fetch(`${localUrl}/`).then((response) => response.status, (error: Error) => error.message);
   if (shuttingDown) return;
   // performance.now() counts from the start of this process, so the time includes Node's own start-up.

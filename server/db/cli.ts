@@ -6,12 +6,14 @@ import { createLogger } from '../lib/logger.ts';
 import { createBlobStore } from '../storage/create-blob-store.ts';
 import { createMigrator, migrateUp } from './migrator.ts';
 import { attachDemoCaptures } from './seeders/demo-captures.ts';
+import { recordDemoReviews } from './seeders/demo-reviews.ts';
 import { seedDemo, seedDemoMoreShots, demoAccounts } from './seeders/demo.ts';
 import { createSequelize } from './sequelize.ts';
 
 /**
  * Database commands: `migrate` (apply pending migrations), `migrate:status`, `migrate:down` (undo the last one),
- * `seed-demo` (the demo labs, only when absent, with the demo sweep's scope files queued). Usage: npm run db -- <command>
+ * `seed-demo` (the demo labs, only when absent, with the demo's scope files queued), `demo-reviews` (the demo's review
+ * scene, waiting for the worker to analyse the sweep; once). Usage: npm run db -- <command>
  * Several commands run one after another in one process (`migrate seed-demo`, as npm start does); the first that
  * fails stops the rest.
  */
@@ -71,8 +73,19 @@ async function run(command: string, config: Config, sequelize: Sequelize): Promi
       }
       break;
     }
+    case 'demo-reviews': {
+      // The demo's review scene, once the worker has analysed the sweep (npm start runs this beside the worker).
+      const outcome = await recordDemoReviews(sequelize, { waitMs: Number(process.env.GATEPOST_DEMO_REVIEWS_WAIT_MS ?? 300_000) });
+      console.log({
+        'recorded': 'Demo review scene recorded: shot 3 signed off, shot 5 returned with a comment, shot 7 waiting for review.',
+        'already-recorded': 'Demo review scene already present; left as it is.',
+        'not-seeded': 'No demo lab: no review scene to record.',
+        'not-analysed': 'The demo sweep was not analysed in time: no review scene recorded (it is tried again on the next start).',
+      }[outcome]);
+      break;
+    }
     default:
-      console.error('Usage: npm run db -- migrate | migrate:status | migrate:down | seed-demo');
+      console.error('Usage: npm run db -- migrate | migrate:status | migrate:down | seed-demo | demo-reviews');
       process.exitCode = 2;
   }
 }

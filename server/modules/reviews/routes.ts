@@ -7,14 +7,14 @@ import { Analysis, AuditEvent, Campaign, Review, ReviewRequest, Shot, ShotCommen
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
-import { badRequest, conflict, notFound } from '../../lib/errors.ts';
+import { badRequest } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
-import { TIME_BASE_ATTRIBUTES, timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
+import { TIME_BASE_ATTRIBUTES, timeBaseStatus } from '../analyses/time-base-status.ts';
 import { notifyQueueOn, notifySafely, reviewersOf } from '../notifications/notify-people.ts';
 import { labOfShot, shotInLab } from '../shots/routes.ts';
-import { settleShot } from '../shots/settle-shot.ts';
 import { shotSummary } from '../shots/view.ts';
 import { namesOf, person } from './people.ts';
+import { decideReview, requestReview } from './service.ts';
 
 const finiteOrNull = (x: unknown) => (typeof x === 'number' && Number.isFinite(x) ? x : null);
 
@@ -40,21 +40,7 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const { message } = req.body as ReviewRequestBody;
         const userId = req.auth!.userId;
-        const { shot, request, analysis } = await deps.sequelize.transaction(async (transaction) => {
-          const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id }, transaction, lock: transaction.LOCK.UPDATE });
-          if (!shot) throw notFound('No such shot.');
-          if (shot.status === 'in_review') throw conflict('This shot is already waiting for review.');
-          if (shot.status === 'approved') throw conflict('This shot is already signed off; recompute it to make a new version that can be reviewed.');
-          const analysis = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction, attributes: ['id', 'version', 'state'] }) : null;
-          if (!analysis || analysis.state !== 'done') throw conflict('This shot has no finished analysis to review yet; wait for the analysis to finish (or upload a capture first).');
-          if (shot.status === 'processing') throw conflict('A recomputation of this shot is still running; send it for review when it has finished.');
-          const request = await ReviewRequest.create({ labId: shot.labId, shotId: shot.id, analysisId: analysis.id, requestedBy: userId, message: message ?? '' }, { transaction });
-          await shot.update({ reviewAnalysisId: analysis.id }, { transaction });
-          await settleShot(shot.id, transaction);
-          await shot.reload({ transaction });
-          return { shot, request, analysis };
-        });
-        await recordAudit({ labId: shot.labId, actorId: userId, action: 'review.requested', targetType: 'shot', targetId: shot.id, details: { requestId: request.id, version: analysis.version, message: request.message }, ip: clientIp(req) });
+        const { shot, request, analysis } = await requestReview(deps.sequelize, { shotId: req.params.shotId as string, labId: req.lab!.id, userId, message, ip: clientIp(req) });
         await notifySafely(notifyQueueOn(deps.redis), async () => ({
           kind: 'reviewRequested', labId: shot.labId, shotId: shot.id, eventId: request.id,
           recipientIds: (await reviewersOf(shot.labId)).filter((id) => id !== userId),
@@ -115,26 +101,7 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const { decision, comment } = req.body as ReviewDecisionBody;
         const userId = req.auth!.userId;
-        const { shot, review, version, request } = await deps.sequelize.transaction(async (transaction) => {
-          const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id }, transaction, lock: transaction.LOCK.UPDATE });
-          if (!shot) throw notFound('No such shot.');
-          if (shot.status !== 'in_review' || !shot.reviewAnalysisId) {
-            throw conflict(`This shot is not waiting for review (it is ${shot.status.replace('_', ' ')}); someone must send it for review first.`);
-          }
-          const analysisId = shot.reviewAnalysisId;
-          if (decision === 'approved') {
-            const reviewed = await Analysis.findByPk(analysisId, { transaction });
-            if (reviewed && timeBaseStatus(reviewed).blocksApproval) throw timeBaseUncheckedError(reviewed);
-          }
-          const request = await ReviewRequest.findOne({ where: { shotId: shot.id, analysisId }, order: [['createdAt', 'DESC'], ['id', 'DESC']], transaction });
-          const review = await Review.create({ labId: shot.labId, shotId: shot.id, analysisId, reviewerId: userId, decision, comment: comment ?? '', requestId: request?.id ?? null }, { transaction });
-          await shot.update(decision === 'approved' ? { approvedAnalysisId: analysisId, reviewAnalysisId: null } : { reviewAnalysisId: null }, { transaction });
-          await settleShot(shot.id, transaction);
-          await shot.reload({ transaction });
-          const version = (await Analysis.findByPk(analysisId, { attributes: ['version'], transaction }))?.version ?? null;
-          return { shot, review, version, request };
-        });
-        await recordAudit({ labId: shot.labId, actorId: userId, action: `review.${decision}`, targetType: 'shot', targetId: shot.id, details: { reviewId: review.id, version, comment: review.comment }, ip: clientIp(req) });
+        const { shot, review, version, request } = await decideReview(deps.sequelize, { shotId: req.params.shotId as string, labId: req.lab!.id, userId, decision, comment, ip: clientIp(req) });
         await notifySafely(notifyQueueOn(deps.redis), {
           kind: decision, labId: shot.labId, shotId: shot.id, eventId: review.id, recipientIds: [request?.requestedBy],
         }, log(`review ${decision}`));
