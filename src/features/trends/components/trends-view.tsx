@@ -411,8 +411,8 @@ function ShotsTable({ labId, points, groupBy, groupLabels }: {
                   <td className="px-2 text-right">{p.tubePressurePa == null ? '—' : plain(p.tubePressurePa / 1000)}</td>
                   <td className="px-2">{p.sealType || '—'}</td>
                   <td className="px-2"><span className="mr-1.5 inline-block h-2.5 w-2.5 rounded-full" style={{ background: g?.colour }} aria-hidden />{g?.label ?? '—'}</td>
-                  <td className="px-2 text-right">{p.timeBase === 'unchecked' ? 'check the time base' : formatMeasurement(p.speed, p.uncertainty, 'm/s')}</td>
-                  <td className="pl-2">{p.signedOff ? <span className="rounded-full bg-emerald-50 px-2 py-0.5 text-xs font-medium text-emerald-800 ring-1 ring-emerald-200">✓ signed off</span> : <span className="text-harbour-400">—</span>}</td>
+                  <td className="whitespace-nowrap px-2 text-right">{p.timeBase === 'unchecked' ? 'check the time base' : formatMeasurement(p.speed, p.uncertainty, 'm/s')}</td>
+                  <td className="whitespace-nowrap pl-2">{p.signedOff ? <span className="rounded-full bg-emerald-50 px-2 py-0.5 text-xs font-medium text-emerald-800 ring-1 ring-emerald-200">✓ signed off</span> : <span className="text-harbour-400">—</span>}</td>
                 </tr>
               );
             })}
