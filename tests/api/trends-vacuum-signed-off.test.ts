@@ -155,3 +155,20 @@ describe('CSV precision', () => {
     expect(bad.body.error.message).toContain('precision must be rounded or full');
   });
 });
+
+describe('the OpenAPI document', () => {
+  it('When scripts read the OpenAPI document, then the new query parameters are listed with what they do and their defaults', async () => {
+    const doc = (await request(h.app).get('/api/openapi.json')).body as { paths: Record<string, Record<string, { parameters: { name: string; schema: { default?: unknown; description?: string; enum?: string[] } }[] }>> };
+    const params = (path: string) => Object.fromEntries(doc.paths[path].get.parameters.map((p) => [p.name, p.schema]));
+    const trendsParams = params('/api/labs/{labId}/campaigns/{campaignId}/trends');
+    expect(trendsParams.shots).toMatchObject({ enum: ['all', 'signed-off'], default: 'all' });
+    expect(trendsParams.shots.description).toContain('signed-off: only shots whose current analysis version a reviewer signed off');
+    expect(trendsParams.groupBy.enum).toEqual(['seal', 'projectile', 'vacuum', 'none']);
+    expect(trendsParams.vacuumEdgesPa.description).toContain('bin edges of tube pressure in Pa');
+    const exportParams = params('/api/labs/{labId}/campaigns/{campaignId}/export');
+    expect(exportParams.precision).toMatchObject({ enum: ['rounded', 'full'], default: 'rounded' });
+    expect(exportParams.precision.description).toContain('JCGM 100:2008 §7.2.6');
+    expect(exportParams.shots).toMatchObject({ default: 'all' });
+  });
+});
+
