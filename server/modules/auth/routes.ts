@@ -83,6 +83,7 @@ export function authRoutes(deps: Deps): RouteDef[] {
           throw new AppError(403, 'account_disabled', 'This account has been disabled by a lab admin. Ask your lab admin to enable it again.');
         }
         if (!ok || !user) {
+          await deps.loginLimiter.fail(email, ip);
           await recordAudit({ labId: null, actorId: user?.id ?? null, action: 'auth.login_failed', details: { email }, ip });
           // Once per window, when the account's failures from every address reach the limit.
           if (user && attempt.accountAttempts === deps.loginLimiter.maxFailures) await mailOwnerAboutFailures(deps, user, ip, attempt.accountAttempts);
