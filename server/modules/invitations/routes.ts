@@ -131,7 +131,8 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/invitations/:token',
       access: { kind: 'public' },
-      summary: 'What an invitation link offers (lab, role, address), before accepting',
+      summary: 'What an invitation link offers (lab, role, address, inviter, expiry), before accepting; accountExists says whether to ask for the existing password or a name and a new one. Only the holder of the link learns it: the link goes to the invited address alone (admins see that an invitation was sent, never its link: not in the outbox, the responses or the audit trail), so an admin of one lab cannot learn from it whether an address has an account',
+      response: { status: 200, description: 'JSON: { labName, email, role, invitedBy, expiresAt, accountExists }' },
       async handler(req, res) {
         const { invitation, lab } = await openInvitation(req.params.token as string);
         const inviter = invitation.invitedBy ? await User.findByPk(invitation.invitedBy, { attributes: ['name'] }) : null;
