@@ -12,6 +12,7 @@ import {
 } from './lib/services.ts';
 import { describeExit, spawnChild, superviseChild, waitForHttp, type SupervisedChild } from './lib/processes.ts';
 import { buildNode, nodeBuildIsCurrent, NODE_BUILD_DIR } from './lib/build-node.ts';
+import { startEnvironment } from './lib/start-env.ts';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 process.chdir(root);
@@ -201,23 +202,9 @@ async function main(): Promise<void> {
   const smtpPassword = readOrCreateSecret(join(dataDir, 'smtp-password'));
 
   // The server listens on loopback; the address people use may be a reverse proxy's (https: Secure cookies, HSTS).
-  const localUrl = `http://127.0.0.1:${webPort}`;
-  const publicUrl = process.env.GATEPOST_PUBLIC_URL || localUrl;
-  const env: NodeJS.ProcessEnv = {
-    ...process.env,
-    GATEPOST_DATABASE_URL: postgres.url,
-    GATEPOST_REDIS_URL: redis.url,
-    GATEPOST_PORT: String(webPort),
-    GATEPOST_SMTP_HOST: '127.0.0.1',
-    GATEPOST_SMTP_PORT: String(smtpPort),
-    GATEPOST_SMTP_USER: 'gatepost',
-    GATEPOST_SMTP_PASSWORD: smtpPassword,
-    GATEPOST_DATA_DIR: dataDir,
-    GATEPOST_PUBLIC_URL: publicUrl,
-    GATEPOST_JWT_SECRET: secret,
-    GATEPOST_MAIL_OUTBOX: 'fake',
-    NODE_ENV: 'production',
-  };
+  const { env, localUrl, publicUrl } = startEnvironment({
+    base: process.env, databaseUrl: postgres.url, redisUrl: redis.url, webPort, smtpPort, smtpPassword, dataDir, jwtSecret: secret,
+  });
 
   if (nodeBuildIsCurrent(root)) say(`${NODE_BUILD_DIR} is newer than the server and worker sources: skipping their build`);
   else {
