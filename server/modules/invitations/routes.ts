@@ -168,6 +168,7 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
             await deps.loginLimiter.fail(invitation.email, ip);
             throw new AppError(401, 'invalid_credentials', `${invitation.email} already has an account: enter its password to join ${lab.name}.`);
           }
+          if (user.disabledAt) await deps.loginLimiter.fail(invitation.email, ip);
           if (user.disabledAt) throw new AppError(403, 'account_disabled', 'This account has been disabled by a lab admin, so it cannot join a lab. Ask the lab admin who disabled it.');
           await deps.loginLimiter.release(invitation.email, ip);
         } else {
