@@ -7,11 +7,12 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
 import {
-  DEFAULT_PORTS, ServiceError, ensureDebianPackages, isPortFree, portFromEnv, postgresCanUse, startPostgres, startRedis,
-  type RunningService,
+  DEFAULT_PORTS, ServiceError, ensureDebianPackages, isPortFree, portFromEnv, postgresCanUse, readOrCreateSecret, startPostgres,
+  startRedis, type RunningService,
 } from './lib/services.ts';
 import { describeExit, spawnChild, superviseChild, waitForHttp, type SupervisedChild } from './lib/processes.ts';
 import { buildNode, nodeBuildIsCurrent, NODE_BUILD_DIR } from './lib/build-node.ts';
+import { startEnvironment } from './lib/start-env.ts';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 process.chdir(root);
@@ -197,23 +198,13 @@ async function main(): Promise<void> {
   await startService(() => startRedis({ dir: join(dataDir, 'redis'), port: redisPort, persistent: true, secretsDir: dataDir, say }));
   if (shuttingDown) return;
   const [postgres, redis] = services;
+  // The fake SMTP server takes mail only from a client that signs in with this pair: the API and the worker.
+  const smtpPassword = readOrCreateSecret(join(dataDir, 'smtp-password'));
 
   // The server listens on loopback; the address people use may be a reverse proxy's (https: Secure cookies, HSTS).
-  const localUrl = `http://127.0.0.1:${webPort}`;
-  const publicUrl = process.env.GATEPOST_PUBLIC_URL || localUrl;
-  const env: NodeJS.ProcessEnv = {
-    ...process.env,
-    GATEPOST_DATABASE_URL: postgres.url,
-    GATEPOST_REDIS_URL: redis.url,
-    GATEPOST_PORT: String(webPort),
-    GATEPOST_SMTP_HOST: '127.0.0.1',
-    GATEPOST_SMTP_PORT: String(smtpPort),
-    GATEPOST_DATA_DIR: dataDir,
-    GATEPOST_PUBLIC_URL: publicUrl,
-    GATEPOST_JWT_SECRET: secret,
-    GATEPOST_MAIL_OUTBOX: 'fake',
-    NODE_ENV: 'production',
-  };
+  const { env, localUrl, publicUrl } = startEnvironment({
+    base: process.env, databaseUrl: postgres.url, redisUrl: redis.url, webPort, smtpPort, smtpPassword, dataDir, jwtSecret: secret,
+  });
 
   if (nodeBuildIsCurrent(root)) say(`${NODE_BUILD_DIR} is newer than the server and worker sources: skipping their build`);
   else {

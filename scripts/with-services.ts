@@ -10,7 +10,7 @@ import { fileURLToPath } from 'node:url';
 import { performance } from 'node:perf_hooks';
 import { constants } from 'node:os';
 import {
-  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, redactUrl, startPostgres, startRedis, stopPostgresAt, stopRedisByPidFile,
+  CHROMIUM_PATH, ServiceError, ensureDebianPackages, freePort, readOrCreateSecret, redactUrl, startPostgres, startRedis, stopPostgresAt, stopRedisByPidFile,
   type RunningService,
 } from './lib/services.ts';
 import { describeExit, spawnChild, type ChildHandle } from './lib/processes.ts';
@@ -119,6 +119,10 @@ async function main(): Promise<number> {
     GATEPOST_CHROMIUM: CHROMIUM_PATH,
     GATEPOST_TEST_TMP_DIR: folder,
     GATEPOST_JWT_SECRET: process.env.GATEPOST_JWT_SECRET || randomBytes(32).toString('base64url'),
+    // What the tests' fake SMTP servers ask for and the app's mailer signs in with (as npm start does): every
+    // API and browser test, and the app processes they start, inherit the pair.
+    GATEPOST_SMTP_USER: 'gatepost',
+    GATEPOST_SMTP_PASSWORD: readOrCreateSecret(join(folder, 'smtp-password')),
   };
 
   if (existsSync(join(root, 'server/db/cli.ts'))) {

@@ -10,6 +10,11 @@ export interface LoginLimiterOptions {
   delayStepMs?: number;
   /** The longest delay: a right password is answered at most this late, never refused. @default 8000 */
   maxDelayMs?: number;
+  /**
+   * How long an attempt waits for a place while the account's other attempts from the same address are still being
+   * checked (their outcome unknown), before it is refused. @default 20000
+   */
+  maxWaitMs?: number;
   /** Redis key prefix, so other guarded actions (password reset requests) count apart from sign-ins. @default 'gp:login-fail' */
   prefix?: string;
 }
@@ -28,6 +33,10 @@ export interface LoginAttempt {
 const FREE_FAILURES = 2;
 /** One address trying many accounts (a shared lab PC, a NAT) earns its delays this many times more slowly. */
 const ADDRESS_FAILURES_PER_STEP = 4;
+/** How often a waiting attempt looks again for a place. */
+const WAIT_STEP_MS = 40;
+/** An attempt still counted as being checked after this long (or the window, if shorter) is taken as ended. */
+const IN_FLIGHT_SECONDS = 60;
 
 /**
  * Slows down password guessing without letting anyone lock anyone else out (issue 12, item 3). Counters live in
@@ -38,16 +47,24 @@ const ADDRESS_FAILURES_PER_STEP = 4;
  *   `delayStepMs` up to `maxDelayMs`), which slow a spread-out attack while a right password still gets in;
  * - a lab admin can clear an account's counters (`unlock`); the route mails the owner when the account's failures
  *   reach `maxFailures` in a window.
+ *
+ * An attempt is counted before its password is checked (`reserve`) and then ends with `release` (right password:
+ * the count is given back) or `fail` (wrong: it stays). Attempts still being checked are tracked apart, so that
+ * many people signing in at once with one shared account and the right password are never refused: an attempt that
+ * finds every place of its address taken only by attempts still being checked waits for them (up to `maxWaitMs`),
+ * and is refused only when `maxFailures` of them really failed. At most `maxFailures` passwords from one address
+ * are ever checked at once for one account, so parallel guessing gains nothing.
  */
 export class LoginLimiter {
   readonly maxFailures: number;
   private readonly windowSeconds: number;
   private readonly delayStepMs: number;
   private readonly maxDelayMs: number;
+  private readonly maxWaitMs: number;
   private readonly prefix: string;
 
   constructor(private readonly redis: Redis, options: LoginLimiterOptions = {}) {
-    const { maxFailures = 5, windowSeconds = 900, delayStepMs = 250, maxDelayMs = 8000, prefix = 'gp:login-fail' } = options;
+    const { maxFailures = 5, windowSeconds = 900, delayStepMs = 250, maxDelayMs = 8000, maxWaitMs = 20_000, prefix = 'gp:login-fail' } = options;
     if (!(maxFailures >= 1)) throw new RangeError('maxFailures must be at least 1');
     if (!(windowSeconds >= 1)) throw new RangeError('windowSeconds must be at least 1');
     if (!(delayStepMs >= 0) || !(maxDelayMs >= 0)) throw new RangeError('delayStepMs and maxDelayMs must be 0 or more');
@@ -55,6 +72,7 @@ export class LoginLimiter {
     this.windowSeconds = windowSeconds;
     this.delayStepMs = delayStepMs;
     this.maxDelayMs = maxDelayMs;
+    this.maxWaitMs = maxWaitMs;
     this.prefix = prefix;
   }
 
@@ -64,6 +82,8 @@ export class LoginLimiter {
       pairs: `${this.prefix}:pairs:${email}`,
       account: `${this.prefix}:acct:${email}`,
       address: `${this.prefix}:addr:${address}`,
+      // Attempts of this account from this address whose password is being checked now.
+      checking: `${this.prefix}:checking:${email}\n${address}`,
     };
   }
 
@@ -79,6 +99,16 @@ export class LoginLimiter {
    * all pass the check before any failure is recorded. A successful sign-in gives its count back with `release`.
    */
   async reserve(email: string, address: string): Promise<LoginAttempt> {
+    const tries = Math.max(1, Math.ceil(this.maxWaitMs / WAIT_STEP_MS));
+    for (let i = 1; ; i++) {
+      const attempt = await this.tryReserve(email, address, i >= tries);
+      if (attempt !== 'wait') return attempt;
+      await new Promise((resolve) => setTimeout(resolve, WAIT_STEP_MS));
+    }
+  }
+
+  /** One try: an attempt, or 'wait' when only attempts still being checked fill this address's places. */
+  private async tryReserve(email: string, address: string, lastTry: boolean): Promise<LoginAttempt | 'wait'> {
     const k = this.keys(email, address);
     const w = this.windowSeconds;
     // SET … NX starts each window at its first failure only (later failures must not extend it), in the same
@@ -90,18 +120,43 @@ export class LoginLimiter {
       .set(k.address, '0', 'EX', w, 'NX').incr(k.address)
       .ttl(k.pair)
       .sadd(k.pairs, k.pair).expire(k.pairs, w)
+      .incr(k.checking).expire(k.checking, Math.min(IN_FLIGHT_SECONDS, w))
       .exec();
     const value = (i: number) => Number(replies?.[i]?.[1] ?? 0);
-    const [pair, account, addressCount, pairTtl] = [value(1), value(3), value(5), value(6)];
+    const [pair, account, addressCount, pairTtl, checking] = [value(1), value(3), value(5), value(6), value(9)];
+    if (pair > this.maxFailures) {
+      // Counted attempts minus those still being checked (this one among them) are the failures known so far.
+      const failed = pair - checking;
+      if (failed < this.maxFailures && !lastTry) {
+        // Not refused on others' account: give this try back and look again once some of them have ended.
+        await this.redis.multi().decr(k.pair).decr(k.account).decr(k.address).decr(k.checking).exec();
+        return 'wait';
+      }
+      await this.redis.decr(k.checking);
+      const delayMs = Math.max(this.delayAfter(account - 1), this.delayAfter(Math.floor((addressCount - 1) / ADDRESS_FAILURES_PER_STEP)));
+      return { blocked: true, retryAfterSeconds: Math.max(1, pairTtl), delayMs, accountAttempts: account };
+    }
     const delayMs = Math.max(this.delayAfter(account - 1), this.delayAfter(Math.floor((addressCount - 1) / ADDRESS_FAILURES_PER_STEP)));
-    if (pair > this.maxFailures) return { blocked: true, retryAfterSeconds: Math.max(1, pairTtl), delayMs, accountAttempts: account };
     return { blocked: false, retryAfterSeconds: 0, delayMs, accountAttempts: account };
+  }
+
+  /** After a wrong password: the attempt stays counted as a failure and is no longer being checked. */
+  async fail(email: string, address: string): Promise<void> {
+    const k = this.keys(email, address);
+    await this.ended(k.checking);
   }
 
   /** After a successful sign-in: this address starts again on this account; the other counters give back this attempt. */
   async release(email: string, address: string): Promise<void> {
     const k = this.keys(email, address);
     await this.redis.multi().del(k.pair).srem(k.pairs, k.pair).decr(k.account).decr(k.address).exec();
+    await this.ended(k.checking);
+  }
+
+  /** One attempt of the pair is no longer being checked (never below zero: the counter may have expired meanwhile). */
+  private async ended(checking: string): Promise<void> {
+    const left = await this.redis.decr(checking);
+    if (left < 0) await this.redis.incr(checking);
   }
 
   /** A lab admin's unlock: every count on the account, from every address, is cleared. */

@@ -1,6 +1,7 @@
 import type { ChannelData, ImportedCapture, TimeBase, TimeBaseOrigin } from '../contracts/capture.ts';
 import type { CapturePlan } from './detect-capture-plan.ts';
 import { ImportError } from './import-error.ts';
+import { sampleIntervalOutOfRange, timeOutOfRange } from './value-limits.ts';
 
 export interface CaptureBody {
   length: number;
@@ -38,6 +39,7 @@ export function assembleCapture(plan: CapturePlan, body: CaptureBody, source: Re
       checkSameTimes(printed, length, time, plan, check.column);
     }
   }
+  checkTimeBaseInRange(time, length, plan);
   if (time.kind === 'explicit' && timeOrigin.how === 'time-column') timeOrigin = { ...timeOrigin, source: `${timeOrigin.source} (unevenly spaced: the file's own times are kept)` };
   const dataChannels = plan.channels.slice(0, plan.channels.length - plan.timeChecks.length);
   const channels: ChannelData[] = dataChannels.map((c, k) => {
@@ -47,7 +49,7 @@ export function assembleCapture(plan: CapturePlan, body: CaptureBody, source: Re
       : all.length === length ? all : all.slice(0, length);
     const invalidCount = body.invalidCounts[k];
     if (invalidCount > 0) {
-      warnings.push(`${invalidCount} invalid or empty sample${invalidCount > 1 ? 's' : ''} (empty cells, NaN, overrange or clip marks) in ${c.name}; kept as NaN gaps`);
+      warnings.push(`${invalidCount} invalid or empty sample${invalidCount > 1 ? 's' : ''} (empty cells, NaN, overrange or clip marks, values at or beyond ±9.9e37) in ${c.name}; kept as NaN gaps`);
     }
     return { name: c.name, unit: c.unit, sourceUnit: c.sourceUnit, values, invalidCount };
   });
@@ -80,6 +82,23 @@ export function assembleCapture(plan: CapturePlan, body: CaptureBody, source: Re
     timeOrigin,
     valueKind: plan.valueKind,
   };
+}
+
+/**
+ * The time base as read (from a time column, a rebuilt grid or the metadata) stays within value-limits.ts: every
+ * instant within ±1e12 s and a step of at least 1 fs, so speeds and their uncertainties neither overflow nor
+ * underflow. Rows are checked as they are read; this catches a grid whose end runs out of range, and a step too fine.
+ */
+function checkTimeBaseInRange(time: TimeBase, length: number, plan: CapturePlan): void {
+  const first = timeAt(time, 0);
+  const last = timeAt(time, length - 1);
+  const step = time.kind === 'uniform' ? time.dt : (last - first) / (length - 1);
+  const firstOut = timeOutOfRange(first);
+  const lastOut = timeOutOfRange(last);
+  const reason = firstOut !== null ? `at sample 1, ${firstOut}`
+    : lastOut !== null ? `at sample ${length.toLocaleString('en')}, ${lastOut}`
+    : sampleIntervalOutOfRange(step);
+  if (reason !== null) throw new ImportError(reason, plan.dataStartLine);
 }
 
 const timeAt = (time: TimeBase, i: number) => (time.kind === 'uniform' ? time.t0 + i * time.dt : time.t[i]);

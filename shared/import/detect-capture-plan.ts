@@ -4,6 +4,7 @@ import { parseQuantity, timeUnitToSi } from './parse-quantity.ts';
 import { parseUnitLabel } from './parse-unit-label.ts';
 import type { ParseScopeCsvOptions } from './parse-scope-csv-options.ts';
 import { readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
+import { sampleIntervalOutOfRange, timeOutOfRange } from './value-limits.ts';
 import { DEFAULT_NUMERIC_SENTINELS, DEFAULT_TEXT_SENTINELS } from './sample-sentinels.ts';
 import { splitFields, type Delimiter } from './split-fields.ts';
 import { unitToSi } from './unit-to-si.ts';
@@ -530,6 +531,8 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       throw new ImportError('there is no time column and the file gives no sample interval; give dt (seconds) in the import options', start + 1);
     }
     if (!(dt > 0) || !Number.isFinite(dt)) throw new ImportError(`the sample interval ${dt} s is not a positive number`, meta.dtLine);
+    const dtOutOfRange = sampleIntervalOutOfRange(dt);
+    if (dtOutOfRange !== null) throw new ImportError(dtOutOfRange, options.dt !== undefined ? null : meta.dtLine);
     const dtSource = options.dt !== undefined ? 'options' : `metadata '${meta.dtKey}'`;
     let t0Words: string;
     if (options.t0 !== undefined) {
@@ -556,6 +559,8 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       warnings.push('the file gives no start time; the first sample is taken as t = 0');
     }
     if (!Number.isFinite(t0)) throw new RangeError('t0 must be a finite number of seconds');
+    const t0OutOfRange = timeOutOfRange(t0);
+    if (t0OutOfRange !== null) throw new ImportError(`the start (from ${t0Words}): ${t0OutOfRange}`);
     timeOrigin = {
       how: options.dt !== undefined ? 'given' : 'metadata',
       source: `every ${fmt(dt)}s from ${dtFrom}${indexColumn !== null ? ` (column ${indexColumn + 1} counts the samples)` : ''}; start: ${t0Words}`,

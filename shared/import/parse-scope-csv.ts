@@ -5,7 +5,8 @@ import { detectCapturePlan, type CapturePlan } from './detect-capture-plan.ts';
 import { fitTimeBase } from './fit-time-base.ts';
 import { ImportError, isRepeatedTime } from './import-error.ts';
 import type { ParseScopeCsvOptions } from './parse-scope-csv-options.ts';
-import { readSampleField } from './read-sample-field.ts';
+import { invalidTimeMessage, readSampleField } from './read-sample-field.ts';
+import { timeOutOfRange } from './value-limits.ts';
 import { scanCaptureBytes } from './scan-capture-bytes.ts';
 import { splitFields } from './split-fields.ts';
 import { splitLines } from './split-lines.ts';
@@ -71,8 +72,10 @@ function readBodyLines(lines: string[], plan: CapturePlan, source: Record<string
       const col = plan.timeColumn as number;
       const t = readSampleField(fields[col], fieldOptions);
       if (t === undefined) throw new ImportError(`expected ${expected} numbers, found '${clip(fields[col])}' in the time column`, lineNo);
-      if (Number.isNaN(t)) throw new ImportError(`the time is '${clip(fields[col])}', not a number; every row needs a valid time`, lineNo);
+      if (Number.isNaN(t)) throw new ImportError(invalidTimeMessage(fields[col], plan.timeFactor), lineNo);
       const ts = t * plan.timeFactor;
+      const outOfRange = timeOutOfRange(ts);
+      if (outOfRange !== null) throw new ImportError(outOfRange, lineNo);
       if (n > 0 && !(ts > times[n - 1])) {
         const what = ts === times[n - 1] ? 'repeats the previous time' : 'is earlier than the previous time';
         throw new ImportError(`the time ${fields[col].trim()} ${what} (times must increase)`, lineNo, ts === times[n - 1] ? 'time-repeats' : null);

@@ -1,3 +1,5 @@
+import { MAX_SAMPLE_MAGNITUDE, timeOutOfRange } from './value-limits.ts';
+
 /** Strict decimal number: optional sign, digits with an optional point, optional exponent. No hex, no "Infinity",
  * no trailing junk: parseFloat("12abc") is 12, which would turn a broken field into a silent wrong number. */
 const NUMBER = /^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$/;
@@ -23,9 +25,23 @@ export function readSampleField(field: string, options: ReadSampleFieldOptions =
   if (NUMBER.test(text)) {
     const value = parseFloat(text);
     if (numericSentinels !== undefined && numericSentinels.has(value)) return NaN;
-    // "1e999" parses to Infinity: out of range of a double, so as invalid as an overrange mark.
-    return Number.isFinite(value) ? value : NaN;
+    // "1e999" parses to Infinity: out of range of a double, so as invalid as an overrange mark; so is anything at or
+    // beyond SCPI's infinity mark (value-limits.ts), which no instrument reads and the arithmetic after cannot bear.
+    return Math.abs(value) < MAX_SAMPLE_MAGNITUDE ? value : NaN;
   }
   if (textSentinels !== undefined && textSentinels.has(field.trim().toLowerCase())) return NaN;
   return undefined;
+}
+
+/**
+ * What to say about a time field that read as no valid sample: a number too large to be a time (beyond the bounds of
+ * value-limits.ts, or of a double) is named as such; anything else is not a number.
+ */
+export function invalidTimeMessage(field: string, timeFactor: number): string {
+  const text = field.trim().replace(',', '.');
+  const shown = text.length > 40 ? `${text.slice(0, 40)}…` : text;
+  if (NUMBER.test(text)) {
+    return timeOutOfRange(parseFloat(text) * timeFactor) ?? `the time is '${shown}', not a number; every row needs a valid time`;
+  }
+  return `the time is '${shown}', not a number; every row needs a valid time`;
 }

@@ -1,6 +1,7 @@
 import { ImportError } from './import-error.ts';
 import type { CapturePlan } from './detect-capture-plan.ts';
-import { readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
+import { invalidTimeMessage, readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
+import { timeOutOfRange } from './value-limits.ts';
 import type { TimeGridHull } from './time-grid-hull.ts';
 
 /** Column roles for the scanner, one per column of the file. */
@@ -214,8 +215,10 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
           if (value !== value) out.invalidCounts[slot]++;
           values[slot][row] = value * factors[slot];
         } else if (slot === SLOT_TIME) {
-          if (value !== value) return failAt(state, row, line, lastTime, nextIndex, lineStart, `the time is '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}', not a number; every row needs a valid time`);
+          if (value !== value) return failAt(state, row, line, lastTime, nextIndex, lineStart, invalidTimeMessage(latin1.decode(bytes.subarray(fieldStart, fieldEnd)), timeFactor));
           rowTime = value * timeFactor;
+          const outOfRange = timeOutOfRange(rowTime);
+          if (outOfRange !== null) return failAt(state, row, line, lastTime, nextIndex, lineStart, outOfRange);
         } else if (slot === SLOT_INDEX) {
           if (!Number.isInteger(value)) return failAt(state, row, line, lastTime, nextIndex, lineStart, `expected ${spec.expected} numbers, found '${clip(latin1.decode(bytes.subarray(fieldStart, fieldEnd)))}' in the index column`);
           if (nextIndex !== nextIndex) state.firstIndex = value;

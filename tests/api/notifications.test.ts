@@ -13,7 +13,7 @@ import { pollUntil, simulatedCsv } from '../../bench/lib/pipeline-client.ts';
 import { readFakeOutbox, startFakeSmtp, type FakeMail } from '../../server/dev/fake-smtp.ts';
 import { Projectile } from '../../server/db/models/index.ts';
 import { QUEUE_NAMES } from '../../shared/contracts/jobs.ts';
-import { createApiHarness, freeLoopbackPort, type ApiHarness } from '../helpers/api-harness.ts';
+import { createApiHarness, fakeSmtpCredentials, freeLoopbackPort, type ApiHarness } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { redisEndpoint } from '../../server/lib/redis.ts';
 
@@ -30,7 +30,7 @@ beforeAll(async () => {
   h = await createApiHarness();
   await h.resetDatabase();
   smtpPort = await freeLoopbackPort();
-  smtp = await startFakeSmtp({ port: smtpPort, redis: h.redis });
+  smtp = await startFakeSmtp({ port: smtpPort, redis: h.redis, credentials: fakeSmtpCredentials() });
   dataDir = mkdtempSync(path.join(tmpdir(), 'gatepost-notify-'));
   app = await startAppProcesses({
     env: { GATEPOST_SMTP_PORT: String(smtpPort), GATEPOST_DATA_DIR: dataDir, GATEPOST_JWT_SECRET: h.config.jwtSecret, GATEPOST_LOG_LEVEL: 'warn' },
@@ -183,7 +183,7 @@ describe('notification e-mails through the worker', () => {
     const jobId = `notify-reviewRequested-${asked.body.request.id}-${h.demo.users.reviewer.id}`;
     // The first attempt fails on the refused connection and is scheduled again.
     await pollUntil(async () => ((await notifyQueue.getJob(jobId))?.attemptsMade ?? 0) >= 1 || undefined, { timeoutMs: 20_000, what: 'a failed first attempt' });
-    smtp = await startFakeSmtp({ port: smtpPort, redis: h.redis });
+    smtp = await startFakeSmtp({ port: smtpPort, redis: h.redis, credentials: fakeSmtpCredentials() });
     const mail = await mailTo(h.demo.users.reviewer.email, /^Review requested: /, shotId, 30_000);
     expect(mail.text).toContain(shotId);
     // The mail reaches the server a moment before the job is marked finished.

@@ -1,6 +1,7 @@
 // The API under test with its real dependencies: the throwaway PostgreSQL and Redis of scripts/with-services.sh,
 // the real nodemailer transport and an in-process fake SMTP server that shares the test Redis. Only the clock-heavy
 // parts are made fast: a short sign-in window, sessions minted without argon2.
+import { randomBytes } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
@@ -14,7 +15,7 @@ import { loadConfig, type Config } from '../../server/config.ts';
 import { Campaign, GateRig, Lab, Membership, Projectile, Shot, User } from '../../server/db/models/index.ts';
 import { demoAccounts, seedDemo } from '../../server/db/seeders/demo.ts';
 import { createSequelize } from '../../server/db/sequelize.ts';
-import { startFakeSmtp } from '../../server/dev/fake-smtp.ts';
+import { startFakeSmtp, type FakeSmtpCredentials } from '../../server/dev/fake-smtp.ts';
 import { SESSION_COOKIE } from '../../server/lib/authenticate.ts';
 import type { Deps } from '../../server/lib/deps.ts';
 import { createLogger } from '../../server/lib/logger.ts';
@@ -99,6 +100,17 @@ export async function freeLoopbackPort(): Promise<number> {
   });
 }
 
+/**
+ * The sign-in the tests' fake SMTP servers ask for: GATEPOST_SMTP_USER / GATEPOST_SMTP_PASSWORD, which
+ * scripts/with-services.sh sets for the whole run (as npm start does for its children), so the app processes a test
+ * starts (startAppProcesses copies process.env) sign in with the same pair. Made here when the run lacks them.
+ */
+export function fakeSmtpCredentials(): FakeSmtpCredentials {
+  process.env.GATEPOST_SMTP_USER ||= 'gatepost';
+  process.env.GATEPOST_SMTP_PASSWORD ||= randomBytes(32).toString('base64url');
+  return { user: process.env.GATEPOST_SMTP_USER, password: process.env.GATEPOST_SMTP_PASSWORD };
+}
+
 // Sequelize models are bound to one connection pool per process (initModels), so a second harness would re-bind
 // them and leave them on a closed pool when it closes. One harness per test file; use appWith…() for variants.
 let liveHarness = false;
@@ -113,7 +125,8 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
   const redisUrl = requireEnv('GATEPOST_TEST_REDIS_URL');
   // maxRetriesPerRequest: null keeps the test client patient; the app's own client settings are not under test here.
   const redis = new Redis(redisUrl, { maxRetriesPerRequest: null });
-  const smtp = await startFakeSmtp({ port: 0, redis });
+  const smtpCredentials = fakeSmtpCredentials();
+  const smtp = await startFakeSmtp({ port: 0, redis, credentials: smtpCredentials });
   const config = loadConfig(process.env, {
     nodeEnv: 'test',
     databaseUrl,
@@ -121,6 +134,8 @@ export async function createApiHarness(options: ApiHarnessOptions = {}): Promise
     mailOutbox: 'fake',
     smtpHost: '127.0.0.1',
     smtpPort: smtp.port,
+    smtpUser: smtpCredentials.user,
+    smtpPassword: smtpCredentials.password,
     // 3 failures keep the rate-limit loop short. The window is short (default 900 s) so leftover counters clear
     // themselves, yet long enough that three argon2 checks on a loaded 2-core machine (~1 s each seen) fit in it.
     loginMaxFailures: 3,

@@ -178,6 +178,8 @@ export function accountRoutes(deps: Deps): RouteDef[] {
           const minutes = Math.ceil(attempt.retryAfterSeconds / 60);
           throw tooManyRequests(`Too many reset requests for this address from your network. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`, attempt.retryAfterSeconds);
         }
+        // A request stays counted (there is nothing to give back) and is done at once: the next need not wait for it.
+        await resetRequests.fail(email, ip);
         res.status(202).json({ message: PASSWORD_RESET_REQUESTED_MESSAGE });
         // After the answer: whether an account exists changes nothing the caller can see or time.
         sendResetMail(email, ip, attempt.accountAttempts).catch((err: Error) => {
@@ -207,7 +209,10 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         const open = { tokenHash, usedAt: null, expiresAt: { [Op.gt]: new Date() } };
         const found = await PasswordReset.findOne({ where: open, include: [{ model: User, required: true }] });
         const user = (found as unknown as { User?: User } | null)?.User;
-        if (!found || !user || user.disabledAt) throw new AppError(410, 'reset_link_closed', RESET_LINK_CLOSED);
+        if (!found || !user || user.disabledAt) {
+          await resetUses.fail(ip, ip);
+          throw new AppError(410, 'reset_link_closed', RESET_LINK_CLOSED);
+        }
         const passwordHash = await hashPassword(password);
         const done = await deps.sequelize.transaction(async (transaction) => {
           // Claimed only while still open: two tabs submitting the same link set the password once.
@@ -218,7 +223,10 @@ export function accountRoutes(deps: Deps): RouteDef[] {
           await endAllSessions(user.id, transaction);
           return true;
         });
-        if (!done) throw new AppError(410, 'reset_link_closed', RESET_LINK_CLOSED);
+        if (!done) {
+          await resetUses.fail(ip, ip);
+          throw new AppError(410, 'reset_link_closed', RESET_LINK_CLOSED);
+        }
         await resetUses.release(ip, ip);
         // A forgotten password is often what the sign-in limiter was counting: start the owner afresh.
         await deps.loginLimiter.unlock(user.email);

@@ -62,6 +62,7 @@ export async function checkCurrentPassword(deps: Deps, req: Request, user: User,
     throw tooManyRequests('Too many wrong passwords. Try again later, or ask a lab admin to unlock your sign-in.', attempt.retryAfterSeconds);
   }
   if (!(await verifyPassword(user.passwordHash, password))) {
+    await deps.loginLimiter.fail(user.email, ip);
     await recordAudit({ labId: null, actorId: user.id, action: 'auth.password_confirm_failed', ip });
     const message = 'That is not your current password.';
     throw new AppError(403, 'wrong_password', message, { fields: [{ path: field, message }] });

@@ -79,10 +79,12 @@ export function authRoutes(deps: Deps): RouteDef[] {
         const ok = user ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
         if (ok && user?.disabledAt) {
           // Said only to someone who knows the password: a disabled account is not a secret from its owner.
+          await deps.loginLimiter.fail(email, ip);
           await recordAudit({ labId: null, actorId: user.id, action: 'auth.login_refused_disabled', ip });
           throw new AppError(403, 'account_disabled', 'This account has been disabled by a lab admin. Ask your lab admin to enable it again.');
         }
         if (!ok || !user) {
+          await deps.loginLimiter.fail(email, ip);
           await recordAudit({ labId: null, actorId: user?.id ?? null, action: 'auth.login_failed', details: { email }, ip });
           // Once per window, when the account's failures from every address reach the limit.
           if (user && attempt.accountAttempts === deps.loginLimiter.maxFailures) await mailOwnerAboutFailures(deps, user, ip, attempt.accountAttempts);

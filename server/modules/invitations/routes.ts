@@ -131,7 +131,8 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/invitations/:token',
       access: { kind: 'public' },
-      summary: 'What an invitation link offers (lab, role, address), before accepting',
+      summary: 'What an invitation link offers (lab, role, address, inviter, expiry), before accepting; accountExists says whether to ask for the existing password or a name and a new one. Only the holder of the link learns it: the link goes to the invited address alone (admins see that an invitation was sent, never its link: not in the outbox, the responses or the audit trail), so an admin of one lab cannot learn from it whether an address has an account',
+      response: { status: 200, description: 'JSON: { labName, email, role, invitedBy, expiresAt, accountExists }' },
       async handler(req, res) {
         const { invitation, lab } = await openInvitation(req.params.token as string);
         const inviter = invitation.invitedBy ? await User.findByPk(invitation.invitedBy, { attributes: ['name'] }) : null;
@@ -164,8 +165,10 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
             throw tooManyRequests('Too many failed attempts. Try again later.', limit.retryAfterSeconds);
           }
           if (!(await verifyPassword(user.passwordHash, password))) {
+            await deps.loginLimiter.fail(invitation.email, ip);
             throw new AppError(401, 'invalid_credentials', `${invitation.email} already has an account: enter its password to join ${lab.name}.`);
           }
+          if (user.disabledAt) await deps.loginLimiter.fail(invitation.email, ip);
           if (user.disabledAt) throw new AppError(403, 'account_disabled', 'This account has been disabled by a lab admin, so it cannot join a lab. Ask the lab admin who disabled it.');
           await deps.loginLimiter.release(invitation.email, ip);
         } else {
@@ -190,7 +193,8 @@ export function invitationRoutes(deps: Deps): RouteDef[] {
           if (!existing) await Membership.create({ labId: lab.id, userId: user.id, role: invitation.role }, { transaction });
           return true;
         });
-        if (!accepted) throw new AppError(410, 'invitation_closed', 'This invitation has already been used.');
+        // Another request accepted it between our look and our update (issue 12, item 9): the same clear 409 as above.
+        if (!accepted) throw conflict('This invitation is being accepted in another window or was just used. Sign in instead.');
         await recordAudit({ labId: lab.id, actorId: user.id, action: 'invitation.accepted', targetType: 'invitation', targetId: invitation.id, details: { role: invitation.role }, ip });
         const expiresAt = startSession(res, deps, user.id, user.sessionGeneration ?? 0);
         res.json(await meView(user.id, 'session', expiresAt));

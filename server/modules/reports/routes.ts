@@ -3,7 +3,7 @@ import { Analysis, Campaign, Capture, GateRig, Lab, Projectile, Review, Shot, Us
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
-import { notFound } from '../../lib/errors.ts';
+import { badRequest, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
 import { readWindow, recordExtent } from '../../traces/read-window.ts';
@@ -34,6 +34,27 @@ function spanOf(results: Partial<ShotAnalysis> | null, files: ChannelFiles[]): {
   return extents.length ? { from: Math.min(...extents.map((e) => e.first)), to: Math.max(...extents.map((e) => e.last)) } : null;
 }
 
+const finite = (x: unknown): boolean => typeof x === 'number' && Number.isFinite(x);
+
+/**
+ * Why the traces of a shot cannot be drawn, or null: every number that reaches pdfkit must be finite (it throws on
+ * Infinity and NaN). A capture stored before the importer refused out-of-range values (shared/import/value-limits.ts)
+ * can still hold samples beyond Float32's range (stored as infinities) or times the analysis turned into nulls.
+ */
+function undrawable(span: { from: number; to: number } | null, traces: ReportTrace[]): string | null {
+  if (span && !(finite(span.from) && finite(span.to) && span.to > span.from && finite(span.to - span.from))) {
+    return 'the time span of its pulses is not a finite number of seconds';
+  }
+  for (const trace of traces) {
+    const w = trace.window;
+    const values = !w ? [] : w.raw ? [...w.t, ...w.v.filter((v) => v != null)] : [w.t0, w.dt, ...w.min.filter((v) => v != null), ...w.max.filter((v) => v != null)];
+    if (!values.every(finite)) return `channel ${trace.channel} holds samples beyond what can be stored as numbers (±3.4e38 V or more)`;
+    if (trace.thresholdV !== null && !finite(trace.thresholdV)) return `the crossing level of channel ${trace.channel} is not a finite number`;
+    if (!trace.pulses.every((p) => finite(p.start) && finite(p.end) && finite(p.width))) return `a pulse of channel ${trace.channel} has no finite start, end or width`;
+  }
+  return null;
+}
+
 export function reportRoutes(deps: Deps): RouteDef[] {
   return [
     {
@@ -60,7 +81,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/shots/:shotId/report.pdf',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
-      summary: 'A printable shot report (PDF): conditions, annotated traces, result with U and k, the "check before trusting" box (time-base flag, analysis and file warnings), uncertainty budget, assumptions, analysis version and parameters, review sign-off',
+      summary: 'A printable shot report (PDF): conditions, annotated traces, result with U and k, the "check before trusting" box (time-base flag, analysis and file warnings), uncertainty budget, assumptions, analysis version and parameters, review sign-off. 400 when the stored traces or pulses hold numbers out of range (a file read before the importer refused samples at or beyond ±9.9e37 and times beyond ±1e12 s)',
       response: { status: 200, description: 'application/pdf, as an attachment' },
       async handler(req, res) {
         const shot = await Shot.findOne({ where: { id: req.params.shotId as string, labId: req.lab!.id } });
@@ -97,6 +118,11 @@ export function reportRoutes(deps: Deps): RouteDef[] {
             pulses: gate.pulses,
             note: gate.status === 'missed' ? `missed: ${channel?.reason ?? 'no pulse found'}` : null,
           });
+        }
+
+        const reason = undrawable(span, traces);
+        if (reason) {
+          throw badRequest(`The report of shot ${shot.number} cannot be drawn: ${reason}. Its file was read before Gatepost refused samples at or beyond ±9.9e37 and times beyond ±1e12 s: check that file's values and its time column.`);
         }
 
         // Sign-off: the last approval on record, and whether it is of the version this report shows.

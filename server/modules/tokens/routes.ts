@@ -38,6 +38,7 @@ async function confirmPassword(deps: Deps, req: Request, password: string): Prom
   if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
   if (attempt.blocked) throw tooManyRequests('Too many wrong passwords. Try again later, or ask a lab admin to unlock your sign-in.', attempt.retryAfterSeconds);
   if (!(await verifyPassword(user.passwordHash, password))) {
+    await deps.loginLimiter.fail(user.email, ip);
     await recordAudit({ labId: null, actorId: user.id, action: 'auth.password_confirm_failed', ip });
     throw new AppError(403, 'wrong_password', 'That is not your password. Type the password you sign in with.');
   }

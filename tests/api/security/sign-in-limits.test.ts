@@ -19,11 +19,18 @@ afterAll(() => h?.close());
 
 const login = (email: string, password: string) => request(h.app).post('/api/auth/login').send({ email, password });
 
+/** A wrong password from `address`, through the app's own limiter (the HTTP path comes from 127.0.0.1 only). */
+async function failedAttempt(email: string, address: string) {
+  const attempt = await h.deps.loginLimiter.reserve(email, address);
+  if (!attempt.blocked) await h.deps.loginLimiter.fail(email, address);
+  return attempt;
+}
+
 describe('sign-in limits', () => {
   it('When someone on another network fails past the limit on an account, then its owner still signs in', async () => {
     const owner = demo.users.experimenter;
     // The other network's attempts, counted by the app's own limiter (the HTTP path comes from 127.0.0.1 only).
-    for (let i = 0; i < h.config.loginMaxFailures + 3; i++) await h.deps.loginLimiter.reserve(owner.email, ELSEWHERE);
+    for (let i = 0; i < h.config.loginMaxFailures + 3; i++) await failedAttempt(owner.email, ELSEWHERE);
     expect((await h.deps.loginLimiter.reserve(owner.email, ELSEWHERE)).blocked).toBe(true);
     expect((await login(owner.email, owner.password)).status).toBe(200);
   });
@@ -67,10 +74,21 @@ describe('sign-in limits', () => {
     expect(audit?.actorId).toBe(demo.users.admin.id);
   });
 
+  it('When ten people sign in at once with one shared account and the right password, then none gets 429', async () => {
+    // A class starting together on the lab's shared account, from one address: failures limit, successes must not.
+    const shared = demo.users.experimenter;
+    const answers = await Promise.all(Array.from({ length: 10 }, () => login(shared.email, shared.password)));
+    expect(answers.map((r) => r.status), JSON.stringify(answers.map((r) => r.body.error))).toEqual(Array(10).fill(200));
+    // And the limit still holds for wrong passwords sent at once: at most loginMaxFailures are checked.
+    const guesses = await Promise.all(Array.from({ length: h.config.loginMaxFailures + 3 }, (_, i) => login(shared.email, `guess-at-once-${i}`)));
+    expect(guesses.filter((r) => r.status === 401)).toHaveLength(h.config.loginMaxFailures);
+    expect(guesses.filter((r) => r.status === 429)).toHaveLength(3);
+  });
+
   it('When failures pile up, then each further attempt is held longer (delays double up to the cap), and a right password still gets in', async () => {
     const user = demo.users.admin;
     const delays: number[] = [];
-    for (let i = 0; i < 6; i++) delays.push((await h.deps.loginLimiter.reserve(user.email, `203.0.113.${i}`)).delayMs);
+    for (let i = 0; i < 6; i++) delays.push((await failedAttempt(user.email, `203.0.113.${i}`)).delayMs);
     const step = h.config.loginDelayStepMs;
     expect(delays).toEqual([0, 0, 0, step, 2 * step, 4 * step].map((d) => Math.min(d, h.config.loginMaxDelayMs)));
     expect((await login(user.email, user.password)).status).toBe(200);

@@ -129,7 +129,7 @@ describe('files that do not determine their time base are refused, never read wi
     const c = parseScopeCsv(bytes(text));
     expect(c.channels.map((ch) => ch.invalidCount)).toEqual([4, 1]);
     expect(Number.isNaN(c.channels[0].values[3])).toBe(true);
-    expect(c.warnings).toContain('4 invalid or empty samples (empty cells, NaN, overrange or clip marks) in A; kept as NaN gaps');
+    expect(c.warnings).toContain('4 invalid or empty samples (empty cells, NaN, overrange or clip marks, values at or beyond ±9.9e37) in A; kept as NaN gaps');
     const file = join(dir, 'gaps.csv');
     writeFileSync(file, text);
     const d = await readCaptureFile(file);

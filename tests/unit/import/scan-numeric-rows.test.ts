@@ -24,10 +24,11 @@ function scanColumn(fields: string[], s: ScanSpec = spec()): Float64Array {
 }
 
 // The reference is JavaScript's own parseFloat (ECMA-262 §21.1.2.12, correctly rounded): the fast path must
-// give the very same double for every spelling of every number.
+// give the very same double for every spelling of every number. A magnitude at or beyond SCPI's ±9.9E+37 infinity
+// mark (or a double's range) is no reading: an invalid sample, NaN (shared/import/value-limits.ts, issue 12).
 const expected = (text: string) => {
   const v = parseFloat(text.replace(',', '.'));
-  return Number.isFinite(v) ? v : NaN;
+  return Math.abs(v) < 9.9e37 ? v : NaN;
 };
 
 describe('scanNumericRows number parsing', () => {
