@@ -1,3 +1,4 @@
+import { describeDip } from '../../../shared/analysis/describe-dip.ts';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import { Analysis, Campaign, Capture, GateRig, Lab, Projectile, Review, Shot, User } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
@@ -96,6 +97,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
             thresholdV: channel?.threshold?.level ?? null,
             pulses: gate.pulses,
             note: gate.status === 'missed' ? `missed: ${channel?.reason ?? 'no pulse found'}` : null,
+            dip: gate.status === 'missed' && channel ? describeDip(channel) : null,
           });
         }
 

@@ -4,6 +4,7 @@ import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
+import { describeDip } from '../../../../shared/analysis/describe-dip.ts';
 import { formatSeconds } from '../../../lib/format.ts';
 import type { Range } from '../../../lib/range-zoom.ts';
 import { levelsRange, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
@@ -32,6 +33,7 @@ const SIGNAL = '#c47a12';
 const SIGNAL_FILL = 'rgba(242, 165, 65, 0.09)';
 const EXPECT_FILL = 'rgba(77, 118, 148, 0.12)';
 const MISSED = '#b42318';
+const DIP_FILL = 'rgba(180, 35, 24, 0.10)';
 
 interface Annotations { channel: ChannelResult | null; gates: GateResult[]; expected: ExpectedWindow[]; gateLabel: (p: number) => string; preview: boolean; title: string }
 
@@ -136,10 +138,35 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.fillText(label, Math.max(left + 2 * dpr, (x0 + x1) / 2 - tw / 2), bracketY + 17 * dpr);
     }
     if (ch.status === 'missed') {
+      const dip = describeDip(ch);
+      if (dip) {
+        // The dip's span shaded, its floor as a short line, and the label beside it, kept inside the frame.
+        const x0 = Math.max(left, px(dip.start));
+        const x1 = Math.min(left + width, px(dip.end));
+        if (x1 > x0) {
+          ctx.fillStyle = DIP_FILL;
+          ctx.fillRect(x0, top, Math.max(1, x1 - x0), height);
+          ctx.strokeStyle = MISSED;
+          ctx.lineWidth = 1.5 * dpr;
+          ctx.setLineDash([5 * dpr, 3 * dpr]);
+          ctx.beginPath();
+          ctx.moveTo(x0, py(dip.level));
+          ctx.lineTo(x1, py(dip.level));
+          ctx.stroke();
+          ctx.setLineDash([]);
+        }
+        ctx.fillStyle = MISSED;
+        ctx.font = font(11, 500);
+        const tw = ctx.measureText(dip.label).width;
+        const right = x1 + 6 * dpr;
+        const lx = right + tw <= left + width - 4 * dpr ? right : Math.max(left + 4 * dpr, x0 - 6 * dpr - tw);
+        const ly = Math.min(top + height - 8 * dpr, Math.max(top + 14 * dpr, py(dip.level) + 4 * dpr));
+        ctx.fillText(dip.label, lx, ly);
+      }
       ctx.fillStyle = MISSED;
       ctx.font = font(12, 600);
-      ctx.fillText(`Missed: ${ch.reason ?? 'no pulse found'}`, left + 8 * dpr, top + height / 2);
-      if (ch.candidate) {
+      ctx.fillText(`Missed: ${ch.reason ?? 'no pulse found'}`, left + 8 * dpr, top + 18 * dpr);
+      if (!dip && ch.candidate) {
         const x = px(ch.candidate.time);
         ctx.strokeStyle = MISSED;
         ctx.lineWidth = 1.5 * dpr;
