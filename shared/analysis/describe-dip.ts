@@ -22,14 +22,15 @@ export function formatVolts(v: number): string {
 
 /**
  * What to draw for a missed gate's sub-threshold dip: its span, the level of its floor and a label with units.
+ * Times in `timeUnit` (to match an axis), else in ms (µs for a dip within 0.1 ms of zero).
  * Null when the channel has no dip, or its result predates engine 1.4.0 (only an instant was stored then).
  */
-export function describeDip(channel: Pick<ChannelResult, 'candidate' | 'polarity' | 'levels'>): DipMark | null {
+export function describeDip(channel: Pick<ChannelResult, 'candidate' | 'polarity' | 'levels'>, timeUnit?: 'µs' | 'ms'): DipMark | null {
   const c = channel.candidate;
   if (!c || c.start === undefined || c.end === undefined || c.depth === undefined) return null;
   const idle = channel.polarity === 'falling' ? channel.levels.high : channel.levels.low;
   const level = channel.polarity === 'falling' ? idle - c.depth : idle + c.depth;
-  const unit = Math.max(Math.abs(c.start), Math.abs(c.end)) < 1e-4 ? 'µs' : 'ms';
+  const unit = timeUnit ?? (Math.max(Math.abs(c.start), Math.abs(c.end)) < 1e-4 ? 'µs' : 'ms');
   const span = `${time(c.start, unit)}–${time(c.end, unit)} ${unit}`;
   return { start: c.start, end: c.end, level, label: `dip ${span} · ${formatVolts(c.depth)} deep (${Math.round(100 * c.depthFraction)} % of the step)` };
 }

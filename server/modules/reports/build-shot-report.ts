@@ -81,13 +81,15 @@ export function layoutTraceLabels(trace: ReportTrace, f: PanelFrame, measure: (t
     const start = `${fmt(p.start * tu.scale, 6)} ${tu.unit}`;
     put(start, xOf(p.start) - 2 - measure(start, 7.5), f.top + f.height - 10, 7.5, 'mark');
   }
-  if (trace.note) put(trace.note, f.plotLeft + 4, f.top + 3, 7.5, 'muted');
+  // The missed note and the dip's label sit in the middle band, between the clear and blocked levels, where the
+  // trace only passes on its edges.
+  if (trace.note) put(trace.note, f.plotLeft + 4, f.top + f.height / 2 - 10, 7.5, 'muted');
   if (trace.dip) {
     const x1 = xOf(trace.dip.end);
     const w = measure(trace.dip.label, 7.5);
     // Right of the span when it fits, else left of it.
     const x = x1 + 4 + w <= hi ? x1 + 4 : xOf(trace.dip.start) - 4 - w;
-    put(trace.dip.label, x, f.top + 14, 7.5, 'mark');
+    put(trace.dip.label, x, f.top + f.height / 2 + 1, 7.5, 'mark');
   }
   return out;
 }
