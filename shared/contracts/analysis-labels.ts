@@ -127,6 +127,35 @@ const RESULT_RULES: Rule[] = [
   [/^warnings/, () => ({ group: 'Result', label: 'Warnings', format: raw })],
 ];
 
+/** A budget source as the result panel names it: "gate positions" → "Gate positions". */
+export const budgetSourceLabel = (group: string) => group.charAt(0).toUpperCase() + group.slice(1);
+
+export interface BudgetLineValues {
+  group: string;
+  contribution: number;
+  share: number;
+}
+
+/**
+ * The budget rows that changed between two versions, matched by source (not by position: the lines may come in a
+ * different order) and named as the result panel names them: "Time-base accuracy: contribution to u".
+ */
+export function budgetChanges(from: BudgetLineValues[] | null, to: BudgetLineValues[] | null): { label: string; from: string; to: string }[] {
+  const groups = [...new Set([...(from ?? []), ...(to ?? [])].map((l) => l.group))];
+  const contribution = unit('m/s', 1, 3);
+  const out: { label: string; from: string; to: string }[] = [];
+  for (const g of groups) {
+    const a = from?.find((l) => l.group === g);
+    const b = to?.find((l) => l.group === g);
+    const name = budgetSourceLabel(g);
+    if (a?.contribution !== b?.contribution) {
+      out.push({ label: `${name}: contribution to u`, from: a ? contribution(a.contribution) : '—', to: b ? contribution(b.contribution) : '—' });
+    }
+    if (a?.share !== b?.share) out.push({ label: `${name}: share of variance`, from: a ? percentOf(a.share) : '—', to: b ? percentOf(b.share) : '—' });
+  }
+  return out;
+}
+
 function apply(rules: Rule[], path: string, ctx: LabelContext, fallback: LabelGroup): LabelledPath {
   for (const [re, make] of rules) {
     const m = path.match(re);

@@ -1,5 +1,5 @@
 import { describeAssumptions } from '../../../shared/analysis/describe-assumptions.ts';
-import { labelParameter } from '../../../shared/contracts/analysis-labels.ts';
+import { budgetSourceLabel, labelParameter } from '../../../shared/contracts/analysis-labels.ts';
 import { shotStatusLabel } from '../../../shared/contracts/shot-status.ts';
 import type { DipMark } from '../../../shared/analysis/describe-dip.ts';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
@@ -271,7 +271,7 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
     doc.font('regular').fillColor(INK);
     for (const line of speed.budget ?? []) {
       const y = doc.y + 2;
-      doc.text(line.group, cols[0], y, { width: 240 });
+      doc.text(budgetSourceLabel(line.group), cols[0], y, { width: 240 });
       doc.text(fmt(line.contribution, 3), cols[1], y).text(`${(line.share * 100).toFixed(1)} %`, cols[2], y);
     }
   }
