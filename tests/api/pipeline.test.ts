@@ -168,7 +168,7 @@ describe('When a simulated three-gate capture is uploaded to a shot with the dem
     expect(diff.status).toBe(200);
     expect(diff.body.engineChanged).toBe(false);
     // Each version's budget whole, so the page names budget rows by source ("Gate positions"), not "Budget line 1".
-    expect(diff.body.budget?.from?.map((l) => l.group)).toEqual(v1Before.results!.speed!.budget.map((l: { group: string }) => l.group));
+    expect(diff.body.budget?.from?.map((l) => l.group)).toEqual((v1Before.results!.speed as unknown as { budget: { group: string }[] }).budget.map((l) => l.group));
     expect(diff.body.budget?.to?.length).toBeGreaterThan(0);
     expect(diff.body.parameters).toEqual(expect.arrayContaining([
       expect.objectContaining({ path: 'threshold.level', from: 50, to: 70 }),
