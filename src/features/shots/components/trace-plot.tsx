@@ -7,7 +7,7 @@ import type { ChannelResult, GateResult } from '../../../../shared/analysis/type
 import { describeDip } from '../../../../shared/analysis/describe-dip.ts';
 import { formatSeconds } from '../../../lib/format.ts';
 import type { Range } from '../../../lib/range-zoom.ts';
-import { levelsRange, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
+import { levelsRange, PLOT_PADDING_RIGHT, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
 import type { ExpectedWindow } from '../lib/expected-windows.ts';
 
 export interface TracePlotProps {
@@ -221,7 +221,7 @@ export function TracePlot(props: TracePlotProps) {
     const opts: uPlot.Options = {
       width,
       height,
-      padding: [26, 8, 0, 0],
+      padding: [26, PLOT_PADDING_RIGHT, 0, 0],
       legend: { show: false },
       cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
       // The vertical range follows the channel's state levels, so zooming into a flat stretch does not blow the
