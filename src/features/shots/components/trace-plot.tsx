@@ -37,6 +37,14 @@ const DIP_FILL = 'rgba(180, 35, 24, 0.10)';
 
 interface Annotations { channel: ChannelResult | null; gates: GateResult[]; expected: ExpectedWindow[]; gateLabel: (p: number) => string; preview: boolean; title: string }
 
+/** Text shortened with an ellipsis until it fits `max` pixels in the context's current font. */
+function fitText(ctx: CanvasRenderingContext2D, text: string, max: number): string {
+  if (ctx.measureText(text).width <= max) return text;
+  let t = text;
+  while (t.length > 1 && ctx.measureText(`${t}…`).width > max) t = t.slice(0, -1);
+  return `${t.trimEnd()}…`;
+}
+
 /** Draws levels, threshold band, crossings, pulse brackets, gate labels, expected windows and missed-gate notes. */
 function drawAnnotations(u: uPlot, a: Annotations) {
   const ctx = u.ctx;
@@ -138,9 +146,14 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.fillText(label, Math.max(left + 2 * dpr, (x0 + x1) / 2 - tw / 2), bracketY + 17 * dpr);
     }
     if (ch.status === 'missed') {
+      // The note and the dip's label sit in the middle band, between the clear level and the dip's floor, where
+      // the trace only passes on the dip's edges; each is shortened to fit the plot's width.
       const dip = describeDip(ch);
+      const idle = ch.polarity === 'falling' ? ch.levels.high : ch.levels.low;
+      const middle = py(dip ? (idle + dip.level) / 2 : (ch.levels.high + ch.levels.low) / 2);
+      const yMid = Number.isFinite(middle) ? Math.min(top + height - 24 * dpr, Math.max(top + 30 * dpr, middle)) : top + height / 2;
+      const room = width - 16 * dpr;
       if (dip) {
-        // The dip's span shaded, its floor as a short line, and the label beside it, kept inside the frame.
         const x0 = Math.max(left, px(dip.start));
         const x1 = Math.min(left + width, px(dip.end));
         if (x1 > x0) {
@@ -157,24 +170,26 @@ function drawAnnotations(u: uPlot, a: Annotations) {
         }
         ctx.fillStyle = MISSED;
         ctx.font = font(11, 500);
-        const tw = ctx.measureText(dip.label).width;
+        const label = fitText(ctx, dip.label, room);
+        const tw = ctx.measureText(label).width;
+        // Right of the span when it fits, else left of it, always inside the frame.
         const right = x1 + 6 * dpr;
-        const lx = right + tw <= left + width - 4 * dpr ? right : Math.max(left + 4 * dpr, x0 - 6 * dpr - tw);
-        const ly = Math.min(top + height - 8 * dpr, Math.max(top + 14 * dpr, py(dip.level) + 4 * dpr));
-        ctx.fillText(dip.label, lx, ly);
+        const lx = right + tw <= left + width - 8 * dpr ? right : Math.max(left + 8 * dpr, Math.min(x0 - 6 * dpr - tw, left + width - 8 * dpr - tw));
+        ctx.fillText(label, lx, yMid + 12 * dpr);
       }
       ctx.fillStyle = MISSED;
       ctx.font = font(12, 600);
-      ctx.fillText(`Missed: ${ch.reason ?? 'no pulse found'}`, left + 8 * dpr, top + 18 * dpr);
+      ctx.fillText(fitText(ctx, `Missed: ${ch.reason ?? 'no pulse found'}`, room), left + 8 * dpr, yMid - 4 * dpr);
       if (!dip && ch.candidate) {
         const x = px(ch.candidate.time);
         ctx.strokeStyle = MISSED;
         ctx.lineWidth = 1.5 * dpr;
         ctx.beginPath();
-        ctx.arc(x, top + height / 2 + 18 * dpr, 6 * dpr, 0, 2 * Math.PI);
+        ctx.arc(x, yMid + 18 * dpr, 6 * dpr, 0, 2 * Math.PI);
         ctx.stroke();
         ctx.font = font(11);
-        ctx.fillText(ch.candidate.message, Math.min(x + 10 * dpr, left + width - 260 * dpr), top + height / 2 + 22 * dpr);
+        const text = fitText(ctx, ch.candidate.message, room);
+        ctx.fillText(text, Math.max(left + 8 * dpr, Math.min(x + 10 * dpr, left + width - 8 * dpr - ctx.measureText(text).width)), yMid + 22 * dpr);
       }
     }
   }
