@@ -18,6 +18,8 @@ let analyst: PipelineClient;
 /** A shot whose third gate dips to 38 % of the step (missed at 50 %), recomputed at 30 % so its v2 has three gates. */
 let missedShot: { id: string; number: number };
 let otherShot: { id: string; number: number };
+/** Two more, so the compare page holds four shots (its widest tables). */
+let moreShots: { id: string; number: number }[];
 
 async function analysedShot(options: Parameters<typeof simulatedCsv>[0]) {
   const shot = await logDemoShot(api, demo, { tubePressurePa: 1500, ambientTemperatureK: 293.15 });
@@ -34,6 +36,7 @@ beforeAll(async () => {
   analyst = await signIn(app.baseUrl, demo.users.analyst.email, demo.users.analyst.password);
   missedShot = await analysedShot({ speed: 300, seed: 61, dipDepth: [1, 1, 0.38] });
   otherShot = await analysedShot({ speed: 310, seed: 62 });
+  moreShots = [await analysedShot({ speed: 305, seed: 63 }), await analysedShot({ speed: 295, seed: 64 })];
 }, 180_000);
 
 afterAll(async () => {
@@ -146,6 +149,10 @@ describe('the lab\'s own terms, in Chromium', () => {
         return n;
       });
       expect(shaded).toBeGreaterThan(5);
+      // Room right of the plot for a centred time label on its last tick.
+      const room = await page.getByTestId('trace-2').evaluate((el) =>
+        (el.querySelector('canvas') as HTMLCanvasElement).getBoundingClientRect().right - (el.querySelector('.u-over') as HTMLElement).getBoundingClientRect().right);
+      expect(room).toBeGreaterThanOrEqual(30);
 
       const v2 = await analyst.post<{ analysis: { id: string } }>(`/api/shots/${missedShot.id}/analyses`, {
         parameters: { ...v1Analysis.parameters, threshold: { unit: 'percent', level: 30, hysteresis: 10 } },
@@ -171,13 +178,14 @@ describe('the lab\'s own terms, in Chromium', () => {
     }
   });
 
-  it('When two shots are compared at 1280 px, then no time label is cut at a plot\'s right edge and no parameter column is clipped', async () => {
+  it('When four shots are compared at 1280 px, then no time label is cut at a plot\'s right edge and no parameter column is clipped', async () => {
     const browser = await launchBrowser();
     try {
       const page = await browser.newPage();
       await signInAs(page, 'analyst');
-      await page.goto(`${lab()}/compare?shots=${missedShot.id},${otherShot.id}`);
-      await expect.poll(() => page.getByTestId('compare-plot').count()).toBeGreaterThanOrEqual(4);
+      await page.goto(`${lab()}/compare?shots=${[missedShot, otherShot, ...moreShots].map((s) => s.id).join(',')}`);
+      await expect.poll(() => page.getByTestId('compare-column').count()).toBe(4);
+      await expect.poll(() => page.getByTestId('compare-plot').count()).toBeGreaterThanOrEqual(12);
       await page.waitForLoadState('networkidle');
       await page.waitForTimeout(800);
       for (const width of [1280, 820]) {
@@ -198,6 +206,11 @@ describe('the lab\'s own terms, in Chromium', () => {
           return ink;
         }));
         expect(cut.every((n) => n === 0), `cut labels at ${width} px: ${cut.join(',')}`).toBe(true);
+        // Whatever the range, a tick can land on the plot's right edge: its centred label ("1400 µs", about 45 px;
+        // up to "−1234.56 µs", about 70 px) needs half its width of canvas beyond the plot area.
+        const room = await page.getByTestId('compare-plot').evaluateAll((plots) => plots.map((el) =>
+          (el.querySelector('canvas') as HTMLCanvasElement).getBoundingClientRect().right - (el.querySelector('.u-over') as HTMLElement).getBoundingClientRect().right));
+        expect(Math.min(...room), `room right of the plots at ${width} px: ${room.join(',')}`).toBeGreaterThanOrEqual(30);
         const clipped = await page.locator('table').evaluateAll((tables) =>
           tables.map((t) => ({ name: t.getAttribute('aria-label') ?? t.querySelector('th')?.textContent ?? '', over: (t.parentElement?.scrollWidth ?? 0) - (t.parentElement?.clientWidth ?? 0) })).filter((t) => t.over > 1));
         expect(clipped, `clipped tables at ${width} px`).toEqual([]);
