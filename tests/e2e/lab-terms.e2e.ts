@@ -164,7 +164,7 @@ describe('the lab\'s own terms, in Chromium', () => {
       await diff.getByText('Uncertainty budget').first().waitFor({ timeout: 30_000 });
       const text = (await diff.textContent()) ?? '';
       expect(text).not.toMatch(/Budget line/);
-      expect(text).toMatch(/Gate positions: contribution to u/);
+      expect(text).toMatch(/Gate positions\d+\.\d+ m\/s \(\d+ % of the variance\)/);
       expect(text).toMatch(/Threshold level50 %→30 %/);
       await diff.scrollIntoViewIfNeeded();
       await bothWidths(page, 'version-diff-budget');

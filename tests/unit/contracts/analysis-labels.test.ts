@@ -52,11 +52,11 @@ describe('budgetChanges', () => {
     ];
     const rows = budgetChanges(from, to);
     expect(rows).toEqual([
-      { label: 'Gate positions: contribution to u', from: '0.817 m/s', to: '0.9 m/s' },
-      { label: 'Gate positions: share of variance', from: '90 %', to: '85 %' },
-      { label: 'Noise jitter: contribution to u', from: '—', to: '0.0049 m/s' },
-      { label: 'Noise jitter: share of variance', from: '—', to: '5 %' },
+      { label: 'Gate positions', from: '0.817 m/s (90 % of the variance)', to: '0.9 m/s (85 % of the variance)' },
+      { label: 'Noise jitter', from: 'not in the budget', to: '0.0049 m/s (5 % of the variance)' },
     ]);
+    // A change below the digits shown is not a change.
+    expect(budgetChanges(from, [{ ...from[0], contribution: 0.81700001 }, from[1]])).toEqual([]);
     expect(rows.some((r) => /Budget line/.test(r.label))).toBe(false);
     expect(budgetChanges(from, from)).toEqual([]);
     expect(budgetChanges(null, null)).toEqual([]);
