@@ -81,6 +81,9 @@ describe('the lab\'s own terms, in Chromium', () => {
       await page.waitForURL('**/sign-in**');
       await page.getByLabel('E-mail').waitFor();
       await page.waitForLoadState('networkidle');
+      await page.goto(`${app.baseUrl}/forgot-password`);
+      await page.getByText('Forgot your password?').waitFor();
+      await page.waitForLoadState('networkidle');
       expect(logged).toEqual([]);
 
       await signInAs(page, 'admin');
@@ -95,6 +98,7 @@ describe('the lab\'s own terms, in Chromium', () => {
         [`${lab()}/people`, 'People'],
         [`${lab()}/audit`, 'Audit trail'],
         [`${app.baseUrl}/account/tokens`, 'Personal API tokens'],
+        [`${app.baseUrl}/account`, 'Your account'],
       ] as const) {
         // A fresh load of each page (not a client-side move), as a person opening a link would.
         await page.goto(url);
