@@ -26,12 +26,12 @@ function InviteForm({ labId }: { labId: string }) {
   const errors: FieldErrors = { ...problems, ...fromServer };
   const formWide = errors[''] ?? (invite.isError && Object.keys(fromServer).length === 0 ? invite.error.message : undefined);
   return (
-    <form onSubmit={submit} className="grid items-end gap-3 sm:grid-cols-[2fr_1fr_auto]" noValidate aria-label="Invite someone">
+    <form onSubmit={submit} className="grid items-start gap-3 sm:grid-cols-[2fr_1fr_auto]" noValidate aria-label="Invite someone">
       <TextField label="E-mail" type="email" value={email} onChange={(e) => setEmail(e.target.value)} placeholder="name@lab.example" error={errors.email} />
       <SelectField label="Role" value={role} onChange={(e) => setRole(e.target.value as Role)}>
         {ROLES.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
       </SelectField>
-      <Button type="submit" disabled={invite.isPending}>{invite.isPending ? 'Sending…' : 'Send invitation'}</Button>
+      <Button type="submit" className="sm:mt-6" disabled={invite.isPending}>{invite.isPending ? 'Sending…' : 'Send invitation'}</Button>
       {formWide && <div className="sm:col-span-3"><ErrorNote error={new Error(formWide)} /></div>}
       {sentTo && !invite.isError && <p role="status" className="text-sm text-emerald-700 sm:col-span-3">Invitation sent to {sentTo}.</p>}
     </form>

@@ -35,11 +35,12 @@ export function TokensView() {
         <p className="mb-4 text-sm text-harbour-600">
           Scripts send a token as <code className="rounded bg-harbour-100 px-1">Authorization: Bearer …</code> and act as you, with your roles.
         </p>
-        <form onSubmit={submit} className="grid items-end gap-3 sm:grid-cols-[2fr_1fr_1.2fr_auto]" noValidate>
+        <form onSubmit={submit} className="grid items-start gap-3 sm:grid-cols-[2fr_1fr_1.2fr_auto]" noValidate>
           <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. nightly export script" error={errors.name} />
           <TextField label="Expires after (days)" type="number" min={1} max={366} value={days} onChange={(e) => setDays(e.target.value)} hint="Empty: until revoked" error={errors.expiresInDays} />
           <TextField label="Your password" type="password" autoComplete="current-password" value={password} onChange={(e) => setPassword(e.target.value)} hint="To confirm it is you" error={errors.password} />
-          <Button type="submit" disabled={create.isPending}>Create token</Button>
+          {/* Inputs line up under their labels whatever note a field shows; the button sits level with them. */}
+          <Button type="submit" className="sm:mt-6" disabled={create.isPending}>Create token</Button>
         </form>
         {formWide && <div className="mt-3"><ErrorNote error={new Error(formWide)} /></div>}
         {secret && (
