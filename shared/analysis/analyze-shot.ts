@@ -34,6 +34,7 @@ const MAX_PULSES_PER_GATE = 10;
 
 const finiteOrNull = (v: number): number | null => (Number.isFinite(v) ? v : null);
 const ms = (t: number): string => `${(t * 1e3).toFixed(3)} ms`;
+const volts = (v: number): string => (Math.abs(v) < 1 ? `${(v * 1e3).toPrecision(3)} mV` : `${v.toPrecision(3)} V`);
 const pct = (f: number): string => `${(100 * f).toFixed(1)} %`;
 
 function checkCapture(capture: ImportedCapture): void {
@@ -251,8 +252,8 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
         const t = opts.threshold;
         const threshold = t.unit === 'percent' ? `${t.level} %` : `${t.level} V`;
         const thresholdDepth = t.unit === 'percent' ? t.level / 100 : Math.abs(t.level - clearLevel) / step;
-        const text = `reached ${Math.round(100 * dip.depthFraction)} % of the step at ${ms(dip.time)}`;
-        ch.candidate = { depthFraction: dip.depthFraction, time: dip.time, message: text };
+        const text = `dipped from ${ms(dip.start)} to ${ms(dip.end)}, ${volts(dip.depth)} deep (${Math.round(100 * dip.depthFraction)} % of the step)`;
+        ch.candidate = { depthFraction: dip.depthFraction, time: dip.time, start: dip.start, end: dip.end, depth: dip.depth, message: text };
         const advice = dip.depthFraction < thresholdDepth ? 'lower the threshold to use it' : 'smooth the trace or check the gate wiring';
         message += `; it ${text} (threshold ${threshold}): ${advice}`;
       }

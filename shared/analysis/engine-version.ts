@@ -5,4 +5,6 @@
 //        was read inverted); records set up around a short pulse give the same results as 1.1.0.
 // 1.3.0: results state their assumptions and carry the "check the time base" flag (implausible speed, pulse widths
 //        against the logged length, sample interval, rebuilt or assumed time base); no number changes.
-export const ENGINE_VERSION = '1.3.0';
+// 1.4.0: a missed gate's dip is the contiguous sub-threshold region around the deepest smoothed excursion, with its
+//        start, end and depth (median of its core) instead of the deepest three-sample point; speeds unchanged.
+export const ENGINE_VERSION = '1.4.0';

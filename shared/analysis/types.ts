@@ -34,10 +34,16 @@ export interface PulseResult {
 }
 
 export interface DipCandidate {
-  /** Deepest sustained excursion toward the blocked level, as a fraction of the reference step. */
+  /** Depth of the dip's core toward the blocked level, as a fraction of the reference step. */
   depthFraction: number;
-  /** When it happened, s. */
+  /** Middle of the dip's core (half depth to half depth), s; engines before 1.4.0: its deepest point. */
   time: number;
+  /** Where the dip leaves the idle level's noise and where it has returned within it, s (absent in results
+   * of engines before 1.4.0, which carry only `time`). */
+  start?: number;
+  end?: number;
+  /** Depth of the dip's core below (or above) the idle level, V (positive; absent in older results). */
+  depth?: number;
   message: string;
 }
 

@@ -127,6 +127,33 @@ const RESULT_RULES: Rule[] = [
   [/^warnings/, () => ({ group: 'Result', label: 'Warnings', format: raw })],
 ];
 
+/** A budget source as the result panel names it: "gate positions" → "Gate positions". */
+export const budgetSourceLabel = (group: string) => group.charAt(0).toUpperCase() + group.slice(1);
+
+export interface BudgetLineValues {
+  group: string;
+  contribution: number;
+  share: number;
+}
+
+/**
+ * The budget rows that changed between two versions, one per source, matched by source (not by position: the lines
+ * may come in a different order) and named as the result panel names them: "Gate positions: 0.816 m/s (100 % of the
+ * variance) → 1.47 m/s (100 % of the variance)". A line whose rounded values read the same is not a change.
+ */
+export function budgetChanges(from: BudgetLineValues[] | null, to: BudgetLineValues[] | null): { label: string; from: string; to: string }[] {
+  const groups = [...new Set([...(from ?? []), ...(to ?? [])].map((l) => l.group))];
+  const contribution = unit('m/s', 1, 3);
+  const out: { label: string; from: string; to: string }[] = [];
+  for (const g of groups) {
+    const a = from?.find((l) => l.group === g);
+    const b = to?.find((l) => l.group === g);
+    const say = (l: BudgetLineValues | undefined) => (l ? `${contribution(l.contribution)} (${percentOf(l.share)} of the variance)` : 'not in the budget');
+    if (say(a) !== say(b)) out.push({ label: budgetSourceLabel(g), from: say(a), to: say(b) });
+  }
+  return out;
+}
+
 function apply(rules: Rule[], path: string, ctx: LabelContext, fallback: LabelGroup): LabelledPath {
   for (const [re, make] of rules) {
     const m = path.match(re);

@@ -6,6 +6,29 @@
 export const SHOT_STATUSES = ['draft', 'processing', 'analysed', 'in_review', 'approved', 'returned', 'failed'] as const;
 export type ShotStatus = (typeof SHOT_STATUSES)[number];
 
+/**
+ * The one word people read for each status, on every page, CSV export, e-mail and report: "signed off" (never
+ * "approved"), "returned" (never "sent back"), "awaiting files" (never "draft"). The API keeps the enum values.
+ */
+export const SHOT_STATUS_LABELS: Record<ShotStatus, string> = {
+  draft: 'Awaiting files',
+  processing: 'Processing',
+  analysed: 'Analysed',
+  in_review: 'In review',
+  approved: 'Signed off',
+  returned: 'Returned',
+  failed: 'Failed',
+};
+
+/** A review decision in the same words. */
+export const REVIEW_DECISION_LABELS: Record<'approved' | 'returned', string> = { approved: 'Signed off', returned: 'Returned' };
+
+/** Words people must not read for a status: the other names the same states have had. */
+export const BANNED_STATUS_WORDS = [/\bapproved\b/i, /\bsent back\b/i, /\bdraft\b/i];
+
+/** A status in words; an unknown value is shown as it is rather than hidden. */
+export const shotStatusLabel = (status: string): string => SHOT_STATUS_LABELS[status as ShotStatus] ?? status;
+
 export type CaptureState = 'queued' | 'reading' | 'ready' | 'failed';
 export type AnalysisState = 'queued' | 'running' | 'done' | 'failed';
 

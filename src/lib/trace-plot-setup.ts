@@ -36,6 +36,12 @@ export function levelsRange(levels: { low: number; high: number } | null, dataMi
   return [dataMin - pad, dataMax + pad];
 }
 
+/**
+ * Room right of the plot area, px: a time label is centred on its tick, so the last one (up to "−1234.56 µs", about
+ * 70 px in the axis font) needs half its width beyond the plot's right edge, or the canvas cuts it off.
+ */
+export const PLOT_PADDING_RIGHT = 36;
+
 /** The time axis (ticks in s, ms, µs or ns to suit the span) and the volt axis, `voltAxisSize` pixels wide. */
 export function traceAxes(voltAxisSize: number): uPlot.Axis[] {
   return [

@@ -183,6 +183,12 @@ const MATRIX: Record<string, Row> = {
     expect: [204, 204, 204, 204, 204, 204],
     prepare: async ({ freshAuth }) => ({ headers: await freshAuth() }),
   },
+  'GET /api/auth/session': {
+    // Answers everyone with 200: the pages ask it before sign-in, and "nobody" is an answer, not an error.
+    expect: [200, 200, 200, 200, 200, 200],
+    shape: (b, { user, credential }) =>
+      (user ? expect(b).toMatchObject({ user: { user: { id: user.id, email: user.email }, via: credential } }) : expect(b).toEqual({ user: null })),
+  },
   'GET /api/auth/me': {
     expect: [200, 200, 200, 200, 200, 401],
     shape: (b, { user, credential }) => expect(b).toMatchObject({ user: { id: user!.id, email: user!.email }, via: credential }),

@@ -71,7 +71,7 @@ describe('the demo sweep\'s scope files', () => {
       const speed = analysis.speed!;
       if (shot.number === 5) {
         expect(analysis.gates.map((g) => g.status)).toEqual(['ok', 'ok', 'missed']);
-        expect(analysis.warnings.join(' ')).toMatch(/Gate C: missed .* reached 4\d % of the step/);
+        expect(analysis.warnings.join(' ')).toMatch(/Gate C: missed .* dipped from \d\.\d{3} ms to \d\.\d{3} ms, [\d.]+ V deep \(4\d % of the step\)/);
         // Mean speed over A–B (0.15 m) under constant deceleration: t = (v₀ − √(v₀² − 2·a·L))/a, v̄ = L/t.
         const t = (v0 - Math.sqrt(v0 ** 2 - 2 * a * 0.15)) / a;
         expect(speed.basis).toBe('pair');

@@ -63,17 +63,18 @@ describe('campaign export', () => {
     // 2000 Pa = 2 kPa; 268.15 K − 273.15 = −5 °C (SI Brochure, 0 °C = 273.15 K); 101 325 Pa = 101.325 kPa.
     expect(r1).toEqual([
       '1', '2026-10-14T09:30:00.000Z', '2', `'${HOSTILE}`, '-5', '101.325', 'Table-tennis ball, 40 mm',
-      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'approved', 'approved', '1', '', 'yes',
+      String(speed.value), String(speed.uncertainty), '2', 'flight (fit)', expect.stringMatching(/^0\.8\d+$/), 'Signed off', 'Signed off', '1', '', 'yes',
     ]);
     expect(rows.slice(2).map((r) => [r[0], r[3], r[7], r[12], r[13]])).toEqual([
-      ['2', "'+cmd|calc", '', 'draft', ''],
-      ['3', "'-2+3", '', 'draft', ''],
-      ['4', "'@SUM(A1:A9)", '', 'draft', ''],
-      ['5', "'\tindented", '', 'draft', ''],
-      ['6', "'\rreturn", '', 'draft', ''],
-      ['7', 'Mylar, 23 µm', '', 'draft', ''],
-      ['8', 'Mylar, 23 µm', expect.stringMatching(/^\d+\.\d+$/), 'analysed', ''],
+      ['2', "'+cmd|calc", '', 'Awaiting files', ''],
+      ['3', "'-2+3", '', 'Awaiting files', ''],
+      ['4', "'@SUM(A1:A9)", '', 'Awaiting files', ''],
+      ['5', "'\tindented", '', 'Awaiting files', ''],
+      ['6', "'\rreturn", '', 'Awaiting files', ''],
+      ['7', 'Mylar, 23 µm', '', 'Awaiting files', ''],
+      ['8', 'Mylar, 23 µm', expect.stringMatching(/^\d+\.\d+$/), 'Analysed', ''],
     ]);
+    // The statuses in the pages' words (the JSON export below keeps the API's values).
     expect(rows[8][14]).toBe('2');
     // On the wire: the negative number is bare (numeric in a spreadsheet); the hostile text is quoted and prefixed.
     const line1 = res.text.split('\r\n')[1];

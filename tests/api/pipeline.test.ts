@@ -159,11 +159,17 @@ describe('When a simulated three-gate capture is uploaded to a shot with the dem
     const v1After = (await experimenter.get<{ analysis: AnalysisView }>(`/api/shots/${shotId}/analyses/${v1Before.id}`)).body.analysis;
     expect(v1After).toEqual(v1Before);
 
-    const diff = await experimenter.get<{ parameters: { path: string; from: unknown; to: unknown }[]; results: { path: string }[]; engineChanged: boolean }>(
+    const diff = await experimenter.get<{
+      parameters: { path: string; from: unknown; to: unknown }[]; results: { path: string }[]; engineChanged: boolean;
+      budget?: { from: { group: string; contribution: number; share: number }[] | null; to: { group: string }[] | null };
+    }>(
       `/api/shots/${shotId}/analyses/${v1Before.id}/diff/${v2Id}`,
     );
     expect(diff.status).toBe(200);
     expect(diff.body.engineChanged).toBe(false);
+    // Each version's budget whole, so the page names budget rows by source ("Gate positions"), not "Budget line 1".
+    expect(diff.body.budget?.from?.map((l) => l.group)).toEqual((v1Before.results!.speed as unknown as { budget: { group: string }[] }).budget.map((l) => l.group));
+    expect(diff.body.budget?.to?.length).toBeGreaterThan(0);
     expect(diff.body.parameters).toEqual(expect.arrayContaining([
       expect.objectContaining({ path: 'threshold.level', from: 50, to: 70 }),
       expect.objectContaining({ path: 'threshold.hysteresis', from: 40, to: 20 }),

@@ -53,8 +53,18 @@ describe('shot report PDF', () => {
     expect(text).toContain('coverage factor k = 2');
     expect(text).toContain('Uncertainty budget');
     expect(text).toMatch(/Signed off by Marek Vintner on \d{4}-\d{2}-\d{2} \(analysis version 1\)/);
-    expect(text).toContain('Gate A: Gate A at 0 m');
-    expect(text).toContain('Gate C: Gate C at 0.3 m');
+    // Trace titles name each gate once, with its position.
+    expect(text).toContain('Gate A · 0.0 mm');
+    expect(text).toContain('Gate C · 300.0 mm');
+    expect(text).not.toContain('Gate A: Gate A');
+    expect(text).toMatch(/Status\s+Signed off/);
+    // The time axis: round ticks (a 1-2-5 step, here 100 or 200 µs) in one SI prefix.
+    const axis = /((?:-?\d+\s+){3,})time \(µs\)/.exec(text);
+    expect(axis, text).not.toBeNull();
+    const ticks = axis![1].trim().split(/\s+/).map(Number);
+    const step = ticks[1] - ticks[0];
+    expect([100, 200]).toContain(step);
+    ticks.forEach((t, i) => expect(t).toBe(ticks[0] + i * step));
     expect(text).toMatch(/Version\s+1/);
     // The settings in the analyst panel's words and units, not the stored paths.
     expect(text).toContain('Analysis settings');
@@ -100,6 +110,20 @@ describe('shot report PDF', () => {
     const after = await fetchPdf('time-base-confirmed');
     expect(after.text).not.toContain('Not a measurement until');
     expect(after.text).toMatch(/Check the time base: confirmed by .+ on \d{4}-\d{2}-\d{2} \("slow-roll record, 1 s per point is right"\)\./);
+  });
+
+  it('When a gate missed, then its trace shades the sub-threshold dip with its span and depth, inside the plot', async () => {
+    // Truth: the model's third gate dips to 38 % of the 4.6 V step (1.75 V) while the ball's chord crosses its beam.
+    const shot = await analysedShot(h, { dipDepth: [1, 1, 0.38] });
+    const res = await request(h.app).get(`/api/shots/${shot.shotId}/report.pdf`).set(as('reviewer')).buffer(true).parse(binaryBody);
+    expect(res.status, String(res.body)).toBe(200);
+    const file = path.join(outDir, 'missed-gate.pdf');
+    writeFileSync(file, res.body as Buffer);
+    const text = execFileSync('pdftotext', ['-layout', file, '-'], { encoding: 'utf8' }).replace(/\s+/g, ' ');
+    expect(text).toMatch(/dip 10\d\d\.\d–11\d\d\.\d µs · 1\.7\d V deep \(3[789] % of the step\)/);
+    expect(text).toContain('Gate C · 300.0 mm');
+    expect(text).toContain('missed: its step (1.75 V) is below 50.0 % of the reference step');
+    execFileSync('pdftoppm', ['-png', '-r', '110', '-f', '2', '-l', '2', file, path.join(outDir, 'missed-gate')]);
   });
 
   it('When a shot without an analysis is printed, then the PDF says so and "Not signed off"', async () => {

@@ -30,6 +30,8 @@ export interface AnalysedShotOptions {
   /** A time base misread by the importer: this sample interval (s) instead of the model's 200 ns, with seconds
    * "assumed", as a file whose time column has no unit would give. @default none (read right) */
   misreadInterval?: number;
+  /** Fraction of the full step each gate's dip reaches (a weak gate below the threshold is missed). @default 1 each */
+  dipDepth?: number[];
 }
 
 /** The three gate positions of the model, m (the demo rig's spacing is not needed: the analysis is told these). */
@@ -46,7 +48,7 @@ export async function analysedShot(h: ApiHarness, options: AnalysedShotOptions =
   const speed = options.speed ?? 300;
   const simulated = simulateShot({
     speed, diameter: 0.04, sampleInterval: 2e-7, length: 8000, t0: -1e-4, arrivalTime: 1e-4, noiseRms: 0.01, responseTime: 1e-6,
-    seed: 5 + serial, gatePositions: GATE_POSITIONS, channelNames: ['Gate A', 'Gate B', 'Gate C'],
+    seed: 5 + serial, gatePositions: GATE_POSITIONS, channelNames: ['Gate A', 'Gate B', 'Gate C'], dipDepth: options.dipDepth ?? 1,
   });
   const read = simulatedShotToCapture(simulated);
   const capture: ImportedCapture = options.misreadInterval === undefined ? read : {

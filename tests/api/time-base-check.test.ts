@@ -47,7 +47,7 @@ describe('check the time base', () => {
     const refused = await post('reviewer', `/api/shots/${shot.shotId}/reviews`, { decision: 'approved' });
     expect(refused.status).toBe(409);
     expect(refused.body.error.code).toBe('time_base_unchecked');
-    expect(refused.body.error.message).toMatch(/^Version 1 is marked "check the time base", so it cannot be approved yet: the speed of 0\.00006 m\/s .* is outside 0\.1–10\u00a0000 m\/s/);
+    expect(refused.body.error.message).toMatch(/^Version 1 is marked "check the time base", so it cannot be signed off yet: the speed of 0\.00006 m\/s .* is outside 0\.1–10\u00a0000 m\/s/);
     expect(refused.body.error.message).toMatch(/An analyst must confirm the read \("I checked the time base"\) or fix it in a new version first\.$/);
     expect(refused.body.error.details.reasons).toHaveLength(3);
     expect((await Shot.findByPk(shot.shotId))!.status).toBe('in_review');

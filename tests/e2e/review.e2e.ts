@@ -327,7 +327,9 @@ describe('review', () => {
       await page.getByLabel('Tube length (m)').fill('3');
       await page.getByLabel('Bore (mm)').fill('4l');
       await page.getByRole('button', { name: 'Create campaign' }).click();
-      await page.getByText('Bore: “4l” is not a number.').waitFor();
+      // The message sits beside the field it is about.
+      await page.getByText('“4l” is not a number.').waitFor();
+      expect(await page.getByLabel('Bore (mm)').getAttribute('aria-invalid')).toBe('true');
       await page.getByLabel('Bore (mm)').fill('41');
       await saveScreenshot(page, 'campaign-new-with-launcher');
       await page.getByRole('button', { name: 'Create campaign' }).click();

@@ -86,7 +86,7 @@ describe('check the time base', () => {
         expect(await flag.getByRole('button', { name: /I checked the time base/ }).count()).toBe(0);
         await page.getByTestId('assumptions').getByText('± 0.5 mm each (rectangular)').waitFor();
         expect(await approve(page).isDisabled()).toBe(true);
-        expect(await reviewBar(page).getByTestId('approval-blocked').textContent()).toMatch(/^Cannot be approved yet: this version is marked “check the time base”/);
+        expect(await reviewBar(page).getByTestId('approval-blocked').textContent()).toMatch(/^Cannot be signed off yet: this version is marked “check the time base”/);
         await saveScreenshotsAtBothWidths(page, 'time-base-unchecked');
 
         // The campaign's trends leave the unconfirmed speed out, and say so.

@@ -44,6 +44,8 @@ export function diffVersions(a: Analysis, b: Analysis) {
     results: changes(stripOptions(a.results), stripOptions(b.results)),
     /** The speed of each version whole (value ± U, m/s), for the headline "Speed: x ± U → y ± U". */
     speed: { from: speedOf(a.results), to: speedOf(b.results) },
+    /** Each version's uncertainty budget whole (group, contribution m/s, share), so its rows can be named by source. */
+    budget: { from: budgetOf(a.results), to: budgetOf(b.results) },
     /** How each version's threshold is expressed ("percent" or "volts"), to word its level. */
     thresholdUnit: { from: thresholdUnitOf(a.parameters), to: thresholdUnitOf(b.parameters) },
   };
@@ -52,6 +54,11 @@ export function diffVersions(a: Analysis, b: Analysis) {
 function speedOf(results: unknown): { value: number; uncertainty: number } | null {
   const s = (results as { speed?: { value?: unknown; uncertainty?: unknown } | null } | null)?.speed;
   return s && typeof s.value === 'number' && typeof s.uncertainty === 'number' ? { value: s.value, uncertainty: s.uncertainty } : null;
+}
+
+function budgetOf(results: unknown): { group: string; contribution: number; share: number }[] | null {
+  const b = (results as { speed?: { budget?: unknown } | null } | null)?.speed?.budget;
+  return Array.isArray(b) ? b.map((l: { group: string; contribution: number; share: number }) => ({ group: l.group, contribution: l.contribution, share: l.share })) : null;
 }
 
 function thresholdUnitOf(parameters: unknown): 'percent' | 'volts' {
@@ -151,7 +158,7 @@ export function analysisRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/shots/:shotId/analyses/:analysisId/diff/:otherId',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
-      summary: 'What changed between two analysis versions: parameters and results',
+      summary: 'What changed between two analysis versions: parameters and results (JSON paths, before and after), each version\'s speed (value, uncertainty) and uncertainty budget (group, contribution, share), and threshold unit',
       async handler(req, res) {
         const shot = await shotInLab(req);
         const [a, b] = await Promise.all([

@@ -40,7 +40,7 @@ export function timeBaseUncheckedError(a: Analysis): AppError {
   return new AppError(
     409,
     'time_base_unchecked',
-    `Version ${a.version} is marked "check the time base", so it cannot be approved yet: ${reasons.map((r) => r.message).join('; ')}. ` +
+    `Version ${a.version} is marked "check the time base", so it cannot be signed off yet: ${reasons.map((r) => r.message).join('; ')}. ` +
       'An analyst must confirm the read ("I checked the time base") or fix it in a new version first.',
     { reasons },
   );

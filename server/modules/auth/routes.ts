@@ -120,6 +120,16 @@ export function authRoutes(deps: Deps): RouteDef[] {
     },
     {
       method: 'get',
+      path: '/api/auth/session',
+      access: { kind: 'public' },
+      summary: 'Whether anyone is signed in: { user: null } (200) before sign-in, else { user } as /api/auth/me gives it. '
+        + 'The pages ask this before sign-in, so a visitor who is not signed in is not an error (no 401 in the console)',
+      async handler(req, res) {
+        res.json({ user: req.auth ? await meView(req.auth.userId, req.auth.via, req.auth.expiresAt) : null });
+      },
+    },
+    {
+      method: 'get',
       path: '/api/auth/me',
       access: { kind: 'user' },
       summary: 'The signed-in user and their labs and roles',

@@ -10,6 +10,7 @@ import { labOfShot } from '../shots/routes.ts';
 import { fitCampaignLauncher } from '../trends/launcher-fit.ts';
 import { campaignTrendPoints } from '../trends/trend-points.ts';
 import { CAMPAIGN_COLUMNS, campaignRows, SHOT_COLUMNS, shotRows } from './rows.ts';
+import { csvWords } from './csv-words.ts';
 import { fileSlug, toCsv, type CsvValue } from './to-csv.ts';
 
 function send<K extends string>(res: Response, format: 'csv' | 'json', fileBase: string, columns: readonly (readonly [K, string])[], rows: Record<K, CsvValue>[], meta: object) {
@@ -18,7 +19,7 @@ function send<K extends string>(res: Response, format: 'csv' | 'json', fileBase:
     res.type('application/json').send(JSON.stringify({ ...meta, rows }, null, 2));
     return;
   }
-  res.type('text/csv; charset=utf-8').send(toCsv(columns.map(([, label]) => label), rows.map((r) => columns.map(([key]) => r[key]))));
+  res.type('text/csv; charset=utf-8').send(toCsv(columns.map(([, label]) => label), rows.map((r) => columns.map(([key]) => csvWords(key, r[key])))));
 }
 
 export function exportRoutes(): RouteDef[] {

@@ -9,7 +9,7 @@ export function notificationRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/me/notifications',
       access: { kind: 'user' },
-      summary: 'Which kinds of e-mail you receive (review requested, approved, returned, job failed); all on by default',
+      summary: 'Which kinds of e-mail you receive (review requested, signed off, returned, job failed); all on by default',
       async handler(req, res) {
         res.json({ preferences: await preferencesOf(req.auth!.userId) });
       },

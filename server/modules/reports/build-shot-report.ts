@@ -1,6 +1,9 @@
 import { describeAssumptions } from '../../../shared/analysis/describe-assumptions.ts';
-import { labelParameter } from '../../../shared/contracts/analysis-labels.ts';
+import { budgetSourceLabel, labelParameter } from '../../../shared/contracts/analysis-labels.ts';
+import { shotStatusLabel } from '../../../shared/contracts/shot-status.ts';
+import type { DipMark } from '../../../shared/analysis/describe-dip.ts';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
+import { timeTicks } from '../../../shared/units/nice-ticks.ts';
 import type { TraceWindow } from '../../traces/read-window.ts';
 import { createReportDocument, GRID, INK, MUTED, SAFETY } from './report-document.ts';
 
@@ -14,6 +17,92 @@ export interface ReportTrace {
   thresholdV: number | null;
   pulses: { start: number; end: number; width: number }[];
   note: string | null;
+  /** A missed gate's sub-threshold dip: span, floor level (V) and its label. */
+  dip?: DipMark | null;
+}
+
+/** "Gate A · 150.0 mm", or "Gate A · Start sensor · 0.0 mm" when the channel has a name of its own: a gate named
+ * like its channel is not named twice (as on the shot page). */
+export function traceTitle(trace: Pick<ReportTrace, 'gateLabel' | 'channel' | 'positionM'>): string {
+  const gate = /^gate\b/i.test(trace.gateLabel) ? trace.gateLabel : `Gate ${trace.gateLabel}`;
+  const where = `${(trace.positionM * 1000).toFixed(1)} mm`;
+  return gate.toLowerCase() === trace.channel.toLowerCase() ? `${gate} · ${where}` : `${gate} · ${trace.channel} · ${where}`;
+}
+
+/** A piece of text placed on a trace panel: its left edge, baseline-top, box width and font size (pt). */
+export interface PlacedLabel {
+  text: string;
+  x: number;
+  y: number;
+  width: number;
+  size: number;
+  color: 'mark' | 'muted';
+  align?: 'left' | 'right';
+}
+
+export interface PanelFrame {
+  plotLeft: number;
+  plotWidth: number;
+  top: number;
+  height: number;
+  from: number;
+  to: number;
+}
+
+/** Text shortened with an ellipsis until `measure` says it fits `max` points. */
+function fitText(text: string, max: number, measure: (text: string) => number): string {
+  if (measure(text) <= max) return text;
+  let t = text;
+  while (t.length > 1 && measure(`${t}…`) > max) t = t.slice(0, -1);
+  return `${t.trimEnd()}…`;
+}
+
+/** A box of width w as near x as the frame allows. */
+const inside = (x: number, w: number, lo: number, hi: number) => Math.max(lo, Math.min(x, hi - w));
+
+/**
+ * Where a trace panel's labels go: pulse widths, leading-edge times, the missed note and the dip's label. Every box
+ * lies inside the plot frame whatever the values (a pulse at the edge or outside the span, a long note), so no text
+ * runs past the frame; text too long for the frame is shortened with an ellipsis.
+ */
+export function layoutTraceLabels(trace: ReportTrace, f: PanelFrame, measure: (text: string, size: number) => number): PlacedLabel[] {
+  const tu = timeUnit(f.from, f.to);
+  const lo = f.plotLeft + 2;
+  const hi = f.plotLeft + f.plotWidth - 2;
+  const xOf = (t: number) => f.plotLeft + ((t - f.from) / (f.to - f.from)) * f.plotWidth;
+  const out: PlacedLabel[] = [];
+  const put = (text: string, x: number, y: number, size: number, color: PlacedLabel['color']) => {
+    const fitted = fitText(text, hi - lo, (t) => measure(t, size));
+    const w = measure(fitted, size);
+    out.push({ text: fitted, x: inside(x, w, lo, hi), y: Math.max(f.top + 1, Math.min(y, f.top + f.height - size - 1)), width: w, size, color });
+  };
+  for (const p of trace.pulses) {
+    put(`width ${fmt(p.width * tu.scale)} ${tu.unit}`, xOf(p.end) + 3, f.top + 10, 7.5, 'mark');
+    const start = `${fmt(p.start * tu.scale, 6)} ${tu.unit}`;
+    put(start, xOf(p.start) - 2 - measure(start, 7.5), f.top + f.height - 10, 7.5, 'mark');
+  }
+  // The missed note and the dip's label sit in the middle band, between the clear and blocked levels, where the
+  // trace only passes on its edges.
+  if (trace.note) put(trace.note, f.plotLeft + 4, f.top + f.height / 2 - 10, 7.5, 'muted');
+  if (trace.dip) {
+    const x1 = xOf(trace.dip.end);
+    const w = measure(trace.dip.label, 7.5);
+    // Right of the span when it fits, else left of it.
+    const x = x1 + 4 + w <= hi ? x1 + 4 : xOf(trace.dip.start) - 4 - w;
+    put(trace.dip.label, x, f.top + f.height / 2 + 1, 7.5, 'mark');
+  }
+  return out;
+}
+
+/** The shared time axis: round ticks (1-2-5 steps) and their labels, each label inside the frame's width. */
+export function layoutTimeAxis(f: Pick<PanelFrame, 'plotLeft' | 'plotWidth' | 'from' | 'to'>, y: number, measure: (text: string, size: number) => number) {
+  const ticks = timeTicks(f.from, f.to, { maxTicks: 9 });
+  const xOf = (t: number) => f.plotLeft + ((t - f.from) / (f.to - f.from)) * f.plotWidth;
+  const labels: PlacedLabel[] = ticks.values.map((t, i) => {
+    const w = measure(ticks.labels[i], 7.5);
+    return { text: ticks.labels[i], x: inside(xOf(t) - w / 2, w, f.plotLeft, f.plotLeft + f.plotWidth), y, width: w, size: 7.5, color: 'muted' };
+  });
+  return { ticks: ticks.values.map(xOf), labels, title: `time (${ticks.unit})` };
 }
 
 export interface ShotReportInput {
@@ -61,11 +150,10 @@ export function formatWithUncertainty(value: number | null | undefined, u: numbe
 
 const fmt = (x: number | null | undefined, digits = 4) => (x == null || !Number.isFinite(x) ? '-' : String(Number(x.toPrecision(digits))));
 
-/** Time in the unit that suits the span drawn. */
-function timeUnit(span: number): { scale: number; unit: string } {
-  if (span < 2e-3) return { scale: 1e6, unit: 'µs' };
-  if (span < 2) return { scale: 1e3, unit: 'ms' };
-  return { scale: 1, unit: 's' };
+/** Time in the SI prefix the time axis uses, so labels inside the panels and the axis agree. */
+function timeUnit(from: number, to: number): { scale: number; unit: string } {
+  const { scale, unit } = timeTicks(from, to, { maxTicks: 7 });
+  return { scale, unit };
 }
 
 /** Leaf settings of the parameters, path → stored value (lists of plain values stay whole). */
@@ -141,7 +229,7 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
   heading('Conditions');
   table([
     ['Fired at', s.firedAt ? `${s.firedAt.toISOString().replace('T', ' ').slice(0, 19)} UTC` : 'not logged'],
-    ['Status', s.status.replace('_', ' ')],
+    ['Status', shotStatusLabel(s.status)],
     ['Tube pressure', s.tubePressurePa == null ? 'not logged' : `${fmt(s.tubePressurePa / 1000)} kPa`],
     ['Seal', s.sealType || 'not logged'],
     ['Ambient temperature', s.ambientTemperatureK == null ? 'not logged' : `${(s.ambientTemperatureK - 273.15).toFixed(1)} °C`],
@@ -183,7 +271,7 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
     doc.font('regular').fillColor(INK);
     for (const line of speed.budget ?? []) {
       const y = doc.y + 2;
-      doc.text(line.group, cols[0], y, { width: 240 });
+      doc.text(budgetSourceLabel(line.group), cols[0], y, { width: 240 });
       doc.text(fmt(line.contribution, 3), cols[1], y).text(`${(line.share * 100).toFixed(1)} %`, cols[2], y);
     }
   }
@@ -204,9 +292,9 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
     doc.font('regular').fontSize(10).fillColor(INK).text('No traces to draw: the shot has no analysed capture.');
   } else {
     const { from, to } = input.span;
-    const tu = timeUnit(to - from);
+    const tu = timeUnit(from, to);
     doc.font('regular').fontSize(8.5).fillColor(MUTED).text(
-      `Signal in volts against time in ${tu.unit}. Dashed: the crossing level of the analysis. Orange: the beam blocked (leading edge) and clear again (trailing edge), with the pulse width.`,
+      `Signal in volts against time in ${tu.unit}. Dashed: the crossing level of the analysis. Orange: the beam blocked (leading edge) and clear again (trailing edge), with the pulse width. Shaded: a missed gate's dip below the threshold, from where it leaves the noise to where it returns, with its depth.`,
       left, doc.y, { width },
     );
     doc.moveDown(0.5);
@@ -214,9 +302,10 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
     const plotWidth = width - 42;
     const panelHeight = Math.min(110, (doc.page.height - doc.y - 110) / input.traces.length - 26);
     const xOf = (t: number) => plotLeft + ((t - from) / (to - from)) * plotWidth;
+    const measure = (text: string, size: number) => doc.font('regular').fontSize(size).widthOfString(text);
     for (const trace of input.traces) {
       const top = doc.y + 14;
-      doc.font('bold').fontSize(9).fillColor(INK).text(`Gate ${trace.gateLabel}: ${trace.channel} at ${fmt(trace.positionM)} m`, left, doc.y);
+      doc.font('bold').fontSize(9).fillColor(INK).text(traceTitle(trace), left, doc.y);
       const values: number[] = [];
       const w = trace.window;
       if (w?.raw) for (const v of w.v) if (v != null) values.push(v);
@@ -275,25 +364,27 @@ export async function buildShotReport(input: ShotReportInput): Promise<Buffer> {
         const yb = top + 6;
         doc.moveTo(xOf(p.start), yb).lineTo(xOf(p.end), yb).lineWidth(0.8).strokeColor(MARK).stroke();
       }
-      doc.restore();
-      doc.font('regular').fontSize(7.5).fillColor(MARK);
-      for (const p of trace.pulses) {
-        const label = `width ${fmt(p.width * tu.scale)} ${tu.unit}`;
-        const x = Math.min(xOf(p.end) + 3, plotLeft + plotWidth - 80);
-        doc.text(label, x, top + 10, { width: 80, lineBreak: false });
-        doc.text(`${fmt(p.start * tu.scale, 6)} ${tu.unit}`, Math.max(plotLeft + 2, xOf(p.start) - 62), top + panelHeight - 10, { width: 60, align: 'right', lineBreak: false });
+      if (trace.dip) {
+        // The missed gate's dip: its span shaded and its floor dashed.
+        const x0 = xOf(trace.dip.start);
+        const x1 = xOf(trace.dip.end);
+        doc.rect(x0, top, Math.max(0.5, x1 - x0), panelHeight).fillOpacity(0.12).fill(MARK).fillOpacity(1);
+        doc.moveTo(x0, yOf(trace.dip.level)).lineTo(x1, yOf(trace.dip.level)).dash(2, { space: 1.5 }).lineWidth(0.8).strokeColor(MARK).stroke().undash();
       }
-      if (trace.note) doc.fillColor(MUTED).text(trace.note, plotLeft + 4, top + panelHeight - 10, { width: plotWidth - 8, lineBreak: false });
+      doc.restore();
+      const frame = { plotLeft, plotWidth, top, height: panelHeight, from, to };
+      for (const l of layoutTraceLabels(trace, frame, measure)) {
+        doc.font('regular').fontSize(l.size).fillColor(l.color === 'mark' ? MARK : MUTED).text(l.text, l.x, l.y, { lineBreak: false });
+      }
       doc.y = top + panelHeight + 12;
     }
-    // Shared time axis under the last panel.
-    doc.font('regular').fontSize(7.5).fillColor(MUTED);
+    // Shared time axis under the last panel: round ticks, labels kept inside the frame's width.
     const ay = doc.y - 8;
-    for (let i = 0; i <= 4; i++) {
-      const t = from + ((to - from) * i) / 4;
-      doc.text(fmt(t * tu.scale, 5), xOf(t) - 30, ay, { width: 60, align: 'center', lineBreak: false });
-    }
-    doc.text(`time (${tu.unit})`, plotLeft, ay + 10, { width: plotWidth, align: 'center' });
+    const axis = layoutTimeAxis({ plotLeft, plotWidth, from, to }, ay, measure);
+    for (const x of axis.ticks) doc.moveTo(x, ay - 4).lineTo(x, ay - 1).lineWidth(0.5).strokeColor(MUTED).stroke();
+    doc.font('regular').fontSize(7.5).fillColor(MUTED);
+    for (const l of axis.labels) doc.text(l.text, l.x, l.y, { lineBreak: false });
+    doc.text(axis.title, plotLeft, ay + 10, { width: plotWidth, align: 'center' });
   }
 
   heading('Analysis');

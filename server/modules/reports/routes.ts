@@ -1,3 +1,5 @@
+import { describeDip } from '../../../shared/analysis/describe-dip.ts';
+import { timeTicks } from '../../../shared/units/nice-ticks.ts';
 import type { ShotAnalysis } from '../../../shared/analysis/types.ts';
 import { Analysis, Campaign, Capture, GateRig, Lab, Projectile, Review, Shot, User } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
@@ -22,7 +24,9 @@ const TRACE_POINTS = 600;
 
 /** The time span the report draws: every assigned pulse with room either side, or the whole record. */
 function spanOf(results: Partial<ShotAnalysis> | null, files: ChannelFiles[]): { from: number; to: number } | null {
-  const pulses = (results?.gates ?? []).flatMap((g) => g.pulses);
+  // Pulses of the gates that fired, and the dips of those that missed (so a missed gate's dip is drawn too).
+  const dips = (results?.channels ?? []).flatMap((c) => (c.candidate?.start !== undefined && c.candidate.end !== undefined ? [{ start: c.candidate.start, end: c.candidate.end }] : []));
+  const pulses = [...(results?.gates ?? []).flatMap((g) => g.pulses), ...dips.map((d) => ({ ...d, width: d.end - d.start }))];
   if (pulses.length > 0) {
     const first = Math.min(...pulses.map((p) => p.start));
     const last = Math.max(...pulses.map((p) => p.end));
@@ -117,6 +121,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
             thresholdV: channel?.threshold?.level ?? null,
             pulses: gate.pulses,
             note: gate.status === 'missed' ? `missed: ${channel?.reason ?? 'no pulse found'}` : null,
+            dip: gate.status === 'missed' && channel && span ? describeDip(channel, timeTicks(span.from, span.to).unit === 'µs' ? 'µs' : 'ms') : null,
           });
         }
 

@@ -23,7 +23,7 @@ export function Component() {
   const rigs = useQuery(gateRigsQueryOptions(labId));
   const campaigns = useQuery(campaignsQueryOptions(labId));
 
-  const header = <PageHeader title="Compare shots" subtitle="Traces aligned at a gate’s crossing, one zoom for all; results, conditions and differing analysis settings beside them." />;
+  const header = <PageHeader title="Compare shots" subtitle="Traces aligned at a gate’s crossing, one zoom for all; results, conditions and differing analysis settings with them." />;
   if (!valid) {
     return (
       <>

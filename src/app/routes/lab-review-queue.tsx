@@ -9,7 +9,7 @@ export function Component() {
   if (!can(membership.role, 'reviews:queue')) return <NotFoundPage message="The review queue is open to reviewers and admins." />;
   return (
     <>
-      <PageHeader title="Review queue" subtitle="Shots sent for sign-off, oldest first. Open one to approve it or return it with a comment." />
+      <PageHeader title="Review queue" subtitle="Shots sent for sign-off, oldest first. Open one to sign it off or return it with a comment." />
       <ReviewQueueView labId={membership.labId} />
     </>
   );

@@ -46,7 +46,7 @@ export function Component() {
           canRequest={can(membership.role, 'reviews:request')}
           canDecide={can(membership.role, 'reviews:decide')}
           approvalBlocked={shot.data?.currentAnalysis?.timeBaseCheck?.blocksApproval
-            ? 'Cannot be approved yet: this version is marked “check the time base”. An analyst must confirm the read or fix it in a new version; return it to ask for that.'
+            ? 'Cannot be signed off yet: this version is marked “check the time base”. An analyst must confirm the read or fix it in a new version; return it to ask for that.'
             : null}
           canReadAudit={can(membership.role, 'audit:read')}
           campaignShots={campaign.data?.shots.map((s) => ({ id: s.id, number: s.number })) ?? []}

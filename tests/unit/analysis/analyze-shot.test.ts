@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
 import { ENGINE_VERSION } from '../../../shared/analysis/engine-version.ts';
+import { createRandom } from '../../../shared/analysis/create-random.ts';
 import { speedOfSound } from '../../../shared/analysis/speed-of-sound.ts';
 import { simulateShot } from '../../../shared/simulate/simulate-shot.ts';
 import { simulatedShotToCapture } from '../../../shared/simulate/simulated-shot-to-capture.ts';
@@ -145,7 +146,16 @@ describe('analyzeShot on simulated captures with known truth', () => {
     const g3 = shot.truth.gates[2];
     expect(ch.candidate!.time).toBeGreaterThan(g3.entry);
     expect(ch.candidate!.time).toBeLessThan(g3.exit);
-    expect(analysis.warnings.join('\n')).toMatch(/CH3: missed .*reached 3[789] % of the step at 0\.\d{3} ms \(threshold 50 %\): lower the threshold to use it/);
+    // The dip's span: from where the blocked fraction leaves the noise (half a beam-crossing time, 1.7 µs, before
+    // the 50 % entry instant, plus the 9-sample mean) to where it is back (as long after the exit).
+    expect(ch.candidate!.start).toBeGreaterThan(g3.entry - 3e-6);
+    expect(ch.candidate!.start).toBeLessThan(g3.entry);
+    expect(ch.candidate!.end).toBeGreaterThan(g3.exit);
+    expect(ch.candidate!.end).toBeLessThan(g3.exit + 3e-6);
+    expect(Math.abs(ch.candidate!.depth! - 0.38 * 4.6)).toBeLessThan(0.01);
+    expect(analysis.warnings.join('\n')).toMatch(
+      /CH3: missed .*dipped from 0\.(69|70)\d ms to 0\.83\d ms, 1\.7\d V deep \(3[789] % of the step\) \(threshold 50 %\): lower the threshold to use it/,
+    );
     expect(analysis.speed!.basis).toBe('pair');
     expect(Math.abs(analysis.speed!.value / 300 - 1)).toBeLessThan(1e-3);
     // Following the advice: a 30 % threshold (arms 20–40 %) catches the 38 % dip and the third gate fires.
@@ -153,6 +163,31 @@ describe('analyzeShot on simulated captures with known truth', () => {
     expect(again.gates.map((g) => g.status)).toEqual(['ok', 'ok', 'ok']);
     expect(again.gates[2].pulses[0].start).toBeGreaterThan(g3.entry - 3e-6);
     expect(again.gates[2].pulses[0].start).toBeLessThan(g3.entry + 3e-6);
+  });
+
+  it('a missed dip with a burst of noise and a spike near its trailing edge: span and depth are the dip\'s, not the noise\'s', () => {
+    // Truth from the simulator: gate 3's dip is 38 % of the 4.6 V step between its entry and exit instants.
+    const shot = simulateShot({ gatePositions: [0, 0.1, 0.2], dipDepth: [1, 1, 0.38], length: 12000, noiseRms: 0.01, seed: 7 });
+    const g3 = shot.truth.gates[2];
+    const v = shot.channels[2].values;
+    const index = (t: number) => Math.round((t - shot.time.t0) / shot.time.dt);
+    // Pickup in the last 10 µs of the dip: 0.3 V rms, and a 0.5 µs spike down to 70 % of the step 2 µs before the exit.
+    const random = createRandom(11);
+    for (let i = index(g3.exit - 12e-6); i < index(g3.exit - 2e-6); i++) v[i] += 0.3 * random.normal();
+    for (let i = index(g3.exit - 2.5e-6); i < index(g3.exit - 2e-6); i++) v[i] = 4.8 - 0.7 * 4.6;
+    const analysis = analyzeShot(simulatedShotToCapture(shot), { spacing: 0.1 });
+    const ch = analysis.channels[2];
+    expect(ch.status).toBe('missed');
+    const c = ch.candidate!;
+    expect(Math.abs(c.depthFraction - 0.38)).toBeLessThan(0.01);
+    expect(Math.abs(c.depth! - 0.38 * 4.6)).toBeLessThan(0.05);
+    expect(c.start).toBeGreaterThan(g3.entry - 3e-6);
+    expect(c.start).toBeLessThan(g3.entry);
+    expect(c.end).toBeGreaterThan(g3.exit);
+    expect(c.end).toBeLessThan(g3.exit + 3e-6);
+    // Its time is the dip's middle (the centre's passage), not the spike 2 µs before the exit.
+    expect(Math.abs(c.time - g3.centre)).toBeLessThan(2e-6);
+    expect(c.message).toMatch(/^dipped from 0\.(69|70)\d ms to 0\.83\d ms, 1\.7\d V deep \(38 % of the step\)$/);
   });
 
   it('a gate with no dip at all is missed without a candidate, and noise is not analysed into pulses', () => {

@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import type { TimeBase } from '../../../shared/contracts/capture.ts';
+import { createRandom } from '../../../shared/analysis/create-random.ts';
 import { findDipCandidate } from '../../../shared/analysis/find-dip-candidate.ts';
 import { findLevelCrossing } from '../../../shared/analysis/find-level-crossing.ts';
 import { findTransitions } from '../../../shared/analysis/find-transitions.ts';
@@ -77,6 +78,44 @@ describe('findDipCandidate', () => {
     expect(c?.depthFraction).toBeCloseTo(0.38, 12);
     expect(c?.index).toBeGreaterThanOrEqual(61);
     expect(c?.index).toBeLessThanOrEqual(68);
+    // Noise-free: the span is the plateau widened by half the 9-sample mean on each side.
+    expect(c?.startIndex).toBe(56);
+    expect(c?.endIndex).toBe(73);
+    expect(c?.depth).toBeCloseTo(0.38 * 4.6, 12);
     expect(() => findDipCandidate(v, { time: uniform(0, 1), clearLevel: 5, referenceStep: 0 })).toThrow('referenceStep must be a non-zero number');
+  });
+
+  it('a trapezoid dip in noise: span where it leaves and rejoins the noise, depth of its floor, not of its deepest sample', () => {
+    // Analytic dip: ramps of 20 samples from idle 5 V down 1.2 V (floor 3.8 V) between samples 400 and 600.
+    const n = 1000;
+    const v = new Float64Array(n);
+    const random = createRandom(3);
+    for (let i = 0; i < n; i++) {
+      const f = i < 400 || i > 600 ? 0 : i < 420 ? (i - 400) / 20 : i > 580 ? (600 - i) / 20 : 1;
+      v[i] = 5 - 1.2 * f + 0.02 * random.normal();
+    }
+    // The deepest samples are a burst of noise at the trailing edge.
+    v[585] = 3.2;
+    v[586] = 3.25;
+    v[587] = 3.2;
+    const c = findDipCandidate(v, { time: uniform(0, 1e-6), clearLevel: 5, referenceStep: -4 })!;
+    expect(c.noise).toBeGreaterThan(0.015);
+    expect(c.noise).toBeLessThan(0.025);
+    expect(c.startIndex).toBeGreaterThanOrEqual(398);
+    expect(c.startIndex).toBeLessThanOrEqual(402);
+    expect(c.endIndex).toBeGreaterThanOrEqual(598);
+    expect(c.endIndex).toBeLessThanOrEqual(602);
+    expect(Math.abs(c.depth - 1.2)).toBeLessThan(0.01);
+    expect(c.depthFraction).toBeCloseTo(c.depth / 4, 12);
+    // Its time is the middle of the half-depth span (400–600 → 500), not the burst at 585.
+    expect(Math.abs(c.index - 500)).toBeLessThanOrEqual(3);
+  });
+
+  it('pure noise gives no dip; bad options are refused with exact messages', () => {
+    const random = createRandom(4);
+    const v = Float64Array.from({ length: 5000 }, () => 5 + 0.05 * random.normal());
+    expect(findDipCandidate(v, { time: uniform(0, 1e-6), clearLevel: 5, referenceStep: -4 })).toBeNull();
+    expect(findDipCandidate(new Float64Array(0), { time: uniform(0, 1e-6), clearLevel: 5, referenceStep: -4 })).toBeNull();
+    expect(() => findDipCandidate(v, { time: uniform(0, 1), clearLevel: 5, referenceStep: -4, window: 4 })).toThrow('window must be an odd whole number of samples');
   });
 });

@@ -1,7 +1,7 @@
 // Analysis parameters and results in the lab's words and units (shared/contracts/analysis-labels.ts). Expected
 // wording follows the analyst panel; conversions are exact SI prefixes and 0 °C = 273.15 K (SI Brochure, 9th ed.).
 import { describe, expect, it } from 'vitest';
-import { labelParameter, labelResult } from '../../../shared/contracts/analysis-labels.ts';
+import { budgetChanges, labelParameter, labelResult } from '../../../shared/contracts/analysis-labels.ts';
 
 const say = (l: { label: string; format: (v: unknown) => string }, from: unknown, to: unknown) => `${l.label}: ${l.format(from)} → ${l.format(to)}`;
 
@@ -35,5 +35,30 @@ describe('labelResult', () => {
     expect(labelResult('gates[2].pulses[0].start')).toMatchObject({ group: 'Gates', label: 'Gate 3, pulse 1: entry' });
     expect(labelResult('gates[2].pulses[0].start').format(0.000123456)).toBe('123.456 µs');
     expect(labelResult('derived.mach.value')).toMatchObject({ group: 'Result', label: 'Mach number' });
+  });
+});
+
+describe('budgetChanges', () => {
+  it('When the budget changes, then each row is named by its source as the result panel names it, matched by source not position', () => {
+    const from = [
+      { group: 'gate positions', contribution: 0.817, share: 0.9 },
+      { group: 'time-base accuracy', contribution: 0.0087, share: 0.1 },
+    ];
+    // Same sources in another order, one changed, one new.
+    const to = [
+      { group: 'time-base accuracy', contribution: 0.0087, share: 0.1 },
+      { group: 'gate positions', contribution: 0.9, share: 0.85 },
+      { group: 'noise jitter', contribution: 0.0049, share: 0.05 },
+    ];
+    const rows = budgetChanges(from, to);
+    expect(rows).toEqual([
+      { label: 'Gate positions', from: '0.817 m/s (90 % of the variance)', to: '0.9 m/s (85 % of the variance)' },
+      { label: 'Noise jitter', from: 'not in the budget', to: '0.0049 m/s (5 % of the variance)' },
+    ]);
+    // A change below the digits shown is not a change.
+    expect(budgetChanges(from, [{ ...from[0], contribution: 0.81700001 }, from[1]])).toEqual([]);
+    expect(rows.some((r) => /Budget line/.test(r.label))).toBe(false);
+    expect(budgetChanges(from, from)).toEqual([]);
+    expect(budgetChanges(null, null)).toEqual([]);
   });
 });

@@ -74,7 +74,7 @@ describe('analyze CLI', () => {
     expect(out.gates[1].pulses).toEqual([]);
     expect(out.speed.method).toBe('occlusion');
     expect(Math.abs(out.speed.value / 300 - 1)).toBeLessThan(0.01);
-    expect(out.warnings.join('\n')).toMatch(/CH2: missed .*reached 3\d % of the step/);
+    expect(out.warnings.join('\n')).toMatch(/CH2: missed .*dipped from \d\.\d{3} ms to \d\.\d{3} ms, [\d.]+ V deep \(3\d % of the step\)/);
   });
 
   it('prints a readable summary without --json', async () => {

@@ -63,7 +63,7 @@ export function BatchForm({ labId, campaignId }: { labId: string; campaignId: st
           <div className="space-y-4">
             <p className="text-sm text-harbour-600">
               Settings left as “keep each shot’s” stay as each shot’s current version has them; each shot also keeps its own
-              projectile, room conditions and tolerances. Approved shots get a new version that needs a new review.
+              projectile, room conditions and tolerances. Signed-off shots get a new version that needs a new review.
             </p>
             {defaults && <p className="text-sm text-harbour-700">Campaign defaults for new shots: <span className="font-medium">{describeSettings(defaults)}</span></p>}
             <SettingsFields form={current} onChange={(patch) => setForm({ ...current, ...patch })} />

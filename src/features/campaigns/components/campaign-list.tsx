@@ -3,6 +3,7 @@ import { useState, type FormEvent } from 'react';
 import { Link } from 'react-router-dom';
 import { campaignBody } from '../../../../shared/contracts/auth.ts';
 import { Button, Card, EmptyState, ErrorNote, Loading, TextField } from '../../../components/ui/primitives.tsx';
+import { fieldErrorsOf, fieldErrorsOfRequest, type FieldErrors } from '../../../lib/field-errors.ts';
 import { formatDate } from '../../../lib/format.ts';
 import { useCampaigns, useCreateCampaign } from '../api/campaigns.ts';
 import { millimetresToMetres, parseLabNumber } from '../utils/lab-units.ts';
@@ -16,32 +17,37 @@ function NewCampaignForm({ labId, onDone }: { labId: string; onDone: () => void 
   const [startedOn, setStartedOn] = useState('');
   const [tubeLength, setTubeLength] = useState('');
   const [boreMm, setBoreMm] = useState('');
-  const [problem, setProblem] = useState<string>();
+  const [problems, setProblems] = useState<FieldErrors>({});
   const submit = (e: FormEvent) => {
     e.preventDefault();
-    for (const [label, text] of [['Tube length', tubeLength], ['Bore', boreMm]]) {
-      if (Number.isNaN(parseLabNumber(text))) return setProblem(`${label}: “${text}” is not a number.`);
+    const notNumbers: FieldErrors = {};
+    for (const [key, text] of [['tubeLengthM', tubeLength], ['boreM', boreMm]]) {
+      if (Number.isNaN(parseLabNumber(text))) notNumbers[key] = `“${text}” is not a number.`;
     }
+    if (Object.keys(notNumbers).length > 0) return setProblems(notNumbers);
     const parsed = campaignBody.safeParse({
       name, description, startedOn: startedOn || null, tubeLengthM: parseLabNumber(tubeLength), boreM: mm(parseLabNumber(boreMm)),
     });
-    if (!parsed.success) return setProblem(parsed.error.issues[0].message);
-    setProblem(undefined);
+    if (!parsed.success) return setProblems(fieldErrorsOf(parsed.error.issues));
+    setProblems({});
     create.mutate(parsed.data, { onSuccess: onDone });
   };
+  // Each message beside its field, whether the browser or the server found it.
+  const errors = { ...problems, ...fieldErrorsOfRequest(create.error) };
+  const formWide = errors[''] ?? (create.isError && Object.keys(fieldErrorsOfRequest(create.error)).length === 0 ? create.error.message : undefined);
   return (
-    <form onSubmit={submit} className="grid gap-4 sm:grid-cols-[2fr_1fr]" noValidate>
+    <form onSubmit={submit} className="grid gap-4 sm:grid-cols-[2fr_1fr]" noValidate aria-label="New campaign">
       <SafetyCaution className="sm:col-span-2" />
-      <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. Burst disc trial, December" />
-      <TextField label="Started on" type="date" value={startedOn} onChange={(e) => setStartedOn(e.target.value)} />
+      <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} placeholder="e.g. Burst disc trial, December" error={errors.name} />
+      <TextField label="Started on" type="date" value={startedOn} onChange={(e) => setStartedOn(e.target.value)} error={errors.startedOn} />
       <div className="sm:col-span-2">
-        <TextField label="Purpose" value={description} onChange={(e) => setDescription(e.target.value)} placeholder="What the campaign is meant to find out" />
+        <TextField label="Purpose" value={description} onChange={(e) => setDescription(e.target.value)} placeholder="What the campaign is meant to find out" error={errors.description} />
       </div>
       <div className="grid grid-cols-2 gap-4 sm:col-span-2 sm:grid-cols-4">
-        <TextField label="Tube length (m)" inputMode="decimal" value={tubeLength} onChange={(e) => setTubeLength(e.target.value)} hint="Optional" />
-        <TextField label="Bore (mm)" inputMode="decimal" value={boreMm} onChange={(e) => setBoreMm(e.target.value)} hint="Optional" />
+        <TextField label="Tube length (m)" inputMode="decimal" value={tubeLength} onChange={(e) => setTubeLength(e.target.value)} hint="Optional" error={errors.tubeLengthM} />
+        <TextField label="Bore (mm)" inputMode="decimal" value={boreMm} onChange={(e) => setBoreMm(e.target.value)} hint="Optional" error={errors.boreM} />
       </div>
-      {(problem || create.isError) && <div className="sm:col-span-2"><ErrorNote error={create.error ?? new Error(problem)} /></div>}
+      {formWide && <div className="sm:col-span-2"><ErrorNote error={new Error(formWide)} /></div>}
       <div className="flex gap-2 sm:col-span-2">
         <Button type="submit" disabled={create.isPending}>Create campaign</Button>
         <Button variant="ghost" onClick={onDone}>Cancel</Button>

@@ -4,7 +4,7 @@ import { useEffect, useMemo, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { Range } from '../../../lib/range-zoom.ts';
-import { levelsRange, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
+import { levelsRange, PLOT_PADDING_RIGHT, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
 
 /** One trace on a comparison plot: a capture's channel, shifted so its shot's alignment instant is t = 0. */
 export interface CompareSource {
@@ -62,7 +62,7 @@ export function ComparePlot({ title, sources, range, onRange, height = 170 }: {
     const opts: uPlot.Options = {
       width,
       height,
-      padding: [22, 8, 0, 0],
+      padding: [22, PLOT_PADDING_RIGHT, 0, 0],
       legend: { show: false },
       cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
       scales: {

@@ -1,3 +1,4 @@
+import { shotStatus } from '../../../lib/shot-status.ts';
 import { useCallback, useMemo, useRef, useState } from 'react';
 import { Link } from 'react-router-dom';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
@@ -111,7 +112,7 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
     { label: 'Gates fired', values: shots.map((s) => { const g = resultsOf(s)?.gates ?? []; return g.length ? `${g.filter((x) => x.status === 'ok').length} of ${g.length}` : '—'; }) },
     { label: 'Aligned at', values: alignments.map((a) => (a.position == null ? 'no gate fired' : `${gateName(names, a.position)}${a.fallback ? ' (chosen gate missed)' : ''}`)) },
     { label: 'Version', values: shots.map((s) => (s.currentAnalysis ? `v${s.currentAnalysis.version} · engine ${s.currentAnalysis.engineVersion}` : '—')) },
-    { label: 'Status', values: shots.map((s) => s.shot.status.replace('_', ' ')) },
+    { label: 'Status', values: shots.map((s) => shotStatus(s.shot.status).label) },
     { label: 'Fired', values: shots.map((s) => formatDateTime(s.shot.firedAt)) },
     { label: 'Tube vacuum', values: shots.map((s) => formatKpa(s.shot.conditions.tubePressurePa)) },
     { label: 'Seal', values: shots.map((s) => s.shot.conditions.sealType || '—') },
@@ -162,7 +163,8 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
         </div>
       </div>
 
-      <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_26rem]">
+      {/* Tables beside the plots only where four shots' columns fit (2xl); below them otherwise, full width. */}
+      <div className="grid gap-4 2xl:grid-cols-[minmax(0,1fr)_34rem]">
         <div className="min-w-0 space-y-4">
           <Card title="Overlaid, one plot per gate">
             <div className="mb-2 flex flex-wrap gap-3 text-xs" aria-label="Legend">

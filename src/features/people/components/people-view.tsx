@@ -2,6 +2,7 @@ import { useState, type FormEvent } from 'react';
 import { invitationBody } from '../../../../shared/contracts/auth.ts';
 import { ROLE_LABELS, ROLES, type Role } from '../../../../shared/contracts/roles.ts';
 import { Badge, Button, Card, EmptyState, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
+import { fieldErrorsOf, fieldErrorsOfRequest, type FieldErrors } from '../../../lib/field-errors.ts';
 import { formatDate } from '../../../lib/format.ts';
 import { useChangeRole, useSetMemberActive, useUnlockSignIn, useMembers, type Member } from '../../labs/api/members.ts';
 import { useInvitations, useInvite, useWithdrawInvitation } from '../api/invitations.ts';
@@ -11,23 +12,27 @@ function InviteForm({ labId }: { labId: string }) {
   const invite = useInvite(labId);
   const [email, setEmail] = useState('');
   const [role, setRole] = useState<Role>('experimenter');
-  const [problem, setProblem] = useState<string>();
+  const [problems, setProblems] = useState<FieldErrors>({});
   const [sentTo, setSentTo] = useState<string>();
   const submit = (e: FormEvent) => {
     e.preventDefault();
     const parsed = invitationBody.safeParse({ email, role });
-    if (!parsed.success) return setProblem(parsed.error.issues[0].message);
-    setProblem(undefined);
+    if (!parsed.success) return setProblems(fieldErrorsOf(parsed.error.issues));
+    setProblems({});
     invite.mutate(parsed.data, { onSuccess: () => { setSentTo(parsed.data.email); setEmail(''); } });
   };
+  // Each message beside its field, whether the browser or the server found it (an e-mail already invited, say).
+  const fromServer = fieldErrorsOfRequest(invite.error);
+  const errors: FieldErrors = { ...problems, ...fromServer };
+  const formWide = errors[''] ?? (invite.isError && Object.keys(fromServer).length === 0 ? invite.error.message : undefined);
   return (
-    <form onSubmit={submit} className="grid items-end gap-3 sm:grid-cols-[2fr_1fr_auto]" noValidate>
-      <TextField label="E-mail" type="email" value={email} onChange={(e) => setEmail(e.target.value)} placeholder="name@lab.example" />
+    <form onSubmit={submit} className="grid items-start gap-3 sm:grid-cols-[2fr_1fr_auto]" noValidate aria-label="Invite someone">
+      <TextField label="E-mail" type="email" value={email} onChange={(e) => setEmail(e.target.value)} placeholder="name@lab.example" error={errors.email} />
       <SelectField label="Role" value={role} onChange={(e) => setRole(e.target.value as Role)}>
         {ROLES.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
       </SelectField>
-      <Button type="submit" disabled={invite.isPending}>{invite.isPending ? 'Sending…' : 'Send invitation'}</Button>
-      {(problem || invite.isError) && <div className="sm:col-span-3"><ErrorNote error={invite.error ?? new Error(problem)} /></div>}
+      <Button type="submit" className="sm:mt-6" disabled={invite.isPending}>{invite.isPending ? 'Sending…' : 'Send invitation'}</Button>
+      {formWide && <div className="sm:col-span-3"><ErrorNote error={new Error(formWide)} /></div>}
       {sentTo && !invite.isError && <p role="status" className="text-sm text-emerald-700 sm:col-span-3">Invitation sent to {sentTo}.</p>}
     </form>
   );

@@ -1,3 +1,4 @@
+import type { BudgetLineValues } from '../../../../shared/contracts/analysis-labels.ts';
 import type { AnalysisOptions } from '../../../../shared/contracts/analysis.ts';
 import type { ShotAnalysis, TimeBaseCheckReason } from '../../../../shared/analysis/types.ts';
 
@@ -92,6 +93,8 @@ export interface VersionDiff {
   results: DiffEntry[];
   speed?: { from: { value: number; uncertainty: number } | null; to: { value: number; uncertainty: number } | null };
   thresholdUnit?: { from: 'percent' | 'volts'; to: 'percent' | 'volts' };
+  /** Each version's budget whole (absent from servers before issue 11's budget naming). */
+  budget?: { from: BudgetLineValues[] | null; to: BudgetLineValues[] | null };
 }
 
 export type { TraceWindow } from '../../../lib/trace-window.ts';

@@ -7,7 +7,7 @@ import { AssumptionList, TimeBaseFlag } from './time-base-check.tsx';
 
 const BASIS_LABELS = {
   fit: 'constant-deceleration fit over all gates, speed at the first gate',
-  pair: 'time of flight between two gates, mean over the span',
+  pair: 'between two gates, mean speed over the span',
   occlusion: 'one gate’s blocking time and the projectile’s length',
 } as const;
 
@@ -79,7 +79,7 @@ export function ResultPanel({ results, preview, timeBaseConfirmation = null, con
           </summary>
           <dl className="mt-1 divide-y divide-harbour-100">
         {results.flight.map((f) => (
-              <Row key={`${f.from.position}-${f.to.position}`} label={`Flight ${(f.from.position * 1000).toFixed(0)}→${(f.to.position * 1000).toFixed(0)} mm`} value={formatMeasurement(f.speed, f.uncertainty, 'm/s')} note={`leading edges ${f.leadingEdgeSpeed.toFixed(2)}, trailing ${f.trailingEdgeSpeed.toFixed(2)} m/s`} />
+              <Row key={`${f.from.position}-${f.to.position}`} label={`Flight ${(f.from.position * 1000).toFixed(0)}→${(f.to.position * 1000).toFixed(0)} mm`} value={formatMeasurement(f.speed, f.uncertainty, 'm/s')} note={`leading edges ${f.leadingEdgeSpeed.toFixed(2)} m/s, trailing edges ${f.trailingEdgeSpeed.toFixed(2)} m/s`} />
             ))}
             {results.occlusion.map((o) => (
               <Row key={`occ-${o.channel}-${o.position}`} label={`Occlusion at ${(o.position * 1000).toFixed(0)} mm`} value={formatMeasurement(o.speed, o.uncertainty, 'm/s')} note={`${(o.length * 1000).toFixed(2)} mm in ${(o.width * 1e6).toFixed(1)} µs`} />
@@ -91,8 +91,8 @@ export function ResultPanel({ results, preview, timeBaseConfirmation = null, con
         <ul className="space-y-1 text-sm">
           {results.crossChecks.map((c, i) => (
             <li key={i} className={c.consistent ? 'text-emerald-800' : 'text-red-800'}>
-              {c.consistent ? 'Consistent' : 'Inconsistent'}: occlusion {c.occlusionSpeed.toFixed(2)} vs flight {c.flightSpeed.toFixed(2)} m/s
-              (difference {c.difference.toFixed(2)}, limit ±{c.limit.toFixed(2)} m/s)
+              {c.consistent ? 'Consistent' : 'Inconsistent'}: occlusion {c.occlusionSpeed.toFixed(2)} m/s vs flight {c.flightSpeed.toFixed(2)} m/s
+              (difference {c.difference.toFixed(2)} m/s, limit ±{c.limit.toFixed(2)} m/s)
             </li>
           ))}
         </ul>

@@ -4,9 +4,10 @@ import { useEffect, useRef } from 'react';
 import uPlot from 'uplot';
 import 'uplot/dist/uPlot.min.css';
 import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
+import { describeDip } from '../../../../shared/analysis/describe-dip.ts';
 import { formatSeconds } from '../../../lib/format.ts';
 import type { Range } from '../../../lib/range-zoom.ts';
-import { levelsRange, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
+import { levelsRange, PLOT_PADDING_RIGHT, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
 import type { ExpectedWindow } from '../lib/expected-windows.ts';
 
 export interface TracePlotProps {
@@ -32,8 +33,17 @@ const SIGNAL = '#c47a12';
 const SIGNAL_FILL = 'rgba(242, 165, 65, 0.09)';
 const EXPECT_FILL = 'rgba(77, 118, 148, 0.12)';
 const MISSED = '#b42318';
+const DIP_FILL = 'rgba(180, 35, 24, 0.10)';
 
 interface Annotations { channel: ChannelResult | null; gates: GateResult[]; expected: ExpectedWindow[]; gateLabel: (p: number) => string; preview: boolean; title: string }
+
+/** Text shortened with an ellipsis until it fits `max` pixels in the context's current font. */
+function fitText(ctx: CanvasRenderingContext2D, text: string, max: number): string {
+  if (ctx.measureText(text).width <= max) return text;
+  let t = text;
+  while (t.length > 1 && ctx.measureText(`${t}…`).width > max) t = t.slice(0, -1);
+  return `${t.trimEnd()}…`;
+}
 
 /** Draws levels, threshold band, crossings, pulse brackets, gate labels, expected windows and missed-gate notes. */
 function drawAnnotations(u: uPlot, a: Annotations) {
@@ -136,18 +146,50 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.fillText(label, Math.max(left + 2 * dpr, (x0 + x1) / 2 - tw / 2), bracketY + 17 * dpr);
     }
     if (ch.status === 'missed') {
+      // The note and the dip's label sit in the middle band, between the clear level and the dip's floor, where
+      // the trace only passes on the dip's edges; each is shortened to fit the plot's width.
+      const dip = describeDip(ch);
+      const idle = ch.polarity === 'falling' ? ch.levels.high : ch.levels.low;
+      const middle = py(dip ? (idle + dip.level) / 2 : (ch.levels.high + ch.levels.low) / 2);
+      const yMid = Number.isFinite(middle) ? Math.min(top + height - 24 * dpr, Math.max(top + 30 * dpr, middle)) : top + height / 2;
+      const room = width - 16 * dpr;
+      if (dip) {
+        const x0 = Math.max(left, px(dip.start));
+        const x1 = Math.min(left + width, px(dip.end));
+        if (x1 > x0) {
+          ctx.fillStyle = DIP_FILL;
+          ctx.fillRect(x0, top, Math.max(1, x1 - x0), height);
+          ctx.strokeStyle = MISSED;
+          ctx.lineWidth = 1.5 * dpr;
+          ctx.setLineDash([5 * dpr, 3 * dpr]);
+          ctx.beginPath();
+          ctx.moveTo(x0, py(dip.level));
+          ctx.lineTo(x1, py(dip.level));
+          ctx.stroke();
+          ctx.setLineDash([]);
+        }
+        ctx.fillStyle = MISSED;
+        ctx.font = font(11, 500);
+        const label = fitText(ctx, dip.label, room);
+        const tw = ctx.measureText(label).width;
+        // Right of the span when it fits, else left of it, always inside the frame.
+        const right = x1 + 6 * dpr;
+        const lx = right + tw <= left + width - 8 * dpr ? right : Math.max(left + 8 * dpr, Math.min(x0 - 6 * dpr - tw, left + width - 8 * dpr - tw));
+        ctx.fillText(label, lx, yMid + 12 * dpr);
+      }
       ctx.fillStyle = MISSED;
       ctx.font = font(12, 600);
-      ctx.fillText(`Missed: ${ch.reason ?? 'no pulse found'}`, left + 8 * dpr, top + height / 2);
-      if (ch.candidate) {
+      ctx.fillText(fitText(ctx, `Missed: ${ch.reason ?? 'no pulse found'}`, room), left + 8 * dpr, yMid - 4 * dpr);
+      if (!dip && ch.candidate) {
         const x = px(ch.candidate.time);
         ctx.strokeStyle = MISSED;
         ctx.lineWidth = 1.5 * dpr;
         ctx.beginPath();
-        ctx.arc(x, top + height / 2 + 18 * dpr, 6 * dpr, 0, 2 * Math.PI);
+        ctx.arc(x, yMid + 18 * dpr, 6 * dpr, 0, 2 * Math.PI);
         ctx.stroke();
         ctx.font = font(11);
-        ctx.fillText(ch.candidate.message, Math.min(x + 10 * dpr, left + width - 260 * dpr), top + height / 2 + 22 * dpr);
+        const text = fitText(ctx, ch.candidate.message, room);
+        ctx.fillText(text, Math.max(left + 8 * dpr, Math.min(x + 10 * dpr, left + width - 8 * dpr - ctx.measureText(text).width)), yMid + 22 * dpr);
       }
     }
   }
@@ -194,7 +236,7 @@ export function TracePlot(props: TracePlotProps) {
     const opts: uPlot.Options = {
       width,
       height,
-      padding: [26, 8, 0, 0],
+      padding: [26, PLOT_PADDING_RIGHT, 0, 0],
       legend: { show: false },
       cursor: { drag: { x: true, y: false, setScale: false }, points: { show: false } },
       // The vertical range follows the channel's state levels, so zooming into a flat stretch does not blow the

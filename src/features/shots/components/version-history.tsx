@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import { Badge, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
-import { labelParameter, labelResult, raw, type LabelGroup } from '../../../../shared/contracts/analysis-labels.ts';
+import { budgetChanges, labelParameter, labelResult, raw, type LabelGroup } from '../../../../shared/contracts/analysis-labels.ts';
 import { formatDateTime, formatMeasurement } from '../../../lib/format.ts';
 import { useVersionDiff } from '../api/analyses.ts';
 import type { AnalysisSummary, DiffEntry, VersionDiff } from '../api/types.ts';
@@ -53,7 +53,12 @@ function VersionDiffView({ diff }: { diff: VersionDiff }) {
   const params = rowsOf(diff.parameters, (p) => ({ ...labelParameter(p, { thresholdUnit: diff.thresholdUnit?.to }), group: 'Settings' as const }));
   // Speed value and U are the headline; the remaining result rows are listed by group.
   const results = rowsOf(diff.results, labelResult).filter((r) => r.path !== 'speed.value' && r.path !== 'speed.uncertainty');
-  const all = [...params, ...results];
+  // Budget lines are named by their source ("Time-base accuracy"), matched by source across the versions; servers
+  // before issue 11 send no budget, and their rows keep the path-based labels.
+  const budget: DiffRow[] = diff.budget
+    ? budgetChanges(diff.budget.from, diff.budget.to).map((b) => ({ key: `budget:${b.label}`, group: 'Budget', label: b.label, path: 'speed.budget', from: b.from, to: b.to, rawFrom: b.from, rawTo: b.to }))
+    : [];
+  const all = [...params, ...(diff.budget ? results.filter((r) => !r.path.startsWith('speed.budget')) : results), ...budget];
   const s = diff.speed;
   const change = s?.from && s.to ? ((s.to.value - s.from.value) / s.from.value) * 100 : null;
   return (
