@@ -82,9 +82,12 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
           syncing = fh.datasync();
           unsynced = 0;
         }
-        // The reader takes the block over (transferred, not copied); this side starts a new one.
-        if (reader !== null) await reader.push(filled === BLOCK ? block : block.slice(0, filled));
-        block = new Uint8Array(BLOCK);
+        // The reader takes the block over (transferred, not copied); this side fills one the reader handed back,
+        // or a new one. Without a reader the same block is filled again.
+        if (reader !== null) {
+          await reader.push(filled === BLOCK ? block : block.slice(0, filled));
+          block = reader.spareBlock(BLOCK) ?? new Uint8Array(BLOCK);
+        }
         filled = 0;
       };
       for await (const chunk of stream as AsyncIterable<Buffer>) {
