@@ -30,15 +30,19 @@ export interface CaptureIntakeOptions {
   limits?: CaptureLimits;
   /** Reads at once in this process at most (each holds a capture's samples in memory). @default 2 */
   maxReads?: number;
+  /** Size of the blocks written, hashed and handed to the reader (tests make it small). @default 1 MiB */
+  blockBytes?: number;
+  /** Sync the file to disk every this many bytes while it arrives. @default 64 MiB */
+  syncEveryBytes?: number;
 }
 
 /** Reads running in this process (across requests). */
 let reading = 0;
 
 /** Size of the blocks written, hashed and handed to the reader. */
-const BLOCK = 1 << 20;
+const BLOCK_BYTES = 1 << 20;
 /** Sync the file to disk every this many bytes while it arrives, so the last sync has little left to write. */
-const SYNC_EVERY = 64 << 20;
+const SYNC_EVERY_BYTES = 64 << 20;
 /** Blocks written or handed over at once while the next ones arrive. */
 const MAX_IN_FLIGHT = 4;
 
@@ -49,7 +53,7 @@ const MAX_IN_FLIGHT = 4;
  * route then names the blob by its hash.
  */
 export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
-  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {} } = options;
+  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {}, blockBytes = BLOCK_BYTES, syncEveryBytes = SYNC_EVERY_BYTES } = options;
   const receive = async (req: Request, stream: Readable): Promise<ReceivedFile> => {
     const onStoreDisk = store.stagingPath !== undefined && store.adoptFile !== undefined;
     let file: string;
@@ -83,7 +87,7 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
       while (done < bytes.length) done += (await fh.write(bytes, done, bytes.length - done, at + done)).bytesWritten;
     };
     try {
-      let block = new Uint8Array(BLOCK);
+      let block = new Uint8Array(blockBytes);
       let filled = 0;
       const flush = async () => {
         if (filled === 0) return;
@@ -98,17 +102,17 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
         if (reader !== null) {
           const r = reader;
           // The reader takes the block over (transferred, not copied) and hands it back when it has scanned it.
-          handedOver = Promise.all([handedOver, written]).then(() => r.push(n === BLOCK ? whole : whole.slice(0, n)));
+          handedOver = Promise.all([handedOver, written]).then(() => r.push(n === blockBytes ? whole : whole.slice(0, n)));
           job = handedOver;
-          block = r.spareBlock(BLOCK) ?? new Uint8Array(BLOCK);
+          block = r.spareBlock(blockBytes) ?? new Uint8Array(blockBytes);
         } else {
           job = written.then(() => { spare.push(whole); });
-          block = spare.pop() ?? new Uint8Array(BLOCK);
+          block = spare.pop() ?? new Uint8Array(blockBytes);
         }
         job.catch(() => {}); // awaited below; this only keeps an early failure from being reported as unhandled
         inFlight.push(job);
         filled = 0;
-        if (unsynced >= SYNC_EVERY) {
+        if (unsynced >= syncEveryBytes) {
           // Sync what is written so far while more arrives, so the last sync has little left to write.
           await Promise.all(inFlight.splice(0));
           await syncing;
@@ -121,11 +125,11 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
         size += chunk.length;
         let at = 0;
         while (at < chunk.length) {
-          const n = Math.min(BLOCK - filled, chunk.length - at);
+          const n = Math.min(blockBytes - filled, chunk.length - at);
           block.set(chunk.subarray(at, at + n), filled);
           filled += n;
           at += n;
-          if (filled === BLOCK) await flush();
+          if (filled === blockBytes) await flush();
         }
       }
       await flush();
