@@ -130,7 +130,7 @@ async function main(): Promise<void> {
     console.log(`baseline, in-process readCaptureFile + analyzeShot (${baseline.length} runs, one before each shot): median ${f(base.median)}, p95 ${f(base.p95)}`);
     console.log(`pipeline, upload start → analysis stored, ${SHOTS} shots one after another (poll every ${POLL_MS} ms):`);
     console.log(`  cold (shot 1, ${START_PAUSE_MS / 1000} s after the processes were ready): ${f(total[0])}, ${(total[0] / warm.median).toFixed(2)}× the warm median (target ≤ 2×)`);
-    console.log(`    its stages: to analysis row ${f(coldStages[0])}, analysis queue ${f(coldStages[1])}, analysis ${f(coldStages[2])}, seen by the poll ${f(coldStages[3])}`);
+    console.log(`    its stages: to analysis row ${f(coldStages[0])} (of which the upload request ${f(uploadHttp[0])}), analysis queue ${f(coldStages[1])}, analysis ${f(coldStages[2])}, seen by the poll ${f(coldStages[3])}`);
     console.log(`  warm (shots 2–${SHOTS}): median ${f(warm.median)}, p95 ${f(warm.p95)}, min ${f(warm.min)}, max ${f(warm.max)}`);
     console.log(`  all ${SHOTS}: median ${f(all.median)}, p95 ${f(all.p95)}`);
     console.log(`  of which the upload request itself (warm): median ${f(up.median)}, p95 ${f(up.p95)}`);

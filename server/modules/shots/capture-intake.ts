@@ -30,15 +30,21 @@ export interface CaptureIntakeOptions {
   limits?: CaptureLimits;
   /** Reads at once in this process at most (each holds a capture's samples in memory). @default 2 */
   maxReads?: number;
+  /** Size of the blocks written, hashed and handed to the reader (tests make it small). @default 1 MiB */
+  blockBytes?: number;
+  /** Sync the file to disk every this many bytes while it arrives. @default 64 MiB */
+  syncEveryBytes?: number;
 }
 
 /** Reads running in this process (across requests). */
 let reading = 0;
 
 /** Size of the blocks written, hashed and handed to the reader. */
-const BLOCK = 1 << 20;
+const BLOCK_BYTES = 1 << 20;
 /** Sync the file to disk every this many bytes while it arrives, so the last sync has little left to write. */
-const SYNC_EVERY = 64 << 20;
+const SYNC_EVERY_BYTES = 64 << 20;
+/** Blocks written or handed over at once while the next ones arrive. */
+const MAX_IN_FLIGHT = 4;
 
 /**
  * A multer storage engine that takes each uploaded file in one pass over its bytes: hashed (SHA-256), written
@@ -47,7 +53,7 @@ const SYNC_EVERY = 64 << 20;
  * route then names the blob by its hash.
  */
 export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
-  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {} } = options;
+  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {}, blockBytes = BLOCK_BYTES, syncEveryBytes = SYNC_EVERY_BYTES } = options;
   const receive = async (req: Request, stream: Readable): Promise<ReceivedFile> => {
     const onStoreDisk = store.stagingPath !== undefined && store.adoptFile !== undefined;
     let file: string;
@@ -65,44 +71,74 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
     const hash = createHash('sha256');
     const fh = await open(file, 'wx');
     let size = 0;
-    let syncing: Promise<void> | null = null;
+    let syncing: Promise<void> = Promise.resolve();
     let unsynced = 0;
+    let position = 0;
+    // Blocks being written (and, with a reader, handed over) while the next ones arrive. Awaiting each write before
+    // taking more bytes held the upload back for a write's round trip per megabyte: on the 330 MB deep capture the
+    // request took 2.3 s against 0.7 s for the bytes alone over loopback.
+    const inFlight: Promise<void>[] = [];
+    // Blocks written and free to be filled again (without a reader; with one, the reader hands them back).
+    const spare: Uint8Array<ArrayBuffer>[] = [];
+    // The reader's blocks go over in the order they arrived, each once it is on disk.
+    let handedOver: Promise<void> = Promise.resolve();
+    const writeAt = async (bytes: Uint8Array, at: number) => {
+      let done = 0;
+      while (done < bytes.length) done += (await fh.write(bytes, done, bytes.length - done, at + done)).bytesWritten;
+    };
     try {
-      let block = new Uint8Array(BLOCK);
+      let block = new Uint8Array(blockBytes);
       let filled = 0;
       const flush = async () => {
         if (filled === 0) return;
-        const bytes = block.subarray(0, filled);
+        const whole = block;
+        const n = filled;
+        const bytes = whole.subarray(0, n);
         hash.update(bytes);
-        let written = 0;
-        while (written < filled) written += (await fh.write(bytes, written, filled - written)).bytesWritten;
-        unsynced += filled;
-        if (unsynced >= SYNC_EVERY) {
+        const written = writeAt(bytes, position);
+        position += n;
+        unsynced += n;
+        let job: Promise<void>;
+        if (reader !== null) {
+          const r = reader;
+          // The reader takes the block over (transferred, not copied) and hands it back when it has scanned it.
+          handedOver = Promise.all([handedOver, written]).then(() => r.push(n === blockBytes ? whole : whole.slice(0, n)));
+          job = handedOver;
+          block = r.spareBlock(blockBytes) ?? new Uint8Array(blockBytes);
+        } else {
+          job = written.then(() => { spare.push(whole); });
+          block = spare.pop() ?? new Uint8Array(blockBytes);
+        }
+        job.catch(() => {}); // awaited below; this only keeps an early failure from being reported as unhandled
+        inFlight.push(job);
+        filled = 0;
+        if (unsynced >= syncEveryBytes) {
+          // Sync what is written so far while more arrives, so the last sync has little left to write.
+          await Promise.all(inFlight.splice(0));
           await syncing;
           syncing = fh.datasync();
           unsynced = 0;
         }
-        // The reader takes the block over (transferred, not copied); this side starts a new one.
-        if (reader !== null) await reader.push(filled === BLOCK ? block : block.slice(0, filled));
-        block = new Uint8Array(BLOCK);
-        filled = 0;
+        while (inFlight.length >= MAX_IN_FLIGHT) await inFlight.shift();
       };
       for await (const chunk of stream as AsyncIterable<Buffer>) {
         size += chunk.length;
         let at = 0;
         while (at < chunk.length) {
-          const n = Math.min(BLOCK - filled, chunk.length - at);
+          const n = Math.min(blockBytes - filled, chunk.length - at);
           block.set(chunk.subarray(at, at + n), filled);
           filled += n;
           at += n;
-          if (filled === BLOCK) await flush();
+          if (filled === blockBytes) await flush();
         }
       }
       await flush();
+      await Promise.all(inFlight.splice(0));
       reader?.end();
       await syncing;
       await fh.sync();
     } catch (error) {
+      await Promise.allSettled([...inFlight, syncing]);
       await reader?.close();
       await fh.close().catch(() => {});
       await rm(file, { force: true });

@@ -21,6 +21,9 @@ async function* arriving(): AsyncGenerator<Uint8Array> {
     if (block !== undefined) {
       post({ type: 'taken', bytes: block.byteLength });
       yield block;
+      // The reader copies what it keeps of a block before asking for the next one: the block goes back to be
+      // filled again.
+      post({ type: 'taken', bytes: 0, buffer: block.buffer as ArrayBuffer }, [block.buffer as ArrayBuffer]);
       continue;
     }
     if (ended) return;

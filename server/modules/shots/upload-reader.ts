@@ -15,12 +15,14 @@ export interface UploadRead extends PreparedChannelFiles {
 }
 
 export type UploadReaderReply =
-  | { type: 'taken'; bytes: number }
+  | { type: 'taken'; bytes: number; buffer?: ArrayBuffer }
   | ({ type: 'read'; ok: true } & UploadRead)
   | { type: 'read'; ok: false; reason: string };
 
 /** Bytes handed to the thread and not yet taken by its scanner before push() waits (the socket is paused meanwhile). */
 const MAX_AHEAD = 32 << 20;
+/** Handed-back blocks kept for reuse at most. */
+const MAX_SPARE = 8;
 
 /**
  * Reads an upload in a worker thread while its bytes arrive (upload-reader-thread.ts), with the importer's stream
@@ -30,6 +32,8 @@ const MAX_AHEAD = 32 << 20;
 export class UploadReader {
   private readonly worker: Worker;
   private ahead = 0;
+  /** Blocks the thread has finished with and handed back, for the intake to fill again. */
+  private readonly spare: Uint8Array<ArrayBuffer>[] = [];
   private waiting: (() => void) | null = null;
   private closed = false;
   /** The read is over (done or failed): blocks are no longer needed. */
@@ -45,6 +49,7 @@ export class UploadReader {
       this.worker.on('message', (reply: UploadReaderReply) => {
         if (reply.type === 'taken') {
           this.ahead -= reply.bytes;
+          if (reply.buffer !== undefined && this.spare.length < MAX_SPARE) this.spare.push(new Uint8Array(reply.buffer));
           if (this.ahead <= MAX_AHEAD) this.release();
         } else {
           this.settled = true;
@@ -71,6 +76,19 @@ export class UploadReader {
     const w = this.waiting;
     this.waiting = null;
     w?.();
+  }
+
+  /**
+   * A block the thread has handed back (its size is the one it was sent with), or null. Reusing them keeps the
+   * upload from allocating (and the collector from freeing) a fresh megabyte for every megabyte that arrives:
+   * measured on the 330 MB deep capture, that churn cost the API's main thread about as much as hashing the file.
+   */
+  spareBlock(size: number): Uint8Array<ArrayBuffer> | null {
+    while (this.spare.length > 0) {
+      const block = this.spare.pop()!;
+      if (block.byteLength === size) return block;
+    }
+    return null;
   }
 
   /** Hands `block` to the thread (it must own its whole buffer, which is transferred); waits while the thread is far behind. */

@@ -12,6 +12,7 @@ import { captureFilesPrefix, placeChannelFiles, putChannelBlobs } from '../../tr
 import { captureIntake, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
 import { settleShot } from './settle-shot.ts';
+import { analyseReadFiles } from '../analyses/service.ts';
 import { formatBytes } from '../../../shared/units/format-bytes.ts';
 import { assertStorageRoom } from '../storage/service.ts';
 
@@ -170,10 +171,17 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
       const { files, blobs } = placeChannelFiles(captureFilesPrefix(capture.labId, capture.id), read);
       await putChannelBlobs(deps.blobStore, blobs);
       // Only a capture still queued for this attempt: a worker that took the job over meanwhile has the last word.
-      await Capture.update(
+      const [marked] = await Capture.update(
         { state: 'ready', progress: 100, layout: read.layout, channels: files, sampleCount: read.length, timeBase: files.time, warnings: read.warnings, error: null },
         { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'queued' } },
       );
+      // Queue the shot's analysis from here, as the ingest job would once it found the capture read: one job
+      // hand-over less between the last byte and the result. The released ingest job then finds the analysis
+      // keyed and queued already (the same key, so never a second one) and only writes the status again.
+      if (marked > 0) {
+        await analyseReadFiles(deps, capture.shotId);
+        await settleShot(capture.shotId);
+      }
     }
   } catch (err) {
     deps.logger.warn({ captureId: capture.id, err: (err as Error).message }, 'reading the upload in the API failed; the worker reads it');

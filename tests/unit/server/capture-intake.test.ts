@@ -1,0 +1,68 @@
+// The upload intake (server/modules/shots/capture-intake.ts) with small blocks, so a file of a few hundred kilobytes
+// goes through every path a deep upload takes: several blocks written at once, the periodic sync, blocks handed to
+// the reading thread in order and handed back, a last partial block. The reference is the input itself: the stored
+// file must be the same bytes, the hash Node's SHA-256 of them, and the reader's samples the disk reader's.
+import { createHash } from 'node:crypto';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { Readable } from 'node:stream';
+import type { Request } from 'express';
+import { afterAll, describe, expect, it } from 'vitest';
+import { simulatedCsv } from '../../../bench/lib/pipeline-client.ts';
+import { captureIntake, type ReceivedFile } from '../../../server/modules/shots/capture-intake.ts';
+import { LocalDiskStore } from '../../../server/storage/local-disk-store.ts';
+import { readCaptureFile } from '../../../worker/import/read-capture-file.ts';
+
+const dir = mkdtempSync(path.join(tmpdir(), 'intake-test-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** The bytes in chunks of uneven sizes (1 B to 9 KiB, fixed by a seed), as a socket delivers them. */
+function chunked(bytes: Uint8Array, seed: number): Readable {
+  let state = seed;
+  const chunks: Buffer[] = [];
+  for (let at = 0; at < bytes.length;) {
+    state = (state * 1103515245 + 12345) % 2147483648;
+    const n = 1 + (state % 9216);
+    chunks.push(Buffer.from(bytes.subarray(at, at + n)));
+    at += n;
+  }
+  return Readable.from(chunks);
+}
+
+function receive(bytes: Uint8Array, readFromBytes: number, seed: number): Promise<ReceivedFile> {
+  const intake = captureIntake({ store: new LocalDiskStore(path.join(dir, 'blobs')), uploadsDir: dir, readFromBytes, blockBytes: 4096, syncEveryBytes: 64 << 10 });
+  const req = { headers: { 'content-length': String(bytes.length) } } as unknown as Request;
+  return new Promise((resolve, reject) => {
+    intake._handleFile(req, { stream: chunked(bytes, seed) } as Express.Multer.File, (err, info) => (err ? reject(err) : resolve(info as unknown as ReceivedFile)));
+  });
+}
+
+describe('When an upload arrives in uneven chunks through small blocks', () => {
+  const csv = simulatedCsv({ seed: 31, length: 6000 });
+  const sha256 = createHash('sha256').update(csv.bytes).digest('hex');
+
+  it('then without a reader the stored file is the same bytes and the hash is their SHA-256', async () => {
+    expect(csv.bytes.length).toBeGreaterThan(3 * (64 << 10)); // dozens of blocks and several syncs
+    const got = await receive(csv.bytes, -1, 7);
+    expect(got.reader).toBeNull();
+    expect(got.size).toBe(csv.bytes.length);
+    expect(got.sha256).toBe(sha256);
+    expect(Buffer.compare(readFileSync(got.path), Buffer.from(csv.bytes))).toBe(0);
+  });
+
+  it("then with a reader the file is the same too, and the reader's samples are the disk reader's to the bit", async () => {
+    const got = await receive(csv.bytes, 0, 11);
+    expect(got.reader).not.toBeNull();
+    expect(got.sha256).toBe(sha256);
+    expect(Buffer.compare(readFileSync(got.path), Buffer.from(csv.bytes))).toBe(0);
+    const read = await got.reader!.outcome;
+    await got.reader!.close();
+    if ('problem' in read) throw new Error(read.problem);
+    const reference = await readCaptureFile(got.path);
+    expect(read.length).toBe(reference.length);
+    const f64 = read.blobs.find((b) => b.key === 'ch1/values.f64')!;
+    const values = new Float64Array(f64.bytes.buffer, f64.bytes.byteOffset, f64.bytes.byteLength / 8);
+    expect(Buffer.compare(Buffer.from(values.buffer, values.byteOffset, values.byteLength), Buffer.from(reference.channels[1].values.buffer, reference.channels[1].values.byteOffset, reference.channels[1].values.byteLength))).toBe(0);
+  });
+});
