@@ -55,6 +55,10 @@ describe('shot workspace', () => {
       await page.goto(shotUrl);
       await page.getByText('Drop the scope’s CSV exports here').waitFor();
       await saveScreenshot(page, 'shot-empty');
+      // Files dropped together go up in one request, so the shot's automatic analysis reads both (one request per
+      // file let gate A be analysed alone first when the machine was busy: a stray version from one gate).
+      const uploads: string[] = [];
+      page.on('request', (r) => { if (r.method() === 'POST' && /\/captures$/.test(r.url())) uploads.push(r.url()); });
       const files = ['per-channel-gate-a.csv', 'per-channel-gate-b.csv'].map((name) => ({ name, text: readFileSync(path.join(FIXTURES, name), 'latin1') }));
       await page.getByTestId('drop-zone').evaluate((zone, list) => {
         const transfer = new DataTransfer();
@@ -69,6 +73,9 @@ describe('shot workspace', () => {
       await saveScreenshot(page, 'shot-uploading');
       await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(2);
       await page.getByTestId('speed').waitFor({ timeout: 120_000 });
+      expect(uploads).toHaveLength(1);
+      // One automatic version, of both files: the flight between the two gates.
+      await expect.poll(async () => (await page.getByTestId('versions').locator('tbody tr').count()), { timeout: 30_000 }).toBe(1);
       await saveScreenshot(page, 'shot-analysed-v1');
     } finally {
       await experimenter.close();

@@ -6,11 +6,26 @@ import { shotKeys } from './shot.ts';
 
 export interface UploadedCapture { id: string; fileName: string; state: string; duplicate: boolean }
 
-/** Uploads one file (one request per file, so each gets its own progress bar). */
-export function uploadCapture(shotId: string, file: File, onProgress: (fraction: number) => void) {
+/**
+ * Uploads the files dropped or chosen together in one request, so the server records them all before any is read and
+ * the shot's automatic analysis reads them together. (One request per file let the first file of a pair be read and
+ * analysed alone before the second arrived: an extra automatic version from one gate, then the real one.) Each file
+ * still gets its own progress: multipart sends the files in order, so the bytes sent so far fall in one file's share
+ * of the body (the few bytes of part headers aside).
+ */
+export function uploadCaptures(shotId: string, files: File[], onProgress: (fractions: number[]) => void) {
   const form = new FormData();
-  form.append('files', file, file.name);
-  return api.upload<{ captures: UploadedCapture[] }>(`/api/shots/${shotId}/captures`, form, onProgress);
+  for (const file of files) form.append('files', file, file.name);
+  const total = files.reduce((sum, f) => sum + f.size, 0);
+  return api.upload<{ captures: UploadedCapture[] }>(`/api/shots/${shotId}/captures`, form, (fraction) => {
+    const sent = fraction * total;
+    let before = 0;
+    onProgress(files.map((f) => {
+      const share = f.size === 0 ? (sent >= before ? 1 : 0) : Math.min(1, Math.max(0, (sent - before) / f.size));
+      before += f.size;
+      return share;
+    }));
+  });
 }
 
 /** One channel's full-precision-enough samples (Float32) for the browser's live preview. */

@@ -1,14 +1,14 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useRef, useState, type DragEvent } from 'react';
 import { Badge, Button, ErrorNote } from '../../../components/ui/primitives.tsx';
-import { uploadCapture } from '../api/captures.ts';
+import { uploadCaptures } from '../api/captures.ts';
 import { shotKeys } from '../api/shot.ts';
 
 interface Sending { key: string; name: string; fraction: number; error?: string; done?: boolean; duplicate?: boolean }
 
 /**
- * Drop zone for scope files: each file goes up in its own request with its own progress bar; reading and
- * analysing then show in the capture list as the worker reports them.
+ * Drop zone for scope files: the files dropped together go up in one request (uploadCaptures), each with its own
+ * progress bar; reading and analysing then show in the capture list as the worker reports them.
  */
 export function CaptureDrop({ shotId, disabled, disabledReason }: { shotId: string; disabled: boolean; disabledReason?: string }) {
   const queryClient = useQueryClient();
@@ -20,16 +20,14 @@ export function CaptureDrop({ shotId, disabled, disabledReason }: { shotId: stri
     const batch = files.map((f, i) => ({ key: `${Date.now()}-${i}-${f.name}`, name: f.name, fraction: 0 }));
     setSending((s) => [...batch, ...s].slice(0, 20));
     const update = (key: string, patch: Partial<Sending>) => setSending((s) => s.map((x) => (x.key === key ? { ...x, ...patch } : x)));
-    for (let i = 0; i < files.length; i++) {
-      const { key } = batch[i];
-      try {
-        const r = await uploadCapture(shotId, files[i], (fraction) => update(key, { fraction }));
-        update(key, { fraction: 1, done: true, duplicate: r.captures[0]?.duplicate });
-      } catch (err) {
-        update(key, { error: (err as Error).message });
-      }
-      void queryClient.invalidateQueries({ queryKey: shotKeys.detail(shotId) });
+    try {
+      const r = await uploadCaptures(shotId, files, (fractions) => fractions.forEach((fraction, i) => update(batch[i].key, { fraction })));
+      batch.forEach(({ key }, i) => update(key, { fraction: 1, done: true, duplicate: r.captures[i]?.duplicate }));
+    } catch (err) {
+      // One request: what refused it (too large, not multipart, signed out) holds for every file in it.
+      batch.forEach(({ key }) => update(key, { error: (err as Error).message }));
     }
+    void queryClient.invalidateQueries({ queryKey: shotKeys.detail(shotId) });
   };
 
   const onDrop = (e: DragEvent) => {

@@ -4,7 +4,7 @@ import { useNavigate } from 'react-router-dom';
 import { api } from '../../../lib/api-client.ts';
 import { ErrorNote } from '../../../components/ui/primitives.tsx';
 import { nextShotBody, type ShotSetUp } from '../../../../shared/contracts/shots.ts';
-import { uploadCapture } from '../api/captures.ts';
+import { uploadCaptures } from '../api/captures.ts';
 
 interface LatestShot { shots: ShotSetUp[] }
 
@@ -33,9 +33,12 @@ export function DropToNewShot({ labId, campaignId }: { labId: string; campaignId
         `/api/labs/${labId}/shots`,
         nextShotBody(campaignId, last, 'Logged by dropping files on the campaign; check the conditions.', new Date().toISOString()),
       );
-      for (let i = 0; i < files.length; i++) {
-        await uploadCapture(shot.id, files[i], (f) => setStatus(`Shot #${shot.number}: sending ${files[i].name} (${Math.round(f * 100)} %)`));
-      }
+      // All files in one request, so the shot's automatic analysis reads them together.
+      const names = files.length === 1 ? files[0].name : `${files.length} files`;
+      await uploadCaptures(shot.id, files, (fractions) => {
+        const share = files.reduce((sum, f, i) => sum + f.size * fractions[i], 0) / Math.max(1, files.reduce((sum, f) => sum + f.size, 0));
+        setStatus(`Shot #${shot.number}: sending ${names} (${Math.round(share * 100)} %)`);
+      });
       void queryClient.invalidateQueries({ queryKey: ['labs', labId] });
       navigate(`/labs/${labId}/shots/${shot.id}`);
     } catch (err) {
