@@ -44,7 +44,17 @@ const ROLE_WORDS: Record<string, string> = { admin: 'lab admin', experimenter: '
 
 const str = (x: unknown) => (typeof x === 'string' ? x : x == null ? '' : String(x));
 const version = (d: Record<string, unknown>) => (typeof d.version === 'number' ? ` (version ${d.version})` : '');
-const quote = (x: unknown) => (str(x) ? `: “${str(x)}”` : '');
+/** Longest quoted comment in a sentence; the whole text stays in the event's details. */
+export const QUOTE_MAX_CHARS = 200;
+/** A person's words, quoted after a colon and cut at a word boundary (with "…") when longer than QUOTE_MAX_CHARS. */
+const quote = (x: unknown) => {
+  const text = str(x).trim().replace(/\s+/g, ' ');
+  if (!text) return '';
+  if (text.length <= QUOTE_MAX_CHARS) return `: “${text}”`;
+  const cut = text.slice(0, QUOTE_MAX_CHARS);
+  const space = cut.lastIndexOf(' ');
+  return `: “${(space > QUOTE_MAX_CHARS / 2 ? cut.slice(0, space) : cut).replace(/[\s,;:.]+$/, '')}…”`;
+};
 
 export function auditSentence(e: AuditEventLike, options: { thisShot?: boolean } = {}): AuditSentence {
   const d = e.details ?? {};
@@ -67,7 +77,7 @@ export function auditSentence(e: AuditEventLike, options: { thisShot?: boolean }
     case 'capture.reingest': return aboutShot('had a file read again with other settings on');
     case 'analysis.requested': return aboutShot('recomputed', version(d));
     case 'review.requested': return aboutShot('sent', version(d), ` for review${quote(d.message)}`);
-    case 'review.approved': return aboutShot('signed off', version(d));
+    case 'review.approved': return aboutShot('signed off', version(d), quote(d.comment));
     case 'review.returned': return aboutShot('returned', version(d), quote(d.comment));
     case 'review.withdrawn': return { who: 'Gatepost', verb: 'withdrew the review request of', shot: shotName, rest: `${of}${d.reason ? `: ${str(d.reason)}` : ''}` };
     case 'comment.added': return aboutShot(d.replyTo ? 'replied to a comment on' : 'commented on');

@@ -11,3 +11,26 @@ describe('auditSentence of account events (issue 12, item 10)', () => {
     expect(`${s.who} ${s.verb}${s.rest}`).toBe('Tomas Reyes set a new password with a reset link (every session signed out)');
   });
 });
+
+describe('auditSentence of review decisions (issue 11 review, gap b)', () => {
+  const shot = { id: 's5', number: 5, campaignName: 'Vacuum sweep, autumn 2026' };
+  const line = (s: ReturnType<typeof auditSentence>) => `${s.who} ${s.verb} ${s.shot}${s.rest}`;
+  it('When a reviewer signs off with a comment, then the sentence quotes it', () => {
+    const s = auditSentence({ action: 'review.approved', actor: 'Marek Vintner', shot, details: { version: 2, comment: 'Residuals flat; fine for the report.' } });
+    expect(line(s)).toBe('Marek Vintner signed off shot #5 (version 2) of Vacuum sweep, autumn 2026: “Residuals flat; fine for the report.”');
+  });
+  it('When a sign-off has no comment, then the sentence ends after the campaign', () => {
+    const s = auditSentence({ action: 'review.approved', actor: 'Marek Vintner', shot, details: { version: 2, comment: null } });
+    expect(line(s)).toBe('Marek Vintner signed off shot #5 (version 2) of Vacuum sweep, autumn 2026');
+  });
+  it('When a return comment is long, then the sentence quotes its start, cut at a word, with an ellipsis', () => {
+    const comment = `${'Gate C dip is real. '.repeat(15)}Last words.`;
+    const s = auditSentence({ action: 'review.returned', actor: 'Marek Vintner', shot, details: { version: 1, comment } });
+    const quoted = /: “(.*)”$/.exec(s.rest)![1];
+    expect(quoted.endsWith('…')).toBe(true);
+    expect(quoted.length).toBeLessThanOrEqual(201);
+    expect(comment.startsWith(quoted.slice(0, -1))).toBe(true);
+    expect(quoted).not.toContain('Last words');
+    expect(quoted.slice(0, -1)).toMatch(/real$/);
+  });
+});
