@@ -138,4 +138,43 @@ describe('check the time base', () => {
     expect(after.points[1].timeBase).toBe('confirmed');
     expect(after.groups[0].count).toBe(2);
   });
+
+  it('When a flagged version is sent for review, then it is accepted with a warning and the audit entry records it; an unflagged one gets no warning', async () => {
+    const bad = await analysedShot(h, { misreadInterval: 1 });
+    const sent = await post('experimenter', `/api/shots/${bad.shotId}/review-requests`, { message: 'please look at the time base' });
+    expect(sent.status).toBe(201);
+    expect(sent.body.warnings).toEqual([{ code: 'time_base_unchecked', message: expect.stringMatching(/^Version 1 is marked "check the time base": a reviewer can return it but cannot sign it off/) }]);
+    const audit = await AuditEvent.findOne({ where: { action: 'review.requested', targetId: bad.shotId } });
+    expect(audit!.details).toMatchObject({ version: 1, timeBaseUnchecked: true });
+
+    const good = await analysedShot(h);
+    const fine = await post('experimenter', `/api/shots/${good.shotId}/review-requests`);
+    expect(fine.status).toBe(201);
+    expect(fine.body.warnings).toEqual([]);
+  });
+
+  it('When a flagged version is exported on its own, then the CSV leads with a "time base" record and the JSON carries the state, until and after it is confirmed', async () => {
+    const bad = await analysedShot(h, { misreadInterval: 1 });
+    const csvRows = async () => parse((await get('reviewer', `/api/shots/${bad.shotId}/export?format=csv`)).text, { bom: true }) as string[][];
+    const before = await csvRows();
+    const note = before[0].indexOf('Note');
+    expect(before[1][0]).toBe('time base');
+    expect(before[1][note]).toMatch(/^check the time base: the speed of 0\.00006 m\/s .*Not a measurement until an analyst confirms the read or fixes it in a new version\.$/);
+    expect(before.find((r) => r[0] === 'speed')![note]).toMatch(/; check the time base: not a measurement until an analyst confirms the read$/);
+    const json = (await get('reviewer', `/api/shots/${bad.shotId}/export?format=json`)).body;
+    expect(json.timeBaseCheck).toMatchObject({ state: 'unchecked', confirmation: null });
+    expect(json.timeBaseCheck.reasons.map((r: { code: string }) => r.code)).toEqual(['speed-range', 'coarse-sampling', 'time-base-assumed']);
+
+    expect((await post('analyst', `/api/shots/${bad.shotId}/analyses/${bad.analysisId}/time-base-confirmation`, { note: 'slow roll, checked' })).status).toBe(201);
+    const after = await csvRows();
+    expect(after[1][0]).toBe('time base');
+    expect(after[1][note]).toMatch(/^time base checked by .+, \d{4}-\d{2}-\d{2}: "slow roll, checked" \(it had been marked: /);
+    expect(after.find((r) => r[0] === 'speed')![note]).not.toMatch(/check the time base/);
+    expect((await get('reviewer', `/api/shots/${bad.shotId}/export?format=json`)).body.timeBaseCheck).toMatchObject({ state: 'confirmed', confirmation: { note: 'slow roll, checked' } });
+
+    const good = await analysedShot(h);
+    const plain = parse((await get('reviewer', `/api/shots/${good.shotId}/export?format=csv`)).text, { bom: true }) as string[][];
+    expect(plain.some((r) => r[0] === 'time base')).toBe(false);
+    expect((await get('reviewer', `/api/shots/${good.shotId}/export?format=json`)).body.timeBaseCheck).toMatchObject({ state: null });
+  });
 });

@@ -9,7 +9,9 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { labOfShot } from '../shots/routes.ts';
 import { fitCampaignLauncher } from '../trends/launcher-fit.ts';
 import { campaignTrendPoints } from '../trends/trend-points.ts';
-import { CAMPAIGN_COLUMNS, campaignRows, SHOT_COLUMNS, shotRows } from './rows.ts';
+import { timeBaseStatus } from '../analyses/time-base-status.ts';
+import { namesOf } from '../reviews/people.ts';
+import { CAMPAIGN_COLUMNS, campaignRows, SHOT_COLUMNS, shotRows, type ShotTimeBase } from './rows.ts';
 import { csvWords } from './csv-words.ts';
 import { fileSlug, toCsv, type CsvValue } from './to-csv.ts';
 
@@ -49,7 +51,8 @@ export function exportRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/shots/:shotId/export',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
-      summary: "The current analysis's gate crossings, pulses and speed lines as a CSV or JSON file (SI units; the CSV rounds each speed to its U unless precision=full; shots does not apply)",
+      summary: "The current analysis's gate crossings, pulses and speed lines as a CSV or JSON file (SI units; the CSV rounds each speed to its U unless precision=full; shots does not apply). " +
+        'A version marked "check the time base" leads the CSV with a "time base" record saying why (and its speed line says so); the JSON carries timeBaseCheck {state, reasons, confirmation}',
       query: exportQuery,
       response: { status: 200, description: 'A CSV (text/csv) or JSON file, as an attachment' },
       async handler(req, res) {
@@ -59,10 +62,18 @@ export function exportRoutes(): RouteDef[] {
         const analysis = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
         if (!analysis || analysis.state !== 'done') throw conflict('This shot has no finished analysis to export yet.');
         const campaign = await Campaign.findByPk(shot.campaignId, { attributes: ['name'] });
-        const rows = shotRows(analysis.results as Partial<ShotAnalysis> | null, format === 'csv' ? precision : 'full');
+        const status = timeBaseStatus(analysis, await namesOf(analysis.timeBaseConfirmedBy ? [analysis.timeBaseConfirmedBy] : []));
+        const timeBase: ShotTimeBase = {
+          state: !status.flagged ? null : status.confirmation ? 'confirmed' : 'unchecked',
+          reasons: status.reasons.map((r) => ({ code: r.code, message: r.message })),
+          confirmation: status.confirmation ? { by: status.confirmation.by?.name ?? null, at: new Date(status.confirmation.at).toISOString(), note: status.confirmation.note } : null,
+        };
+        const rows = shotRows(analysis.results as Partial<ShotAnalysis> | null, format === 'csv' ? precision : 'full', timeBase);
         await recordAudit({ labId: shot.labId, actorId: req.auth!.userId, action: 'shot.exported', targetType: 'shot', targetId: shot.id, details: { format, version: analysis.version }, ip: clientIp(req) });
         send(res, format, `${fileSlug(campaign?.name ?? 'campaign')}-shot-${shot.number}-v${analysis.version}`, SHOT_COLUMNS, rows, {
           shot: { id: shot.id, number: shot.number, campaign: campaign?.name ?? null }, analysisVersion: analysis.version, exportedAt: new Date().toISOString(),
+          // "check the time base": state null (not flagged), "unchecked" (not a measurement yet) or "confirmed".
+          timeBaseCheck: timeBase,
         });
       },
     },

@@ -69,6 +69,21 @@ export async function campaignRows(campaign: Campaign, options: ExportOptions = 
   });
 }
 
+/** A version's "check the time base" state as the per-shot export states it (timeBaseStatus, in short). */
+export interface ShotTimeBase {
+  /** null: not flagged; unchecked: flagged and not confirmed; confirmed: an analyst checked the read. */
+  state: 'unchecked' | 'confirmed' | null;
+  reasons: { code: string; message: string }[];
+  confirmation: { by: string | null; at: string; note: string } | null;
+}
+
+function timeBaseNote(t: ShotTimeBase): string {
+  const why = t.reasons.map((r) => r.message).join('; ');
+  if (t.state === 'unchecked') return `check the time base: ${why}. Not a measurement until an analyst confirms the read or fixes it in a new version.`;
+  const c = t.confirmation;
+  return `time base checked${c?.by ? ` by ${c.by}` : ''}${c ? `, ${c.at.slice(0, 10)}` : ''}${c?.note ? `: "${c.note}"` : ''} (it had been marked: ${why})`;
+}
+
 export const SHOT_COLUMNS = [
   ['kind', 'Record'], ['channel', 'Channel'], ['gatePositionM', 'Gate position (m)'], ['edge', 'Edge'], ['direction', 'Direction'],
   ['timeS', 'Time (s)'], ['pulseWidthS', 'Pulse width (s)'], ['speedMps', 'Speed (m/s)'], ['uncertaintyMps', 'U (m/s)'], ['note', 'Note'],
@@ -79,7 +94,7 @@ export type ShotRow = Record<(typeof SHOT_COLUMNS)[number][0], CsvValue>;
  * Every gate's crossings (leading and trailing edge of the projectile, mesial-level crossing times) and pulses, then
  * the speed lines: the reported speed, each gate pair's flight speed, each gate's occlusion speed.
  */
-export function shotRows(results: Partial<ShotAnalysis> | null, precision: 'rounded' | 'full' = 'full'): ShotRow[] {
+export function shotRows(results: Partial<ShotAnalysis> | null, precision: 'rounded' | 'full' = 'full', timeBase: ShotTimeBase | null = null): ShotRow[] {
   const rows: ShotRow[] = [];
   // Rounded: a speed and its U per JCGM 100 §7.2.6 (roundedPair). Crossing times, widths and positions carry no
   // uncertainty in this file and someone may recompute from them: 12 significant digits (tidy: 1 fs at 1 ms), only
@@ -87,6 +102,9 @@ export function shotRows(results: Partial<ShotAnalysis> | null, precision: 'roun
   const pair = (v: number | null | undefined, u: number | null | undefined): [CsvValue, CsvValue] => (precision === 'rounded' ? roundedPair(v, u) : [v ?? null, u ?? null]);
   const num = (x: number | null | undefined): CsvValue => (precision === 'rounded' ? tidy(x) : x ?? null);
   const blank = { channel: null, gatePositionM: null, edge: null, direction: null, timeS: null, pulseWidthS: null, speedMps: null, uncertaintyMps: null, note: null };
+  // First, so nobody copies a speed out of the file without seeing it: the version is marked "check the time base".
+  const unchecked = timeBase?.state === 'unchecked';
+  if (timeBase?.state) rows.push({ ...blank, kind: 'time base', note: timeBaseNote(timeBase) });
   for (const gate of results?.gates ?? []) {
     const channel = results?.channels?.find((c) => c.name === gate.channel);
     if (gate.status !== 'ok' || gate.pulses.length === 0) {
@@ -104,7 +122,7 @@ export function shotRows(results: Partial<ShotAnalysis> | null, precision: 'roun
   const speed = results?.speed;
   if (speed) {
     const [v, u] = pair(speed.value, speed.uncertainty);
-    rows.push({ ...blank, kind: 'speed', speedMps: v, uncertaintyMps: u, note: `${speed.method} (${speed.basis}), k = ${speed.coverage}` });
+    rows.push({ ...blank, kind: 'speed', speedMps: v, uncertaintyMps: u, note: `${speed.method} (${speed.basis}), k = ${speed.coverage}${unchecked ? '; check the time base: not a measurement until an analyst confirms the read' : ''}` });
   }
   for (const f of results?.flight ?? []) {
     const [v, u] = pair(f.speed, f.uncertainty);

@@ -34,13 +34,14 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
       method: 'post',
       path: '/api/shots/:shotId/review-requests',
       access: { kind: 'lab', permission: 'reviews:request', labOf: labOfShot },
-      summary: "Send the shot's current analysis version for review; the lab's reviewers are told by e-mail",
+      summary: "Send the shot's current analysis version for review; the lab's reviewers are told by e-mail. A version marked \"check the time base\" " +
+        'and not yet confirmed may be sent, but the answer carries a warning (warnings: [{code: "time_base_unchecked", message}]; empty otherwise): it cannot be signed off until confirmed',
       body: reviewRequestBody,
       response: { status: 201, description: 'The request and the shot, now in review' },
       async handler(req, res) {
         const { message } = req.body as ReviewRequestBody;
         const userId = req.auth!.userId;
-        const { shot, request, analysis } = await requestReview(deps.sequelize, { shotId: req.params.shotId as string, labId: req.lab!.id, userId, message, ip: clientIp(req) });
+        const { shot, request, analysis, warnings } = await requestReview(deps.sequelize, { shotId: req.params.shotId as string, labId: req.lab!.id, userId, message, ip: clientIp(req) });
         await notifySafely(notifyQueueOn(deps.redis), async () => ({
           kind: 'reviewRequested', labId: shot.labId, shotId: shot.id, eventId: request.id,
           recipientIds: (await reviewersOf(shot.labId)).filter((id) => id !== userId),
@@ -49,6 +50,7 @@ export function reviewRoutes(deps: Deps): RouteDef[] {
         res.status(201).json({
           request: { id: request.id, analysisId: analysis.id, analysisVersion: analysis.version, message: request.message, requestedBy: person(names, userId), requestedAt: request.createdAt },
           shot: shotSummary(shot),
+          warnings,
         });
       },
     },

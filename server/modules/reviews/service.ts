@@ -3,7 +3,7 @@ import type { ReviewDecision } from '../../../shared/contracts/review.ts';
 import { Analysis, Review, ReviewRequest, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { conflict, notFound } from '../../lib/errors.ts';
-import { timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
+import { TIME_BASE_ATTRIBUTES, timeBaseStatus, timeBaseUncheckedError } from '../analyses/time-base-status.ts';
 import { settleShot } from '../shots/settle-shot.ts';
 
 /**
@@ -17,7 +17,7 @@ export async function requestReview(sequelize: Sequelize, input: { shotId: strin
     if (!shot) throw notFound('No such shot.');
     if (shot.status === 'in_review') throw conflict('This shot is already waiting for review.');
     if (shot.status === 'approved') throw conflict('This shot is already signed off; recompute it to make a new version that can be reviewed.');
-    const analysis = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction, attributes: ['id', 'version', 'state'] }) : null;
+    const analysis = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction, attributes: ['id', 'version', 'state', 'results', ...TIME_BASE_ATTRIBUTES] }) : null;
     if (!analysis || analysis.state !== 'done') throw conflict('This shot has no finished analysis to review yet; wait for the analysis to finish (or upload a capture first).');
     if (shot.status === 'processing') throw conflict('A recomputation of this shot is still running; send it for review when it has finished.');
     const request = await ReviewRequest.create({ labId: shot.labId, shotId: shot.id, analysisId: analysis.id, requestedBy: userId, message: input.message ?? '' }, { transaction });
@@ -26,8 +26,14 @@ export async function requestReview(sequelize: Sequelize, input: { shotId: strin
     await shot.reload({ transaction });
     return { shot, request, analysis };
   });
-  await recordAudit({ labId: shot.labId, actorId: userId, action: 'review.requested', targetType: 'shot', targetId: shot.id, details: { requestId: request.id, version: analysis.version, message: request.message }, ip: input.ip ?? null });
-  return { shot, request, analysis };
+  // Sending a version marked "check the time base" is allowed (a reviewer may return it, asking for the fix), but the
+  // sender is warned, the audit entry records it, and only its sign-off is refused (decideReview).
+  const timeBaseUnchecked = timeBaseStatus(analysis).blocksApproval;
+  await recordAudit({ labId: shot.labId, actorId: userId, action: 'review.requested', targetType: 'shot', targetId: shot.id, details: { requestId: request.id, version: analysis.version, message: request.message, ...(timeBaseUnchecked ? { timeBaseUnchecked: true } : {}) }, ip: input.ip ?? null });
+  const warnings = timeBaseUnchecked
+    ? [{ code: 'time_base_unchecked', message: `Version ${analysis.version} is marked "check the time base": a reviewer can return it but cannot sign it off until an analyst confirms the read ("I checked the time base") or fixes it in a new version.` }]
+    : [];
+  return { shot, request, analysis, warnings };
 }
 
 /**

@@ -13,6 +13,8 @@ export interface ComparedShot {
     engineVersion: string;
     parameters: Record<string, unknown>;
     results: ShotAnalysis | null;
+    /** Whether the version is marked "check the time base" and whether an analyst has confirmed the read. */
+    timeBaseCheck?: { flagged: boolean; blocksApproval: boolean } | null;
   } | null;
 }
 

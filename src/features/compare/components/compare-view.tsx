@@ -19,6 +19,13 @@ const BASIS: Record<string, string> = { fit: 'fit over all gates', pair: 'one pa
 
 const resultsOf = (s: ComparedShot) => (s.currentAnalysis?.results ?? null) as ShotAnalysis | null;
 
+/** The version's "check the time base" state in the words of the shot page; null when not flagged. */
+export function timeBaseWords(s: ComparedShot): string | null {
+  const check = s.currentAnalysis?.timeBaseCheck;
+  if (!check?.flagged) return null;
+  return check.blocksApproval ? 'check the time base: not a measurement until an analyst confirms the read' : 'time base checked by an analyst';
+}
+
 /** A range around every fired gate of every shot (relative to each shot's alignment), with a margin either side. */
 function defaultRange(shots: ComparedShot[], offsets: number[]): Range {
   let from = Infinity;
@@ -105,8 +112,14 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
   const differing = params.filter((p) => p.differs).length;
   const [onlyDiffering, setOnlyDiffering] = useState(true);
 
-  const rows: { label: string; values: string[] }[] = [
-    { label: 'Speed ± U (k = 2)', values: shots.map((s) => formatMeasurement(resultsOf(s)?.speed?.value, resultsOf(s)?.speed?.uncertainty, 'm/s')) },
+  const anyFlagged = shots.some((s) => timeBaseWords(s) != null);
+  const rows: { label: string; values: string[]; flags?: boolean[] }[] = [
+    {
+      label: 'Speed ± U (k = 2)',
+      values: shots.map((s) => formatMeasurement(resultsOf(s)?.speed?.value, resultsOf(s)?.speed?.uncertainty, 'm/s')),
+      flags: shots.map((s) => s.currentAnalysis?.timeBaseCheck?.blocksApproval === true),
+    },
+    ...(anyFlagged ? [{ label: 'Time base', values: shots.map((s) => timeBaseWords(s) ?? 'not flagged'), flags: shots.map((s) => s.currentAnalysis?.timeBaseCheck?.blocksApproval === true) }] : []),
     { label: 'Method', values: shots.map((s) => { const sp = resultsOf(s)?.speed; return sp ? `${METHOD[sp.method] ?? sp.method}, ${BASIS[sp.basis] ?? sp.basis}` : '—'; }) },
     { label: 'Mach', values: shots.map((s) => formatMeasurement(resultsOf(s)?.derived.mach?.value, resultsOf(s)?.derived.mach?.uncertainty)) },
     { label: 'Gates fired', values: shots.map((s) => { const g = resultsOf(s)?.gates ?? []; return g.length ? `${g.filter((x) => x.status === 'ok').length} of ${g.length}` : '—'; }) },
@@ -191,7 +204,16 @@ export function CompareView({ labId, shots, names }: { labId: string; shots: Com
                   {rows.map((r) => (
                     <tr key={r.label}>
                       <th scope="row" className="px-2 py-1.5 text-left font-medium text-harbour-600">{r.label}</th>
-                      {r.values.map((v, i) => <td key={i} className="px-2 py-1.5 tabular-nums text-harbour-800">{v}</td>)}
+                      {r.values.map((v, i) => (
+                        <td
+                          key={i}
+                          className={`px-2 py-1.5 tabular-nums ${r.flags?.[i] ? (r.label === 'Time base' ? 'font-medium text-signal-800' : 'text-harbour-300') : 'text-harbour-800'}`}
+                          data-testid={r.label === 'Time base' ? 'compare-time-base' : undefined}
+                          data-unchecked={r.flags?.[i] || undefined}
+                        >
+                          {v}
+                        </td>
+                      ))}
                     </tr>
                   ))}
                 </tbody>

@@ -30,15 +30,30 @@ export interface ReviewBarProps {
 
 const textareaClass = 'block w-full rounded-md border-0 bg-white px-2.5 py-1.5 text-sm ring-1 ring-harbour-200 focus:ring-2 focus:ring-harbour-600 aria-[invalid]:ring-red-400';
 
-function SendForReview({ shotId, labId, disabledReason }: { shotId: string; labId: string; disabledReason: string | null }) {
+/**
+ * A version marked "check the time base" may be sent (a reviewer can then return it, or sign it off once an analyst
+ * has confirmed the read), but the sender is told plainly before and while sending: a warning, not a block.
+ */
+function TimeBaseSendWarning({ version }: { version: number | null }) {
+  return (
+    <p role="note" className="rounded-md bg-signal-100 px-3 py-2 text-xs text-signal-800 ring-1 ring-signal-400" data-testid="send-time-base-warning">
+      <span className="font-semibold">{version != null ? `Version ${version}` : 'This version'} is marked “check the time base”.</span>{' '}
+      A reviewer can return it but cannot sign it off until an analyst confirms the read (<em>I checked the time base</em>) or fixes it in a
+      new version. Send it anyway only if you want the time base reviewed, and say so in the message.
+    </p>
+  );
+}
+
+function SendForReview({ shotId, labId, disabledReason, timeBaseFlagged, version }: { shotId: string; labId: string; disabledReason: string | null; timeBaseFlagged: boolean; version: number | null }) {
   const request = useRequestReview(shotId, labId);
   const [open, setOpen] = useState(false);
   const [message, setMessage] = useState('');
   if (!open) {
     return (
       <div className="space-y-1">
-        <Button onClick={() => setOpen(true)} disabled={disabledReason != null}>Send for review</Button>
+        <Button onClick={() => setOpen(true)} disabled={disabledReason != null}>Send for review{timeBaseFlagged ? '…' : ''}</Button>
         {disabledReason && <p className="text-xs text-harbour-500">{disabledReason}</p>}
+        {!disabledReason && timeBaseFlagged && <p className="text-xs text-signal-800">Marked “check the time base”: it cannot be signed off until an analyst confirms the read.</p>}
       </div>
     );
   }
@@ -48,13 +63,14 @@ function SendForReview({ shotId, labId, disabledReason }: { shotId: string; labI
   };
   return (
     <form onSubmit={submit} className="space-y-2">
+      {timeBaseFlagged && <TimeBaseSendWarning version={version} />}
       <label className="block text-xs font-medium text-harbour-800">
         Message to the reviewers <span className="font-normal text-harbour-500">(optional)</span>
         <textarea className={`mt-1 ${textareaClass}`} rows={2} value={message} onChange={(e) => setMessage(e.target.value)} placeholder="What to look at, what changed" />
       </label>
       {request.isError && <ErrorNote error={request.error} />}
       <div className="flex gap-2">
-        <Button type="submit" disabled={request.isPending}>{request.isPending ? 'Sending…' : 'Send'}</Button>
+        <Button type="submit" disabled={request.isPending}>{request.isPending ? 'Sending…' : timeBaseFlagged ? 'Send anyway' : 'Send'}</Button>
         <Button variant="ghost" onClick={() => setOpen(false)}>Cancel</Button>
       </div>
     </form>
@@ -183,7 +199,7 @@ export function ReviewBar(props: ReviewBarProps) {
         <h2 className="text-xs font-semibold uppercase tracking-wide text-harbour-500">Review</h2>
         {headline}
         {signedOffEarlier && <p className="text-xs text-emerald-800">Version {approvedVersion} was signed off earlier; the current version is newer.</p>}
-        {canRequest && (status === 'analysed' || status === 'returned') && <SendForReview shotId={shotId} labId={labId} disabledReason={notReady} />}
+        {canRequest && (status === 'analysed' || status === 'returned') && <SendForReview shotId={shotId} labId={labId} disabledReason={notReady} timeBaseFlagged={props.approvalBlocked != null} version={current?.version ?? null} />}
         {canDecide && status === 'in_review' && <Decide shotId={shotId} labId={labId} version={reviewVersion} blocked={props.approvalBlocked ?? null} />}
         {history.isError && <ErrorNote error={history.error} />}
         <div className="flex flex-wrap items-center gap-x-3 gap-y-1 text-xs">
