@@ -88,23 +88,64 @@ export type ImportOverrides = z.infer<typeof importOverridesSchema>;
 
 export const reingestBody = z.object({ importOptions: importOverridesSchema.default({}) });
 
-/**
- * The conditions a shot needs for its campaign's analysis and trends, with the reason shown on the forms. A shot
- * logged without one is marked "conditions missing" until it is filled in.
- */
-export const NEEDED_CONDITIONS = [
-  { key: 'gateRigId', label: 'gate rig', why: 'gate positions for the speed' },
-  { key: 'projectileId', label: 'projectile', why: 'its length and mass, for the single-gate speed' },
-  { key: 'tubePressurePa', label: 'tube vacuum', why: 'speed against vacuum level in the trends' },
-  { key: 'ambientTemperatureK', label: 'ambient temperature', why: 'the speed of sound, for the Mach number' },
-] as const;
+/** Every condition a campaign can ask its shots for, with the reason shown on the forms. */
+export const CONDITIONS = {
+  gateRigId: { key: 'gateRigId', label: 'gate rig', why: 'gate positions for the speed' },
+  projectileId: { key: 'projectileId', label: 'projectile', why: 'its length and mass, for the single-gate speed and the energy' },
+  tubePressurePa: { key: 'tubePressurePa', label: 'tube vacuum', why: 'speed against vacuum level in the trends' },
+  ambientTemperatureK: { key: 'ambientTemperatureK', label: 'ambient temperature', why: 'the speed of sound, for the Mach number' },
+  ambientPressurePa: { key: 'ambientPressurePa', label: 'ambient pressure', why: 'the outside air that drives the launcher model' },
+} as const;
+export type ConditionKey = keyof typeof CONDITIONS;
+export type NeededCondition = (typeof CONDITIONS)[ConditionKey];
 
-/** Labels of the needed conditions a shot lacks, in NEEDED_CONDITIONS order. */
-export function missingConditions(shot: {
-  projectileId: string | null;
-  gateRigId: string | null;
-  conditions: { tubePressurePa: number | null; ambientTemperatureK: number | null };
-}): string[] {
-  const value = { gateRigId: shot.gateRigId, projectileId: shot.projectileId, ...shot.conditions };
-  return NEEDED_CONDITIONS.filter((c) => value[c.key] == null).map((c) => c.label);
+/**
+ * Mach 0.3 at 15 °C (c = 340.294 m/s, U.S. Standard Atmosphere 1976): below it the air around the projectile behaves
+ * as incompressible and a Mach number says nothing a lab needs (the 0.3 limit is common practice in aerodynamics).
+ */
+export const MACH_MATTERS_FROM_MS = 0.3 * 340.294;
+
+/** What decides which conditions a campaign's shots need: read from the campaign and its shots by the server. */
+export interface CampaignConditionFacts {
+  /** The campaign's launcher tube is logged (length or bore): the trends page's launcher model predicts from it. */
+  launcher: boolean;
+  /** At least one of the campaign's shots logged its tube vacuum (a vacuum sweep, seals compared at a stated vacuum). */
+  vacuumLogged: boolean;
+  /** The fastest speed measured among the campaign's shots (not counting results marked "check the time base"), m/s. */
+  fastestSpeedMs: number | null;
+}
+
+/**
+ * The conditions a shot needs for its campaign's analysis and trends, in form order. Always the gate rig and the
+ * projectile. Tube vacuum when the campaign studies it: its launcher tube is logged (speed against vacuum, launcher
+ * model) or its shots log the vacuum (a shot without it drops out of the speed-against-vacuum plot and the vacuum
+ * groups). Ambient temperature when the Mach number means something: a launcher campaign (near-sonic speeds) or a
+ * shot measured at Mach 0.3 or more. Ambient pressure when the launcher model needs the outside air. A drop tower or
+ * any slow campaign without a tube therefore asks for the rig and the projectile only.
+ */
+export function neededConditions(facts: CampaignConditionFacts): NeededCondition[] {
+  const needs: NeededCondition[] = [CONDITIONS.gateRigId, CONDITIONS.projectileId];
+  if (facts.launcher || facts.vacuumLogged) needs.push(CONDITIONS.tubePressurePa);
+  if (facts.launcher || (facts.fastestSpeedMs != null && facts.fastestSpeedMs >= MACH_MATTERS_FROM_MS)) needs.push(CONDITIONS.ambientTemperatureK);
+  if (facts.launcher) needs.push(CONDITIONS.ambientPressurePa);
+  return needs;
+}
+
+/**
+ * Labels of the needed conditions a shot lacks, in `needed` order: what "conditions missing" lists. A shot logged
+ * without one is marked until it is filled in.
+ */
+export function missingConditions(
+  shot: {
+    projectileId: string | null;
+    gateRigId: string | null;
+    conditions: { tubePressurePa: number | null; ambientTemperatureK: number | null; ambientPressurePa?: number | null };
+  },
+  needed: readonly NeededCondition[],
+): string[] {
+  const value: Record<ConditionKey, unknown> = {
+    gateRigId: shot.gateRigId, projectileId: shot.projectileId, tubePressurePa: shot.conditions.tubePressurePa,
+    ambientTemperatureK: shot.conditions.ambientTemperatureK, ambientPressurePa: shot.conditions.ambientPressurePa ?? null,
+  };
+  return needed.filter((c) => value[c.key] == null).map((c) => c.label);
 }

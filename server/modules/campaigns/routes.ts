@@ -6,6 +6,9 @@ import { clientIp } from '../../lib/client-ip.ts';
 import { conflict, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { shotSummary } from '../shots/view.ts';
+import type { NeededCondition } from '../../../shared/contracts/shots.ts';
+import { missingConditions } from '../../../shared/contracts/shots.ts';
+import { campaignNeeds } from './needed-conditions.ts';
 import { UniqueConstraintError, fn, col } from 'sequelize';
 
 /** The campaign of `:campaignId` in the caller's lab (the access guard has already placed the caller in that lab). */
@@ -15,10 +18,17 @@ export async function campaignInLab(req: Request): Promise<Campaign> {
   return c;
 }
 
-/** What every campaign route answers for one campaign. */
-function campaignView(c: Campaign, shotCount: number) {
-  return { id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, tubeLengthM: c.tubeLengthM ?? null, boreM: c.boreM ?? null, analysisSettings: c.analysisSettings ?? null, shotCount };
+/**
+ * What every campaign route answers for one campaign. `neededConditions`: what its shots must log for its analysis
+ * and trends (shared/contracts/shots.ts neededConditions), as the new-shot form and "conditions missing" say it.
+ */
+function campaignView(c: Campaign, shotCount: number, needed: NeededCondition[]) {
+  return {
+    id: c.id, name: c.name, description: c.description, startedOn: c.startedOn, tubeLengthM: c.tubeLengthM ?? null, boreM: c.boreM ?? null,
+    analysisSettings: c.analysisSettings ?? null, shotCount, neededConditions: needed,
+  };
 }
+const neededOf = async (c: Campaign) => (await campaignNeeds([c])).get(c.id)!;
 
 export function campaignRoutes(): RouteDef[] {
   return [
@@ -26,7 +36,7 @@ export function campaignRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/campaigns',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: "The lab's campaigns with their shot counts",
+      summary: "The lab's campaigns with their shot counts and the conditions their shots need (neededConditions: key, label, why)",
       async handler(req, res) {
         const campaigns = await Campaign.findAll({ where: { labId: req.lab!.id }, order: [['startedOn', 'DESC NULLS LAST'], ['name', 'ASC']] });
         const counts = (await Shot.findAll({
@@ -36,8 +46,9 @@ export function campaignRoutes(): RouteDef[] {
           raw: true,
         })) as unknown as { campaignId: string; n: string }[];
         const byCampaign = new Map(counts.map((c) => [c.campaignId, Number(c.n)]));
+        const needs = await campaignNeeds(campaigns);
         res.json({
-          campaigns: campaigns.map((c) => campaignView(c, byCampaign.get(c.id) ?? 0)),
+          campaigns: campaigns.map((c) => campaignView(c, byCampaign.get(c.id) ?? 0, needs.get(c.id)!)),
         });
       },
     },
@@ -55,7 +66,7 @@ export function campaignRoutes(): RouteDef[] {
             tubeLengthM: body.tubeLengthM ?? null, boreM: body.boreM ?? null, createdBy: req.auth!.userId,
           });
           await recordAudit({ labId: req.lab!.id, actorId: req.auth!.userId, action: 'campaign.created', targetType: 'campaign', targetId: c.id, details: { name: c.name }, ip: clientIp(req) });
-          res.status(201).json({ campaign: campaignView(c, 0) });
+          res.status(201).json({ campaign: campaignView(c, 0, await neededOf(c)) });
         } catch (err) {
           if (err instanceof UniqueConstraintError) throw conflict(`This lab already has a campaign named "${body.name}".`);
           throw err;
@@ -66,13 +77,14 @@ export function campaignRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/campaigns/:campaignId',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: 'One campaign and its shots',
+      summary: 'One campaign and its shots; each shot lists the needed conditions it lacks (missingConditions, the labels of campaign.neededConditions)',
       async handler(req, res) {
         const c = await campaignInLab(req);
         const shots = await Shot.findAll({ where: { campaignId: c.id, labId: req.lab!.id, deletedAt: null }, order: [['number', 'ASC']] });
+        const needed = await neededOf(c);
         res.json({
-          campaign: campaignView(c, shots.length),
-          shots: shots.map(shotSummary),
+          campaign: campaignView(c, shots.length, needed),
+          shots: shots.map((s) => { const v = shotSummary(s); return { ...v, missingConditions: missingConditions(v, needed) }; }),
         });
       },
     },
@@ -93,7 +105,7 @@ export function campaignRoutes(): RouteDef[] {
           throw err;
         }
         await recordAudit({ labId: c.labId, actorId: req.auth!.userId, action: 'campaign.updated', targetType: 'campaign', targetId: c.id, details: { before, after: changes }, ip: clientIp(req) });
-        res.json({ campaign: campaignView(c, await Shot.count({ where: { campaignId: c.id, labId: c.labId, deletedAt: null } })) });
+        res.json({ campaign: campaignView(c, await Shot.count({ where: { campaignId: c.id, labId: c.labId, deletedAt: null } }), await neededOf(c)) });
       },
     },
   ];

@@ -1,7 +1,7 @@
 import type { Request } from 'express';
 import { z } from 'zod';
 import { col, literal, Op, UniqueConstraintError, type Order } from 'sequelize';
-import { createShotBody, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../shared/contracts/shots.ts';
+import { createShotBody, missingConditions, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../shared/contracts/shots.ts';
 import { Analysis, Campaign, Capture, GateRig, Projectile, Review, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
@@ -11,6 +11,7 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { namesOf } from '../reviews/people.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../analyses/service.ts';
+import { campaignNeeds } from '../campaigns/needed-conditions.ts';
 import { settleShot } from './settle-shot.ts';
 import { acceptUpload } from './uploads.ts';
 import { analysisSummary, analysisView, captureView, shotSummary } from './view.ts';
@@ -107,8 +108,12 @@ export async function shotDetail(shot: Shot) {
   await shot.reload();
   const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
   const names = await namesOf([current?.timeBaseConfirmedBy, ...analyses.map((a) => a.requestedBy)]);
+  const campaign = await Campaign.findOne({ where: { id: shot.campaignId, labId: shot.labId } });
+  const needed = campaign ? (await campaignNeeds([campaign])).get(campaign.id) ?? [] : [];
+  const summary = shotSummary(shot);
   return {
-    shot: shotSummary(shot),
+    // missingConditions: what the campaign needs (campaign.neededConditions) that this shot has not logged.
+    shot: { ...summary, missingConditions: missingConditions(summary, needed) },
     captures: captures.map(captureView),
     // Who asked for each version (null: made automatically when the files were read).
     analyses: analyses.map((a) => ({ ...analysisSummary(a), requestedByName: a.requestedBy ? names.get(a.requestedBy) ?? null : null })),
@@ -155,7 +160,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/shots/:shotId',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfShot },
-      summary: 'One shot: its conditions, captures with their states, analysis versions and the current analysis',
+      summary: 'One shot: its conditions (and shot.missingConditions: what its campaign needs that it has not logged), captures with their states, analysis versions and the current analysis',
       async handler(req, res) {
         res.json(await shotDetail(await shotInLab(req)));
       },
@@ -258,7 +263,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/labs/:labId/shots',
       access: { kind: 'lab', permission: 'lab:read' },
-      summary: "Search the lab's shots (by campaign, status, words in notes or seal type), sorted, paginated; each with its current speed ± U and latest review decision",
+      summary: "Search the lab's shots (by campaign, status, words in notes or seal type), sorted, paginated; each with its current speed ± U, latest review decision and the needed conditions it lacks (missingConditions)",
       query: shotListQuery,
       async handler(req, res) {
         const q = res.locals.query as z.infer<typeof shotListQuery>;
@@ -278,6 +283,7 @@ export function shotRoutes(deps: Deps): RouteDef[] {
           order = [[SORT_COLUMNS[field], `${dir.toUpperCase()} NULLS LAST`], [col('Shot.number'), dir.toUpperCase()], [col('Shot.id'), 'ASC']];
         }
         const { rows, count } = await Shot.findAndCountAll({ where, order, limit, offset });
+        const needs = await campaignNeeds(await Campaign.findAll({ where: { id: [...new Set(rows.map((s) => s.campaignId))], labId: req.lab!.id } }));
         // Only the speed part of each current analysis is read: full results can be large.
         const analysisIds = rows.map((s) => s.currentAnalysisId).filter((id): id is string => id != null);
         const speeds = new Map<string, Record<string, unknown> | null>();
@@ -301,8 +307,11 @@ export function shotRoutes(deps: Deps): RouteDef[] {
             const speed = s.currentAnalysisId ? speeds.get(s.currentAnalysisId) : null;
             const value = finiteOrNull(speed?.value);
             const review = latestReview.get(s.id);
+            const summary = shotSummary(s);
             return {
-              ...shotSummary(s),
+              ...summary,
+              // The conditions the shot's campaign needs that it lacks: what "conditions missing" lists.
+              missingConditions: missingConditions(summary, needs.get(s.campaignId) ?? []),
               speed: value == null ? null : {
                 value, uncertainty: finiteOrNull(speed?.uncertainty), method: typeof speed?.method === 'string' ? speed.method : null,
                 basis: typeof speed?.basis === 'string' ? speed.basis : null,

@@ -2,6 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from '@tanstack/r
 import { api } from '../../../lib/api-client.ts';
 import type { CampaignBody, CampaignPatchBody } from '../../../../shared/contracts/auth.ts';
 import type { AnalysisSettings } from '../../../../shared/contracts/analysis-settings.ts';
+import type { NeededCondition } from '../../../../shared/contracts/shots.ts';
 import { labKeys } from '../../labs/api/members.ts';
 
 export interface CampaignRow {
@@ -11,11 +12,15 @@ export interface CampaignRow {
   /** Default analysis settings of new shots (threshold, smoothing, polarity, edges, gates); null when none. */
   analysisSettings: AnalysisSettings | null;
   shotCount: number;
+  /** What this campaign's shots must log for its analysis and trends (shared/contracts/shots.ts neededConditions). */
+  neededConditions: NeededCondition[];
 }
 export interface ShotRow {
   id: string; number: number; firedAt: string | null; status: string;
   conditions: { tubePressurePa: number | null; sealType: string; ambientTemperatureK: number | null; ambientPressurePa: number | null };
   notes: string;
+  /** Labels of the needed conditions the shot lacks ("conditions missing"); absent from servers before this field. */
+  missingConditions?: string[];
 }
 
 export const campaignsQueryOptions = (labId: string) =>

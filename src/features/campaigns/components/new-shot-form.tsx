@@ -1,9 +1,10 @@
 import { useForm } from 'react-hook-form';
 import { Link, useNavigate } from 'react-router-dom';
-import { createShotBody, NEEDED_CONDITIONS, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../../shared/contracts/shots.ts';
+import { createShotBody, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../../shared/contracts/shots.ts';
 import { Button, ErrorNote, Loading, SelectField, TextField } from '../../../components/ui/primitives.tsx';
 import { useGateRigs, useProjectiles, type GateRigRow, type ProjectileRow } from '../../library/api/library.ts';
 import { siFormResolver } from '../../library/utils/si-form-resolver.ts';
+import { useCampaign } from '../api/campaigns.ts';
 import { useCreateShot } from '../api/create-shot.ts';
 import { useUpdateShot } from '../api/update-shot.ts';
 import type { ShotListRow } from '../api/shot-list.ts';
@@ -58,12 +59,18 @@ interface NewShotFormProps {
   onSaved?: () => void;
 }
 
-/** Shown on both forms: which conditions the campaign's analysis and trends need, and what for. */
-function NeededConditions() {
+/**
+ * Shown on both forms: which conditions this campaign's analysis and trends need, and what for (the server's
+ * campaign.neededConditions, the same rule that marks a shot "conditions missing" in the campaign table).
+ */
+function NeededConditions({ labId, campaignId }: { labId: string; campaignId: string }) {
+  const campaign = useCampaign(labId, campaignId);
+  const needed = campaign.data?.campaign.neededConditions;
+  if (!needed) return null;
   return (
     <p className="text-sm text-harbour-600" data-testid="needed-conditions">
-      Needed for the analysis and trends:{' '}
-      {NEEDED_CONDITIONS.map((c, i) => (
+      This campaign needs:{' '}
+      {needed.map((c, i) => (
         <span key={c.key}>{i > 0 && '; '}<span className="font-medium text-harbour-800">{c.label}</span> ({c.why})</span>
       ))}. A shot logged without them is marked “conditions missing” until they are filled in.
     </p>
@@ -157,7 +164,7 @@ function NewShotFields({ labId, campaignId, previous, onCancel, editing, onSaved
 
   return (
     <form onSubmit={submit} noValidate aria-label={editing ? 'Shot conditions' : 'New shot'} className="space-y-5">
-      <NeededConditions />
+      <NeededConditions labId={labId} campaignId={campaignId} />
       {!editing && <SafetyCaution />}
       {!editing && previous && (
         <p className="text-sm text-harbour-500">Seal, projectile and rig are taken from shot #{previous.number}; change them if this shot differs.</p>

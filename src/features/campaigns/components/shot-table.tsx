@@ -1,5 +1,4 @@
 import { useEffect, useState } from 'react';
-import { missingConditions } from '../../../../shared/contracts/shots.ts';
 import { SHOT_STATUS, shotStatus } from '../../../lib/shot-status.ts';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { Badge, Button, EmptyState, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
@@ -205,7 +204,7 @@ export function ShotTable({ labId, campaignId, canWrite }: { labId: string; camp
               <tbody className="divide-y divide-harbour-100">
                 {list.data.shots.map((s) => {
                   const status = shotStatus(s.status);
-                  const missing = missingConditions(s);
+                  const missing = s.missingConditions ?? [];
                   return (
                     <tr key={s.id} onClick={() => navigate(shotUrl(s.id))} className="cursor-pointer align-top hover:bg-harbour-50">
                       <td className="py-2 pl-5" onClick={(e) => e.stopPropagation()}>

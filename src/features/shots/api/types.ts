@@ -75,6 +75,8 @@ export interface ShotInfo {
   currentAnalysisId: string | null;
   /** Set when the shot was deleted (an admin can restore it). */
   deletedAt?: string | null;
+  /** Labels of the conditions its campaign needs that the shot has not logged ("conditions missing"). */
+  missingConditions?: string[];
 }
 
 export interface ShotDetail {

@@ -2,7 +2,6 @@ import { useCallback, useMemo, useState, type ReactNode } from 'react';
 import { Link } from 'react-router-dom';
 import type { ShotAnalysis } from '../../../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../../../shared/contracts/analysis.ts';
-import { missingConditions } from '../../../../shared/contracts/shots.ts';
 import { Badge, Button, Card, ErrorNote, Loading } from '../../../components/ui/primitives.tsx';
 import { formatCelsius, formatDateTime, formatKpa } from '../../../lib/format.ts';
 import { shotStatus } from '../../../lib/shot-status.ts';
@@ -89,7 +88,7 @@ export function ShotPage(props: ShotPageProps) {
   const status = shotStatus(shot.status);
   const deleted = !!shot.deletedAt;
   const frozen = shot.status === 'approved' || deleted;
-  const missing = missingConditions(shot);
+  const missing = shot.missingConditions ?? [];
   const channelNames = plottedChannels(captures).map((c) => c.name);
 
   return (
