@@ -6,6 +6,7 @@ import 'uplot/dist/uPlot.min.css';
 import type { ChannelResult, GateResult } from '../../../../shared/analysis/types.ts';
 import { describeDip } from '../../../../shared/analysis/describe-dip.ts';
 import { formatSeconds } from '../../../lib/format.ts';
+import { placeLabel, type Box } from '../../../lib/place-label.ts';
 import type { Range } from '../../../lib/range-zoom.ts';
 import { levelsRange, PLOT_PADDING_RIGHT, selectToRange, traceAxes, traceWindowQuery, windowColumns } from '../../../lib/trace-plot-setup.ts';
 import type { ExpectedWindow } from '../lib/expected-windows.ts';
@@ -45,6 +46,35 @@ function fitText(ctx: CanvasRenderingContext2D, text: string, max: number): stri
   return `${t.trimEnd()}…`;
 }
 
+/**
+ * The vertical extent (canvas px) the drawn trace covers between two canvas x positions: the min and max series
+ * of the columns in between (and the ones either side, whose segments cross into the span).
+ */
+function traceSpanOf(u: uPlot): (x0: number, x1: number) => { top: number; bottom: number } | null {
+  const xs = u.data[0] as ArrayLike<number>;
+  const lows = u.data[1] as ArrayLike<number | null>;
+  const highs = u.data[2] as ArrayLike<number | null>;
+  return (cx0, cx1) => {
+    if (!xs || xs.length === 0) return null;
+    const t0 = u.posToVal(cx0, 'x', true);
+    const t1 = u.posToVal(cx1, 'x', true);
+    let i0 = Math.max(0, u.valToIdx(Math.min(t0, t1)) - 1);
+    const i1 = Math.min(xs.length - 1, u.valToIdx(Math.max(t0, t1)) + 1);
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (; i0 <= i1; i0++) {
+      const a = lows[i0];
+      const b = highs[i0];
+      if (a != null) lo = Math.min(lo, a);
+      if (b != null) hi = Math.max(hi, b);
+    }
+    if (!(hi >= lo)) return null;
+    const yTop = u.valToPos(hi, 'y', true);
+    const yBottom = u.valToPos(lo, 'y', true);
+    return { top: Math.min(yTop, yBottom) - 1, bottom: Math.max(yTop, yBottom) + 1 };
+  };
+}
+
 /** Draws levels, threshold band, crossings, pulse brackets, gate labels, expected windows and missed-gate notes. */
 function drawAnnotations(u: uPlot, a: Annotations) {
   const ctx = u.ctx;
@@ -52,7 +82,17 @@ function drawAnnotations(u: uPlot, a: Annotations) {
   const px = (t: number) => u.valToPos(t, 'x', true);
   const py = (v: number) => u.valToPos(v, 'y', true);
   const dpr = devicePixelRatio || 1;
-  const font = (size: number, weight = 400) => `${weight} ${Math.round(size * dpr)}px "IBM Plex Sans", sans-serif`;
+  let fontPx = 10 * dpr;
+  const font = (size: number, weight = 400) => {
+    fontPx = Math.round(size * dpr);
+    return `${weight} ${fontPx}px "IBM Plex Sans", sans-serif`;
+  };
+  // Every label drawn inside the frame, so the ones placed last (expected windows) keep clear of them.
+  const drawn: Box[] = [];
+  const fillLabel = (text: string, x: number, baseline: number) => {
+    ctx.fillText(text, x, baseline);
+    drawn.push({ x, y: baseline - fontPx, w: ctx.measureText(text).width, h: fontPx * 1.25 });
+  };
   ctx.save();
   // uPlot leaves its axis text alignment on the context.
   ctx.textAlign = 'left';
@@ -61,15 +101,14 @@ function drawAnnotations(u: uPlot, a: Annotations) {
   ctx.rect(left, top, width, height);
   ctx.clip();
 
+  const expectedShown: { w: ExpectedWindow; x0: number; x1: number }[] = [];
   for (const w of a.expected) {
     const x0 = Math.max(left, px(w.early));
     const x1 = Math.min(left + width, px(w.late));
     if (x1 > x0) {
       ctx.fillStyle = EXPECT_FILL;
       ctx.fillRect(x0, top, Math.max(1, x1 - x0), height);
-      ctx.fillStyle = '#365d7a';
-      ctx.font = font(10);
-      ctx.fillText(`expected at ${a.gateLabel(w.position)} (v ± U)`, x0 + 3 * dpr, top + height - 6 * dpr);
+      expectedShown.push({ w, x0, x1 });
     }
   }
 
@@ -84,9 +123,11 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.lineTo(left + width, py(y));
       ctx.stroke();
       ctx.setLineDash([]);
+      // A label struck through by a level line is as hard to read as one on the trace.
+      drawn.push({ x: left, y: py(y) - dpr, w: width, h: 2 * dpr });
       ctx.fillStyle = color;
       ctx.font = font(10);
-      ctx.fillText(label, left + width - ctx.measureText(label).width - 4 * dpr, py(y) - 3 * dpr);
+      fillLabel(label, left + width - ctx.measureText(label).width - 4 * dpr, py(y) - 3 * dpr);
     };
     const blockedHigh = ch.polarity === 'rising';
     dashed(ch.levels.high, '#4d7694', `${blockedHigh ? 'blocked' : 'clear'} ${ch.levels.high.toFixed(3)} V`);
@@ -102,9 +143,10 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.moveTo(left, py(ch.threshold.level));
       ctx.lineTo(left + width, py(ch.threshold.level));
       ctx.stroke();
+      drawn.push({ x: left, y: py(ch.threshold.level) - dpr, w: width, h: 2 * dpr });
       ctx.fillStyle = SIGNAL;
       ctx.font = font(10, 500);
-      ctx.fillText(`threshold ${ch.threshold.level.toFixed(3)} V`, left + 4 * dpr, py(ch.threshold.level) - 4 * dpr);
+      fillLabel(`threshold ${ch.threshold.level.toFixed(3)} V`, left + 4 * dpr, py(ch.threshold.level) - 4 * dpr);
     }
     for (const tr of ch.transitions) {
       const x = px(tr.time);
@@ -124,7 +166,7 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.fillStyle = '#7a4a06';
       ctx.font = font(10);
       const label = formatSeconds(tr.time, 5);
-      ctx.fillText(label, x + 3 * dpr, top + height - (tr.direction === 'falling' ? 20 : 32) * dpr);
+      fillLabel(label, x + 3 * dpr, top + height - (tr.direction === 'falling' ? 20 : 32) * dpr);
     }
     const bracketY = top + 6 * dpr;
     for (const p of ch.pulses) {
@@ -143,7 +185,7 @@ function drawAnnotations(u: uPlot, a: Annotations) {
       ctx.font = font(11, 500);
       const label = `width ${formatSeconds(p.width, 4)}`;
       const tw = ctx.measureText(label).width;
-      ctx.fillText(label, Math.max(left + 2 * dpr, (x0 + x1) / 2 - tw / 2), bracketY + 17 * dpr);
+      fillLabel(label, Math.max(left + 2 * dpr, (x0 + x1) / 2 - tw / 2), bracketY + 17 * dpr);
     }
     if (ch.status === 'missed') {
       // The note and the dip's label sit in the middle band, between the clear level and the dip's floor, where
@@ -175,11 +217,11 @@ function drawAnnotations(u: uPlot, a: Annotations) {
         // Right of the span when it fits, else left of it, always inside the frame.
         const right = x1 + 6 * dpr;
         const lx = right + tw <= left + width - 8 * dpr ? right : Math.max(left + 8 * dpr, Math.min(x0 - 6 * dpr - tw, left + width - 8 * dpr - tw));
-        ctx.fillText(label, lx, yMid + 12 * dpr);
+        fillLabel(label, lx, yMid + 12 * dpr);
       }
       ctx.fillStyle = MISSED;
       ctx.font = font(12, 600);
-      ctx.fillText(fitText(ctx, `Missed: ${ch.reason ?? 'no pulse found'}`, room), left + 8 * dpr, yMid - 4 * dpr);
+      fillLabel(fitText(ctx, `Missed: ${ch.reason ?? 'no pulse found'}`, room), left + 8 * dpr, yMid - 4 * dpr);
       if (!dip && ch.candidate) {
         const x = px(ch.candidate.time);
         ctx.strokeStyle = MISSED;
@@ -189,10 +231,33 @@ function drawAnnotations(u: uPlot, a: Annotations) {
         ctx.stroke();
         ctx.font = font(11);
         const text = fitText(ctx, ch.candidate.message, room);
-        ctx.fillText(text, Math.max(left + 8 * dpr, Math.min(x + 10 * dpr, left + width - 8 * dpr - ctx.measureText(text).width)), yMid + 22 * dpr);
+        fillLabel(text, Math.max(left + 8 * dpr, Math.min(x + 10 * dpr, left + width - 8 * dpr - ctx.measureText(text).width)), yMid + 22 * dpr);
       }
     }
   }
+
+  // "expected at Gate C (v ± U)" last, placed where it covers neither the trace (a missed gate's dip runs through the
+  // window it labels) nor the labels above: inside its window first, then beside it; rows from the bottom up.
+  const expectedLabels: { text: string; box: Box; clear: boolean }[] = [];
+  ctx.fillStyle = '#365d7a';
+  ctx.font = font(10);
+  const frame: Box = { x: left + 2 * dpr, y: top + 2 * dpr, w: width - 4 * dpr, h: height - 4 * dpr };
+  const span = traceSpanOf(u);
+  for (const { w, x0, x1 } of expectedShown) {
+    const text = fitText(ctx, `expected at ${a.gateLabel(w.position)} (v ± U)`, frame.w);
+    const size = { w: ctx.measureText(text).width, h: fontPx * 1.25 };
+    const rows = [0.97, 0.8, 0.62, 0.44, 0.26, 0.12].map((f) => top + f * height - size.h);
+    const columns = [x0 + 3 * dpr, x1 + 4 * dpr, x0 - 4 * dpr - size.w];
+    const placed = placeLabel({ size, frame, obstacles: drawn, traceSpan: span, candidates: columns.flatMap((x) => rows.map((y) => ({ x, y }))) });
+    ctx.fillText(text, placed.box.x, placed.box.y + fontPx);
+    drawn.push(placed.box);
+    expectedLabels.push({ text, ...placed });
+  }
+  // For the browser tests: where each expected-window label went and whether it is clear of the trace and labels.
+  u.root.dataset.expectedLabels = JSON.stringify(expectedLabels.map((l) => ({
+    text: l.text, clear: l.clear,
+    inside: l.box.x >= left && l.box.y >= top && l.box.x + l.box.w <= left + width && l.box.y + l.box.h <= top + height,
+  })));
   ctx.restore();
 
   // Gate labels sit outside the clip, over the plot's top-left corner.
