@@ -76,7 +76,7 @@ export function auditSentence(e: AuditEventLike, options: { thisShot?: boolean }
     case 'capture.removed': return aboutShot(`removed the file ${str(d.file)} from`);
     case 'capture.reingest': return aboutShot('had a file read again with other settings on');
     case 'analysis.requested': return aboutShot('recomputed', version(d));
-    case 'review.requested': return aboutShot('sent', version(d), ` for review${quote(d.message)}`);
+    case 'review.requested': return aboutShot('sent', version(d), ` for review${d.timeBaseUnchecked ? ', marked “check the time base”' : ''}${quote(d.message)}`);
     case 'review.approved': return aboutShot('signed off', version(d), quote(d.comment));
     case 'review.returned': return aboutShot('returned', version(d), quote(d.comment));
     case 'review.withdrawn': return { who: 'Gatepost', verb: 'withdrew the review request of', shot: shotName, rest: `${of}${d.reason ? `: ${str(d.reason)}` : ''}` };

@@ -33,4 +33,8 @@ describe('auditSentence of review decisions (issue 11 review, gap b)', () => {
     expect(quoted).not.toContain('Last words');
     expect(quoted.slice(0, -1)).toMatch(/real$/);
   });
+  it('When a version marked "check the time base" is sent for review, then the sentence says so', () => {
+    const s = auditSentence({ action: 'review.requested', actor: 'Tomas Reyl', shot, details: { version: 1, message: 'slow roll', timeBaseUnchecked: true } });
+    expect(line(s)).toBe('Tomas Reyl sent shot #5 (version 1) of Vacuum sweep, autumn 2026 for review, marked “check the time base”: “slow roll”');
+  });
 });

@@ -54,7 +54,7 @@ export function ReviewQueueView({ labId }: { labId: string }) {
                     className="h-4 w-4 accent-harbour-700"
                   />
                 </td>
-                <td className="px-3 py-2 font-medium">
+                <td className="min-w-[9rem] px-3 py-2 font-medium">
                   <Link to={`/labs/${labId}/shots/${r.shotId}`} className="whitespace-nowrap text-harbour-800 hover:underline">Shot #{r.number}</Link>
                   {/* Below 1024 px the folded columns read as one line under the shot. */}
                   <p className="text-xs font-normal text-harbour-500 lg:hidden">
