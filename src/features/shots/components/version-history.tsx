@@ -18,6 +18,14 @@ function rowsOf(entries: DiffEntry[], label: (path: string) => { group: LabelGro
   });
 }
 
+/**
+ * Rows whose change shows in the digits displayed, and rows whose value changed only beyond them (133.2561 → 133.2563
+ * read "133.256 m/s → 133.256 m/s"): those are listed only with the raw values, which show every digit.
+ */
+export function splitShownChanges<R extends { from: string; to: string }>(rows: R[]): { shown: R[]; beyondDigits: R[] } {
+  return { shown: rows.filter((r) => r.from !== r.to), beyondDigits: rows.filter((r) => r.from === r.to) };
+}
+
 /** One group of changed values; long groups open on request, so every changed row can be seen. */
 function DiffGroup({ group, rows, showRaw }: { group: LabelGroup; rows: DiffRow[]; showRaw: boolean }) {
   const table = (
@@ -58,7 +66,9 @@ function VersionDiffView({ diff }: { diff: VersionDiff }) {
   const budget: DiffRow[] = diff.budget
     ? budgetChanges(diff.budget.from, diff.budget.to).map((b) => ({ key: `budget:${b.label}`, group: 'Budget', label: b.label, path: 'speed.budget', from: b.from, to: b.to, rawFrom: b.from, rawTo: b.to }))
     : [];
-  const all = [...params, ...(diff.budget ? results.filter((r) => !r.path.startsWith('speed.budget')) : results), ...budget];
+  const every = [...params, ...(diff.budget ? results.filter((r) => !r.path.startsWith('speed.budget')) : results), ...budget];
+  const { shown, beyondDigits } = splitShownChanges(every);
+  const all = showRaw ? every : shown;
   const s = diff.speed;
   const change = s?.from && s.to ? ((s.to.value - s.from.value) / s.from.value) * 100 : null;
   return (
@@ -72,12 +82,17 @@ function VersionDiffView({ diff }: { diff: VersionDiff }) {
           {change != null && ` (${change >= 0 ? '+' : '−'}${Math.abs(change).toFixed(Math.abs(change) < 0.1 ? 2 : 1)} %)`}
         </p>
       )}
-      {all.length === 0 && <p className="text-sm text-harbour-500">No other change.</p>}
+      {every.length === 0 && <p className="text-sm text-harbour-500">No other change.</p>}
       {GROUP_ORDER.map((g) => {
         const rows = all.filter((r) => r.group === g);
         return rows.length > 0 && <DiffGroup key={g} group={g} rows={rows} showRaw={showRaw} />;
       })}
-      {all.length > 0 && (
+      {!showRaw && beyondDigits.length > 0 && (
+        <p className="text-xs text-harbour-500" data-testid="diff-beyond-digits">
+          {beyondDigits.length} more {beyondDigits.length === 1 ? 'value changed' : 'values changed'} only beyond the digits shown; tick “Show raw stored values” to see {beyondDigits.length === 1 ? 'it' : 'them'}.
+        </p>
+      )}
+      {every.length > 0 && (
         <label className="flex items-center gap-2 text-xs text-harbour-600">
           <input type="checkbox" checked={showRaw} onChange={(e) => setShowRaw(e.target.checked)} className="h-3.5 w-3.5 accent-harbour-700" />
           Show raw stored values and their paths
