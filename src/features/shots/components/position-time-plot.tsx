@@ -64,7 +64,7 @@ export function PositionTimePlot({ results }: { results: ShotAnalysis | null }) 
     <div>
       <div ref={box} className="w-full" data-testid="position-time" />
       <p className="mt-1 text-xs text-harbour-500">
-        Dots: gates that fired, at their entry instants. Line: the speed {results?.fit ? 'and deceleration of the fit' : ''}; shaded: v ± U.
+        Dots: gates that fired, at their entry instants. Line: {results?.fit ? 'the speed and deceleration of the fit' : 'the speed'}; shaded: v ± U.
       </p>
     </div>
   );
