@@ -107,9 +107,10 @@ const RESULT_RULES: Rule[] = [
   [/^flight\[(\d+)\]\.(speed|uncertainty|leadingEdgeSpeed|trailingEdgeSpeed)$/, (m) => ({
     group: 'Result',
     label: `Gate pair ${nth(m)}: ${({ speed: 'speed', uncertainty: 'uncertainty', leadingEdgeSpeed: 'speed from leading edges', trailingEdgeSpeed: 'speed from trailing edges' } as Record<string, string>)[m[2]]}`,
-    format: unit('m/s', 1, 6),
+    // An uncertainty to two significant digits (GUM JCGM 100:2008 §7.2.6), a speed to six.
+    format: unit('m/s', 1, m[2] === 'uncertainty' ? 2 : 6),
   })],
-  [/^occlusion\[(\d+)\]\.(speed|uncertainty)$/, (m) => ({ group: 'Result', label: `Occlusion ${nth(m)}: ${m[2]}`, format: unit('m/s', 1, 6) })],
+  [/^occlusion\[(\d+)\]\.(speed|uncertainty)$/, (m) => ({ group: 'Result', label: `Occlusion ${nth(m)}: ${m[2]}`, format: unit('m/s', 1, m[2] === 'uncertainty' ? 2 : 6) })],
   [/^occlusion\[(\d+)\]\.width$/, (m) => ({ group: 'Result', label: `Occlusion ${nth(m)}: beam blocked for`, format: us })],
   [/^gates\[(\d+)\]\.status$/, (m) => ({ group: 'Gates', label: `Gate ${nth(m)}`, format: words({ ok: 'fired', missed: 'missed' }) })],
   [/^gates\[(\d+)\]\.pulses\[(\d+)\]\.(start|end|width)$/, (m) => ({

@@ -17,6 +17,12 @@ describe('labelParameter', () => {
     expect(say(labelParameter('monteCarloDraws'), 0, 200000)).toBe('Monte Carlo check: off → 200000 draws');
   });
 
+  it('When a gate pair or an occlusion result changes, then its uncertainty reads to two significant digits (GUM JCGM 100:2008 §7.2.6) and its speed to six', () => {
+    expect(say(labelResult('flight[0].uncertainty'), 0.717514, 1.2849)).toBe('Gate pair 1: uncertainty: 0.72 m/s → 1.3 m/s');
+    expect(say(labelResult('occlusion[1].uncertainty'), 2.4517, 2.4499)).toBe('Occlusion 2: uncertainty: 2.5 m/s → 2.4 m/s');
+    expect(say(labelResult('flight[0].speed'), 312.0217, 468.03)).toBe('Gate pair 1: speed: 312.022 m/s → 468.03 m/s');
+  });
+
   it('When a path has no rule, then it is shown as it is stored, never blank', () => {
     expect(say(labelParameter('somethingNew.inFuture'), 1, 2)).toBe('somethingNew.inFuture: 1 → 2');
   });
