@@ -42,7 +42,7 @@ export function PositionTimePlot({ results }: { results: ShotAnalysis | null }) 
         scales: { x: { time: false } },
         axes: [
           { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (uu, splits) => timeTicks(splits, (uu.scales.x.max ?? 1) - (uu.scales.x.min ?? 0)), label: 'time after the first gate', labelSize: 18 },
-          { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (_uu, s) => s.map((v) => `${v.toFixed(0)} mm`), size: 60, label: 'position', labelSize: 18 },
+          { stroke: '#365d7a', grid: { stroke: '#e2ebf2' }, values: (_uu, s) => s.map((v) => `${v.toFixed(0)} mm`), size: 72, label: 'position', labelSize: 18 },
         ],
         series: [
           {},
