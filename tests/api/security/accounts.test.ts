@@ -297,6 +297,14 @@ describe('a lab admin disables a member', () => {
     expect(await AuditEvent.count({ where: { actorId: id } })).toBeGreaterThanOrEqual(auditBefore);
     const audit = await request(h.app).get(`/api/labs/${demo.labs.hollowmere.id}/audit`).set('Cookie', h.sessionCookie(demo.users.admin.id));
     expect(JSON.stringify(audit.body)).toContain('member.disabled');
+    // The member is told, through the same mailer, by whom and what it means; the lab's admins see the notice went
+    // (issue 12 review: a disabled member was told nothing). The audit row says whether the mail went.
+    const [notice] = await mailsTo(email, 'Your Gatepost account was disabled');
+    expect(notice.labId).toBe(demo.labs.hollowmere.id);
+    expect(notice.text).toContain(`${demo.users.admin.name}, an admin of ${demo.labs.hollowmere.name}, disabled your Gatepost account (${email})`);
+    expect(notice.text).toContain('You cannot sign in now');
+    const disabledRow = await AuditEvent.findOne({ where: { action: 'member.disabled', targetId: id } });
+    expect(disabledRow?.details).toMatchObject({ mailed: true });
 
     // Enabled again: signs in anew (the old session stays ended) and the token works again.
     expect((await enable(id)).body).toEqual({ userId: id, active: true });
@@ -304,6 +312,8 @@ describe('a lab admin disables a member', () => {
     expect((await me({ Authorization: `Bearer ${script}` })).status).toBe(200);
     await signIn(email, password);
     expect(await actions(demo.users.admin.id)).toEqual(expect.arrayContaining(['member.disabled', 'member.enabled']));
+    const [again] = await mailsTo(email, 'Your Gatepost account was enabled again');
+    expect(again.text).toContain('You can sign in again');
   });
 
   it('When an admin disables and enables over and over, then past the cap the answer is 429', async () => {
