@@ -13,6 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { freeLoopbackPort } from '../helpers/api-harness.ts';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
+const PUBLIC_URL = 'https://gatepost.lab.example';
 
 /** Command line of a process, or null when it is gone. */
 function commandLine(pid: number): string | null {
@@ -84,6 +85,8 @@ beforeAll(async () => {
   Object.assign(env, {
     GATEPOST_PORT: String(ports.web), GATEPOST_PG_PORT: String(ports.pg), GATEPOST_REDIS_PORT: String(ports.redis),
     GATEPOST_SMTP_PORT: String(ports.smtp), GATEPOST_DATA_DIR: dataDir, GATEPOST_CLIENT_DIR: clientDir,
+    // Item 14: the address of a TLS-terminating proxy in front; the server still listens on loopback.
+    GATEPOST_PUBLIC_URL: PUBLIC_URL,
   });
   // Its own process group, as a terminal gives it: Ctrl-C is SIGINT to the group.
   start = spawn('bash', ['scripts/start.sh'], { cwd: root, env, detached: true, stdio: ['ignore', 'pipe', 'pipe'] });
@@ -112,6 +115,22 @@ afterAll(async () => {
 
 /** The running child of npm start whose compiled script is `script` (dist/node/…). */
 const child = (script: string) => descendants(start.pid!).find((p) => p.cmd.includes(`dist/node/${script}`));
+
+describe('npm start behind an https address (issue 12, item 14)', () => {
+  it('When GATEPOST_PUBLIC_URL is https, then npm start keeps it (not http://127.0.0.1), and sessions get Secure cookies and HSTS', async () => {
+    expect(output).toContain(`Gatepost is running at ${PUBLIC_URL}`);
+    expect(output).toContain(`it listens on http://127.0.0.1:${ports.web}`);
+    const accounts = JSON.parse(readFileSync(path.join(root, 'server/db/seeders/demo-accounts.json'), 'utf8')) as Array<{ email: string; password: string }>;
+    const login = await fetch(`http://127.0.0.1:${ports.web}/api/auth/login`, {
+      method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify({ email: accounts[0].email, password: accounts[0].password }),
+    });
+    expect(login.status).toBe(200);
+    expect(login.headers.get('set-cookie')).toMatch(/; Secure/i);
+    expect(login.headers.get('strict-transport-security')).toMatch(/max-age=\d+/);
+    // The page served is the build GATEPOST_CLIENT_DIR names.
+    expect(await (await fetch(`http://127.0.0.1:${ports.web}/`)).text()).toContain('client stand-in');
+  });
+});
 
 describe('npm start supervises its children (issue 12, item 7)', () => {
   it('When the worker is killed with SIGKILL, then it is restarted with a log line and the API keeps answering', async () => {
