@@ -225,6 +225,45 @@ describe('password reset by e-mail', () => {
     expect(notice.text).toContain('through a reset link');
   });
 
+  it('When the reset page checks its link on load, then an open link answers 200 and stays usable; a used, expired or unknown one answers 410 at once', async () => {
+    // Issue 12 review, gap d: the page said nothing until the new password had been typed and sent.
+    const { email, id } = demo.users.analyst;
+    await request(h.app).post('/api/auth/password-reset').send({ email }).expect(202);
+    const secret = linkIn((await mailsTo(email, 'Set a new Gatepost password'))[0]);
+    const check = (token: string) => request(h.app).post('/api/auth/password-reset/check').send({ token });
+
+    const open = await check(secret);
+    expect(open.status, JSON.stringify(open.body)).toBe(200);
+    const row = await PasswordReset.findOne({ where: { userId: id } });
+    expect(open.body).toEqual({ expiresAt: row!.expiresAt.toISOString() });
+    // Only a look: checking twice changes nothing, and the link still sets the password.
+    expect((await check(secret)).status).toBe(200);
+    expect(row!.usedAt).toBeNull();
+    expect((await request(h.app).post('/api/auth/password-reset/complete').send({ token: secret, password: 'checked and then set' })).status).toBe(204);
+
+    const used = await check(secret);
+    expect(used.status).toBe(410);
+    expect(used.body.error).toEqual({ code: 'reset_link_closed', message: 'This reset link has expired or was already used. Ask for a new one with "Forgot password?" on the sign-in page.' });
+    expect((await check('x'.repeat(43))).status).toBe(410);
+    const incomplete = await check('abc');
+    expect(incomplete.status).toBe(400);
+    expect(incomplete.body.error.details.fields).toEqual([{ path: 'token', message: 'The reset link is incomplete: open it again from the e-mail.' }]);
+
+    await request(h.app).post('/api/auth/password-reset').send({ email: demo.users.reviewer.email }).expect(202);
+    const late = linkIn((await mailsTo(demo.users.reviewer.email, 'Set a new Gatepost password'))[0]);
+    await PasswordReset.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { userId: demo.users.reviewer.id } });
+    expect((await check(late)).status).toBe(410);
+  });
+
+  it('When unknown links are checked over and over from one address, then the check is refused with 429 like setting a password', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < h.config.loginMaxFailures * 2 + 1; i++) {
+      statuses.push((await request(h.app).post('/api/auth/password-reset/check').send({ token: `guess-${i}-${'y'.repeat(30)}` })).status);
+    }
+    expect(statuses.slice(0, -1).every((s) => s === 410), statuses.join(' ')).toBe(true);
+    expect(statuses.at(-1)).toBe(429);
+  });
+
   it('When the link has expired, then it is refused with 410 and the password stays', async () => {
     const { email, password, id } = demo.users.reviewer;
     await request(h.app).post('/api/auth/password-reset').send({ email }).expect(202);
@@ -367,7 +406,7 @@ describe('the API document', () => {
     const doc = await request(h.app).get('/api/openapi.json');
     for (const [path, method] of [
       ['/api/me/password', 'post'], ['/api/me/sign-out-everywhere', 'post'], ['/api/auth/password-reset', 'post'],
-      ['/api/auth/password-reset/complete', 'post'], ['/api/labs/{labId}/members/{userId}/disable', 'post'],
+      ['/api/auth/password-reset/complete', 'post'], ['/api/auth/password-reset/check', 'post'], ['/api/labs/{labId}/members/{userId}/disable', 'post'],
       ['/api/labs/{labId}/members/{userId}/enable', 'post'],
     ] as const) {
       expect(doc.body.paths[path]?.[method], `${method} ${path}`).toMatchObject({ summary: expect.any(String) });
