@@ -4,7 +4,7 @@ import { reduceWindow } from '../../shared/traces/reduce-window.ts';
 import type { BlobStore } from '../storage/blob-store.ts';
 import { float32FromBytes, float64FromBytes, type ChannelFiles } from './channel-files.ts';
 
-/** Min/max columns: column j starts at t0 + j·dt and lasts dt; null marks a column with no valid (finite) sample (a gap). */
+/** Min/max columns: column j starts at t0 + j·dt and lasts dt; null marks a column with no valid sample (a gap). */
 export interface ColumnsWindow {
   raw: false;
   t0: number;
@@ -22,9 +22,7 @@ export interface RawWindow {
 
 export type TraceWindow = ColumnsWindow | RawWindow;
 
-// NaN marks an invalid sample; ±Infinity can only be a sample stored before the importer bounded values (a Float32
-// file turns anything past ±3.4e38 into it). Neither fits in JSON, so both are sent as null: no valid sample.
-const nullIfNotFinite = (x: number) => (Number.isFinite(x) ? x : null);
+const nullIfNaN = (x: number) => (x === x ? x : null);
 
 /** First and last sample time of the record, s; null for an empty record. */
 export function recordExtent(files: ChannelFiles): { first: number; last: number } | null {
@@ -60,7 +58,7 @@ export async function readWindow(
       const v = new Array<number | null>(n);
       for (let i = 0; i < n; i++) {
         t[i] = t0 + (plan.first + i) * dt;
-        v[i] = nullIfNotFinite(values[i]);
+        v[i] = nullIfNaN(values[i]);
       }
       return { raw: true, t, v };
     }
@@ -68,7 +66,7 @@ export async function readWindow(
       ? float32FromBytes(await store.readRange(channel.samplesKey, plan.first * 4, (plan.end - plan.first) * 4))
       : float32FromBytes(await store.readRange(channel.levels[plan.level - 1].key, plan.first * 8, (plan.end - plan.first) * 8));
     const { min, max } = reduceWindow(entries, plan);
-    return { raw: false, t0: plan.t0, dt: plan.dt, min: Array.from(min, nullIfNotFinite), max: Array.from(max, nullIfNotFinite) };
+    return { raw: false, t0: plan.t0, dt: plan.dt, min: Array.from(min, nullIfNaN), max: Array.from(max, nullIfNaN) };
   }
 
   const timeKey = files.time.key;
@@ -96,7 +94,7 @@ export async function readWindow(
   ]);
   const times = float64FromBytes(timeBytes);
   const values = float32FromBytes(valueBytes);
-  if (n <= points) return { raw: true, t: Array.from(times), v: Array.from(values, nullIfNotFinite) };
+  if (n <= points) return { raw: true, t: Array.from(times), v: Array.from(values, nullIfNaN) };
   const { t0, dt, min, max } = reduceExplicitWindow(times, values, from, to, points);
-  return { raw: false, t0, dt, min: Array.from(min, nullIfNotFinite), max: Array.from(max, nullIfNotFinite) };
+  return { raw: false, t0, dt, min: Array.from(min, nullIfNaN), max: Array.from(max, nullIfNaN) };
 }

@@ -7,7 +7,7 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { parseInput } from '../../lib/validate.ts';
 import { PREVIEW_MEMORY_BYTES, previewBytes } from '../../../shared/traces/preview-budget.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
-import { readWindow, recordExtent } from '../../traces/read-window.ts';
+import { readWindow, recordExtent, type TraceWindow } from '../../traces/read-window.ts';
 
 /** Routes addressed by a capture id find their lab from the capture itself. */
 export async function labOfCapture(req: Request): Promise<string | null> {
@@ -86,6 +86,16 @@ function requireFiniteTimeBase(files: ChannelFiles): void {
   );
 }
 
+/**
+ * A window as JSON can carry it: ±Infinity (a sample stored before the importer bounded values; a Float32 file
+ * turns anything past ±3.4e38 into it) is sent as null, no valid sample, as the importer now reads such a sample.
+ * readWindow itself keeps it, so the report can name the channel instead of drawing a gap.
+ */
+function jsonWindow(window: TraceWindow): TraceWindow {
+  const clean = (values: (number | null)[]) => values.map((v) => (v === null || Number.isFinite(v) ? v : null));
+  return window.raw ? { ...window, v: clean(window.v) } : { ...window, min: clean(window.min), max: clean(window.max) };
+}
+
 export function captureRoutes(deps: Deps): RouteDef[] {
   return [
     {
@@ -159,7 +169,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
           from,
           to,
           points: query.points,
-          ...window,
+          ...jsonWindow(window),
         });
       },
     },
