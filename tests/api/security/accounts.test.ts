@@ -1,7 +1,9 @@
 // Issue 12, item 10: accounts people can manage. Change password, sign out everywhere, a password reset by e-mail
 // (read through the real SMTP exchange with the fake server, as the invitation tests do) and a lab admin who can
 // disable and enable a member: each audited and rate limited, each checked against the real PostgreSQL and Redis.
+import { spawn } from 'node:child_process';
 import type { AddressInfo } from 'node:net';
+import path from 'node:path';
 import type { Server } from 'node:http';
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
@@ -262,6 +264,29 @@ describe('password reset by e-mail', () => {
     }
     expect(statuses.slice(0, -1).every((s) => s === 410), statuses.join(' ')).toBe(true);
     expect(statuses.at(-1)).toBe(429);
+  });
+
+  it('When someone on a local install runs npm run outbox with their address, then they read their reset link (it is in no lab outbox)', async () => {
+    // Issue 12 review: with the stand-in, mail to one person had no lab and was readable nowhere.
+    const { email } = demo.users.experimenter;
+    await request(h.app).post('/api/auth/password-reset').send({ email }).expect(202);
+    const secret = linkIn((await mailsTo(email, 'Set a new Gatepost password'))[0]);
+    const run = (args: string[]) => new Promise<{ code: number | null; out: string }>((resolve) => {
+      const child = spawn(path.join(process.cwd(), 'node_modules/.bin/tsx'), ['scripts/outbox.ts', ...args], {
+        env: { ...process.env, GATEPOST_REDIS_URL: process.env.GATEPOST_TEST_REDIS_URL }, stdio: ['ignore', 'pipe', 'pipe'],
+      });
+      let out = '';
+      child.stdout.on('data', (chunk: Buffer) => { out += chunk.toString(); });
+      child.stderr.on('data', (chunk: Buffer) => { out += chunk.toString(); });
+      child.on('exit', (code) => resolve({ code, out }));
+    });
+    const mine = await run([email.toUpperCase()]);
+    expect(mine.code, mine.out).toBe(0);
+    expect(mine.out).toContain(`to ${email}`);
+    expect(mine.out).toContain('Subject: Set a new Gatepost password');
+    expect(mine.out).toContain(`/reset-password#token=${secret}`);
+    const nobody = await run(['nobody@example.org']);
+    expect(nobody.out.trim()).toBe('No mail to nobody@example.org in the local outbox.');
   });
 
   it('When the link has expired, then it is refused with 410 and the password stays', async () => {
