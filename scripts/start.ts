@@ -213,7 +213,14 @@ async function main(): Promise<void> {
     say(`compiled the server and worker into ${NODE_BUILD_DIR} (${files} files, ${((performance.now() - started) / 1000).toFixed(1)} s)`);
   }
   await step('db', process.execPath, [compiled('server/db/cli.ts'), 'migrate', 'seed-demo'], env);
-  if (clientBuildIsCurrent()) {
+  const ownClient = process.env.GATEPOST_CLIENT_DIR;
+  if (ownClient) {
+    // A client build of your own (a release folder; the supervisor test): it is served as it is, nothing is built.
+    if (!existsSync(join(resolve(ownClient), 'index.html'))) {
+      await shutdown(1, `GATEPOST_CLIENT_DIR=${ownClient} holds no index.html (a client build made with vite build): stopping everything`);
+    }
+    say(`serving the client build in GATEPOST_CLIENT_DIR=${ownClient}: skipping vite build`);
+  } else if (clientBuildIsCurrent()) {
     say('client build dist/client is newer than src/, shared/, index.html and the configs: skipping vite build');
   } else {
     say('building the client (dist/client is missing or older than its sources): vite build');

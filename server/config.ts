@@ -120,10 +120,15 @@ const envNames: Record<keyof Config, string> = {
 
 export class ConfigError extends Error {}
 
+/** True for a host name or address of this machine only: localhost, 127.0.0.0/8 or ::1 (brackets allowed). */
+export function isLoopbackHost(hostname: string): boolean {
+  const host = hostname.replace(/^\[|\]$/g, '');
+  return host === 'localhost' || host === '::1' || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(host);
+}
+
 /** True for http(s) URLs of this machine only: localhost, 127.0.0.0/8 or ::1. */
 export function isLoopbackUrl(url: string): boolean {
-  const host = new URL(url).hostname.replace(/^\[|\]$/g, '');
-  return host === 'localhost' || host === '::1' || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(host);
+  return isLoopbackHost(new URL(url).hostname);
 }
 
 /** Reads the configuration from `env`; `overrides` (tests) win over the environment. */
@@ -147,6 +152,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, overrides: Part
     if (config.nodeEnv === 'production') throw new ConfigError('Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set in production');
     if (!isLoopbackUrl(config.publicUrl)) {
       throw new ConfigError(`Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set when GATEPOST_PUBLIC_URL (${config.publicUrl}) is not a loopback address`);
+    }
+    // A loopback public URL does not make the server private: listening on 0.0.0.0 or a LAN address lets others
+    // of the network send it sessions signed with the published secret.
+    if (!isLoopbackHost(config.host)) {
+      throw new ConfigError(`Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set when GATEPOST_HOST (${config.host}) is not a loopback address`);
     }
   }
   return config;

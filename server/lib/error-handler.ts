@@ -13,7 +13,8 @@ export function toAppError(err: unknown): AppError {
   if (e?.type === 'entity.parse.failed') return new AppError(400, 'bad_request', 'The request body is not valid JSON.');
   if (e?.type === 'entity.too.large') return new AppError(413, 'too_large', 'The request body is too large.');
   // ioredis with maxRetriesPerRequest set (server/lib/redis.ts) rejects with MaxRetriesPerRequestError while Redis is away.
-  if (e?.code === 'ECONNREFUSED' || e?.name === 'MaxRetriesPerRequestError' || e?.message?.includes("Stream isn't writeable") || e?.message?.includes('Connection is closed')) {
+  // A Redis that hangs: its commands time out (REDIS_COMMAND_TIMEOUT_MS).
+  if (e?.code === 'ECONNREFUSED' || e?.name === 'MaxRetriesPerRequestError' || e?.message?.includes("Stream isn't writeable") || e?.message?.includes('Connection is closed') || e?.message === 'Command timed out') {
     return new AppError(503, 'service_unavailable', 'A service Gatepost depends on is not answering right now. Try again in a moment.', undefined, { cause: err });
   }
   return new AppError(500, 'internal', 'Something went wrong on our side. It has been logged.', undefined, { cause: err, isOperational: false });

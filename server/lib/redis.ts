@@ -1,8 +1,14 @@
 import { Redis } from 'ioredis';
 
-/** API-side Redis client: fails fast while Redis is down (the request gets a 503) and reconnects by itself. */
+/** A Redis command unanswered this long fails (503), so a Redis that hangs (stopped, swapping) does not hang requests. */
+export const REDIS_COMMAND_TIMEOUT_MS = 5_000;
+
+/**
+ * API-side Redis client: fails fast while Redis is down or hangs (the request gets a 503) and reconnects by itself.
+ * Issue 12 review: with Redis stopped (SIGSTOP) a sign-out waited with no answer for as long as Redis did.
+ */
 export function createRedis(url: string): Redis {
-  return new Redis(url, { maxRetriesPerRequest: 1, connectTimeout: 3_000, enableOfflineQueue: true, lazyConnect: false });
+  return new Redis(url, { maxRetriesPerRequest: 1, connectTimeout: 3_000, commandTimeout: REDIS_COMMAND_TIMEOUT_MS, enableOfflineQueue: true, lazyConnect: false });
 }
 
 /**

@@ -60,6 +60,10 @@ export const passwordResetCompleteBody = z.object({
 });
 export type PasswordResetCompleteBody = z.infer<typeof passwordResetCompleteBody>;
 
+/** `POST /api/auth/password-reset/check`: is a reset link still open? Looks only; the link stays usable. */
+export const passwordResetCheckBody = passwordResetCompleteBody.pick({ token: true });
+export type PasswordResetCheckBody = z.infer<typeof passwordResetCheckBody>;
+
 /** The one answer to a reset request, whether or not the address has an account. */
 export const PASSWORD_RESET_REQUESTED_MESSAGE =
   'If an account uses that address, a link to set a new password is on its way. It works once and expires soon; check your spam folder if it does not arrive.';

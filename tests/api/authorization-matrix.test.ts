@@ -249,6 +249,17 @@ const MATRIX: Record<string, Row> = {
       return { body: { token: secret, password: 'a brand new password' } };
     },
   },
+  'POST /api/auth/password-reset/check': {
+    // Public: the secret from the e-mail is the credential; only looks, so one open link serves every actor.
+    expect: [200, 200, 200, 200, 200, 200],
+    prepare: async () => {
+      const stand = await throwawayAccount();
+      const { secret, hash } = newPasswordResetSecret();
+      await PasswordReset.create({ userId: stand.id, tokenHash: hash, expiresAt: new Date(Date.now() + 600_000), requestedIp: null });
+      return { body: { token: secret } };
+    },
+    shape: (b) => expect(b).toEqual({ expiresAt: expect.any(String) }),
+  },
   'GET /api/labs/:labId': {
     expect: [200, 200, 200, 200, 404, 401],
     shape: (b, { demo, actor }) => expect(b).toEqual({ lab: { id: demo.labs.hollowmere.id, name: 'Hollowmere Ballistics Lab', slug: 'hollowmere' }, role: actor }),

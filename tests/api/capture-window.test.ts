@@ -296,3 +296,53 @@ describe('GET /api/captures/:captureId/samples', () => {
     expect(res.headers['cache-control']).toBe('no-store');
   });
 });
+
+// Issue 12 review, gap b: captures stored before the importer bounded values (±9.9e37) and times (±1e12 s). Neither
+// NaN nor ±Infinity may reach the browser: JSON cannot carry them (they would arrive as null, silently).
+describe('captures stored before the import bounds', () => {
+  /** A uniform two-channel capture of `n` samples with the given time base and values. */
+  function stored(n: number, t0: number, dt: number, value: (i: number) => number): ImportedCapture {
+    return {
+      channels: [{ name: 'CH1', unit: 'V', sourceUnit: 'V', values: Float64Array.from({ length: n }, (_, i) => value(i)), invalidCount: 0 }],
+      time: { kind: 'uniform', t0, dt, jitter: 0 },
+      length: n, metadata: {}, layout: {}, warnings: [],
+    };
+  }
+  /** Every number in a JSON text (after JSON.parse) is finite, and the text names neither NaN nor Infinity. */
+  const expectFiniteJson = (text: string) => {
+    expect(text).not.toMatch(/NaN|Infinity/);
+    const walk = (v: unknown): void => {
+      if (typeof v === 'number') expect(Number.isFinite(v)).toBe(true);
+      else if (v && typeof v === 'object') Object.values(v).forEach(walk);
+    };
+    walk(JSON.parse(text));
+  };
+
+  it('When the time base overflows (t0 + (n − 1)·dt = Infinity), then window and samples answer 409 naming the time base, not 500 or null times', async () => {
+    const id = await storeCapture(demo.labs.hollowmere.id, demo.hollowmere.shotIds[0], stored(1000, 0, 1e306, (i) => i % 2));
+    const window = await getWindow(id, {});
+    expect(window.status, window.text).toBe(409);
+    expect(window.body.error.message).toBe(
+      'The stored time base of this capture does not fit in a number (t0 = 0 s, dt = 1e+306 s over 1000 samples: it ends at Infinity s), so its traces cannot be sent. ' +
+      'It was stored before the importer checked times (±1e12 s from the trigger); upload the file again, or correct its time column.',
+    );
+    const samples = await request(app).get(`/api/captures/${id}/samples`).query({ channel: '0' }).set('Cookie', asAnalyst);
+    expect(samples.status).toBe(409);
+    expect(samples.body.error.message).toBe(window.body.error.message);
+  });
+
+  it('When samples were ±1e308 (±Infinity once stored as Float32), then columns and raw samples send null for them and finite JSON throughout', async () => {
+    // 4000 samples: columns at 100 points, raw at full zoom; every 7th sample huge, the rest a ramp.
+    const value = (i: number) => (i % 7 === 3 ? (i % 2 ? 1e308 : -1e308) : i / 1000);
+    const id = await storeCapture(demo.labs.hollowmere.id, demo.hollowmere.shotIds[0], stored(4000, 0, 1e-6, value));
+    const columns = await getWindow(id, { points: 100 });
+    expect(columns.status, columns.text).toBe(200);
+    expect(columns.body.raw).toBe(false);
+    expectFiniteJson(columns.text);
+    const raw = await getWindow(id, { from: 0, to: 20e-6, points: 100 });
+    expect(raw.body.raw).toBe(true);
+    expectFiniteJson(raw.text);
+    // Each sample is its own value, or null where it was out of range: the ramp stays where it was.
+    raw.body.v.forEach((v: number | null, i: number) => expect(v).toBe(i % 7 === 3 ? null : Math.fround(i / 1000)));
+  });
+});

@@ -3,6 +3,7 @@
 // member on the People page. Screenshots at 1280 and 820 px go to .test-artifacts/screenshots/accounts-*.
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { PasswordReset } from '../../server/db/models/index.ts';
 import { readFakeOutbox } from '../../server/dev/fake-smtp.ts';
 import { createApiHarness, type ApiHarness } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
@@ -54,7 +55,10 @@ describe('accounts in the browser', () => {
     await page.getByRole('status').filter({ hasText: 'If an account uses that address' }).waitFor();
     await saveScreenshotsAtBothWidths(page, 'accounts-forgot-password-sent');
 
-    await page.goto(await resetLinkFor(user.email));
+    const link = await resetLinkFor(user.email);
+    await page.goto(link);
+    // Checked as the page opens: the form says until when the link works.
+    await page.getByRole('status').filter({ hasText: /^Your link works until \d{1,2}[:.]\d{2}.*, once\.$/ }).waitFor();
     await page.getByLabel('New password', { exact: true }).fill('short');
     await page.getByLabel('New password again').fill('short');
     await page.getByRole('button', { name: 'Save the new password' }).click();
@@ -70,6 +74,32 @@ describe('accounts in the browser', () => {
     await page.getByText('Your new password is set').waitFor();
     await saveScreenshotsAtBothWidths(page, 'accounts-sign-in-after-reset');
     await signInOnPage(page, app.baseUrl, { email: user.email, password: 'a reviewer reset password' });
+
+    // The same link again (issue 12 review, gap d): said at once, before any password is typed; no form to fill.
+    const again = await newPage();
+    await again.goto(link);
+    await again.getByRole('alert').filter({ hasText: 'This reset link has expired or was already used.' }).waitFor();
+    expect(await again.getByLabel('New password', { exact: true }).count()).toBe(0);
+    await saveScreenshotsAtBothWidths(again, 'accounts-reset-link-used');
+    await again.getByRole('link', { name: 'Ask for a new link' }).click();
+    await again.waitForURL('**/forgot-password');
+  });
+
+  it('When a reset link has expired, then its page says so as it opens, and a cut-off link is called incomplete', async () => {
+    const user = harness.demo.users.experimenter;
+    const page = await newPage();
+    await page.goto(`${app.baseUrl}/forgot-password`);
+    await page.getByLabel('E-mail').fill(user.email);
+    await page.getByRole('button', { name: 'E-mail me a link' }).click();
+    const link = await resetLinkFor(user.email);
+    await PasswordReset.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { userId: user.id } });
+    await page.goto(link);
+    await page.getByRole('alert').filter({ hasText: 'This reset link has expired or was already used. Ask for a new one' }).waitFor();
+    expect(await page.getByRole('button', { name: 'Save the new password' }).count()).toBe(0);
+    await page.goto(`${link.slice(0, link.indexOf('#token=') + 12)}`);
+    await page.reload();
+    await page.getByRole('alert').filter({ hasText: 'This link is incomplete: open it again from the e-mail' }).waitFor();
+    await saveScreenshotsAtBothWidths(page, 'accounts-reset-link-incomplete');
   });
 
   it('When a member changes their password on the account page, then wrong input is named beside its field and another browser of theirs is signed out', async () => {

@@ -6,6 +6,7 @@ import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { analysisJobData } from '../../shared/contracts/jobs.ts';
 import { combineCaptures } from '../../shared/import/combine-captures.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
+import { nonFinitePaths, nonFiniteResultMessage } from '../../shared/analysis/non-finite-paths.ts';
 import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
 import { recordAudit } from '../../server/lib/audit.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
@@ -60,6 +61,9 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
     const capture = imported.length === 1 ? imported[0] : combineCaptures(imported, { labels: ordered.map((c) => c.fileName) });
     const parameters = analysisOptionsSchema.parse(analysis.parameters);
     results = analyzeShot(capture, parameters);
+    // Never store NaN or ±Infinity turned into null by JSON: the version fails with the reason instead.
+    const nonFinite = nonFinitePaths(results);
+    if (nonFinite.length > 0) throw new ImportError(nonFiniteResultMessage(nonFinite));
   } catch (err) {
     if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || err instanceof Error && err.name === 'ZodError') {
       await analysis.update({ state: 'failed', progress: 100, error: err.message, completedAt: new Date() });

@@ -2,9 +2,11 @@ import { Op } from 'sequelize';
 import {
   changePasswordBody,
   PASSWORD_RESET_REQUESTED_MESSAGE,
+  passwordResetCheckBody,
   passwordResetCompleteBody,
   passwordResetRequestBody,
   signOutEverywhereBody,
+  type PasswordResetCheckBody,
   type PasswordResetCompleteBody,
   type PasswordResetRequestBody,
 } from '../../../shared/contracts/auth.ts';
@@ -185,6 +187,37 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         sendResetMail(email, ip, attempt.accountAttempts).catch((err: Error) => {
           deps.logger.warn({ err: err.message }, 'password reset e-mail not sent');
         });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/auth/password-reset/check',
+      access: { kind: 'public' },
+      summary:
+        'Whether a reset link still works, before the new password is typed: 200 with its expiry, or 410 when it has ' +
+        'expired or was used. Only looks (the link stays usable); the secret goes in the body, never in a URL. ' +
+        'Unknown links count toward the same per-address limit as setting a password',
+      body: passwordResetCheckBody,
+      async handler(req, res) {
+        const { token } = req.body as PasswordResetCheckBody;
+        const ip = clientIp(req);
+        const attempt = await resetUses.reserve(ip, ip);
+        if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
+        if (attempt.blocked) {
+          res.set('Retry-After', String(attempt.retryAfterSeconds));
+          throw tooManyRequests('Too many reset links tried from your address. Try again later.', attempt.retryAfterSeconds);
+        }
+        const found = await PasswordReset.findOne({
+          where: { tokenHash: sha256Hex(token), usedAt: null, expiresAt: { [Op.gt]: new Date() } },
+          include: [{ model: User, required: true, attributes: ['disabledAt'] }],
+        });
+        const user = (found as unknown as { User?: User } | null)?.User;
+        if (!found || !user || user.disabledAt) {
+          await resetUses.fail(ip, ip);
+          throw new AppError(410, 'reset_link_closed', RESET_LINK_CLOSED);
+        }
+        await resetUses.release(ip, ip);
+        res.json({ expiresAt: found.expiresAt.toISOString() });
       },
     },
     {

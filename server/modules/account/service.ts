@@ -96,3 +96,43 @@ export async function mailPasswordChanged(deps: Deps, user: User, how: 'changed'
     deps.logger.warn({ err: (err as Error).message, userId: user.id }, 'could not mail the owner about a password change');
   }
 }
+
+/**
+ * Tells a member that a lab admin disabled or enabled their account (issue 12 review: a disabled member was told
+ * nothing and found out at the next sign-in). Sent through the same mailer, marked with the lab so its admins see in
+ * the outbox that the notice went. Returns whether it was sent: a mail server that is away must not undo the change.
+ */
+export async function mailAccountState(
+  deps: Deps, user: User, state: 'disabled' | 'enabled', lab: { id: string; name: string }, adminName: string,
+): Promise<boolean> {
+  const when = new Date().toISOString();
+  try {
+    await deps.mailer.send({
+      to: user.email,
+      labId: lab.id,
+      subject: state === 'disabled' ? 'Your Gatepost account was disabled' : 'Your Gatepost account was enabled again',
+      text: [
+        `Hello ${user.name},`,
+        '',
+        ...(state === 'disabled'
+          ? [
+            `${adminName}, an admin of ${lab.name}, disabled your Gatepost account (${user.email}) at ${when}.`,
+            'You cannot sign in now; your browser sessions were signed out and your personal API tokens stopped working.',
+            'Your shots, versions, reviews and the audit trail stay as they are.',
+            '',
+            `If you think this is a mistake, ask ${adminName} or another admin of ${lab.name}.`,
+          ]
+          : [
+            `${adminName}, an admin of ${lab.name}, enabled your Gatepost account (${user.email}) again at ${when}.`,
+            'You can sign in again; your personal API tokens work again.',
+          ]),
+        '',
+        `Gatepost, ${deps.config.publicUrl}`,
+      ].join('\n'),
+    });
+    return true;
+  } catch (err) {
+    deps.logger.warn({ err: (err as Error).message, userId: user.id }, `could not mail the member that their account was ${state}`);
+    return false;
+  }
+}

@@ -7,7 +7,7 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { parseInput } from '../../lib/validate.ts';
 import { PREVIEW_MEMORY_BYTES, previewBytes } from '../../../shared/traces/preview-budget.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
-import { readWindow, recordExtent } from '../../traces/read-window.ts';
+import { readWindow, recordExtent, type TraceWindow } from '../../traces/read-window.ts';
 
 /** Routes addressed by a capture id find their lab from the capture itself. */
 export async function labOfCapture(req: Request): Promise<string | null> {
@@ -71,6 +71,31 @@ async function readyFiles(req: Request, deps: Deps): Promise<ChannelFiles> {
   return parsed.data;
 }
 
+/**
+ * Refuses a record whose time base does not fit in a number: captures stored before the importer bounded times
+ * (±1e12 s) can have t0 + (n − 1)·dt overflow to Infinity, which JSON cannot carry (it would arrive as null) and
+ * no plot can place (issue 12 review).
+ */
+function requireFiniteTimeBase(files: ChannelFiles): void {
+  const extent = recordExtent(files);
+  if (!extent || (Number.isFinite(extent.first) && Number.isFinite(extent.last))) return;
+  const base = files.time.kind === 'uniform' ? `t0 = ${files.time.t0} s, dt = ${files.time.dt} s over ${files.length} samples` : 'its time column';
+  throw conflict(
+    `The stored time base of this capture does not fit in a number (${base}: it ends at ${extent.last} s), so its traces cannot be sent. ` +
+    'It was stored before the importer checked times (±1e12 s from the trigger); upload the file again, or correct its time column.',
+  );
+}
+
+/**
+ * A window as JSON can carry it: ±Infinity (a sample stored before the importer bounded values; a Float32 file
+ * turns anything past ±3.4e38 into it) is sent as null, no valid sample, as the importer now reads such a sample.
+ * readWindow itself keeps it, so the report can name the channel instead of drawing a gap.
+ */
+function jsonWindow(window: TraceWindow): TraceWindow {
+  const clean = (values: (number | null)[]) => values.map((v) => (v === null || Number.isFinite(v) ? v : null));
+  return window.raw ? { ...window, v: clean(window.v) } : { ...window, min: clean(window.min), max: clean(window.max) };
+}
+
 export function captureRoutes(deps: Deps): RouteDef[] {
   return [
     {
@@ -82,6 +107,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
       async handler(req, res) {
         const query = res.locals.query as z.infer<typeof samplesQuerySchema>;
         const files = await readyFiles(req, deps);
+        requireFiniteTimeBase(files);
         let key: string;
         let bytes: number;
         if (query.channel === 'time') {
@@ -107,7 +133,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/captures/:captureId/window',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfCapture },
-      summary: 'Min/max columns (or raw samples at full zoom) of one channel over a time window',
+      summary: 'Min/max columns (or raw samples at full zoom) of one channel over a time window; null marks no valid (finite) sample. 409 while the capture is not read, or when its stored time base does not fit in a number',
       async handler(req, res) {
         const query = parseInput(windowQuerySchema, req.query);
         const capture = await Capture.findOne({
@@ -130,6 +156,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
         }
         const files = parsed.data;
         const index = channelIndexOf(files, query.channel);
+        requireFiniteTimeBase(files);
         const extent = recordExtent(files);
         const from = query.from ?? extent?.first ?? 0;
         const to = query.to ?? Math.max(from, extent?.last ?? 0);
@@ -142,7 +169,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
           from,
           to,
           points: query.points,
-          ...window,
+          ...jsonWindow(window),
         });
       },
     },

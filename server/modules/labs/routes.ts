@@ -9,7 +9,7 @@ import { conflict, notFound } from '../../lib/errors.ts';
 import type { Deps } from '../../lib/deps.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { ActionLimiter } from '../../lib/rate-limit.ts';
-import { endAllSessions, takeAction } from '../account/service.ts';
+import { endAllSessions, mailAccountState, takeAction } from '../account/service.ts';
 
 /** Admins of the lab whose accounts are enabled: a disabled admin cannot run the lab. */
 async function adminCount(labId: string): Promise<number> {
@@ -20,6 +20,15 @@ async function memberOf(labId: string, userId: string): Promise<{ membership: Me
   const membership = await Membership.findOne({ where: { labId, userId }, include: [{ model: User, required: true }] });
   if (!membership) throw notFound('No such member in this lab.');
   return { membership, user: (membership as unknown as { User: User }).User };
+}
+
+/** The display name of an account (the admin named in a notice). */
+async function nameOf(userId: string): Promise<string> {
+  return (await User.findByPk(userId, { attributes: ['name'] }))?.name ?? 'A lab admin';
+}
+
+async function labNamed(labId: string): Promise<{ id: string; name: string }> {
+  return { id: labId, name: (await Lab.findByPk(labId, { attributes: ['name'] }))?.name ?? 'your lab' };
 }
 
 /** Disables and enables one admin may make in 15 minutes (a slip of a script, a stolen session). */
@@ -140,8 +149,9 @@ export function labRoutes(deps: Deps): RouteDef[] {
             await User.update({ disabledAt: new Date(), disabledBy: actorId }, { where: { id: user.id }, transaction });
             await endAllSessions(user.id, transaction);
           });
-          await recordAudit({ labId, actorId, action: 'member.disabled', targetType: 'user', targetId: user.id, details: { role: membership.role, name: user.name }, ip: clientIp(req) });
           await publishAccountChanged(deps.redis, user.id);
+          const mailed = await mailAccountState(deps, user, 'disabled', await labNamed(labId), await nameOf(actorId));
+          await recordAudit({ labId, actorId, action: 'member.disabled', targetType: 'user', targetId: user.id, details: { role: membership.role, name: user.name, mailed }, ip: clientIp(req) });
         }
         res.json({ userId: user.id, active: false });
       },
@@ -157,7 +167,8 @@ export function labRoutes(deps: Deps): RouteDef[] {
         const { membership, user } = await memberOf(labId, req.params.userId as string);
         if (user.disabledAt) {
           await User.update({ disabledAt: null, disabledBy: null }, { where: { id: user.id } });
-          await recordAudit({ labId, actorId: req.auth!.userId, action: 'member.enabled', targetType: 'user', targetId: user.id, details: { role: membership.role, name: user.name }, ip: clientIp(req) });
+          const mailed = await mailAccountState(deps, user, 'enabled', await labNamed(labId), await nameOf(req.auth!.userId));
+          await recordAudit({ labId, actorId: req.auth!.userId, action: 'member.enabled', targetType: 'user', targetId: user.id, details: { role: membership.role, name: user.name, mailed }, ip: clientIp(req) });
         }
         res.json({ userId: user.id, active: true });
       },

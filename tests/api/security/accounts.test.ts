@@ -1,7 +1,9 @@
 // Issue 12, item 10: accounts people can manage. Change password, sign out everywhere, a password reset by e-mail
 // (read through the real SMTP exchange with the fake server, as the invitation tests do) and a lab admin who can
 // disable and enable a member: each audited and rate limited, each checked against the real PostgreSQL and Redis.
+import { spawn } from 'node:child_process';
 import type { AddressInfo } from 'node:net';
+import path from 'node:path';
 import type { Server } from 'node:http';
 import request from 'supertest';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
@@ -225,6 +227,68 @@ describe('password reset by e-mail', () => {
     expect(notice.text).toContain('through a reset link');
   });
 
+  it('When the reset page checks its link on load, then an open link answers 200 and stays usable; a used, expired or unknown one answers 410 at once', async () => {
+    // Issue 12 review, gap d: the page said nothing until the new password had been typed and sent.
+    const { email, id } = demo.users.analyst;
+    await request(h.app).post('/api/auth/password-reset').send({ email }).expect(202);
+    const secret = linkIn((await mailsTo(email, 'Set a new Gatepost password'))[0]);
+    const check = (token: string) => request(h.app).post('/api/auth/password-reset/check').send({ token });
+
+    const open = await check(secret);
+    expect(open.status, JSON.stringify(open.body)).toBe(200);
+    const row = await PasswordReset.findOne({ where: { userId: id } });
+    expect(open.body).toEqual({ expiresAt: row!.expiresAt.toISOString() });
+    // Only a look: checking twice changes nothing, and the link still sets the password.
+    expect((await check(secret)).status).toBe(200);
+    expect(row!.usedAt).toBeNull();
+    expect((await request(h.app).post('/api/auth/password-reset/complete').send({ token: secret, password: 'checked and then set' })).status).toBe(204);
+
+    const used = await check(secret);
+    expect(used.status).toBe(410);
+    expect(used.body.error).toEqual({ code: 'reset_link_closed', message: 'This reset link has expired or was already used. Ask for a new one with "Forgot password?" on the sign-in page.' });
+    expect((await check('x'.repeat(43))).status).toBe(410);
+    const incomplete = await check('abc');
+    expect(incomplete.status).toBe(400);
+    expect(incomplete.body.error.details.fields).toEqual([{ path: 'token', message: 'The reset link is incomplete: open it again from the e-mail.' }]);
+
+    await request(h.app).post('/api/auth/password-reset').send({ email: demo.users.reviewer.email }).expect(202);
+    const late = linkIn((await mailsTo(demo.users.reviewer.email, 'Set a new Gatepost password'))[0]);
+    await PasswordReset.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { userId: demo.users.reviewer.id } });
+    expect((await check(late)).status).toBe(410);
+  });
+
+  it('When unknown links are checked over and over from one address, then the check is refused with 429 like setting a password', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < h.config.loginMaxFailures * 2 + 1; i++) {
+      statuses.push((await request(h.app).post('/api/auth/password-reset/check').send({ token: `guess-${i}-${'y'.repeat(30)}` })).status);
+    }
+    expect(statuses.slice(0, -1).every((s) => s === 410), statuses.join(' ')).toBe(true);
+    expect(statuses.at(-1)).toBe(429);
+  });
+
+  it('When someone on a local install runs npm run outbox with their address, then they read their reset link (it is in no lab outbox)', async () => {
+    // Issue 12 review: with the stand-in, mail to one person had no lab and was readable nowhere.
+    const { email } = demo.users.experimenter;
+    await request(h.app).post('/api/auth/password-reset').send({ email }).expect(202);
+    const secret = linkIn((await mailsTo(email, 'Set a new Gatepost password'))[0]);
+    const run = (args: string[]) => new Promise<{ code: number | null; out: string }>((resolve) => {
+      const child = spawn(path.join(process.cwd(), 'node_modules/.bin/tsx'), ['scripts/outbox.ts', ...args], {
+        env: { ...process.env, GATEPOST_REDIS_URL: process.env.GATEPOST_TEST_REDIS_URL }, stdio: ['ignore', 'pipe', 'pipe'],
+      });
+      let out = '';
+      child.stdout.on('data', (chunk: Buffer) => { out += chunk.toString(); });
+      child.stderr.on('data', (chunk: Buffer) => { out += chunk.toString(); });
+      child.on('exit', (code) => resolve({ code, out }));
+    });
+    const mine = await run([email.toUpperCase()]);
+    expect(mine.code, mine.out).toBe(0);
+    expect(mine.out).toContain(`to ${email}`);
+    expect(mine.out).toContain('Subject: Set a new Gatepost password');
+    expect(mine.out).toContain(`/reset-password#token=${secret}`);
+    const nobody = await run(['nobody@example.org']);
+    expect(nobody.out.trim()).toBe('No mail to nobody@example.org in the local outbox.');
+  });
+
   it('When the link has expired, then it is refused with 410 and the password stays', async () => {
     const { email, password, id } = demo.users.reviewer;
     await request(h.app).post('/api/auth/password-reset').send({ email }).expect(202);
@@ -297,6 +361,14 @@ describe('a lab admin disables a member', () => {
     expect(await AuditEvent.count({ where: { actorId: id } })).toBeGreaterThanOrEqual(auditBefore);
     const audit = await request(h.app).get(`/api/labs/${demo.labs.hollowmere.id}/audit`).set('Cookie', h.sessionCookie(demo.users.admin.id));
     expect(JSON.stringify(audit.body)).toContain('member.disabled');
+    // The member is told, through the same mailer, by whom and what it means; the lab's admins see the notice went
+    // (issue 12 review: a disabled member was told nothing). The audit row says whether the mail went.
+    const [notice] = await mailsTo(email, 'Your Gatepost account was disabled');
+    expect(notice.labId).toBe(demo.labs.hollowmere.id);
+    expect(notice.text).toContain(`${demo.users.admin.name}, an admin of ${demo.labs.hollowmere.name}, disabled your Gatepost account (${email})`);
+    expect(notice.text).toContain('You cannot sign in now');
+    const disabledRow = await AuditEvent.findOne({ where: { action: 'member.disabled', targetId: id } });
+    expect(disabledRow?.details).toMatchObject({ mailed: true });
 
     // Enabled again: signs in anew (the old session stays ended) and the token works again.
     expect((await enable(id)).body).toEqual({ userId: id, active: true });
@@ -304,6 +376,8 @@ describe('a lab admin disables a member', () => {
     expect((await me({ Authorization: `Bearer ${script}` })).status).toBe(200);
     await signIn(email, password);
     expect(await actions(demo.users.admin.id)).toEqual(expect.arrayContaining(['member.disabled', 'member.enabled']));
+    const [again] = await mailsTo(email, 'Your Gatepost account was enabled again');
+    expect(again.text).toContain('You can sign in again');
   });
 
   it('When an admin disables and enables over and over, then past the cap the answer is 429', async () => {
@@ -357,7 +431,7 @@ describe('the API document', () => {
     const doc = await request(h.app).get('/api/openapi.json');
     for (const [path, method] of [
       ['/api/me/password', 'post'], ['/api/me/sign-out-everywhere', 'post'], ['/api/auth/password-reset', 'post'],
-      ['/api/auth/password-reset/complete', 'post'], ['/api/labs/{labId}/members/{userId}/disable', 'post'],
+      ['/api/auth/password-reset/complete', 'post'], ['/api/auth/password-reset/check', 'post'], ['/api/labs/{labId}/members/{userId}/disable', 'post'],
       ['/api/labs/{labId}/members/{userId}/enable', 'post'],
     ] as const) {
       expect(doc.body.paths[path]?.[method], `${method} ${path}`).toMatchObject({ summary: expect.any(String) });

@@ -89,6 +89,17 @@ describe('loadConfig', () => {
     expect(loadConfig({ GATEPOST_PUBLIC_URL: 'https://gatepost.lab.example', GATEPOST_JWT_SECRET: PRODUCTION_SECRET }).jwtSecret).toBe(PRODUCTION_SECRET);
   });
 
+  it('When the server listens beyond loopback, then the development JWT secret is refused even with a loopback public URL', () => {
+    // Found in the issue 12 review: GATEPOST_HOST=0.0.0.0 with the development secret let anyone on the network sign sessions.
+    for (const host of ['0.0.0.0', '::', '192.168.1.20', 'gatepost.lab.example']) {
+      expect(configError(() => loadConfig({ NODE_ENV: 'development', GATEPOST_HOST: host }))).toBe(
+        `Invalid configuration:\n  GATEPOST_JWT_SECRET: must be set when GATEPOST_HOST (${host}) is not a loopback address`,
+      );
+    }
+    for (const host of ['127.0.0.1', 'localhost', '::1']) expect(loadConfig({ NODE_ENV: 'development', GATEPOST_HOST: host }).host).toBe(host);
+    expect(loadConfig({ GATEPOST_HOST: '0.0.0.0', GATEPOST_JWT_SECRET: PRODUCTION_SECRET }).host).toBe('0.0.0.0');
+  });
+
   it('When running in production with a real secret, then the configuration loads', () => {
     const config = loadConfig({ NODE_ENV: 'production', GATEPOST_JWT_SECRET: PRODUCTION_SECRET });
     expect(config).toMatchObject({ nodeEnv: 'production', jwtSecret: PRODUCTION_SECRET });

@@ -1,4 +1,4 @@
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ApiError, api } from '../../../lib/api-client.ts';
 import type {
   ChangePasswordBody,
@@ -49,5 +49,21 @@ export function useRequestPasswordReset() {
 export function useCompletePasswordReset() {
   return useMutation({
     mutationFn: (body: PasswordResetCompleteBody) => api.post<void>('/api/auth/password-reset/complete', body),
+  });
+}
+
+/**
+ * Whether the reset link of this page still works, asked once when the page opens (only a look: the link stays
+ * usable). The secret goes in a POST body, never in a URL; the answer is not kept after the page closes.
+ */
+export function useCheckPasswordReset(token: string) {
+  return useQuery({
+    queryKey: ['password-reset-check', token],
+    queryFn: () => api.post<{ expiresAt: string }>('/api/auth/password-reset/check', { token }),
+    enabled: token.length > 0,
+    retry: false,
+    staleTime: Infinity,
+    gcTime: 0,
+    refetchOnWindowFocus: false,
   });
 }
