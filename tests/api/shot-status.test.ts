@@ -61,13 +61,19 @@ async function quiet(shotId: string): Promise<ShotDetail> {
   }, { timeoutMs: 60_000, intervalMs: 50, what: `shot ${shotId} to have nothing pending` });
 }
 
-/** After the last job ended, the status the worker wrote (it settles right after the row's final state). */
+/**
+ * After the last job ended, the status the worker wrote (it settles right after the row's final state), read in the
+ * same answer as the files and versions: nothing pending and a status other than "processing". Between a file read
+ * and its version being created nothing is pending yet; the status then still says "processing", so this waits on.
+ * A status that stays "processing" with nothing pending fails here.
+ */
 async function statusOnceQuiet(shotId: string): Promise<ShotDetail> {
   await quiet(shotId);
   return pollUntil(async () => {
     const d = await detail(shotId);
-    return d.shot.status === 'processing' ? undefined : d;
-  }, { timeoutMs: 5_000, intervalMs: 50, what: `shot ${shotId} to leave "processing" once nothing is pending` });
+    const pending = d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
+    return pending || d.shot.status === 'processing' ? undefined : d;
+  }, { timeoutMs: 30_000, intervalMs: 50, what: `shot ${shotId} to leave "processing" once nothing is pending` });
 }
 
 describe('When a good file and a bad file reach the same shot', () => {

@@ -1,6 +1,6 @@
 import type { Request } from 'express';
 import { z } from 'zod';
-import { col, literal, Op, UniqueConstraintError, type Order } from 'sequelize';
+import { col, literal, Op, Transaction, UniqueConstraintError, type Order } from 'sequelize';
 import { createShotBody, missingConditions, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../shared/contracts/shots.ts';
 import { Analysis, Campaign, Capture, GateRig, Projectile, Review, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
@@ -99,14 +99,20 @@ function conditionsOf(body: UpdateShotBody) {
 }
 
 export async function shotDetail(shot: Shot) {
-  const [captures, analyses] = await Promise.all([
-    Capture.findAll({ where: { shotId: shot.id }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']] }),
-    Analysis.findAll({ where: { shotId: shot.id }, order: [['version', 'DESC']], attributes: { exclude: ['results', 'parameters'] } }),
-  ]);
-  // Read the shot again after its versions: the worker finishes a version and moves the shot's pointer in one
-  // transaction, so a version seen as done here is never shown beside the shot as it was before that commit.
-  await shot.reload();
-  const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId) : null;
+  // One snapshot for the shot, its files and its versions: read one after the other outside a transaction, a
+  // version could be seen still running beside a status the worker had written after finishing it ("analysed"
+  // next to "running", seen by the status tests on a busy machine).
+  const { captures, analyses, current } = await shot.sequelize.transaction(
+    { isolationLevel: Transaction.ISOLATION_LEVELS.REPEATABLE_READ },
+    async (transaction) => {
+      const found = {
+        captures: await Capture.findAll({ where: { shotId: shot.id }, order: [['uploadedAt', 'ASC'], ['id', 'ASC']], transaction }),
+        analyses: await Analysis.findAll({ where: { shotId: shot.id }, order: [['version', 'DESC']], attributes: { exclude: ['results', 'parameters'] }, transaction }),
+      };
+      await shot.reload({ transaction });
+      return { ...found, current: shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction }) : null };
+    },
+  );
   const names = await namesOf([current?.timeBaseConfirmedBy, ...analyses.map((a) => a.requestedBy)]);
   const campaign = await Campaign.findOne({ where: { id: shot.campaignId, labId: shot.labId } });
   const needed = campaign ? (await campaignNeeds([campaign])).get(campaign.id) ?? [] : [];
