@@ -1,7 +1,11 @@
+import { mkdtemp, rm, writeFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { simulateShot } from '../../shared/simulate/simulate-shot.ts';
 import { simulatedShotToCapture } from '../../shared/simulate/simulated-shot-to-capture.ts';
 import { channelFilesOf } from '../../server/traces/write-channel-files.ts';
+import { readCaptureFile } from '../import/read-capture-file.ts';
 import { readCaptureStream } from '../import/read-capture-stream.ts';
 import { workerContext } from '../context.ts';
 import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
@@ -26,8 +30,15 @@ export async function warmThread(kind: 'ingest' | 'analysis'): Promise<void> {
     const lines = ['Time (s),Gate A (V),Gate B (V)'];
     for (let i = 0; i < a.length; i++) lines.push(`${(shot.time.t0 + i * shot.time.dt).toExponential(8)},${a[i].toFixed(5)},${b[i].toFixed(5)}`);
     const bytes = new TextEncoder().encode(`${lines.join('\n')}\n`);
-    const read = await readCaptureStream((async function* () { yield bytes; })(), { sizeHint: bytes.length });
-    channelFilesOf(read);
+    // Both readers an ingest uses: the disk reader for the local store, the stream reader for S3.
+    const dir = await mkdtemp(path.join(tmpdir(), 'gatepost-warm-'));
+    try {
+      await writeFile(path.join(dir, 'warm.csv'), bytes);
+      channelFilesOf(await readCaptureFile(path.join(dir, 'warm.csv')));
+    } finally {
+      await rm(dir, { recursive: true, force: true });
+    }
+    channelFilesOf(await readCaptureStream((async function* () { yield bytes; })(), { sizeHint: bytes.length }));
   } else {
     analyzeShot(capture, { spacing: 0.1 });
   }
