@@ -118,11 +118,15 @@ describe('When files the reader refuses are uploaded to it', () => {
     const ragged = new TextEncoder().encode(lines.join('\n'));
     const up = await experimenter.upload<{ captures: { id: string }[] }>(shotId, [{ name: 'ragged.csv', bytes: ragged }]);
     expect(up.status).toBe(202);
-    const { shot, seen } = await settleShot<ShotDetail>(experimenter, shotId);
+    const { shot } = await settleShot<ShotDetail>(experimenter, shotId);
     expect(shot.captures[0]).toMatchObject({ state: 'failed' });
     expect(shot.captures[0].error).toMatch(/^line 1,?235: expected 4 columns/);
-    // Read again by the worker, which says so while it reads.
-    expect(seen.get(up.body.captures[0].id)).toContain('reading');
+    // Read again by the worker: its ingest job ran and failed with the importer's message (only the worker writes
+    // "failed"; the API leaves a file it could not read queued). Watching for the passing "reading" state missed it
+    // once the worker's threads were warm, so the job itself is the witness.
+    const row = await Capture.findByPk(up.body.captures[0].id, { rejectOnEmpty: true });
+    const job = await h.deps.queues.failedIngest({ captureId: row.id, attempt: row.ingestAttempt });
+    expect(job?.failedReason).toMatch(/^line 1,?235: expected 4 columns/);
     expect(incoming()).toEqual([]);
   });
 });
