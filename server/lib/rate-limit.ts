@@ -1,5 +1,7 @@
 import type { Redis } from 'ioredis';
+import type { Response } from 'express';
 import type { Config } from '../config.ts';
+import { tooManyRequests } from './errors.ts';
 
 export interface LoginLimiterOptions {
   /** Failed attempts allowed on one account from one address in a window, before that address is refused for it. @default 5 */
@@ -27,6 +29,17 @@ export interface LoginAttempt {
   delayMs: number;
   /** Attempts on the account in the window from every address, this one included. */
   accountAttempts: number;
+}
+
+/**
+ * Holds the request for the attempt's delay, then refuses it (429 with Retry-After) when the attempt is blocked.
+ * `message` is given the wait in whole minutes.
+ */
+export async function holdOrRefuse(res: Response, attempt: LoginAttempt, message: (minutes: number) => string): Promise<void> {
+  if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
+  if (!attempt.blocked) return;
+  res.set('Retry-After', String(attempt.retryAfterSeconds));
+  throw tooManyRequests(message(Math.ceil(attempt.retryAfterSeconds / 60)), attempt.retryAfterSeconds);
 }
 
 /** Failures before the delays start: a person mistyping twice notices nothing. */

@@ -16,9 +16,9 @@ import { recordAudit } from '../../lib/audit.ts';
 import { SESSION_COOKIE } from '../../lib/authenticate.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
-import { AppError, tooManyRequests } from '../../lib/errors.ts';
+import { AppError } from '../../lib/errors.ts';
 import { hashPassword } from '../../lib/passwords.ts';
-import { ActionLimiter, LoginLimiter } from '../../lib/rate-limit.ts';
+import { ActionLimiter, holdOrRefuse, LoginLimiter } from '../../lib/rate-limit.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { newPasswordResetSecret, sha256Hex } from '../../lib/tokens.ts';
 import { startSession } from '../auth/routes.ts';
@@ -174,12 +174,7 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         const ip = clientIp(req);
         // Counted per address whether or not it has an account, so the limit itself tells nothing either.
         const attempt = await resetRequests.reserve(email, ip);
-        if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
-        if (attempt.blocked) {
-          res.set('Retry-After', String(attempt.retryAfterSeconds));
-          const minutes = Math.ceil(attempt.retryAfterSeconds / 60);
-          throw tooManyRequests(`Too many reset requests for this address from your network. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`, attempt.retryAfterSeconds);
-        }
+        await holdOrRefuse(res, attempt, (minutes) => `Too many reset requests for this address from your network. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}.`);
         // A request stays counted (there is nothing to give back) and is done at once: the next need not wait for it.
         await resetRequests.fail(email, ip);
         res.status(202).json({ message: PASSWORD_RESET_REQUESTED_MESSAGE });
@@ -202,11 +197,7 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         const { token } = req.body as PasswordResetCheckBody;
         const ip = clientIp(req);
         const attempt = await resetUses.reserve(ip, ip);
-        if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
-        if (attempt.blocked) {
-          res.set('Retry-After', String(attempt.retryAfterSeconds));
-          throw tooManyRequests('Too many reset links tried from your address. Try again later.', attempt.retryAfterSeconds);
-        }
+        await holdOrRefuse(res, attempt, () => 'Too many reset links tried from your address. Try again later.');
         const found = await PasswordReset.findOne({
           where: { tokenHash: sha256Hex(token), usedAt: null, expiresAt: { [Op.gt]: new Date() } },
           include: [{ model: User, required: true, attributes: ['disabledAt'] }],
@@ -233,11 +224,7 @@ export function accountRoutes(deps: Deps): RouteDef[] {
         const { token, password } = req.body as PasswordResetCompleteBody;
         const ip = clientIp(req);
         const attempt = await resetUses.reserve(ip, ip);
-        if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
-        if (attempt.blocked) {
-          res.set('Retry-After', String(attempt.retryAfterSeconds));
-          throw tooManyRequests('Too many reset links tried from your address. Try again later.', attempt.retryAfterSeconds);
-        }
+        await holdOrRefuse(res, attempt, () => 'Too many reset links tried from your address. Try again later.');
         const tokenHash = sha256Hex(token);
         const open = { tokenHash, usedAt: null, expiresAt: { [Op.gt]: new Date() } };
         const found = await PasswordReset.findOne({ where: open, include: [{ model: User, required: true }] });

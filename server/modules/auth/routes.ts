@@ -6,7 +6,8 @@ import { revokedSessionKey, SESSION_COOKIE } from '../../lib/authenticate.ts';
 import { publishAccountChanged } from '../../lib/account-events.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
-import { AppError, serviceUnavailable, tooManyRequests } from '../../lib/errors.ts';
+import { AppError, serviceUnavailable } from '../../lib/errors.ts';
+import { holdOrRefuse } from '../../lib/rate-limit.ts';
 import { verifyAgainstDummy, verifyPassword } from '../../lib/passwords.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { signSession } from '../../lib/tokens.ts';
@@ -65,16 +66,9 @@ export function authRoutes(deps: Deps): RouteDef[] {
         const attempt = await deps.loginLimiter.reserve(email, ip);
         // Guessing gets slower with every failure on the account (from anywhere) or from this address; a right
         // password still gets in, only later.
-        if (attempt.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, attempt.delayMs));
-        if (attempt.blocked) {
-          res.set('Retry-After', String(attempt.retryAfterSeconds));
-          const minutes = Math.ceil(attempt.retryAfterSeconds / 60);
-          throw tooManyRequests(
-            `Too many failed sign-ins to this account from your address. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, ` +
-              'or ask a lab admin to unlock your sign-in (People page).',
-            attempt.retryAfterSeconds,
-          );
-        }
+        await holdOrRefuse(res, attempt, (minutes) =>
+          `Too many failed sign-ins to this account from your address. Try again in ${minutes} minute${minutes === 1 ? '' : 's'}, ` +
+          'or ask a lab admin to unlock your sign-in (People page).');
         const user = await User.findOne({ where: { email } });
         const ok = user ? await verifyPassword(user.passwordHash, password) : await verifyAgainstDummy(password);
         if (ok && user?.disabledAt) {
