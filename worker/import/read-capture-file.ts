@@ -61,8 +61,9 @@ async function readCaptureFileOnce(path: string, options: ReadCaptureFileOptions
   const threads = options.threads ?? (size >= parallelFromBytes && availableParallelism() >= 2 ? 2 : 1);
   if (threads !== 1 && threads !== 2) throw new RangeError('threads must be 1 or 2');
   if (threads === 2) {
-    const capture = await readInTwoParts(path, size, options);
-    if (capture !== null) return capture;
+    let capture = await readInTwoParts(path, size, options);
+    if (capture === RECOUNT) capture = await readInTwoParts(path, size, options, true);
+    if (capture !== null && capture !== RECOUNT) return capture;
     return readSequentially(path, size, options, false);
   }
   return readSequentially(path, size, options, true);
@@ -95,9 +96,34 @@ function firstTimeOfPart(hull: TimeGridHullData): number {
   return hull.t0 + hull.lower[0][0] * hull.dtHint + hull.lower[1][0];
 }
 
-/** The parallel path; null when the file is not a plain numeric one (the stream path then takes it). */
-async function readInTwoParts(path: string, size: number, options: ReadCaptureFileOptions): Promise<ImportedCapture | null> {
-  // Start the worker first: it boots (~0.3 s) while this thread reads the head and counts lines.
+/** Bytes of the shortest row of samples (its line end included) among the complete lines in bytes[from, to);
+ * lines of only spaces and tabs hold no row and do not count. Infinity when there is none. */
+export function shortestRowBytes(bytes: Uint8Array, from: number, to: number, eol: number): number {
+  let shortest = Infinity;
+  let start = from;
+  for (;;) {
+    const end = bytes.indexOf(eol, start);
+    if (end < 0 || end >= to) return shortest;
+    let q = start;
+    while (q < end && (bytes[q] === 32 || bytes[q] === 9 || bytes[q] === 10 || bytes[q] === 13)) q++;
+    if (q < end && end + 1 - start < shortest) shortest = end + 1 - start;
+    start = end + 1;
+  }
+}
+
+/** Rows the arrays of a part of `bytes` bytes are sized for, when no line was counted: its bytes over 4/5 of the
+ * shortest row seen (a later row may lose a sign or a digit). A part that still fills up is read again counted. */
+export function rowsUpperBound(bytes: number, shortestRow: number): number {
+  return Math.ceil(bytes / Math.max(2, Math.floor(shortestRow * 0.8))) + 1;
+}
+
+const RECOUNT = 'recount';
+
+/** The parallel path; null when the file is not a plain numeric one (the stream path then takes it). Both parts
+ * are scanned at once into arrays sized from an upper bound on their rows (`counted`: from the lines counted in a
+ * pass over the file first, the way taken again when a part outgrows its bound). */
+async function readInTwoParts(path: string, size: number, options: ReadCaptureFileOptions, counted = false): Promise<ImportedCapture | null | typeof RECOUNT> {
+  // Start the worker first: it boots while this thread reads the head.
   const worker = new Worker(new URL('./scan-range-worker-boot.mjs', import.meta.url));
   const ready = new Promise<ScanRangeReply>((resolve, reject) => {
     worker.once('message', resolve);
@@ -120,35 +146,55 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     const eol = head.subarray(0, cut).includes(10) ? 10 : 13;
     const dataOffset = lineStartOffset(head, plan.dataStartLine);
 
-    // Split at the line start nearest the middle of the data, and count lines on each side to size the arrays.
+    // Split at the line start nearest the middle of the data.
     let split = dataOffset + Math.floor((size - dataOffset) / 2);
     const probe = new Uint8Array(Math.min(1 << 20, size - split));
     readSync(fd, probe, 0, probe.length, split);
     const nl = probe.indexOf(eol);
     if (nl < 0) return null;
     split += nl + 1;
-    const block = new Uint8Array(BLOCK);
-    const count = (from: number, to: number) => {
-      let lines = 0;
-      for (let at = from; at < to; at += BLOCK) {
-        const got = readSync(fd, block, 0, Math.min(BLOCK, to - at), at);
-        lines += countLineEnds(block, 0, got, eol);
-      }
-      return lines;
-    };
-    const lines0 = count(dataOffset, split);
-    const lines1 = count(split, size);
-    // Before any array is made: a footer of a few lines may count here too, which no limit worth setting notices.
-    checkSampleCount(lines0 + lines1, options);
-    const cap0 = lines0 + 1;
-    const capacity = cap0 + lines1 + 1;
+    let cap0: number;
+    let capacity: number;
+    if (counted) {
+      const block = new Uint8Array(BLOCK);
+      const count = (from: number, to: number) => {
+        let n = 0;
+        for (let at = from; at < to; at += BLOCK) {
+          const got = readSync(fd, block, 0, Math.min(BLOCK, to - at), at);
+          n += countLineEnds(block, 0, got, eol);
+        }
+        return n;
+      };
+      const lines0 = count(dataOffset, split);
+      const lines1 = count(split, size);
+      // Before any array is made: a footer of a few lines may count here too, which no limit worth setting notices.
+      checkSampleCount(lines0 + lines1, options);
+      cap0 = lines0 + 1;
+      capacity = cap0 + lines1 + 1;
+    } else {
+      // The shortest row in the head, after the split and at the end bounds the rows; untouched pages of the
+      // arrays' slack cost no memory, and the second part's rows are moved down to follow the first part's.
+      const tail = new Uint8Array(Math.min(64 << 10, size - split));
+      readSync(fd, tail, 0, tail.length, size - tail.length);
+      const shortest = Math.min(
+        shortestRowBytes(head, dataOffset, cut, eol),
+        shortestRowBytes(probe, nl + 1, probe.length, eol),
+        shortestRowBytes(tail, Math.max(0, tail.indexOf(eol) + 1), tail.length, eol),
+      );
+      if (shortest === Infinity) return RECOUNT;
+      cap0 = rowsUpperBound(split - dataOffset, shortest);
+      capacity = cap0 + rowsUpperBound(size - split, shortest);
+      // Over a limit only by the bound's slack, perhaps: the counted read decides.
+      if (options.maxSamples !== undefined && capacity > options.maxSamples) return RECOUNT;
+    }
     // An evenly spaced time column is checked on the fly (TimeGridHull) instead of being kept.
     const hint = headTimeHint(plan, lines);
     const shared = plan.channels.map(() => new SharedArrayBuffer(capacity * 8));
     const sharedTimes = plan.timeMode === 'column' && hint === null ? new SharedArrayBuffer(capacity * 8) : null;
     const spec = scanSpecFromPlan(plan);
+    // The second part numbers its lines from 1 (the first part's count is not known yet): see lineAt.
     const request: ScanRangeRequest = {
-      path, start: split, end: size, spec, values: shared, times: sharedTimes, rowOffset: cap0, line: plan.dataStartLine + lines0, hull: hint,
+      path, start: split, end: size, spec, values: shared, times: sharedTimes, rowOffset: cap0, line: 1, hull: hint,
     };
     worker.postMessage(request);
     const out: ScanOutput = {
@@ -159,12 +205,19 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     };
     const state: ScanState = { row: 0, line: plan.dataStartLine, lastTime: NaN, nextIndex: NaN };
     const stop0 = scanFileRange(fd, dataOffset, split, spec, out, state);
-    if (stop0 !== null) throw stop0.error ?? new Error('the first part of the file held more rows than lines');
+    if (stop0 !== null) {
+      if (stop0.kind === 'full' && !counted) return RECOUNT;
+      throw stop0.error ?? new Error('the first part of the file held more rows than lines');
+    }
+    // Line number in the file of the second part's line `line`.
+    const splitLine = state.line;
+    const lineAt = (line: number): number => splitLine + line - 1;
     const reply = await ready;
     if (reply.failure !== null) throw new Error(`the import worker failed: ${reply.failure}`);
     let footerText: string | null = null;
     if (reply.stop !== null) {
-      const error = new ImportError(reply.stop.reason, reply.stop.line);
+      if (reply.stop.kind === 'full' && !counted) return RECOUNT;
+      const error = new ImportError(reply.stop.reason, reply.stop.line === null ? null : lineAt(reply.stop.line), reply.stop.code);
       if (reply.stop.kind !== 'text' || size - reply.stop.offset > (options.footerBytes ?? 64 << 10)) throw error;
       const tail = new Uint8Array(size - reply.stop.offset);
       readSync(fd, tail, 0, tail.length, reply.stop.offset);
@@ -180,17 +233,17 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
       out.times?.copyWithin(rows0, cap0, cap0 + rows1);
     }
     if (out.times !== null && rows0 > 0 && rows1 > 0 && !(out.times[rows0] > out.times[rows0 - 1])) {
-      throw new ImportError(`the time ${out.times[rows0]} s is not after the previous ${out.times[rows0 - 1]} s (times must increase)`, plan.dataStartLine + lines0, out.times[rows0] === out.times[rows0 - 1] ? 'time-repeats' : null);
+      throw new ImportError(`the time ${out.times[rows0]} s is not after the previous ${out.times[rows0 - 1]} s (times must increase)`, splitLine, out.times[rows0] === out.times[rows0 - 1] ? 'time-repeats' : null);
     }
     if (reply.firstIndex !== null && rows0 > 0 && reply.firstIndex !== state.nextIndex) {
-      throw new ImportError(`the sample index ${reply.firstIndex} does not follow ${state.nextIndex - 1} (indices must count up by one)`, plan.dataStartLine + lines0);
+      throw new ImportError(`the sample index ${reply.firstIndex} does not follow ${state.nextIndex - 1} (indices must count up by one)`, splitLine);
     }
     const source = { encoding: decoded.encoding, bom: decoded.bom, lineEnding: eol === 13 ? 'CR' : head.includes(13) ? 'CRLF' : 'LF', reader: 'two threads' };
     if (out.hull === null || out.hull === undefined || rows < 2) return finishCapture({ plan, out, rows, footerText, source });
     if (reply.hull !== null && rows1 > 0) {
       // The second part numbered its rows from cap0; shift them to follow the first part's rows0.
       if (rows0 > 0 && !(firstTimeOfPart(reply.hull) > state.lastTime)) {
-        throw new ImportError(`the times do not increase across line ${plan.dataStartLine + lines0} (times must increase)`, plan.dataStartLine + lines0);
+        throw new ImportError(`the times do not increase across line ${splitLine} (times must increase)`, splitLine);
       }
       out.hull.merge(TimeGridHull.fromData(reply.hull), cap0 - rows0);
     }

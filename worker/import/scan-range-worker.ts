@@ -14,6 +14,7 @@ export interface ScanRangeRequest {
   values: SharedArrayBuffer[];
   times: SharedArrayBuffer | null;
   rowOffset: number;
+  /** Line number of the range's first line (the reader passes 1 and adds the first part's lines afterwards). */
   line: number;
   /** Reference grid for tracking the time column's evenness without keeping it; null to keep the times. */
   hull: { t0: number; dtHint: number } | null;
@@ -25,7 +26,7 @@ export interface ScanRangeReply {
   lastTime: number;
   firstIndex: number | null;
   hull: TimeGridHullData | null;
-  stop: { kind: string; offset: number; reason: string; line: number | null } | null;
+  stop: { kind: string; offset: number; reason: string; line: number | null; code: 'time-repeats' | null } | null;
   invalidCounts: number[];
   failure: string | null;
 }
@@ -49,7 +50,7 @@ parentPort?.once('message', (request: ScanRangeRequest) => {
         lastTime: state.lastTime,
         firstIndex: state.firstIndex ?? null,
         hull: out.hull?.toData() ?? null,
-        stop: stop === null ? null : { kind: stop.kind, offset: stop.offset, reason: stop.error?.reason ?? '', line: stop.error?.line ?? null },
+        stop: stop === null ? null : { kind: stop.kind, offset: stop.offset, reason: stop.error?.reason ?? '', line: stop.error?.line ?? null, code: stop.error?.code ?? null },
         invalidCounts: out.invalidCounts,
         failure: null,
       };
@@ -58,7 +59,7 @@ parentPort?.once('message', (request: ScanRangeRequest) => {
     }
   } catch (error) {
     if (error instanceof ImportError) {
-      reply = { row: 0, line: 0, lastTime: NaN, firstIndex: null, hull: null, stop: { kind: 'error', offset: 0, reason: error.reason, line: error.line }, invalidCounts: [], failure: null };
+      reply = { row: 0, line: 0, lastTime: NaN, firstIndex: null, hull: null, stop: { kind: 'error', offset: 0, reason: error.reason, line: error.line, code: error.code }, invalidCounts: [], failure: null };
       parentPort?.postMessage(reply);
       return;
     }

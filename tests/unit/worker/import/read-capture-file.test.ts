@@ -5,7 +5,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { writeCaptureLayout } from '../../../../fixtures/lib/write-capture-layout.ts';
 import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
 import { countLineEnds } from '../../../../shared/import/count-line-ends.ts';
-import { readCaptureFile } from '../../../../worker/import/read-capture-file.ts';
+import { readCaptureFile, rowsUpperBound, shortestRowBytes } from '../../../../worker/import/read-capture-file.ts';
 import { checkAgainstTruth } from '../../import/check-against-truth.ts';
 import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
 import { rejection } from '../../../helpers/import-rejection.ts';
@@ -90,6 +90,51 @@ describe('readCaptureFile', () => {
     expect(capture.length).toBe(20_200);
     expect(capture.channels[0].values).toEqual(reference.channels[0].values);
     expect(capture.channels[0].values.buffer.byteLength).toBe(20_200 * 8);
+  });
+
+  it('When rows after the head are much shorter than any the reader saw, then the two-thread read counts the lines and still matches', async () => {
+    // The arrays are sized from the shortest row in the head, after the split and at the end; rows a quarter of
+    // that length in the first part outgrow the bound, and the read is done again with the lines counted.
+    const long = (i: number) => `${(i * 1e-6).toExponential(15)},${(0.123456789012345 + (i % 7)).toFixed(15)}`;
+    const rows = [
+      ...Array.from({ length: 100 }, (_, i) => long(i)),
+      ...Array.from({ length: 6000 }, (_, i) => `${100 + i}e-6,${i % 10}`),
+      ...Array.from({ length: 3000 }, (_, i) => long(6100 + i)),
+    ];
+    const text = `Time (s),CH1 (V)\n${rows.join('\n')}\n`;
+    const path = save('outgrown.csv', text);
+    const bytes = new TextEncoder().encode(text);
+    const shortestSeen = shortestRowBytes(bytes, text.indexOf('\n') + 1, 2048, 10);
+    expect(shortestSeen).toBe(long(0).length + 1);
+    const middle = Math.floor(bytes.length / 2);
+    expect(rows.slice(0, 6100).join('\n').length).toBeLessThan(middle); // the short rows are all in the first part
+    expect(rowsUpperBound(middle, shortestSeen)).toBeLessThan(6100);
+    const two = await readCaptureFile(path, { threads: 2, headBytes: 2048 });
+    const reference = parseScopeCsv(bytes);
+    expect(two.layout.reader).toBe('two threads');
+    expect(two.length).toBe(9100);
+    expect(two.channels[0].values).toEqual(reference.channels[0].values);
+    expect(two.time).toEqual(reference.time);
+  });
+
+  it('When the printed times start to repeat only in the second part of a split file, then the grid is rebuilt as in one thread', async () => {
+    // Four significant digits: i·1e-8 s repeats from i = 10 000 on, past the middle of 12 000 rows.
+    const dt = 1e-8;
+    const text = `Sample interval,${dt}\nTime,CH1\n${Array.from({ length: 12_000 }, (_, i) => `${i === 0 ? '0' : (i * dt).toPrecision(4)},${i % 5}`).join('\n')}\n`;
+    const path = save('late-repeats-split.csv', text);
+    const [two, one] = await Promise.all([readCaptureFile(path, { threads: 2, headBytes: 2048 }), readCaptureFile(path, { threads: 1, headBytes: 2048 })]);
+    expect(one.timeOrigin?.how).toBe('rebuilt');
+    expect(two.timeOrigin?.how).toBe('rebuilt');
+    expect(two.time).toEqual(one.time);
+    expect(two.channels[0].values).toEqual(one.channels[0].values);
+  });
+
+  it('When counting the shortest row, then blank lines and a last line without its end do not count', () => {
+    const bytes = new TextEncoder().encode('1,2\n  \n\n10,20\r\n3,4\n5');
+    expect(shortestRowBytes(bytes, 0, bytes.length, 10)).toBe(4);
+    expect(shortestRowBytes(bytes, 4, bytes.length, 10)).toBe(4); // '3,4\n'
+    expect(shortestRowBytes(bytes, 4, 12, 10)).toBe(Infinity);
+    expect(rowsUpperBound(100, 10)).toBe(14); // 100 bytes over 8 bytes a row, plus one
   });
 
   it('When the times are unevenly spaced, then the reader keeps them (read again with times)', async () => {
