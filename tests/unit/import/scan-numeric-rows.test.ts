@@ -120,3 +120,58 @@ describe('scanNumericRows number parsing', () => {
       .toThrow(new RangeError('end must follow a line end (append one after the last line of a file)'));
   });
 });
+
+describe('scanNumericRows on rows of plain numbers (the lean loop, four digits at a time)', () => {
+  const rowSpec = spec({ slots: [SLOT_TIME, 0, 1], requiredFields: 3, factors: [1, 1e-3], expected: 3 });
+  const scanRows = (text: string, s: ScanSpec = rowSpec, rows = 64) => {
+    const bytes = encoder.encode(text);
+    const out = { values: [new Float64Array(rows), new Float64Array(rows)], times: new Float64Array(rows), invalidCounts: [0, 0] };
+    const state = { row: 0, line: 1, lastTime: NaN, nextIndex: NaN };
+    const stop = scanNumericRows(bytes, 0, bytes.length, s, out, state);
+    return { out, state, stop };
+  };
+
+  it('When rows hold digit runs of every length around the four-byte steps, at the very end of the range too, then each field equals parseFloat to the bit', () => {
+    const field = fc.stringMatching(/^-?\d{0,19}(\.\d{0,19})?([eE][-+]?\d{1,3})?$/).filter((f) => /\d/.test(f.replace(/[eE].*/, '')));
+    fc.assert(fc.property(fc.array(fc.tuple(field, field), { minLength: 1, maxLength: 12 }), fc.boolean(), (rows, crlf) => {
+      // The time column counts up; the channels carry the random spellings (the last row's last field ends the range).
+      const text = rows.map(([a, b], i) => `${i}.5e-6,${a},${b}`).join(crlf ? '\r\n' : '\n') + (crlf ? '\r\n' : '\n');
+      const { out, state, stop } = scanRows(text);
+      expect(stop).toBeNull();
+      expect(state.row).toBe(rows.length);
+      rows.forEach(([a, b], i) => {
+        expect(Object.is(out.times[i], parseFloat(`${i}.5e-6`))).toBe(true);
+        expect(Object.is(out.values[0][i], expected(a)), a).toBe(true);
+        expect(Object.is(out.values[1][i], expected(b) * 1e-3), b).toBe(true);
+      });
+    }), { numRuns: 500 });
+  });
+
+  it('When a byte just outside 0-9 sits inside a run of digits, then the row is not read as a number', () => {
+    // '/' is just below '0' and ':' just above '9'; 0xff and 0xfa would carry in a careless four-byte test.
+    for (const odd of ['/', ':', ' ', '\u00ff', '\u00fa', 'e', '+']) {
+      for (let at = 0; at <= 8; at++) {
+        const digits = '12345678';
+        const f = `${digits.slice(0, at)}${odd}${digits.slice(at)}`;
+        const { out, state, stop } = scanRows(`0,1.25,2\n1e-6,${f},3\n`, spec({ ...rowSpec, textSentinels: [] }));
+        const v = readSampleField(f, { textSentinels: new Set(), numericSentinels: new Set() });
+        if (v === undefined) {
+          expect(stop?.kind, f).toBe('text');
+          expect(state.row).toBe(1);
+        } else {
+          expect(stop, f).toBeNull();
+          expect(Object.is(out.values[0][1], v), f).toBe(true);
+        }
+      }
+    }
+  });
+
+  it('When a row is short, repeats a time or holds a sentinel, then the general loop still says so', () => {
+    expect(scanRows('0,1,2\n1e-6,2\n').stop?.error?.message).toBe('line 2: expected 3 numbers, found 2 fields (a short row)');
+    expect(scanRows('0,1,2\n0,2,3\n').stop?.error?.code).toBe('time-repeats');
+    const sentinel = scanRows('0,1,2\n1e-6,9999,3\n2e-6,4,5\n', spec({ ...rowSpec, numericSentinels: [9999] }));
+    expect(sentinel.stop).toBeNull();
+    expect(Array.from(sentinel.out.values[0].subarray(0, 3))).toEqual([1, NaN, 4]);
+    expect(sentinel.out.invalidCounts).toEqual([1, 0]);
+  });
+});
