@@ -127,8 +127,7 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
     const lineStart = p;
     if (fastRows && row < capacity) {
       // A row of plain numbers ([-] digits [. digits] [e [sign] digits], no spaces, exactly `width` fields) with
-      // the same arithmetic as the general loop, the mantissa built nine digits at a time in a small integer
-      // (a short dependency chain). Anything else (a sign '+', spaces, a blank or short line, text, a sentinel,
+      // the same arithmetic as the general loop. Anything else (a sign '+', spaces, a blank or short line, text, a sentinel,
       // a time that does not increase) leaves p at the line start for the general loop, which then reads the
       // line and says what is wrong; nothing is counted here before the whole row is taken.
       let q = p;
@@ -136,9 +135,9 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
       let fastTime = NaN;
       let taken = false;
       for (;;) {
-        let c = bytes[q];
         let neg = false;
-        if (c === 45) { neg = true; c = bytes[++q]; }
+        if (bytes[q] === 45) { neg = true; q++; }
+        let c: number;
         // Digits four at a time where four are there (SWAR on a little-endian 32-bit load: all four bytes are
         // '0'-'9' when each high nibble is 3 and adding 6 carries out of none; then two multiply-adds pair them
         // up), the rest one by one. Every partial mantissa is at most the final one, so a final one below 2^53
