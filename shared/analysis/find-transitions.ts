@@ -52,15 +52,30 @@ export function findTransitions(values: ArrayLike<number>, time: TimeBase, optio
   let lastInState = -1;
   let previousTransition = 0;
   for (let i = 0; i < n; i++) {
-    const v = values[i];
     let entered: number;
-    // Most samples sit inside one state or on an edge: one or two comparisons each, NaN falls to `continue`.
-    if (v > lowArm) {
-      if (v < highArm) continue;
-      entered = 1;
-    } else if (v <= lowArm) entered = -1;
-    else continue;
-    if (entered === state || state === 0) {
+    if (state !== 0) {
+      // Inside a state: the run up to the first sample in the other state's band goes through a small loop (one
+      // comparison a sample, a function of its own so the optimiser takes it early in a deep record's one pass),
+      // then the last sample still in the state is looked up backwards (usually the one before the edge).
+      const stop = state === 1 ? firstAtOrBelow(values, i, n, lowArm) : firstAtOrAbove(values, i, n, highArm);
+      for (let j = stop - 1; j >= i; j--) {
+        const w = values[j];
+        if (state === 1 ? w >= highArm : w <= lowArm) {
+          lastInState = j;
+          break;
+        }
+      }
+      if (stop === n) break;
+      i = stop;
+      entered = -state;
+    } else {
+      const v = values[i];
+      // NaN and samples between the arms fall to `continue`.
+      if (v > lowArm) {
+        if (v < highArm) continue;
+        entered = 1;
+      } else if (v <= lowArm) entered = -1;
+      else continue;
       state = entered;
       lastInState = i;
       continue;
@@ -94,4 +109,18 @@ export function findTransitions(values: ArrayLike<number>, time: TimeBase, optio
     previousTransition = mesial.after;
   }
   return transitions;
+}
+
+/** First index in [from, n) whose sample is at or below `level` (NaN never is), or n. */
+function firstAtOrBelow(values: ArrayLike<number>, from: number, n: number, level: number): number {
+  let i = from;
+  while (i < n && !(values[i] <= level)) i++;
+  return i;
+}
+
+/** First index in [from, n) whose sample is at or above `level` (NaN never is), or n. */
+function firstAtOrAbove(values: ArrayLike<number>, from: number, n: number, level: number): number {
+  let i = from;
+  while (i < n && !(values[i] >= level)) i++;
+  return i;
 }

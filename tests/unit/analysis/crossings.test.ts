@@ -119,3 +119,32 @@ describe('findDipCandidate', () => {
     expect(() => findDipCandidate(v, { time: uniform(0, 1), clearLevel: 5, referenceStep: -4, window: 4 })).toThrow('window must be an odd whole number of samples');
   });
 });
+
+describe('findTransitions runs through a state in a loop of its own', () => {
+  it('When traces hold noise, samples between the arms and NaN, then the transitions are those of the sample-by-sample hysteresis rule', () => {
+    // The rule (IEEE Std 181-2011 hysteresis), one sample at a time: in the upper state at or above highArm, in the
+    // lower at or below lowArm; a change of state is a transition, its mesial instant found backwards from the
+    // sample that entered the new state to the last sample still in the old one.
+    const time: TimeBase = { kind: 'uniform', t0: 0, dt: 1e-6, jitter: 0 };
+    const levels = { crossLevel: 0.5, lowArm: 0.2, highArm: 0.8, low: 0, high: 1 };
+    const sample = fc.oneof(fc.constantFrom(0, 0.1, 0.2, 0.5, 0.8, 0.9, 1, NaN), fc.double({ min: -0.2, max: 1.2, noNaN: true }));
+    fc.assert(fc.property(fc.array(sample, { minLength: 0, maxLength: 200 }), (xs) => {
+      const values = Float64Array.from(xs);
+      const expected: { direction: string; time: number }[] = [];
+      let state = 0;
+      let last = -1;
+      values.forEach((v, i) => {
+        const entered = v >= levels.highArm ? 1 : v <= levels.lowArm ? -1 : 0;
+        if (entered === 0) return;
+        if (state !== 0 && entered !== state) {
+          const mesial = findLevelCrossing(values, time, levels.crossLevel, { from: last, to: i, backward: true });
+          if (mesial !== null) expected.push({ direction: entered === 1 ? 'rising' : 'falling', time: mesial.time });
+        }
+        state = entered;
+        last = i;
+      });
+      const got = findTransitions(values, time, levels).map((t) => ({ direction: t.direction, time: t.time }));
+      expect(got).toEqual(expected);
+    }), { numRuns: 500 });
+  });
+});
