@@ -63,7 +63,9 @@ export function createJobQueues(redisUrl: string): JobQueues {
     try {
       await add(data);
     } catch (err) {
-      const fields: Record<string, unknown> = { err: (err as Error).message, ...data };
+      // The ids only: an analysis job may carry a version's worked-out numbers, which do not belong in a log line.
+      const ids = Object.fromEntries(Object.entries(data).filter(([, v]) => typeof v !== 'object'));
+      const fields: Record<string, unknown> = { err: (err as Error).message, ...ids };
       logger.warn(fields, `${what} job not queued now; the worker sweep will queue it`);
     }
   };

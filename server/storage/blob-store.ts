@@ -8,8 +8,8 @@ import type { Readable } from 'node:stream';
 export interface BlobStore {
   /** Stores the file at `localPath` under `key`, streaming it (never held in memory whole). Replaces any blob there. */
   putFile(key: string, localPath: string): Promise<void>;
-  /** Stores `bytes` under `key`, replacing any blob there. */
-  putBytes(key: string, bytes: Uint8Array): Promise<void>;
+  /** Stores `bytes` under `key`, replacing any blob there (durably, unless `options.sync` is false). */
+  putBytes(key: string, bytes: Uint8Array, options?: PutOptions): Promise<void>;
   /** A byte stream of the blob; a missing key makes the stream fail with BlobNotFoundError. */
   openRead(key: string): Readable;
   /**
@@ -31,6 +31,21 @@ export interface BlobStore {
    * then renamed into place (local disk only). The file is gone from `localPath` afterwards.
    */
   adoptFile?(key: string, localPath: string): Promise<void>;
+  /**
+   * Makes blobs stored with `sync: false` durable: on local disk each file and its folder are synced. Stores whose
+   * writes are durable once acknowledged (S3) have no such step and leave it out. Throws BlobNotFoundError for a key
+   * with no blob.
+   */
+  sync?(keys: string[]): Promise<void>;
+}
+
+export interface PutOptions {
+  /**
+   * false: the bytes are in place (readable under the key at once, whole: never a half-written file) but may not
+   * have reached the disk yet; call `sync(keys)` before relying on them surviving a power cut. For files that can
+   * be made again from a blob that is durable (the channel files of a stored upload). @default true
+   */
+  sync?: boolean;
 }
 
 /** The key names no blob. `code` lets callers tell it apart without instanceof across module copies. */

@@ -1,7 +1,7 @@
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import type { Config } from '../config.ts';
-import type { BlobStore } from './blob-store.ts';
+import type { BlobStore, PutOptions } from './blob-store.ts';
 import { LocalDiskStore } from './local-disk-store.ts';
 import type { S3Store, S3StoreOptions } from './s3-store.ts';
 
@@ -45,8 +45,8 @@ class LazyS3Store implements BlobStore {
     return (await this.get()).putFile(key, localPath);
   }
 
-  async putBytes(key: string, bytes: Uint8Array): Promise<void> {
-    return (await this.get()).putBytes(key, bytes);
+  async putBytes(key: string, bytes: Uint8Array, options?: PutOptions): Promise<void> {
+    return (await this.get()).putBytes(key, bytes, options);
   }
 
   openRead(key: string): Readable {

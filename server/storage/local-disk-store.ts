@@ -3,7 +3,7 @@ import { constants } from 'node:fs';
 import { copyFile, mkdir, open, rename, rm, stat, unlink } from 'node:fs/promises';
 import path from 'node:path';
 import { Readable } from 'node:stream';
-import { assertBlobKey, assertRange, BlobNotFoundError, rangePastEnd, type BlobStore } from './blob-store.ts';
+import { assertBlobKey, assertRange, BlobNotFoundError, rangePastEnd, type BlobStore, type PutOptions } from './blob-store.ts';
 
 function isNotFound(err: unknown): boolean {
   return (err as NodeJS.ErrnoException)?.code === 'ENOENT';
@@ -32,7 +32,7 @@ export class LocalDiskStore implements BlobStore {
     await this.writeAtomically(key, (tmp) => copyFile(localPath, tmp, constants.COPYFILE_EXCL));
   }
 
-  async putBytes(key: string, bytes: Uint8Array): Promise<void> {
+  async putBytes(key: string, bytes: Uint8Array, options: PutOptions = {}): Promise<void> {
     await this.writeAtomically(key, async (tmp) => {
       const fh = await open(tmp, 'wx');
       try {
@@ -44,7 +44,31 @@ export class LocalDiskStore implements BlobStore {
       } finally {
         await fh.close();
       }
-    });
+    }, options.sync !== false);
+  }
+
+  async sync(keys: string[]): Promise<void> {
+    const files = [...new Set(keys.map((key) => this.localPathOf(key)))];
+    // All at once: the disk then takes the files' pages in one stream of writes rather than one file per round trip.
+    await Promise.all(files.map(async (file) => {
+      let fh;
+      try {
+        fh = await open(file, 'r');
+      } catch (err) {
+        throw isNotFound(err) ? new BlobNotFoundError(keys[files.indexOf(file)], { cause: err }) : err;
+      }
+      try {
+        await fh.sync();
+      } finally {
+        await fh.close();
+      }
+    }));
+    // Each folder up to the root: folders made by these writes were not synced either.
+    const folders = new Set<string>();
+    for (const file of files) {
+      for (let d = path.dirname(file); d.startsWith(this.rootDir) && !folders.has(d); d = path.dirname(d)) folders.add(d);
+    }
+    await Promise.all([...folders].map(syncDir));
   }
 
   /** The blob's file opened for reading; BlobNotFoundError when there is none. */
@@ -120,16 +144,16 @@ export class LocalDiskStore implements BlobStore {
   }
 
   async adoptFile(key: string, localPath: string): Promise<void> {
-    const target = await this.targetFolder(key);
+    const target = await this.targetFolder(key, true);
     await placeFile(localPath, target);
   }
 
-  /** The blob's path, with its folder made (and each new folder's entry synced: a power cut must not lose it). */
-  private async targetFolder(key: string): Promise<string> {
+  /** The blob's path, with its folder made (and, with `sync`, each new folder's entry synced: a power cut must not lose it). */
+  private async targetFolder(key: string, sync: boolean): Promise<string> {
     const target = this.localPathOf(key);
     const dir = path.dirname(target);
     const created = await mkdir(dir, { recursive: true });
-    if (created) {
+    if (created && sync) {
       for (let d = dir; ; d = path.dirname(d)) {
         await syncDir(path.dirname(d));
         if (d === created || d === path.dirname(d)) break;
@@ -138,13 +162,14 @@ export class LocalDiskStore implements BlobStore {
     return target;
   }
 
-  private async writeAtomically(key: string, fill: (tmp: string) => Promise<void>): Promise<void> {
-    const target = await this.targetFolder(key);
+  private async writeAtomically(key: string, fill: (tmp: string) => Promise<void>, sync = true): Promise<void> {
+    const target = await this.targetFolder(key, sync);
     // Leading "." keeps temporaries out of the key space (assertBlobKey refuses such names).
     const tmp = path.join(path.dirname(target), `.${path.basename(target)}.${process.pid}.${randomBytes(6).toString('hex')}.tmp`);
     try {
       await fill(tmp);
-      await placeFile(tmp, target);
+      if (sync) await placeFile(tmp, target);
+      else await rename(tmp, target);
     } catch (err) {
       await rm(tmp, { force: true });
       throw err;

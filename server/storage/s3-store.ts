@@ -5,7 +5,7 @@ import {
   DeleteObjectCommand, GetObjectCommand, HeadObjectCommand, PutObjectCommand, S3Client,
 } from '@aws-sdk/client-s3';
 import { Upload } from '@aws-sdk/lib-storage';
-import { assertBlobKey, assertRange, BlobNotFoundError, rangePastEnd, type BlobStore } from './blob-store.ts';
+import { assertBlobKey, assertRange, BlobNotFoundError, rangePastEnd, type BlobStore, type PutOptions } from './blob-store.ts';
 
 export interface S3StoreOptions {
   /** Endpoint URL of an S3-compatible service; omit for AWS itself. @default undefined */
@@ -86,7 +86,8 @@ export class S3Store implements BlobStore {
     await upload.done();
   }
 
-  async putBytes(key: string, bytes: Uint8Array): Promise<void> {
+  // An S3 PUT is durable once answered: PutOptions' `sync: false` changes nothing here, and there is no sync().
+  async putBytes(key: string, bytes: Uint8Array, _options?: PutOptions): Promise<void> {
     await this.client.send(new PutObjectCommand({ Bucket: this.bucket, Key: this.objectKey(key), Body: bytes, ContentLength: bytes.byteLength }));
   }
 

@@ -13,9 +13,20 @@ export interface StoredCaptureRow {
  * The capture as the importer returned it, rebuilt from the channel files writeChannelFiles stored (full-precision
  * values, the time base, names, units and invalid counts) without reading the raw file again. The channels and
  * time base are what the analysis reads, bit for bit; the file's metadata is not kept there (the raw file has it).
- * Null when the row's files predate the full-precision values: then the raw file must be imported again.
+ * Null when the row's files predate the full-precision values, or when one is missing or shorter than the row says
+ * (channel files are synced just after the capture is marked read; a power cut in between can leave them so): then
+ * the raw file must be imported again.
  */
 export async function readStoredChannels(store: BlobStore, row: StoredCaptureRow): Promise<ImportedCapture | null> {
+  try {
+    return await readChannelFiles(store, row);
+  } catch (err) {
+    if ((err as { code?: unknown }).code === 'blob_not_found' || err instanceof RangeError) return null;
+    throw err;
+  }
+}
+
+async function readChannelFiles(store: BlobStore, row: StoredCaptureRow): Promise<ImportedCapture | null> {
   const parsed = channelFilesSchema.safeParse(row.channels);
   if (!parsed.success) return null;
   const files = parsed.data;

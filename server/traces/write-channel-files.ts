@@ -141,14 +141,27 @@ export function placeChannelFiles(prefix: string, prepared: PreparedChannelFiles
   };
 }
 
-/** Stores the blobs, several at a time (each write is synced to disk; overlapping them hides part of the wait). */
-export async function putChannelBlobs(store: BlobStore, blobs: ChannelBlob[], concurrency = 4): Promise<void> {
+export interface PutChannelBlobsOptions {
+  /** Writes at once. @default 4 */
+  concurrency?: number;
+  /** false: do not wait for the disk (see PutOptions.sync); syncChannelBlobs then makes them durable. @default true */
+  sync?: boolean;
+}
+
+/** Stores the blobs, several at a time (each write is synced to disk unless `sync` is false; overlapping them hides part of the wait). */
+export async function putChannelBlobs(store: BlobStore, blobs: ChannelBlob[], options: PutChannelBlobsOptions = {}): Promise<void> {
+  const { concurrency = 4, sync = true } = options;
   let next = 0;
   const lane = async () => {
     while (next < blobs.length) {
       const { key, bytes } = blobs[next++];
-      await store.putBytes(key, bytes);
+      await store.putBytes(key, bytes, { sync });
     }
   };
   await Promise.all(Array.from({ length: Math.min(concurrency, blobs.length) }, lane));
+}
+
+/** Makes blobs stored by putChannelBlobs with `sync: false` durable (nothing to do for stores without a sync step). */
+export async function syncChannelBlobs(store: BlobStore, blobs: ChannelBlob[]): Promise<void> {
+  await store.sync?.(blobs.map((b) => b.key));
 }

@@ -19,7 +19,16 @@ export const JOB_NAMES = { ingest: 'ingest-capture', analysis: 'analyse-shot', n
 export const ingestJobData = z.object({ captureId: z.uuid(), attempt: z.number().int().min(1) });
 export type IngestJobData = z.infer<typeof ingestJobData>;
 
-export const analysisJobData = z.object({ analysisId: z.uuid() });
+/**
+ * `precomputed`: the results the API worked out in the thread that read the upload, which still held its samples
+ * (uploads.ts storeReadChannels), with the captures and parameters they are for. The job stores them instead of
+ * reading the channel files and running the engine again, when they are for exactly the version's captures and
+ * parameters; otherwise it ignores them.
+ */
+export const analysisJobData = z.object({
+  analysisId: z.uuid(),
+  precomputed: z.object({ captureIds: z.array(z.uuid()), parameters: z.unknown(), results: z.record(z.string(), z.unknown()) }).optional(),
+});
 export type AnalysisJobData = z.infer<typeof analysisJobData>;
 
 export const ingestJobId = (d: IngestJobData) => `ingest-${d.captureId}-${d.attempt}`;

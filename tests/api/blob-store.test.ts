@@ -7,7 +7,8 @@ import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import type { Readable } from 'node:stream';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { open } from 'node:fs/promises';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { BlobNotFoundError, type BlobStore } from '../../server/storage/blob-store.ts';
 import { LocalDiskStore } from '../../server/storage/local-disk-store.ts';
 import { S3Store } from '../../server/storage/s3-store.ts';
@@ -176,6 +177,30 @@ describe('LocalDiskStore only', () => {
     await local.putBytes('t/tidy/a.bin', everyByte.subarray(0, 10));
     expect(readdirSync(path.join(work, 'local', 't', 'tidy'))).toEqual(['a.bin']);
     expect(new Uint8Array(readFileSync(local.localPathOf('t/tidy/a.bin')))).toEqual(everyByte.subarray(0, 10));
+  });
+
+  it('When bytes are put without waiting for the disk, then they are readable at once, whole, and sync() syncs each file and folder once', async () => {
+    // FileHandle's prototype, to count fsync calls (the only observable difference short of pulling the power).
+    const probe = await open(path.join(work, 'probe'), 'w');
+    const proto = Object.getPrototypeOf(probe) as { sync: () => Promise<void> };
+    await probe.close();
+    const syncs = vi.spyOn(proto, 'sync');
+    try {
+      const keys = ['t/later/ch0/a.bin', 't/later/ch0/b.bin', 't/later/ch1/a.bin'];
+      for (const key of keys) await local.putBytes(key, everyByte, { sync: false });
+      expect(syncs).not.toHaveBeenCalled();
+      for (const key of keys) expect(await local.readRange(key, 0, everyByte.length)).toEqual(everyByte);
+      expect(readdirSync(path.join(work, 'local', 't', 'later', 'ch0')).sort()).toEqual(['a.bin', 'b.bin']);
+      await local.sync([...keys, keys[0]]);
+      // Three files (the repeated key once) and their folders up to the root (made by these writes, so not synced yet).
+      expect(syncs).toHaveBeenCalledTimes(3 + ['ch0', 'ch1', 'later', 't', 'root'].length);
+      syncs.mockClear();
+      await local.putBytes('t/later/now.bin', everyByte);
+      expect(syncs).toHaveBeenCalledTimes(2); // the default: the file, then its folder (which exists)
+      await expect(local.sync(['t/later/none.bin'])).rejects.toThrow(BlobNotFoundError);
+    } finally {
+      syncs.mockRestore();
+    }
   });
 
   it('When the source file of putFile does not exist, then the error says so and the old blob stays', async () => {

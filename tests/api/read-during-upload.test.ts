@@ -6,9 +6,13 @@ import { createHash } from 'node:crypto';
 import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
+import { Queue } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { Analysis, Capture, GateRig, Projectile } from '../../server/db/models/index.ts';
+import { createAnalysisVersion } from '../../server/modules/analyses/service.ts';
+import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
+import { analysisJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData } from '../../shared/contracts/jobs.ts';
 import { float64FromBytes } from '../../server/traces/channel-files.ts';
 import { readCaptureFile } from '../../worker/import/read-capture-file.ts';
 import { signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
@@ -32,6 +36,7 @@ let dataDir: string;
 let experimenter: PipelineClient;
 let ballId: string;
 let work: string;
+let analysisQueue: Queue;
 
 beforeAll(async () => {
   h = await createApiHarness();
@@ -41,10 +46,12 @@ beforeAll(async () => {
   // The compiled build, as npm start runs it (its thread boot files load the .js; pipeline.test.ts runs tsx).
   app = await startAppProcesses({ compiled: true, env: { GATEPOST_DATA_DIR: dataDir, GATEPOST_READ_UPLOADS_FROM_BYTES: '0' } });
   experimenter = await signIn(app.baseUrl, demo.users.experimenter.email, demo.users.experimenter.password);
+  analysisQueue = new Queue(QUEUE_NAMES.analysis, { connection: h.redis });
   ballId = (await Projectile.findOne({ where: { labId: demo.labs.hollowmere.id, name: 'Table-tennis ball, 40 mm' }, rejectOnEmpty: true })).id;
 }, 120_000);
 
 afterAll(async () => {
+  await analysisQueue?.close();
   await app?.stop();
   await h?.close();
   for (const dir of [dataDir, work]) if (dir) rmSync(dir, { recursive: true, force: true });
@@ -59,6 +66,26 @@ async function newShot(gateRigId: string): Promise<string> {
 }
 
 const incoming = () => readdirSync(path.join(dataDir, 'blobs', '.incoming'));
+
+/** The analysis job's data (BullMQ keeps finished jobs for a week). */
+async function analysisJobData(analysisId: string): Promise<AnalysisJobData> {
+  const job = await analysisQueue.getJob(analysisJobId({ analysisId }));
+  if (!job) throw new Error(`no job for analysis ${analysisId}`);
+  return job.data as AnalysisJobData;
+}
+
+/** The full-precision values are written just after the capture is marked read (uploads.ts): wait for the file. */
+async function storedFile(key: string): Promise<Buffer> {
+  const file = path.join(dataDir, 'blobs', ...key.split('/'));
+  for (const deadline = Date.now() + 10_000; ;) {
+    try {
+      return readFileSync(file);
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== 'ENOENT' || Date.now() > deadline) throw err;
+      await new Promise((resolve) => setTimeout(resolve, 50));
+    }
+  }
+}
 
 describe('When a capture is uploaded to an API that reads uploads as they arrive', () => {
   const csv = simulatedCsv({ speed: 300, seed: 21 });
@@ -80,6 +107,11 @@ describe('When a capture is uploaded to an API that reads uploads as they arrive
     expect(shot.analyses[0].state).toBe('done');
     const speed = shot.currentAnalysis!.results.speed!;
     expect(Math.abs(speed.value - 300)).toBeLessThanOrEqual(speed.uncertainty);
+    // The shot's only file: the thread that read it worked the numbers out, and the job was handed them.
+    const data = await analysisJobData(shot.analyses[0].id);
+    expect(data.precomputed?.captureIds).toEqual([up.body.captures[0].id]);
+    const version = await Analysis.findByPk(shot.analyses[0].id, { rejectOnEmpty: true });
+    expect(analysisOptionsSchema.parse(data.precomputed?.parameters)).toEqual(version.parameters);
   });
 
   it('then the raw file is stored byte for byte, and nothing is left in the staging folder', () => {
@@ -95,13 +127,13 @@ describe('When a capture is uploaded to an API that reads uploads as they arrive
     const row = await Capture.findByPk(shot.captures[0].id, { rejectOnEmpty: true });
     const files = row.channels as { channels: { values: { key: string; type: string } }[]; length: number };
     expect(files.length).toBe(imported.length);
-    files.channels.forEach((c, k) => {
+    for (const [k, c] of files.channels.entries()) {
       expect(c.values.type).toBe('f64');
-      const bytes = readFileSync(path.join(dataDir, 'blobs', ...c.values.key.split('/')));
+      const bytes = await storedFile(c.values.key);
       const stored = float64FromBytes(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength).slice());
       const expected = imported.channels[k].values as Float64Array;
       expect(Buffer.compare(Buffer.from(stored.buffer), Buffer.from(expected.buffer, expected.byteOffset, expected.byteLength))).toBe(0);
-    });
+    }
     expect(row.layout).toMatchObject({ reader: 'stream', delimiter: ',' });
     expect(row.warnings).toEqual(imported.warnings);
     const analysis = await Analysis.findByPk(shot.analyses[0].id, { rejectOnEmpty: true });
@@ -151,5 +183,38 @@ describe('When one shot gets one file per channel in one request', () => {
     expect(shot.analyses).toHaveLength(1);
     const speed = shot.currentAnalysis!.results.speed!;
     expect(Math.abs(speed.value - 312)).toBeLessThanOrEqual(speed.uncertainty);
+    // Two files: no single reading thread holds the combined record, so the worker works the numbers out.
+    expect((await analysisJobData(shot.analyses[0].id)).precomputed).toBeUndefined();
+  });
+});
+
+describe('When an analysis job brings numbers that are not for its version', () => {
+  it('then the worker ignores them and works the numbers out from the stored files', async () => {
+    const shotId = await newShot(demo.hollowmere.gateRigIds[0]);
+    const csv = simulatedCsv({ speed: 300, seed: 23 });
+    const up = await experimenter.upload<{ captures: { id: string }[] }>(shotId, [{ name: 'numbers.csv', bytes: csv.bytes }]);
+    expect(up.status).toBe(202);
+    const { shot } = await settleShot<ShotDetail>(experimenter, shotId);
+    const auto = await Analysis.findByPk(shot.analyses[0].id, { rejectOnEmpty: true });
+    const made = async (jobKey: string, parameters: object) => {
+      const { analysis } = await createAnalysisVersion(h.sequelize, { shotId, parametersInput: parameters, requestedBy: null, jobKey });
+      return analysis;
+    };
+    const bogus = { speed: { value: 1, uncertainty: 0 } };
+    const params = auto.parameters as { threshold: object };
+    const otherParameters = await made('test-other-parameters', { ...params, threshold: { ...params.threshold, level: 45 } });
+    const otherCaptures = await made('test-other-captures', auto.parameters as object);
+    await analysisQueue.add(JOB_NAMES.analysis, { analysisId: otherParameters.id, precomputed: { captureIds: auto.captureIds, parameters: auto.parameters, results: bogus } }, { jobId: analysisJobId({ analysisId: otherParameters.id }) });
+    await analysisQueue.add(JOB_NAMES.analysis, { analysisId: otherCaptures.id, precomputed: { captureIds: [], parameters: auto.parameters, results: bogus } }, { jobId: analysisJobId({ analysisId: otherCaptures.id }) });
+    await settleShot<ShotDetail>(experimenter, shotId);
+    const file = path.join(work, 'numbers.csv');
+    writeFileSync(file, csv.bytes);
+    const imported = await readCaptureFile(file);
+    for (const version of [otherParameters, otherCaptures]) {
+      await version.reload();
+      expect(version.state).toBe('done');
+      expect(version.results).not.toEqual(bogus);
+      expect(version.results).toEqual(JSON.parse(JSON.stringify(analyzeShot(imported, version.parameters as object))));
+    }
   });
 });

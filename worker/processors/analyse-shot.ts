@@ -1,7 +1,7 @@
 import { UnrecoverableError, type Job } from 'bullmq';
 import { Op, type Transaction } from 'sequelize';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
-import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
+import { analysisOptionsSchema, type AnalysisOptions } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { analysisJobData } from '../../shared/contracts/jobs.ts';
 import { combineCaptures } from '../../shared/import/combine-captures.ts';
@@ -31,6 +31,23 @@ async function makeCurrentVersion(analysis: Analysis, transaction: Transaction) 
   return wasInReview ? { labId: shot.labId, shotId: shot.id, reviewedAnalysisId: wasInReview } : null;
 }
 
+/** The engine on the captures the version names, read from their stored channel files (or the raw files, for captures stored before those). */
+async function analyseStored(job: Job, analysis: Analysis, parameters: AnalysisOptions): Promise<Record<string, unknown>> {
+  const { blobStore } = workerContext();
+  const ids = analysis.captureIds;
+  const rows = await Capture.findAll({ where: { id: { [Op.in]: ids } } });
+  const ordered = ids.map((id) => rows.find((r) => r.id === id)).filter((r): r is Capture => !!r);
+  if (ordered.length !== ids.length) throw new ImportError('a capture this analysis reads no longer exists');
+  const imported: ImportedCapture[] = [];
+  // The channel files the ingest stored hold the importer's values whole; only captures stored before they did
+  // (or whose files are missing) are imported from the raw file again.
+  for (const c of ordered) imported.push((await readStoredChannels(blobStore, c)) ?? (await readStoredCapture(blobStore, c)));
+  await analysis.update({ progress: 50 });
+  await job.updateProgress(50);
+  const capture = imported.length === 1 ? imported[0] : combineCaptures(imported, { labels: ordered.map((c) => c.fileName) });
+  return analyzeShot(capture, parameters) as unknown as Record<string, unknown>;
+}
+
 /**
  * Analysis job: run the engine on the captures the version names (read from their stored channel files), with its stored parameters, and store the
  * results on that version. Idempotent: the row exists before the job, a finished version is left alone, and the
@@ -38,7 +55,7 @@ async function makeCurrentVersion(analysis: Analysis, transaction: Transaction) 
  */
 export default async function analyseShot(job: Job): Promise<{ analysisId: string; state: string }> {
   const data = analysisJobData.parse(job.data);
-  const { sequelize, blobStore } = workerContext();
+  const { sequelize } = workerContext();
   const analysis = await Analysis.findByPk(data.analysisId);
   if (!analysis) throw new UnrecoverableError(`analysis ${data.analysisId} no longer exists`);
   if (analysis.state === 'done' || analysis.state === 'failed') return { analysisId: analysis.id, state: analysis.state };
@@ -46,21 +63,17 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   await analysis.update({ state: 'running', progress: 10, startedAt: analysis.startedAt ?? new Date() });
   await settleShot(analysis.shotId);
   await job.updateProgress(10);
-  let results;
+  let results: Record<string, unknown> | undefined;
   try {
-    const ids = analysis.captureIds;
-    const rows = await Capture.findAll({ where: { id: { [Op.in]: ids } } });
-    const ordered = ids.map((id) => rows.find((r) => r.id === id)).filter((r): r is Capture => !!r);
-    if (ordered.length !== ids.length) throw new ImportError('a capture this analysis reads no longer exists');
-    const imported: ImportedCapture[] = [];
-    // The channel files the ingest stored hold the importer's values whole; only captures stored before they did
-    // are imported from the raw file again.
-    for (const c of ordered) imported.push((await readStoredChannels(blobStore, c)) ?? (await readStoredCapture(blobStore, c)));
-    await analysis.update({ progress: 50 });
-    await job.updateProgress(50);
-    const capture = imported.length === 1 ? imported[0] : combineCaptures(imported, { labels: ordered.map((c) => c.fileName) });
     const parameters = analysisOptionsSchema.parse(analysis.parameters);
-    results = analyzeShot(capture, parameters);
+    // Worked out by the API in the thread that read the upload (the same engine on the same samples): taken only
+    // when they are for exactly this version's captures and parameters.
+    const pre = data.precomputed;
+    if (pre !== undefined && JSON.stringify(pre.captureIds) === JSON.stringify(analysis.captureIds)
+      && JSON.stringify(analysisOptionsSchema.parse(pre.parameters)) === JSON.stringify(parameters)) {
+      results = pre.results;
+    }
+    if (results === undefined) results = await analyseStored(job, analysis, parameters);
     // Never store NaN or ±Infinity turned into null by JSON: the version fails with the reason instead.
     const nonFinite = nonFinitePaths(results);
     if (nonFinite.length > 0) throw new ImportError(nonFiniteResultMessage(nonFinite));
@@ -92,5 +105,5 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
     });
   }
   await job.updateProgress(100);
-  return { analysisId: analysis.id, state: 'done' };
+  return { analysisId: analysis.id, state: "done" };
 }

@@ -7,6 +7,7 @@ import { Analysis, Campaign, Capture, GateRig, Projectile, Shot } from '../../db
 import { badRequest, conflict } from '../../lib/errors.ts';
 import type { JobQueues } from '../../lib/job-queues.ts';
 import type { Logger } from '../../lib/logger.ts';
+import type { AnalysisJobData } from '../../../shared/contracts/jobs.ts';
 import { settleShot } from '../shots/settle-shot.ts';
 
 export interface StoredChannel { name: string }
@@ -131,7 +132,12 @@ export async function shotIsBusy(shotId: string): Promise<boolean> {
  * already has one gets no other). Called when a file finished reading, well or badly, and when one was removed.
  * Returns true when a version was made.
  */
-export async function analyseReadFiles(ctx: { sequelize: Sequelize; queues: JobQueues; logger: Logger }, shotId: string): Promise<boolean> {
+export async function analyseReadFiles(
+  ctx: { sequelize: Sequelize; queues: JobQueues; logger: Logger },
+  shotId: string,
+  /** Numbers already worked out for these captures and parameters (uploads.ts): handed to the job when they fit. */
+  precomputed?: AnalysisJobData['precomputed'],
+): Promise<boolean> {
   // Pending first, then ready: once nothing is pending, the ready set read afterwards is final, so two ingests
   // finishing together compute the same key. Read the other way round, one could key a stale ready set (itself
   // only) while the other capture turned ready in between, and the shot got two automatic analyses.
@@ -143,6 +149,8 @@ export async function analyseReadFiles(ctx: { sequelize: Sequelize; queues: JobQ
   const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
   const parameters = await defaultParameters(shot, combinedChannelNames(ready));
   const { analysis, created } = await createAnalysisVersion(ctx.sequelize, { shotId, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shotId}-${key}` });
-  if (created || analysis.state === 'queued') await ctx.queues.addAnalysisOrDefer({ analysisId: analysis.id }, ctx.logger);
+  const fits = precomputed !== undefined && JSON.stringify(precomputed.captureIds) === JSON.stringify(ready.map((c) => c.id))
+    && JSON.stringify(precomputed.parameters) === JSON.stringify(parameters);
+  if (created || analysis.state === 'queued') await ctx.queues.addAnalysisOrDefer({ analysisId: analysis.id, ...(fits && { precomputed }) }, ctx.logger);
   return created;
 }

@@ -1,8 +1,14 @@
 // Worker-thread side of reading an upload while it arrives (upload-reader.ts is the API's side): the blocks go
 // through the disk reader's stream path (readCaptureStream, the same byte scanner), and the channel files are
-// prepared here at once (Float32 copies, pyramids) and their bytes handed back to be stored.
+// prepared here at once (Float32 copies, pyramids) and their bytes handed back to be stored. The capture stays here
+// until the API has asked the engine for the automatic version's numbers (nothing to read again for that) and then
+// for the full-precision values.
 import { parentPort } from 'node:worker_threads';
-import { channelFilesOf } from '../../traces/write-channel-files.ts';
+import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
+import { nonFinitePaths, nonFiniteResultMessage } from '../../../shared/analysis/non-finite-paths.ts';
+import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
+import type { ImportedCapture } from '../../../shared/contracts/capture.ts';
+import { channelFilesOf, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import { readCaptureStream } from '../../../worker/import/read-capture-stream.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 import type { UploadReaderReply, UploadReaderRequest } from './upload-reader.ts';
@@ -14,6 +20,10 @@ const blocks: Uint8Array[] = [];
 let ended = false;
 let wake: (() => void) | null = null;
 let failed = false;
+/** The capture once read, kept for `analyse` until the API asks for its values (`release`). */
+let capture: ImportedCapture | null = null;
+/** Its full-precision value files, held back until then. */
+let kept: ChannelBlob[] = [];
 
 async function* arriving(): AsyncGenerator<Uint8Array> {
   for (;;) {
@@ -31,15 +41,21 @@ async function* arriving(): AsyncGenerator<Uint8Array> {
   }
 }
 
+/** Whole buffers of `blobs` to transfer (each once). */
+const buffersOf = (blobs: ChannelBlob[]) => [...new Set(blobs.map((b) => b.bytes.buffer as ArrayBuffer))];
+
 async function read(sizeHint: number, limits: CaptureLimits): Promise<void> {
   try {
     // The installation's limits refuse a too wide or too deep file here too; the worker then says why.
-    const capture = await readCaptureStream(arriving(), { sizeHint, ...limits });
+    capture = await readCaptureStream(arriving(), { sizeHint, ...limits });
     const { files, blobs } = channelFilesOf(capture);
-    // Each blob's bytes get a buffer of their own to hand over (a Float64 channel's bytes view the read's array).
-    const owned = blobs.map(({ key, bytes }) => ({ key, bytes: bytes.byteOffset === 0 && bytes.byteLength === bytes.buffer.byteLength ? bytes : bytes.slice() }));
-    const buffers = [...new Set(owned.map((b) => b.bytes.buffer as ArrayBuffer))];
-    post({ type: 'read', ok: true, files, blobs: owned, layout: capture.layout, warnings: capture.warnings, length: capture.length }, buffers);
+    // The full-precision values view the capture's own arrays: they stay here (the engine may still run on them)
+    // until the API asks for them (`release`). Any other blob that views them goes over as a copy; the rest
+    // (Float32 copies, pyramids) are transferred, not copied.
+    const own = new Set<ArrayBufferLike>([...capture.channels.map((c) => c.values.buffer), ...(capture.time.kind === 'explicit' ? [capture.time.t.buffer] : [])]);
+    kept = blobs.filter((b) => b.key.endsWith('/values.f64'));
+    const sent = blobs.filter((b) => !b.key.endsWith('/values.f64')).map(({ key, bytes }) => ({ key, bytes: own.has(bytes.buffer) ? bytes.slice() : bytes }));
+    post({ type: 'read', ok: true, files, blobs: sent, keptKeys: kept.map((b) => b.key), layout: capture.layout, warnings: capture.warnings, length: capture.length }, buffersOf(sent));
   } catch (error) {
     failed = true;
     blocks.length = 0;
@@ -47,7 +63,32 @@ async function read(sizeHint: number, limits: CaptureLimits): Promise<void> {
   }
 }
 
+/** The engine on the capture read, as the analysis job runs it; only results that are all finite numbers come back. */
+function analyse(parameters: AnalysisOptionsInput): UploadReaderReply {
+  if (capture === null) return { type: 'analysed', ok: false, reason: 'nothing was read' };
+  try {
+    const results = analyzeShot(capture, analysisOptionsSchema.parse(parameters));
+    const nonFinite = nonFinitePaths(results);
+    if (nonFinite.length > 0) return { type: 'analysed', ok: false, reason: nonFiniteResultMessage(nonFinite) };
+    return { type: 'analysed', ok: true, results: JSON.parse(JSON.stringify(results)) as Record<string, unknown> };
+  } catch (error) {
+    return { type: 'analysed', ok: false, reason: (error as Error).message };
+  }
+}
+
 port.on('message', (message: UploadReaderRequest) => {
+  if (message.type === 'analyse') {
+    post(analyse(message.parameters));
+    return;
+  }
+  if (message.type === 'release') {
+    // The values go over (transferred: the capture's arrays are no longer usable here) and the capture is let go.
+    const blobs = kept;
+    kept = [];
+    capture = null;
+    post({ type: 'released', blobs }, buffersOf(blobs));
+    return;
+  }
   if (message.type === 'start') void read(message.sizeHint, message.limits);
   else if (message.type === 'end') ended = true;
   // After a failed read nothing more is scanned; the block is only counted so the sender is never held up.

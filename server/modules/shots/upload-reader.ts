@@ -1,14 +1,21 @@
 import { Worker } from 'node:worker_threads';
-import type { PreparedChannelFiles } from '../../traces/write-channel-files.ts';
+import type { ChannelBlob, PreparedChannelFiles } from '../../traces/write-channel-files.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
+import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 
 export type UploadReaderRequest =
   | { type: 'start'; sizeHint: number; limits: CaptureLimits }
   | { type: 'block'; bytes: Uint8Array }
-  | { type: 'end' };
+  | { type: 'end' }
+  | { type: 'analyse'; parameters: AnalysisOptionsInput }
+  | { type: 'release' };
 
-/** What a read upload gives: its channel files (keys relative to the capture's folder) and the row's fields. */
+/**
+ * What a read upload gives: its channel files (keys relative to the capture's folder) and the row's fields. `blobs`
+ * are all the files but the full-precision values (`keptKeys`), which stay with the thread until `takeKept()`.
+ */
 export interface UploadRead extends PreparedChannelFiles {
+  keptKeys: string[];
   layout: Record<string, unknown>;
   warnings: string[];
   length: number;
@@ -17,7 +24,10 @@ export interface UploadRead extends PreparedChannelFiles {
 export type UploadReaderReply =
   | { type: 'taken'; bytes: number; buffer?: ArrayBuffer }
   | ({ type: 'read'; ok: true } & UploadRead)
-  | { type: 'read'; ok: false; reason: string };
+  | { type: 'read'; ok: false; reason: string }
+  | { type: 'analysed'; ok: true; results: Record<string, unknown> }
+  | { type: 'analysed'; ok: false; reason: string }
+  | { type: 'released'; blobs: ChannelBlob[] };
 
 /** Bytes handed to the thread and not yet taken by its scanner before push() waits (the socket is paused meanwhile). */
 const MAX_AHEAD = 32 << 20;
@@ -35,6 +45,8 @@ export class UploadReader {
   /** Blocks the thread has finished with and handed back, for the intake to fill again. */
   private readonly spare: Uint8Array<ArrayBuffer>[] = [];
   private waiting: (() => void) | null = null;
+  private analysed: ((outcome: { results: Record<string, unknown> } | { problem: string }) => void) | null = null;
+  private released: ((blobs: ChannelBlob[] | null) => void) | null = null;
   private closed = false;
   /** The read is over (done or failed): blocks are no longer needed. */
   private settled = false;
@@ -51,6 +63,14 @@ export class UploadReader {
           this.ahead -= reply.bytes;
           if (reply.buffer !== undefined && this.spare.length < MAX_SPARE) this.spare.push(new Uint8Array(reply.buffer));
           if (this.ahead <= MAX_AHEAD) this.release();
+        } else if (reply.type === 'released') {
+          const done = this.released;
+          this.released = null;
+          done?.(reply.blobs);
+        } else if (reply.type === 'analysed') {
+          const done = this.analysed;
+          this.analysed = null;
+          done?.(reply.ok ? { results: reply.results } : { problem: reply.reason });
         } else {
           this.settled = true;
           resolve(reply.ok ? reply : { problem: reply.reason });
@@ -61,6 +81,12 @@ export class UploadReader {
         this.settled = true;
         resolve({ problem });
         this.release();
+        const done = this.analysed;
+        this.analysed = null;
+        done?.({ problem });
+        const gone = this.released;
+        this.released = null;
+        gone?.(null);
       };
       this.worker.on('error', (error) => fail(`the reading thread failed: ${error.message}`));
       this.worker.on('exit', () => fail('the reading thread stopped'));
@@ -105,11 +131,39 @@ export class UploadReader {
     this.send({ type: 'end' });
   }
 
+  /**
+   * After a read that went well: the engine's results for these parameters, worked out in the thread, which still
+   * holds the samples (so nothing is read again), or why not (the engine refused, a result is not a finite number,
+   * the thread stopped). One at a time.
+   */
+  analyse(parameters: AnalysisOptionsInput): Promise<{ results: Record<string, unknown> } | { problem: string }> {
+    if (this.closed || this.analysed !== null) return Promise.resolve({ problem: this.closed ? 'the reader is closed' : 'an analysis is already running' });
+    return new Promise((resolve) => {
+      this.analysed = resolve;
+      this.send({ type: 'analyse', parameters });
+    });
+  }
+
+  /** The full-precision value files the thread held back (then it lets the capture go); null when it stopped first. */
+  takeKept(): Promise<ChannelBlob[] | null> {
+    if (this.closed || this.released !== null) return Promise.resolve(null);
+    return new Promise((resolve) => {
+      this.released = resolve;
+      this.send({ type: 'release' });
+    });
+  }
+
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
     this.onClose();
     this.release();
+    const done = this.analysed;
+    this.analysed = null;
+    done?.({ problem: 'the reader is closed' });
+    const gone = this.released;
+    this.released = null;
+    gone?.(null);
     await this.worker.terminate();
   }
 }

@@ -1,4 +1,4 @@
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync, truncateSync, unlinkSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -94,4 +94,18 @@ describe('readStoredChannels against the raw file read again', () => {
     expect(await readStoredChannels(store, { channels: old, layout: {}, warnings: [] })).toBeNull();
     expect(await readStoredChannels(store, { channels: null, layout: null, warnings: [] })).toBeNull();
   });
+
+  // Channel files of an upload the API read are synced just after the capture is marked read: a power cut in
+  // between can leave one short or missing. The analysis must then read the raw file again, never short channels.
+  it.each([['shorter than the row says', 'short'], ['missing', 'missing']] as const)(
+    'When a channel file is %s, then there is nothing to read and the raw file is needed', async (_label, damage) => {
+      const imported = await readCaptureFile(join(CAPTURES_DIR, 'plain-time.csv'));
+      const files = await writeChannelFiles(store, 'lab-1', `capture-damaged-${damage}`, imported);
+      const row = JSON.parse(JSON.stringify({ channels: files, layout: imported.layout, warnings: imported.warnings }));
+      expect(await readStoredChannels(store, row)).not.toBeNull();
+      const file = store.localPathOf(files.channels[files.channels.length - 1].values!.key);
+      if (damage === 'short') truncateSync(file, 8);
+      else unlinkSync(file);
+      expect(await readStoredChannels(store, row)).toBeNull();
+    });
 });
