@@ -43,7 +43,10 @@ export function buildMinMaxPyramid(
   const n = values.length;
   if (n <= maxTopPairs) return levels;
 
-  // Level 1 straight from the samples.
+  // Level 1 straight from the samples. A NaN fails both comparisons, so it is skipped without a test of its own,
+  // and a block with no number in it is the one left with lo > hi (Infinity, −Infinity): the per-sample NaN test
+  // and flag made this loop about 1.4× as slow on a 10-million-sample channel (32 ms against 22, medians of 5; it runs
+  // while a deep upload waits for its result).
   let count = Math.ceil(n / factor);
   let pairs = new Float64Array(2 * count);
   for (let b = 0; b < count; b++) {
@@ -51,16 +54,14 @@ export function buildMinMaxPyramid(
     const end = Math.min(n, start + factor);
     let lo = Infinity;
     let hi = -Infinity;
-    let seen = false;
     for (let i = start; i < end; i++) {
       const v = values[i];
-      if (v !== v) continue;
-      seen = true;
       if (v < lo) lo = v;
       if (v > hi) hi = v;
     }
-    pairs[2 * b] = seen ? lo : NaN;
-    pairs[2 * b + 1] = seen ? hi : NaN;
+    const empty = lo > hi;
+    pairs[2 * b] = empty ? NaN : lo;
+    pairs[2 * b + 1] = empty ? NaN : hi;
   }
   let blockSize = factor;
   levels.push({ blockSize, pairs });
