@@ -14,6 +14,7 @@ import { NODE_BUILD_DIR } from '../scripts/lib/build-node.ts';
 import { spawnChild, type ChildHandle } from '../scripts/lib/processes.ts';
 import { startBenchApp } from './lib/bench-app.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from './lib/pipeline-client.ts';
+import { sampleUsage, type PhaseUsage } from './lib/process-usage.ts';
 import { ROOT } from './lib/time-process.ts';
 
 const SHOTS = 200;
@@ -38,7 +39,8 @@ function variant(bytes: Uint8Array, i: number): Uint8Array {
   return new TextEncoder().encode(`${text.slice(0, cut)}${fields.join(',')}\n`);
 }
 
-async function runPhase(clients: PipelineClient[], newShot: (c: PipelineClient) => Promise<string>, bytes: Uint8Array, offset: number) {
+async function runPhase(clients: PipelineClient[], newShot: (c: PipelineClient) => Promise<string>, bytes: Uint8Array, offset: number, processes?: () => Record<string, number>) {
+  const usage = processes ? await sampleUsage(processes) : null;
   let next = 0;
   const latencies: number[] = [];
   const started = performance.now();
@@ -59,7 +61,7 @@ async function runPhase(clients: PipelineClient[], newShot: (c: PipelineClient) 
   }));
   const seconds = (performance.now() - started) / 1000;
   const sorted = latencies.sort((a, b) => a - b);
-  return { perSecond: SHOTS / seconds, seconds, p50: quantile(sorted, 0.5), p95: quantile(sorted, 0.95) };
+  return { perSecond: SHOTS / seconds, seconds, p50: quantile(sorted, 0.5), p95: quantile(sorted, 0.95), usage: await usage?.stop() };
 }
 
 async function main(): Promise<void> {
@@ -83,16 +85,30 @@ async function main(): Promise<void> {
     };
     // One shot each first, so the worker threads are warm in both phases.
     await runPhase(clients.slice(0, 1), newShot, csv.bytes, 10_000).catch(() => undefined);
-    const one = await runPhase(clients, newShot, csv.bytes, 0);
+    const processes = () => ({ api: bench.app.api.pid, worker: bench.app.worker!.pid, ...(second ? { 'worker-2': second.pid } : {}) });
+    const one = await runPhase(clients, newShot, csv.bytes, 0, processes);
     second = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: bench.app.env, cwd: ROOT, echo: false });
     await new Promise((resolve) => setTimeout(resolve, 3000));
-    const two = await runPhase(clients, newShot, csv.bytes, SHOTS);
+    const two = await runPhase(clients, newShot, csv.bytes, SHOTS, processes);
     const f = (x: { perSecond: number; seconds: number; p50: number; p95: number }) =>
       `${x.perSecond.toFixed(2)} shots/s (${x.seconds.toFixed(1)} s), upload → result p50 ${(x.p50 / 1000).toFixed(2)} s, p95 ${(x.p95 / 1000).toFixed(2)} s`;
     const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
     console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}`);
     console.log(`one worker process:  ${f(one)}`);
     console.log(`two worker processes: ${f(two)}`);
+    const costs = (name: string, u: PhaseUsage | undefined) => {
+      if (!u) return;
+      const perShot = (s: number | null) => (s === null ? '?' : `${((s * 1000) / SHOTS).toFixed(0)} ms`);
+      const cpu = Object.entries(u.cpu).map(([p, s]) => `${p} ${perShot(s)}`).join(', ');
+      const total = Object.values(u.cpu).reduce<number>((a, s) => a + (s ?? 0), 0);
+      const threads = Object.entries(u.maxThreads).map(([p, t]) => `${p} ${t}`).join(', ');
+      console.log(`  ${name}: processor time per shot ${cpu} (all ${perShot(total)}); threads at most: ${threads}; ` +
+        `PostgreSQL connections at most ${u.maxPgConnections}, Redis clients at most ${u.maxRedisClients}; ` +
+        `per shot ${(u.pgTransactions / SHOTS).toFixed(1)} PostgreSQL transactions, ${(u.redisCommands / SHOTS).toFixed(1)} Redis commands`);
+    };
+    console.log('what each phase cost (user + sys time from /proc, counters of PostgreSQL and Redis):');
+    costs('one worker process', one.usage);
+    costs('two worker processes', two.usage);
     console.log(`ratio two / one (shots per second): ${(two.perSecond / one.perSecond).toFixed(2)}× (target ≥ 1: two workers not slower)`);
   } finally {
     await second?.stop();

@@ -71,6 +71,15 @@ const schema = z.object({
   jobLockMs: z.coerce.number().int().min(1000).default(30_000),
   /** How often the worker re-queues captures and analyses whose job never reached Redis, ms. */
   sweepIntervalMs: z.coerce.number().int().min(200).default(15_000),
+  /**
+   * Processor cores the worker processes of this host share (worker/host-share.ts); unset: the cores this process
+   * may run on (os.availableParallelism()).
+   */
+  workerCores: z.coerce.number().int().min(1).optional(),
+  /** Jobs of each reading queue (ingest, analysis) one worker process runs at once, fixed; unset: its share of the host's cores. */
+  workerConcurrency: z.coerce.number().int().min(1).optional(),
+  /** Name under which worker processes count each other as sharing one machine; unset: the host name. */
+  workerHost: z.string().min(1).max(200).optional(),
 }).refine((c) => c.storage !== 's3' || !!c.s3Bucket, { path: ['s3Bucket'], message: 'must be set when GATEPOST_STORAGE is s3' });
 
 export type Config = z.infer<typeof schema>;
@@ -116,6 +125,9 @@ const envNames: Record<keyof Config, string> = {
   labStorageQuotaBytes: 'GATEPOST_LAB_STORAGE_QUOTA_BYTES',
   jobLockMs: 'GATEPOST_JOB_LOCK_MS',
   sweepIntervalMs: 'GATEPOST_SWEEP_INTERVAL_MS',
+  workerCores: 'GATEPOST_WORKER_CORES',
+  workerConcurrency: 'GATEPOST_WORKER_CONCURRENCY',
+  workerHost: 'GATEPOST_WORKER_HOST',
 };
 
 export class ConfigError extends Error {}

@@ -1,6 +1,8 @@
+import { availableParallelism } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Worker, type Queue } from 'bullmq';
+import { Redis } from 'ioredis';
 import { Op } from 'sequelize';
 import { loadConfig, loadConfigOrExit, type Config } from '../server/config.ts';
 import { Analysis, Capture, Shot } from '../server/db/models/index.ts';
@@ -9,6 +11,7 @@ import { createNotifyQueue } from '../server/modules/notifications/notify-people
 import { QUEUE_NAMES } from '../shared/contracts/jobs.ts';
 import { closeWorkerContext, workerContext } from './context.ts';
 import { isFinalFailure, recordFinalFailure } from './final-failure.ts';
+import { concurrencyShare, joinHost, type HostShare } from './host-share.ts';
 import { redisConnection } from './queues.ts';
 import { afterCaptureFinished } from './settle-shot.ts';
 
@@ -89,15 +92,43 @@ async function prewarm(worker: Worker, file: string): Promise<void> {
   pool.release(await pool.retain(file));
 }
 
+/** Queues whose jobs read and analyse captures (a core each while they run); notify only waits on the mail server. */
+const READING_QUEUES: string[] = [QUEUE_NAMES.ingest, QUEUE_NAMES.analysis];
+const NOTIFY_CONCURRENCY = 2;
+
 async function main() {
   const config = loadConfigOrExit();
   const { logger, sequelize } = workerContext();
   await sequelize.authenticate();
-  const workers = Object.entries(processorFiles).map(([queue, file]) => {
+  const workers: Worker[] = [];
+  const applyShare = (share: number) => {
+    for (const w of workers) if (READING_QUEUES.includes(w.name)) w.concurrency = share;
+  };
+  // The jobs each reading queue runs at once: fixed by GATEPOST_WORKER_CONCURRENCY, else this process's share of the
+  // host's cores among the worker processes registered there (worker/host-share.ts), followed as they come and go.
+  let hostShare: HostShare | null = null;
+  let hostRedis: Redis | null = null;
+  let share = config.workerConcurrency ?? concurrencyShare(config.workerCores ?? availableParallelism(), 1, 0);
+  if (config.workerConcurrency === undefined) {
+    hostRedis = new Redis({ ...redisConnection(config.redisUrl), maxRetriesPerRequest: 1 });
+    hostRedis.on('error', () => {});
+    hostShare = await joinHost({
+      redis: hostRedis,
+      host: config.workerHost,
+      cores: config.workerCores,
+      onShare(next, seen) {
+        share = next;
+        applyShare(next);
+        logger.info({ concurrency: next, ...seen }, 'jobs per reading queue set from the worker processes of this host');
+      },
+      onError: (err) => logger.warn({ err: err.message }, 'worker heartbeat did not reach Redis; concurrency unchanged'),
+    });
+  }
+  for (const [queue, file] of Object.entries(processorFiles)) {
     const worker = new Worker(queue, file, {
       connection: redisConnection(config.redisUrl),
       useWorkerThreads: true,
-      concurrency: 2,
+      concurrency: READING_QUEUES.includes(queue) ? share : NOTIFY_CONCURRENCY,
       lockDuration: config.jobLockMs,
       stalledInterval: config.jobLockMs,
       maxStalledCount: 2,
@@ -110,14 +141,14 @@ async function main() {
     });
     worker.on('completed', (job) => logger.info({ queue, job: job.id }, 'job done'));
     worker.on('error', (err) => logger.error({ queue, err: err.message }, 'worker error'));
-    return worker;
-  });
+    workers.push(worker);
+  }
   await Promise.all(workers.map((w) => w.waitUntilReady()));
   // Not awaited: jobs may start meanwhile (a busy pool just starts a thread of its own, as without this).
   for (const [k, [queue, file]] of Object.entries(processorFiles).entries()) {
     if (queue !== QUEUE_NAMES.notify) void prewarm(workers[k], file).catch((err: Error) => logger.warn({ queue, err: err.message }, 'could not start a processor thread ahead'));
   }
-  logger.info({ queues: Object.keys(processorFiles) }, 'Gatepost worker ready');
+  logger.info({ queues: Object.keys(processorFiles), concurrency: share }, 'Gatepost worker ready');
 
   const sweeper = setInterval(() => {
     sweep(config).catch((err: Error) => logger.warn({ err: err.message }, 'sweep failed; will try again'));
@@ -132,7 +163,9 @@ async function main() {
     logger.info({ signal }, 'worker shutting down: finishing running jobs');
     const force = setTimeout(() => process.exit(1), 30_000);
     force.unref();
+    await hostShare?.stop();
     await Promise.allSettled(workers.map((w) => w.close()));
+    hostRedis?.disconnect();
     await notifyQueueInstance?.close().catch(() => {});
     await closeWorkerContext();
     await closeLabEventPublisher();
