@@ -2,8 +2,12 @@
  * `npm run bench:throughput`: 200 shots of a 100 000-sample two-channel capture uploaded by 10 clients at once (each
  * logs a shot, uploads its file and polls every 50 ms until the analysis is stored, then takes the next), through
  * the real API server and worker processes (compiled, as npm start runs them), first with one worker process,
- * then with a second one started beside it on the same Redis and PostgreSQL. Prints shots per second and the
- * upload-to-result p50/p95 of each, and their ratio. Target (issue 13): two workers not slower than one.
+ * then with a second one started beside it on the same Redis, PostgreSQL and cores (they share the cores: one job
+ * per queue each on two cores, worker/host-share.ts), then with a second one that runs two jobs per queue whatever
+ * else runs (GATEPOST_WORKER_CONCURRENCY=2, each process as before issue 13). Prints shots per second, the
+ * upload-to-result p50/p95 and what each phase cost (processor time per shot of each process, threads, PostgreSQL
+ * connections and transactions, Redis clients and commands), and the ratios to one worker. Target (issue 13): two
+ * workers not slower than one.
  * Every file differs in one sample, so nothing is de-duplicated by its hash. Figures only, no pass/fail.
  */
 import path from 'node:path';
@@ -37,6 +41,13 @@ function variant(bytes: Uint8Array, i: number): Uint8Array {
   const last = Number(fields[fields.length - 1]) + i * 1e-6;
   fields[fields.length - 1] = last.toFixed(6);
   return new TextEncoder().encode(`${text.slice(0, cut)}${fields.join(',')}\n`);
+}
+
+/** The jobs per reading queue a worker last logged and the worker processes it counted on its host (worker/index.ts, info level). */
+function lastShare(output: string): string {
+  let last = '?';
+  for (const match of output.matchAll(/"concurrency":(\d+),"workers":(\d+)/g)) last = `${match[1]} of ${match[2]} workers`;
+  return last;
 }
 
 async function runPhase(clients: PipelineClient[], newShot: (c: PipelineClient) => Promise<string>, bytes: Uint8Array, offset: number, processes?: () => Record<string, number>) {
@@ -83,19 +94,38 @@ async function main(): Promise<void> {
       if (created.status !== 201) throw new Error(`could not log a shot: HTTP ${created.status} ${JSON.stringify(created.body)}`);
       return created.body.shot.id;
     };
-    // One shot each first, so the worker threads are warm in both phases.
-    await runPhase(clients.slice(0, 1), newShot, csv.bytes, 10_000).catch(() => undefined);
+    // One shot each first, so the worker threads are warm in every phase.
+    const warmUp = () => runPhase(clients, newShot, csv.bytes, 10_000 + 100 * warmUps++).catch(() => undefined);
+    let warmUps = 0;
+    await runPhase(clients.slice(0, 1), newShot, csv.bytes, 9_000).catch(() => undefined);
     const processes = () => ({ api: bench.app.api.pid, worker: bench.app.worker!.pid, ...(second ? { 'worker-2': second.pid } : {}) });
     const one = await runPhase(clients, newShot, csv.bytes, 0, processes);
-    second = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: bench.app.env, cwd: ROOT, echo: false });
-    await new Promise((resolve) => setTimeout(resolve, 3000));
+    // A second worker process beside it, started as an operator would (`npm run worker` on the same machine), each
+    // phase after it said it was ready and after ten unmeasured shots, as the first worker had before its phase.
+    const startSecond = async (env: NodeJS.ProcessEnv) => {
+      const child = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: { ...bench.app.env, ...env }, cwd: ROOT, echo: false });
+      await pollUntil(async () => (child.output().includes('Gatepost worker ready') ? true : undefined), { timeoutMs: 60_000, what: 'the second worker to be ready' });
+      // Heartbeats every 2 s (worker/host-share.ts): the first worker has counted the second after this.
+      await new Promise((resolve) => setTimeout(resolve, 3000));
+      return child;
+    };
+    second = await startSecond({ GATEPOST_LOG_LEVEL: 'info' });
+    await warmUp();
     const two = await runPhase(clients, newShot, csv.bytes, SHOTS, processes);
+    const share = lastShare(second.output());
+    await second.stop();
+    // As before issue 13: each worker process two jobs per queue whatever else runs on the machine (a worker with
+    // a fixed GATEPOST_WORKER_CONCURRENCY does not register, so the first one counts itself alone again).
+    second = await startSecond({ GATEPOST_WORKER_CONCURRENCY: '2' });
+    await warmUp();
+    const fixed = await runPhase(clients, newShot, csv.bytes, 2 * SHOTS, processes);
     const f = (x: { perSecond: number; seconds: number; p50: number; p95: number }) =>
       `${x.perSecond.toFixed(2)} shots/s (${x.seconds.toFixed(1)} s), upload → result p50 ${(x.p50 / 1000).toFixed(2)} s, p95 ${(x.p95 / 1000).toFixed(2)} s`;
     const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
     console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}`);
     console.log(`one worker process:  ${f(one)}`);
-    console.log(`two worker processes: ${f(two)}`);
+    console.log(`two worker processes sharing the cores (the second's jobs per queue: ${share}): ${f(two)}`);
+    console.log(`two worker processes, two jobs per queue each (as before issue 13): ${f(fixed)}`);
     const costs = (name: string, u: PhaseUsage | undefined) => {
       if (!u) return;
       const perShot = (s: number | null) => (s === null ? '?' : `${((s * 1000) / SHOTS).toFixed(0)} ms`);
@@ -108,8 +138,10 @@ async function main(): Promise<void> {
     };
     console.log('what each phase cost (user + sys time from /proc, counters of PostgreSQL and Redis):');
     costs('one worker process', one.usage);
-    costs('two worker processes', two.usage);
-    console.log(`ratio two / one (shots per second): ${(two.perSecond / one.perSecond).toFixed(2)}× (target ≥ 1: two workers not slower)`);
+    costs('two worker processes sharing the cores', two.usage);
+    costs('two worker processes, two jobs per queue each', fixed.usage);
+    console.log(`ratio two / one (shots per second): ${(two.perSecond / one.perSecond).toFixed(2)}× (target ≥ 1: two workers not slower); ` +
+      `two jobs per queue each / one: ${(fixed.perSecond / one.perSecond).toFixed(2)}×`);
   } finally {
     await second?.stop();
     await bench.close();

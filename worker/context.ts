@@ -1,3 +1,4 @@
+import { isMainThread } from 'node:worker_threads';
 import type { Sequelize } from 'sequelize';
 import { loadConfig, type Config } from '../server/config.ts';
 import { createSequelize } from '../server/db/sequelize.ts';
@@ -17,13 +18,21 @@ export interface WorkerContext {
 
 let context: WorkerContext | undefined;
 
+/**
+ * The database pool of a processor thread: it runs one job at a time, which holds one connection (two while it
+ * settles the shot beside an open transaction), so three are enough; one stays open while the thread waits, so a
+ * job after a quiet spell neither opens a connection nor meets a PostgreSQL backend with cold catalogue caches
+ * (bench:pipeline, issue 13). The worker's main thread (the sweep) keeps the default pool.
+ */
+export const PROCESSOR_THREAD_POOL = { max: 3, min: 1 };
+
 export function workerContext(): WorkerContext {
   if (!context) {
     const config = loadConfig();
     context = {
       config,
       logger: createLogger(config.logLevel, 'worker'),
-      sequelize: createSequelize(config.databaseUrl),
+      sequelize: createSequelize(config.databaseUrl, undefined, isMainThread ? undefined : PROCESSOR_THREAD_POOL),
       blobStore: createBlobStore(config),
       queues: createJobQueues(config.redisUrl),
     };

@@ -33,13 +33,22 @@ export function postgresTls(databaseUrl: string): { url: string; ssl: PostgresTl
   };
 }
 
-/** One connection pool per process. Models are registered here; the schema comes only from migrations. */
-export function createSequelize(databaseUrl: string, logger?: Logger): Sequelize {
+/** Size of a connection pool: at most `max` connections, of which `min` stay open while idle. */
+export interface PoolSize {
+  max: number;
+  min: number;
+}
+
+/**
+ * One connection pool per process (per thread, in the worker). Models are registered here; the schema comes only
+ * from migrations. Default pool: up to 10 connections, each closed after 10 s idle.
+ */
+export function createSequelize(databaseUrl: string, logger?: Logger, pool: PoolSize = { max: 10, min: 0 }): Sequelize {
   const { url, ssl } = postgresTls(databaseUrl);
   const sequelize = new Sequelize(url, {
     dialect: 'postgres',
     logging: logger ? (sql) => logger.trace({ sql }, 'sql') : false,
-    pool: { max: 10, min: 0, idle: 10_000, acquire: 10_000 },
+    pool: { max: pool.max, min: pool.min, idle: 10_000, acquire: 10_000 },
     define: { underscored: true },
     dialectOptions: { connectionTimeoutMillis: 5_000, ...(ssl ? { ssl } : {}) },
   });

@@ -46,6 +46,9 @@ beforeAll(async () => {
     env: {
       GATEPOST_DATA_DIR: dataDir, GATEPOST_LOG_LEVEL: 'info', GATEPOST_JOB_LOCK_MS: String(LOCK_MS), GATEPOST_SWEEP_INTERVAL_MS: '1000',
       GATEPOST_READ_UPLOADS_FROM_BYTES: '-1',
+      // The workers of this file count each other as one two-core machine, whatever this machine has and whatever
+      // other test files run beside (worker/host-share.ts).
+      GATEPOST_WORKER_CORES: '2', GATEPOST_WORKER_HOST: `pipeline-faults-${process.pid}`,
     },
   });
   workers.push(app.worker!);
@@ -111,6 +114,24 @@ async function jobsDoneSettled(handles: ChildHandle[], ids: string[]): Promise<M
   return jobsDone(handles);
 }
 
+/** The jobs per reading queue the worker last said it runs, and the worker processes it counted on its host. */
+interface Share { concurrency: number; workers?: number }
+function lastShare(handle: ChildHandle): Share | null {
+  let last = null as Share | null;
+  for (const line of handle.output().split('\n')) {
+    if (!line.startsWith('{')) continue;
+    try {
+      const entry = JSON.parse(line) as { msg?: string; concurrency?: number; workers?: number };
+      if (entry.concurrency !== undefined && (entry.msg === 'Gatepost worker ready' || entry.msg?.startsWith('jobs per reading queue'))) {
+        last = { concurrency: entry.concurrency, workers: entry.workers ?? last?.workers };
+      }
+    } catch {
+      continue;
+    }
+  }
+  return last;
+}
+
 /** SIGKILL to the worker's whole process group (tsx runs the script in a child node process, with its threads). */
 async function killWorker(worker: ChildHandle): Promise<void> {
   process.kill(-worker.pid, 'SIGKILL');
@@ -172,11 +193,17 @@ describe('When the worker is killed with SIGKILL in the middle of a job', () => 
 });
 
 describe('When two worker processes share the queue', () => {
-  it('then every job of several shots runs exactly once, and each shot gets one analysis', async () => {
+  it('then they split the host\'s cores, both take jobs, every job of several shots runs exactly once, and each shot gets one analysis', async () => {
+    const current = app.worker!;
+    // Alone on its (two-core) host, once the entries of the workers killed above have expired: two jobs per queue.
+    await pollUntil(async () => (lastShare(current)?.concurrency === 2 ? true : undefined), { timeoutMs: 30_000, what: 'the worker to run two jobs per queue alone' });
     const extra = spawnChild({ name: 'worker-2', command: path.resolve('node_modules/.bin/tsx'), args: ['worker/index.ts'], env: app.env, echo: false });
     workers.push(extra);
     await pollUntil(async () => (extra.output().includes('Gatepost worker ready') ? true : undefined), { timeoutMs: 60_000, what: 'the second worker to be ready' });
-    const current = app.worker!;
+    // The newcomer counts both at once; the first one gives up a core at its next heartbeat (2 s).
+    expect(lastShare(extra)).toEqual({ concurrency: 1, workers: 2 });
+    await pollUntil(async () => (lastShare(current)?.concurrency === 1 ? true : undefined), { timeoutMs: 30_000, what: 'the first worker to give a core to the second' });
+    expect(lastShare(current)).toEqual({ concurrency: 1, workers: 2 });
     const shots: { shotId: string; captureId: string }[] = [];
     for (let i = 0; i < 6; i++) {
       const shotId = await newShot(exitRigId);
@@ -200,7 +227,13 @@ describe('When two worker processes share the queue', () => {
     for (const id of jobIds) expect(done.get(id), id).toBe(1);
     const byExtra = jobIds.filter((id) => jobsDone([extra]).has(id)).length;
     console.log(`two workers: ${jobIds.length - byExtra} jobs ran in worker ${current.pid}, ${byExtra} in worker ${extra.pid}`);
+    // One job per queue each, six shots queued at once: neither worker can have taken them all.
+    expect(byExtra).toBeGreaterThan(0);
+    expect(byExtra).toBeLessThan(jobIds.length);
     await extra.stop();
+    // The second one left the host's list as it stopped: the first takes its core back.
+    await pollUntil(async () => (lastShare(current)?.concurrency === 2 ? true : undefined), { timeoutMs: 30_000, what: 'the first worker to take the core back' });
+    expect(lastShare(current)).toEqual({ concurrency: 2, workers: 1 });
   }, 180_000);
 });
 
