@@ -26,7 +26,7 @@ class WarmRollback extends Error {}
  * connection (kept open by the thread's pool, worker/context.ts), PostgreSQL's per-connection catalogue caches and
  * Sequelize's first pass over each model's updates and the shot's settling happen here, not in the first job.
  */
-async function warmDatabase(kind: 'ingest' | 'analysis'): Promise<void> {
+export async function warmDatabase(kind: 'ingest' | 'analysis'): Promise<void> {
   const ctx = workerContext();
   const none = '00000000-0000-0000-0000-000000000000';
   await ctx.sequelize.authenticate();

@@ -70,6 +70,19 @@ describe('loadConfig', () => {
     expect(both).toMatch(/GATEPOST_DATABASE_URL: /);
   });
 
+  it('When the worker settings are unset, then the worker shares its host\'s cores; set, they are read, and below one refused', () => {
+    // Act
+    const unset = loadConfig({});
+    const set = loadConfig({ GATEPOST_WORKER_CORES: '6', GATEPOST_WORKER_CONCURRENCY: '3', GATEPOST_WORKER_HOST: 'rack-2' });
+    const zero = configError(() => loadConfig({ GATEPOST_WORKER_CORES: '0' }));
+    const none = configError(() => loadConfig({ GATEPOST_WORKER_CONCURRENCY: '0' }));
+    // Assert
+    expect([unset.workerCores, unset.workerConcurrency, unset.workerHost]).toEqual([undefined, undefined, undefined]);
+    expect(set).toMatchObject({ workerCores: 6, workerConcurrency: 3, workerHost: 'rack-2' });
+    expect(zero).toMatch(/GATEPOST_WORKER_CORES: /);
+    expect(none).toMatch(/GATEPOST_WORKER_CONCURRENCY: /);
+  });
+
   it('When running in production with the development JWT secret, then start-up is refused', () => {
     // Act
     const message = configError(() => loadConfig({ NODE_ENV: 'production' }));
