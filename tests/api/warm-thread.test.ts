@@ -34,10 +34,10 @@ describe('Warming a processor thread before its first job', () => {
     const { workerContext } = await import('../../worker/context.ts');
     const { warmDatabase, warmThread } = await import('../../worker/processors/warm-thread.ts');
     const { sequelize } = workerContext();
-    // Each table a job writes, with its row count and the latest change (audit rows are never updated).
-    const tables = [['shots', 'updated_at'], ['captures', 'updated_at'], ['analyses', 'updated_at'], ['audit_events', 'created_at']];
-    const snapshot = () => sequelize.query<{ t: string; n: string; latest: string | null }>(
-      tables.map(([t, c]) => `select '${t}' as t, count(*)::text as n, max(${c})::text as latest from ${t}`).join(' union all '),
+    // Each table a job writes: its row count and a digest of every row's every column.
+    const tables = ['shots', 'captures', 'analyses', 'audit_events'];
+    const snapshot = () => sequelize.query<{ t: string; n: string; digest: string | null }>(
+      tables.map((t) => `select '${t}' as t, count(*)::text as n, md5(string_agg(r::text, ',' order by r::text)) as digest from ${t} r`).join(' union all '),
       { type: QueryTypes.SELECT },
     );
     const before = await snapshot();
