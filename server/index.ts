@@ -13,7 +13,9 @@ import { createBlobStore } from './storage/create-blob-store.ts';
 async function main() {
   const config = loadConfigOrExit();
   const logger = createLogger(config.logLevel, 'api');
-  const sequelize = createSequelize(config.databaseUrl);
+  // Two connections stay open while the server is idle: the first request after a quiet spell (a person's upload)
+  // neither opens one nor meets a PostgreSQL backend with cold caches (issue 13, bench:pipeline's first shot).
+  const sequelize = createSequelize(config.databaseUrl, undefined, { max: 10, min: 2 });
   const redis = createRedis(config.redisUrl);
   redis.on('error', (err) => logger.warn({ err: err.message }, 'redis connection problem'));
   const mailer = createMailer(config);
