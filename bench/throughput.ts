@@ -103,13 +103,13 @@ async function main(): Promise<void> {
     // A second worker process beside it, started as an operator would (`npm run worker` on the same machine), each
     // phase after it said it was ready and after ten unmeasured shots, as the first worker had before its phase.
     const startSecond = async (env: NodeJS.ProcessEnv) => {
-      const child = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: { ...bench.app.env, ...env }, cwd: ROOT, echo: false });
+      const child = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: { ...bench.app.env, GATEPOST_LOG_LEVEL: 'info', ...env }, cwd: ROOT, echo: false });
       await pollUntil(async () => (child.output().includes('Gatepost worker ready') ? true : undefined), { timeoutMs: 60_000, what: 'the second worker to be ready' });
       // Heartbeats every 2 s (worker/host-share.ts): the first worker has counted the second after this.
       await new Promise((resolve) => setTimeout(resolve, 3000));
       return child;
     };
-    second = await startSecond({ GATEPOST_LOG_LEVEL: 'info' });
+    second = await startSecond({});
     await warmUp();
     const two = await runPhase(clients, newShot, csv.bytes, SHOTS, processes);
     const share = lastShare(second.output());
