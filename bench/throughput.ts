@@ -102,17 +102,20 @@ async function main(): Promise<void> {
     const one = await runPhase(clients, newShot, csv.bytes, 0, processes);
     // A second worker process beside it, started as an operator would (`npm run worker` on the same machine), each
     // phase after it said it was ready and after ten unmeasured shots, as the first worker had before its phase.
+    let share = '?';
     const startSecond = async (env: NodeJS.ProcessEnv) => {
       const child = spawnChild({ name: 'worker-2', command: process.execPath, args: [path.join(NODE_BUILD_DIR, 'worker/index.js')], env: { ...bench.app.env, GATEPOST_LOG_LEVEL: 'info', ...env }, cwd: ROOT, echo: false });
       await pollUntil(async () => (child.output().includes('Gatepost worker ready') ? true : undefined), { timeoutMs: 60_000, what: 'the second worker to be ready' });
       // Heartbeats every 2 s (worker/host-share.ts): the first worker has counted the second after this.
       await new Promise((resolve) => setTimeout(resolve, 3000));
+      // Read now: the output kept of a child is its last part, and its 'job done' lines follow.
+      share = lastShare(child.output());
       return child;
     };
     second = await startSecond({});
+    const twoShare = share;
     await warmUp();
     const two = await runPhase(clients, newShot, csv.bytes, SHOTS, processes);
-    const share = lastShare(second.output());
     await second.stop();
     // As before issue 13: each worker process two jobs per queue whatever else runs on the machine (a worker with
     // a fixed GATEPOST_WORKER_CONCURRENCY does not register, so the first one counts itself alone again).
@@ -124,7 +127,7 @@ async function main(): Promise<void> {
     const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
     console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}`);
     console.log(`one worker process:  ${f(one)}`);
-    console.log(`two worker processes sharing the cores (the second's jobs per queue: ${share}): ${f(two)}`);
+    console.log(`two worker processes sharing the cores (the second's jobs per queue: ${twoShare}): ${f(two)}`);
     console.log(`two worker processes, two jobs per queue each (as before issue 13): ${f(fixed)}`);
     const costs = (name: string, u: PhaseUsage | undefined) => {
       if (!u) return;
