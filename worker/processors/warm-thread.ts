@@ -59,8 +59,9 @@ export async function warmDatabase(kind: 'ingest' | 'analysis'): Promise<void> {
  * database connection (warmDatabase), and runs the code its jobs run (reading a capture from disk and from a stream,
  * writing its channel files, reading them back, analysing it) a few times on a simulated shot in a throwaway
  * folder, so the first real job pays neither for the connection nor for the JIT's first passes. bench:pipeline
- * measured the first job after a start at 4.5× a warm one with no warm-up, 1.96–3.11× with one pass over the reader
- * and the engine and no database work but a connection that its pool closed after 10 s idle (issue 13: ≤ 2×).
+ * measured the first job after a start at 4.5× a warm one with no warm-up, 1.83–2.16× with one pass over the reader
+ * and the engine and no database work but a connection that its pool closed after 10 s idle, 1.27–1.79× with this
+ * (three runs each, alternated, 2 December 2026; issue 13: ≤ 2×).
  * Nothing is written to the database or the lab's storage; a failure (database not up yet) only means the first job
  * does the work itself.
  */
