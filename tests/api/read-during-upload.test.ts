@@ -15,7 +15,7 @@ import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
 import { analysisJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData } from '../../shared/contracts/jobs.ts';
 import { float64FromBytes } from '../../server/traces/channel-files.ts';
 import { readCaptureFile } from '../../worker/import/read-capture-file.ts';
-import { signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
+import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
 import { createApiHarness, type ApiHarness, type DemoWorld } from '../helpers/api-harness.ts';
 import { startAppProcesses, type AppProcesses } from '../helpers/app-processes.ts';
 import { expectForward, settleShot, type SettlingShot } from '../helpers/settle-shot.ts';
@@ -155,10 +155,13 @@ describe('When files the reader refuses are uploaded to it', () => {
     expect(shot.captures[0].error).toMatch(/^line 1,?235: expected 4 columns/);
     // Read again by the worker: its ingest job ran and failed with the importer's message (only the worker writes
     // "failed"; the API leaves a file it could not read queued). Watching for the passing "reading" state missed it
-    // once the worker's threads were warm, so the job itself is the witness.
+    // once the worker's threads were warm, so the job itself is the witness. The job writes the row before it throws,
+    // and BullMQ moves it to the failed set a moment after: wait for that move.
     const row = await Capture.findByPk(up.body.captures[0].id, { rejectOnEmpty: true });
-    const job = await h.deps.queues.failedIngest({ captureId: row.id, attempt: row.ingestAttempt });
-    expect(job?.failedReason).toMatch(/^line 1,?235: expected 4 columns/);
+    const job = await pollUntil(async () => (await h.deps.queues.failedIngest({ captureId: row.id, attempt: row.ingestAttempt })) ?? undefined, {
+      timeoutMs: 10_000, intervalMs: 50, what: 'the ingest job to be failed in BullMQ',
+    });
+    expect(job.failedReason).toMatch(/^line 1,?235: expected 4 columns/);
     expect(incoming()).toEqual([]);
   });
 });
