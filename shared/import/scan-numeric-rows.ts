@@ -164,6 +164,8 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
         let exp10 = 0;
         if (c === decimal) {
           const fracStart = ++q;
+          // The integer part's digit loop again, written out: it is the hottest code of a deep import, and a helper
+          // would have to hand back two numbers (the position and the mantissa) for every field.
           for (;;) {
             if (q + 4 <= end) {
               const v = view.getUint32(q, true);
