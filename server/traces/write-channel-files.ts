@@ -1,5 +1,5 @@
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { buildMinMaxPyramid } from '../../shared/traces/build-min-max-pyramid.ts';
+import { buildMinMaxPyramid, pyramidShape } from '../../shared/traces/build-min-max-pyramid.ts';
 import { assertBlobKey, type BlobStore } from '../storage/blob-store.ts';
 import { float32Bytes, float64Bytes, type ChannelFiles } from './channel-files.ts';
 
@@ -55,16 +55,13 @@ export interface PreparedChannelFiles {
 }
 
 /**
- * The work of writeChannelFiles that needs no store and no capture id (the Float32 copies, the pyramids, the
- * descriptor), with keys relative to the capture's folder (`ch0/samples.f32`), so a worker thread can do it before
- * the Capture row exists and hand the bytes over; placeChannelFiles puts the keys in the folder, putChannelBlobs
- * stores them.
+ * The descriptor of a capture's channel files (what the Capture row keeps: keys relative to the capture's folder,
+ * lengths, pyramid levels), worked out without building any file: cheap, so the capture can be recorded as read
+ * while its files are still being prepared (channelFilesOf builds them and gives the same descriptor).
  */
-export function channelFilesOf(capture: ImportedCapture, options: WriteChannelFilesOptions = {}): PreparedChannelFiles {
+export function describeChannelFiles(capture: ImportedCapture, options: WriteChannelFilesOptions = {}): ChannelFiles {
   const { factor = 16, maxTopPairs = 1024 } = options;
   const { length } = capture;
-  const blobs: ChannelBlob[] = [];
-
   let time: ChannelFiles['time'];
   if (capture.time.kind === 'uniform') {
     const { t0, dt, jitter } = capture.time;
@@ -72,35 +69,16 @@ export function channelFilesOf(capture: ImportedCapture, options: WriteChannelFi
   } else {
     const t = capture.time.t;
     if (t.length !== length) throw new RangeError(`explicit time base has ${t.length} times for ${length} samples`);
-    const key = 'time.f64';
-    blobs.push({ key, bytes: float64Bytes(t) });
-    time = { kind: 'explicit', key, first: length ? t[0] : null, last: length ? t[length - 1] : null };
+    time = { kind: 'explicit', key: 'time.f64', first: length ? t[0] : null, last: length ? t[length - 1] : null };
   }
-
-  const channels: ChannelFiles['channels'] = [];
-  for (let index = 0; index < capture.channels.length; index++) {
-    const channel = capture.channels[index];
+  const shape = pyramidShape(length, { factor, maxTopPairs });
+  const channels: ChannelFiles['channels'] = capture.channels.map((channel, index) => {
     if (channel.values.length !== length) {
       throw new RangeError(`channel ${index} (${channel.name}) has ${channel.values.length} samples, the capture ${length}`);
     }
     const folder = `ch${index}`;
     const samplesKey = `${folder}/samples.f32`;
-    blobs.push({ key: samplesKey, bytes: float32Bytes(channel.values) });
-    let values: ChannelFiles['channels'][number]['values'];
-    if (channel.values instanceof Float64Array) {
-      values = { key: `${folder}/values.f64`, type: 'f64' };
-      blobs.push({ key: values.key, bytes: float64Bytes(channel.values) });
-    } else {
-      values = { key: samplesKey, type: 'f32' };
-    }
-    const levels: ChannelFiles['channels'][number]['levels'] = [];
-    const pyramid = buildMinMaxPyramid(channel.values, { factor, maxTopPairs });
-    for (let k = 0; k < pyramid.length; k++) {
-      const key = `${folder}/level-${k + 1}.f32`;
-      blobs.push({ key, bytes: float32Bytes(pyramid[k].pairs) });
-      levels.push({ level: k + 1, blockSize: pyramid[k].blockSize, key, length: pyramid[k].pairs.length / 2 });
-    }
-    channels.push({
+    return {
       index,
       name: channel.name,
       unit: channel.unit,
@@ -109,16 +87,41 @@ export function channelFilesOf(capture: ImportedCapture, options: WriteChannelFi
       length,
       factor,
       samplesKey,
-      values,
-      levels,
-    });
-  }
-  const files: ChannelFiles = {
+      values: channel.values instanceof Float64Array ? { key: `${folder}/values.f64`, type: 'f64' } : { key: samplesKey, type: 'f32' },
+      levels: shape.map((l, k) => ({ level: k + 1, blockSize: l.blockSize, key: `${folder}/level-${k + 1}.f32`, length: l.pairs })),
+    };
+  });
+  return {
     format: 'gatepost-channel-files-1', length, time,
     ...(capture.timeOrigin && { timeOrigin: capture.timeOrigin }),
     ...(capture.valueKind && { valueKind: capture.valueKind }),
     channels,
   };
+}
+
+/**
+ * The work of writeChannelFiles that needs no store and no capture id (the Float32 copies, the pyramids, the
+ * descriptor of describeChannelFiles), with keys relative to the capture's folder (`ch0/samples.f32`), so a worker
+ * thread can do it before the Capture row exists and hand the bytes over; placeChannelFiles puts the keys in the
+ * folder, putChannelBlobs stores them.
+ */
+export function channelFilesOf(capture: ImportedCapture, options: WriteChannelFilesOptions = {}): PreparedChannelFiles {
+  const { factor = 16, maxTopPairs = 1024 } = options;
+  const files = describeChannelFiles(capture, { factor, maxTopPairs });
+  const blobs: ChannelBlob[] = [];
+  if (files.time.kind === 'explicit' && capture.time.kind === 'explicit') blobs.push({ key: files.time.key, bytes: float64Bytes(capture.time.t) });
+  for (const described of files.channels) {
+    const values = capture.channels[described.index].values;
+    blobs.push({ key: described.samplesKey, bytes: float32Bytes(values) });
+    if (values instanceof Float64Array) blobs.push({ key: described.values!.key, bytes: float64Bytes(values) });
+    const pyramid = buildMinMaxPyramid(values, { factor, maxTopPairs });
+    if (pyramid.length !== described.levels.length) throw new RangeError(`the pyramid has ${pyramid.length} levels, its descriptor ${described.levels.length}`);
+    pyramid.forEach((level, k) => {
+      const { key, length, blockSize } = described.levels[k];
+      if (level.pairs.length !== 2 * length || level.blockSize !== blockSize) throw new RangeError(`pyramid level ${k + 1} does not match its descriptor`);
+      blobs.push({ key, bytes: float32Bytes(level.pairs) });
+    });
+  }
   return { files, blobs };
 }
 

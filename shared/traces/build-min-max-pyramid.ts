@@ -94,3 +94,24 @@ export function buildMinMaxPyramid(
   }
   return levels;
 }
+
+/**
+ * The levels buildMinMaxPyramid gives for a trace of `n` samples (block size and number of pairs of each), worked
+ * out without building them: the channel files' descriptor can then be recorded before the pyramid is built.
+ */
+export function pyramidShape(n: number, options: BuildMinMaxPyramidOptions = {}): { blockSize: number; pairs: number }[] {
+  const { factor = 16, maxTopPairs = 1024 } = options;
+  if (!Number.isInteger(factor) || factor < 2) throw new RangeError('factor must be an integer ≥ 2');
+  if (!Number.isInteger(maxTopPairs) || maxTopPairs < 1) throw new RangeError('maxTopPairs must be an integer ≥ 1');
+  const shape: { blockSize: number; pairs: number }[] = [];
+  if (n <= maxTopPairs) return shape;
+  let pairs = Math.ceil(n / factor);
+  let blockSize = factor;
+  shape.push({ blockSize, pairs });
+  while (pairs > maxTopPairs) {
+    pairs = Math.ceil(pairs / factor);
+    blockSize *= factor;
+    shape.push({ blockSize, pairs });
+  }
+  return shape;
+}

@@ -3,7 +3,7 @@
 // one pass over the bytes hashes, stores and reads them, the capture goes from queued straight to ready, and what
 // was stored is exactly what the worker's disk reader and the engine make of the same file, run in this process.
 import { createHash } from 'node:crypto';
-import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, truncateSync, unlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { Queue } from 'bullmq';
@@ -12,7 +12,7 @@ import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { Analysis, Capture, GateRig, Projectile } from '../../server/db/models/index.ts';
 import { createAnalysisVersion } from '../../server/modules/analyses/service.ts';
 import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
-import { analysisJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData } from '../../shared/contracts/jobs.ts';
+import { analysisJobId, ingestJobId, JOB_NAMES, QUEUE_NAMES, type AnalysisJobData } from '../../shared/contracts/jobs.ts';
 import { float64FromBytes } from '../../server/traces/channel-files.ts';
 import { readCaptureFile } from '../../worker/import/read-capture-file.ts';
 import { pollUntil, signIn, simulatedCsv, type PipelineClient } from '../../bench/lib/pipeline-client.ts';
@@ -87,9 +87,11 @@ async function storedFile(key: string): Promise<Buffer> {
   }
 }
 
+/** The shot of the first scenario, read on arrival and analysed (the scenarios after it damage its files). */
+let shot: ShotDetail;
+
 describe('When a capture is uploaded to an API that reads uploads as they arrive', () => {
   const csv = simulatedCsv({ speed: 300, seed: 21 });
-  let shot: ShotDetail;
   let seen: Map<string, string[]>;
 
   it('then the capture goes from queued straight to ready (no worker read) and the shot is analysed', async () => {
@@ -139,6 +141,61 @@ describe('When a capture is uploaded to an API that reads uploads as they arrive
     const analysis = await Analysis.findByPk(shot.analyses[0].id, { rejectOnEmpty: true });
     const again = JSON.parse(JSON.stringify(analyzeShot(imported, analysis.parameters as object)));
     expect(analysis.results).toEqual(again);
+  });
+});
+
+describe('When the API stopped before a read upload\'s channel files were all on the disk', () => {
+  // The API records a deep upload as read, with its version's numbers, before its channel files are written, and
+  // syncs them after (uploads.ts). Here the API's process "stopped" in that gap: a plot file and a values file of
+  // the capture read above are taken away, one cut short.
+  let captureId: string;
+  let before: Map<string, Buffer>;
+
+  it('then its traces answer 503 "still being written" instead of failing, and the shot keeps its version', async () => {
+    const row = await Capture.findByPk(shot.captures[0].id, { rejectOnEmpty: true });
+    captureId = row.id;
+    const files = row.channels as { channels: { samplesKey: string; values: { key: string }; levels: { key: string }[] }[] };
+    // Channel 0's plot files (its samples and every pyramid level: a window may be drawn from any of them), channel
+    // 1's samples, and channel 1's values cut short.
+    const gone = [files.channels[0].samplesKey, ...files.channels[0].levels.map((l) => l.key), files.channels[1].samplesKey];
+    const cut = files.channels[1].values.key;
+    before = new Map(await Promise.all([...gone, cut].map(async (key) => [key, await storedFile(key)] as const)));
+    const onDisk = (key: string) => path.join(dataDir, 'blobs', ...key.split('/'));
+    for (const key of gone) unlinkSync(onDisk(key));
+    truncateSync(onDisk(cut), 100);
+    const window = await experimenter.get<{ error: { message: string } }>(`/api/captures/${captureId}/window?channel=0`);
+    expect(window.status).toBe(503);
+    expect(JSON.stringify(window.body)).toMatch(/still being written; try again/);
+    const samples = await experimenter.get(`/api/captures/${captureId}/samples?channel=1`);
+    expect(samples.status).toBe(503);
+  });
+
+  it('then the held ingest job, when it runs, finds them missing and writes them again from the stored upload, without a new version', async () => {
+    const ingest = new Queue(QUEUE_NAMES.ingest, { connection: h.redis });
+    try {
+      // The job that would have been released after the files: here it runs (again) for the same attempt.
+      const data = { captureId, attempt: (await Capture.findByPk(captureId, { rejectOnEmpty: true })).ingestAttempt };
+      await (await ingest.getJob(ingestJobId(data)))?.remove();
+      await h.deps.queues.addIngest(data);
+      for (const [key, bytes] of before) {
+        const file = path.join(dataDir, 'blobs', ...key.split('/'));
+        await pollUntil(async () => {
+          try {
+            return readFileSync(file).length === bytes.length ? true : undefined;
+          } catch {
+            return undefined;
+          }
+        }, { timeoutMs: 30_000, intervalMs: 50, what: `${key} written again` });
+        expect(Buffer.compare(readFileSync(file), bytes), key).toBe(0);
+      }
+      const { shot: after } = await settleShot<ShotDetail>(experimenter, (await Capture.findByPk(captureId, { rejectOnEmpty: true })).shotId);
+      expect(after.captures[0].state).toBe('ready');
+      expect(after.analyses.map((a) => a.id)).toEqual(shot.analyses.map((a) => a.id));
+      const window = await experimenter.get(`/api/captures/${captureId}/window?channel=0`);
+      expect(window.status).toBe(200);
+    } finally {
+      await ingest.close();
+    }
   });
 });
 

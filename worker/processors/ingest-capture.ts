@@ -3,6 +3,8 @@ import { ingestJobData } from '../../shared/contracts/jobs.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { Capture } from '../../server/db/models/index.ts';
 import { settleShot } from '../../server/modules/shots/settle-shot.ts';
+import { channelFilesSchema } from '../../server/traces/channel-files.ts';
+import { missingChannelFiles } from '../../server/traces/check-channel-files.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { AppError } from '../../server/lib/errors.ts';
 import { assertStorageRoom, estimateChannelFileBytes } from '../../server/modules/storage/service.ts';
@@ -48,6 +50,15 @@ async function readAndStore(job: Job, capture: Capture): Promise<void> {
   await job.updateProgress(100);
 }
 
+/** Whether a capture recorded as read lacks any of its channel files (or has one cut short). */
+async function channelFilesIncomplete(capture: Capture): Promise<boolean> {
+  const parsed = channelFilesSchema.safeParse(capture.channels);
+  if (!parsed.success) return true;
+  const missing = await missingChannelFiles(workerContext().blobStore, parsed.data);
+  if (missing.length > 0) workerContext().logger.warn({ captureId: capture.id, missing: missing.length }, 'channel files missing; writing them again from the stored upload');
+  return missing.length > 0;
+}
+
 /**
  * Ingest job: read a stored capture file, write its channels and trace pyramids, record what was detected, and
  * once every capture of the shot is read, queue the shot's automatic analysis (worker/settle-shot.ts) and write
@@ -63,8 +74,11 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
   if (capture.ingestAttempt !== data.attempt) return { captureId: capture.id, state: 'superseded' };
   if (capture.removedAt) return { captureId: capture.id, state: 'removed' };
 
-  // Read already: by the API while the upload arrived, or by an earlier run of this job that stopped after it.
+  // Read already: by the API while the upload arrived, or by an earlier run of this job that stopped after it. The
+  // API records a deep upload as read before its channel files are written: any it did not finish (it stopped, or
+  // the machine lost power before they reached the disk) are written again from the stored upload.
   if (capture.state !== 'ready') await readAndStore(job, capture);
+  else if (await channelFilesIncomplete(capture)) await readAndStore(job, capture);
 
   await afterCaptureFinished(capture.shotId);
   return { captureId: capture.id, state: 'ready' };

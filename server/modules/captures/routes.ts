@@ -7,6 +7,8 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { parseInput } from '../../lib/validate.ts';
 import { PREVIEW_MEMORY_BYTES, previewBytes } from '../../../shared/traces/preview-budget.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
+import { channelFilesWritten, tracesPending } from '../../traces/channel-files-in-flight.ts';
+import { BlobNotFoundError } from '../../storage/blob-store.ts';
 import { readWindow, recordExtent, type TraceWindow } from '../../traces/read-window.ts';
 
 /** Routes addressed by a capture id find their lab from the capture itself. */
@@ -63,6 +65,7 @@ async function readyFiles(req: Request, deps: Deps): Promise<ChannelFiles> {
   if (!capture) throw notFound('No such capture.');
   if (capture.state === 'failed') throw conflict(`This capture could not be read: ${capture.error ?? 'unknown reason'}`);
   if (capture.state !== 'ready') throw conflict('This capture is still being read; try again in a moment.');
+  await channelFilesWritten(capture.id);
   const parsed = channelFilesSchema.safeParse(capture.channels);
   if (!parsed.success) {
     deps.logger.error({ captureId: capture.id, issues: parsed.error.issues }, 'capture channel files descriptor is invalid');
@@ -102,7 +105,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/captures/:captureId/samples',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfCapture },
-      summary: "One channel's samples as little-endian Float32 (channel=time: an explicit time column as Float64), for the browser's live preview",
+      summary: "One channel's samples as little-endian Float32 (channel=time: an explicit time column as Float64), for the browser's live preview; 503 (try again) in the moment its trace files are still being written",
       query: samplesQuerySchema,
       async handler(req, res) {
         const query = res.locals.query as z.infer<typeof samplesQuerySchema>;
@@ -124,6 +127,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
           throw new AppError(413, 'too_large', `This record has ${files.length.toLocaleString('en')} samples in ${files.channels.length} channel${files.channels.length === 1 ? '' : 's'}, more than the live preview holds in a browser tab (${Math.round(PREVIEW_MEMORY_BYTES / 1e6)} MB). Recompute on the server instead.`);
         }
         res.set({ 'Content-Type': 'application/octet-stream', 'Content-Length': String(bytes), 'X-Sample-Count': String(files.length), 'Cache-Control': 'no-store' });
+        if ((await deps.blobStore.stat(key))?.size !== bytes) throw tracesPending();
         const stream = deps.blobStore.openRead(key);
         stream.on('error', (err) => res.destroy(err));
         stream.pipe(res);
@@ -133,7 +137,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
       method: 'get',
       path: '/api/captures/:captureId/window',
       access: { kind: 'lab', permission: 'lab:read', labOf: labOfCapture },
-      summary: 'Min/max columns (or raw samples at full zoom) of one channel over a time window; null marks no valid (finite) sample. 409 while the capture is not read, or when its stored time base does not fit in a number',
+      summary: 'Min/max columns (or raw samples at full zoom) of one channel over a time window; null marks no valid (finite) sample. 409 while the capture is not read, or when its stored time base does not fit in a number; 503 (try again) in the moment its trace files are still being written',
       async handler(req, res) {
         const query = parseInput(windowQuerySchema, req.query);
         const capture = await Capture.findOne({
@@ -154,6 +158,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
             isOperational: false,
           });
         }
+        await channelFilesWritten(capture.id);
         const files = parsed.data;
         const index = channelIndexOf(files, query.channel);
         requireFiniteTimeBase(files);
@@ -161,7 +166,9 @@ export function captureRoutes(deps: Deps): RouteDef[] {
         const from = query.from ?? extent?.first ?? 0;
         const to = query.to ?? Math.max(from, extent?.last ?? 0);
         if (from > to) throw badRequest('Please correct the request: from: must not be later than to');
-        const window = await readWindow(deps.blobStore, files, index, from, to, query.points);
+        const window = await readWindow(deps.blobStore, files, index, from, to, query.points).catch((err: unknown) => {
+          throw err instanceof BlobNotFoundError ? tracesPending() : err;
+        });
         const channel = files.channels[index];
         res.json({
           captureId: capture.id,

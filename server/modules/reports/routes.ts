@@ -9,6 +9,8 @@ import { badRequest, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
 import { readWindow, recordExtent } from '../../traces/read-window.ts';
+import { channelFilesWritten, tracesPending } from '../../traces/channel-files-in-flight.ts';
+import { BlobNotFoundError } from '../../storage/blob-store.ts';
 import { combinedChannelNames } from '../analyses/service.ts';
 import { timeBaseStatus } from '../analyses/time-base-status.ts';
 import { namesOf } from '../reviews/people.ts';
@@ -104,6 +106,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
         const ids = analysis?.captureIds ?? [];
         const rows = ids.length ? await Capture.findAll({ where: { id: ids, shotId: shot.id, state: 'ready' } }) : [];
         const captures = ids.map((id) => rows.find((r) => r.id === id)).filter((c): c is Capture => !!c);
+        for (const capture of captures) await channelFilesWritten(capture.id);
         const files = captures.map((c) => channelFilesSchema.safeParse(c.channels)).map((p) => (p.success ? p.data : null));
         const names = combinedChannelNames(captures);
         const where: { files: ChannelFiles; index: number }[] = [];
@@ -117,7 +120,9 @@ export function reportRoutes(deps: Deps): RouteDef[] {
           const label = rig?.gates.find((g) => Math.abs(g.position_m - gate.position) < 1e-9)?.label ?? String.fromCharCode(65 + i);
           traces.push({
             gateLabel: label, channel: gate.channel, positionM: gate.position,
-            window: at && span ? await readWindow(deps.blobStore, at.files, at.index, span.from, span.to, TRACE_POINTS) : null,
+            window: at && span ? await readWindow(deps.blobStore, at.files, at.index, span.from, span.to, TRACE_POINTS).catch((err: unknown) => {
+              throw err instanceof BlobNotFoundError ? tracesPending() : err;
+            }) : null,
             thresholdV: channel?.threshold?.level ?? null,
             pulses: gate.pulses,
             note: gate.status === 'missed' ? `missed: ${channel?.reason ?? 'no pulse found'}` : null,

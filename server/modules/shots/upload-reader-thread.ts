@@ -1,14 +1,14 @@
 // Worker-thread side of reading an upload while it arrives (upload-reader.ts is the API's side): the blocks go
-// through the disk reader's stream path (readCaptureStream, the same byte scanner), and the channel files are
-// prepared here at once (Float32 copies, pyramids) and their bytes handed back to be stored. The capture stays here
-// until the API has asked the engine for the automatic version's numbers (nothing to read again for that) and then
-// for the full-precision values.
+// through the disk reader's stream path (readCaptureStream, the same byte scanner). Once read, the capture stays
+// here and the API asks, in this order: the engine's numbers for the automatic version (nothing to read again for
+// them), the files the trace plots read (Float32 copies, pyramids), then the full-precision values.
 import { parentPort } from 'node:worker_threads';
 import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
 import { nonFinitePaths, nonFiniteResultMessage } from '../../../shared/analysis/non-finite-paths.ts';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../../shared/contracts/capture.ts';
-import { channelFilesOf, type ChannelBlob } from '../../traces/write-channel-files.ts';
+import { float64Bytes } from '../../traces/channel-files.ts';
+import { channelFilesOf, describeChannelFiles, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import { readCaptureStream } from '../../../worker/import/read-capture-stream.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 import type { UploadReaderReply, UploadReaderRequest } from './upload-reader.ts';
@@ -20,9 +20,9 @@ const blocks: Uint8Array[] = [];
 let ended = false;
 let wake: (() => void) | null = null;
 let failed = false;
-/** The capture once read, kept for `analyse` until the API asks for its values (`release`). */
+/** The capture once read, kept for `analyse` and `files` until the API asks for its values (`release`). */
 let capture: ImportedCapture | null = null;
-/** Its full-precision value files, held back until then. */
+/** Its full-precision value files (views of its arrays), held back until then. */
 let kept: ChannelBlob[] = [];
 
 async function* arriving(): AsyncGenerator<Uint8Array> {
@@ -48,18 +48,33 @@ async function read(sizeHint: number, limits: CaptureLimits): Promise<void> {
   try {
     // The installation's limits refuse a too wide or too deep file here too; the worker then says why.
     capture = await readCaptureStream(arriving(), { sizeHint, ...limits });
-    const { files, blobs } = channelFilesOf(capture);
-    // The full-precision values view the capture's own arrays: they stay here (the engine may still run on them)
-    // until the API asks for them (`release`). Any other blob that views them goes over as a copy; the rest
-    // (Float32 copies, pyramids) are transferred, not copied.
-    const own = new Set<ArrayBufferLike>([...capture.channels.map((c) => c.values.buffer), ...(capture.time.kind === 'explicit' ? [capture.time.t.buffer] : [])]);
-    kept = blobs.filter((b) => b.key.endsWith('/values.f64'));
-    const sent = blobs.filter((b) => !b.key.endsWith('/values.f64')).map(({ key, bytes }) => ({ key, bytes: own.has(bytes.buffer) ? bytes.slice() : bytes }));
-    post({ type: 'read', ok: true, files, blobs: sent, keptKeys: kept.map((b) => b.key), layout: capture.layout, warnings: capture.warnings, length: capture.length }, buffersOf(sent));
+    // Only the descriptor now: the API records the capture and the automatic version's numbers before the files.
+    const files = describeChannelFiles(capture);
+    const read = capture;
+    kept = files.channels.flatMap((c) => (c.values?.type === 'f64' ? [{ key: c.values.key, bytes: float64Bytes(read.channels[c.index].values as Float64Array) }] : []));
+    post({ type: 'read', ok: true, files, layout: capture.layout, warnings: capture.warnings, length: capture.length });
   } catch (error) {
     failed = true;
     blocks.length = 0;
     post({ type: 'read', ok: false, reason: (error as Error).message });
+  }
+}
+
+/**
+ * The channel files of the capture read but its full-precision values: the Float32 copies and pyramids are
+ * transferred, not copied; a blob that views the capture's own arrays (an explicit time column) goes over as a
+ * copy. The values view the capture's arrays: they stay here until `release`.
+ */
+function prepareFiles(): UploadReaderReply {
+  if (capture === null) return { type: 'files', blobs: null };
+  try {
+    const own = new Set<ArrayBufferLike>([...capture.channels.map((c) => c.values.buffer), ...(capture.time.kind === 'explicit' ? [capture.time.t.buffer] : [])]);
+    const { blobs } = channelFilesOf(capture);
+    const sent = blobs.filter((b) => !b.key.endsWith('/values.f64')).map(({ key, bytes }) => ({ key, bytes: own.has(bytes.buffer) ? bytes.slice() : bytes }));
+    return { type: 'files', blobs: sent };
+  } catch {
+    // The API then puts the capture back in the queue, and the worker writes the files from the stored upload.
+    return { type: 'files', blobs: null };
   }
 }
 
@@ -79,6 +94,11 @@ function analyse(parameters: AnalysisOptionsInput): UploadReaderReply {
 port.on('message', (message: UploadReaderRequest) => {
   if (message.type === 'analyse') {
     post(analyse(message.parameters));
+    return;
+  }
+  if (message.type === 'files') {
+    const reply = prepareFiles();
+    post(reply, reply.type === 'files' && reply.blobs !== null ? buffersOf(reply.blobs) : []);
     return;
   }
   if (message.type === 'release') {

@@ -1,5 +1,6 @@
 import { Worker } from 'node:worker_threads';
-import type { ChannelBlob, PreparedChannelFiles } from '../../traces/write-channel-files.ts';
+import type { ChannelFiles } from '../../traces/channel-files.ts';
+import type { ChannelBlob } from '../../traces/write-channel-files.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 
@@ -8,14 +9,16 @@ export type UploadReaderRequest =
   | { type: 'block'; bytes: Uint8Array }
   | { type: 'end' }
   | { type: 'analyse'; parameters: AnalysisOptionsInput }
+  | { type: 'files' }
   | { type: 'release' };
 
 /**
- * What a read upload gives: its channel files (keys relative to the capture's folder) and the row's fields. `blobs`
- * are all the files but the full-precision values (`keptKeys`), which stay with the thread until `takeKept()`.
+ * What a read upload gives at once: the descriptor of its channel files (keys relative to the capture's folder) and
+ * the row's fields. The files themselves stay with the thread until asked for: those the trace plots read with
+ * `takeFiles()`, the full-precision values with `takeKept()`.
  */
-export interface UploadRead extends PreparedChannelFiles {
-  keptKeys: string[];
+export interface UploadRead {
+  files: ChannelFiles;
   layout: Record<string, unknown>;
   warnings: string[];
   length: number;
@@ -27,6 +30,7 @@ export type UploadReaderReply =
   | { type: 'read'; ok: false; reason: string }
   | { type: 'analysed'; ok: true; results: Record<string, unknown> }
   | { type: 'analysed'; ok: false; reason: string }
+  | { type: 'files'; blobs: ChannelBlob[] | null }
   | { type: 'released'; blobs: ChannelBlob[] };
 
 /** Bytes handed to the thread and not yet taken by its scanner before push() waits (the socket is paused meanwhile). */
@@ -36,7 +40,8 @@ const MAX_SPARE = 8;
 
 /**
  * Reads an upload in a worker thread while its bytes arrive (upload-reader-thread.ts), with the importer's stream
- * path, and prepares its channel files, so they are ready to store soon after the last byte arrives. Blocks are handed over, not copied; push() waits while
+ * path, so the samples are in memory soon after the last byte arrives; the thread then works out the automatic
+ * version's numbers and prepares the channel files as asked. Blocks are handed over, not copied; push() waits while
  * the thread is more than 32 MiB behind, which holds the upload back instead of piling it up in memory.
  */
 export class UploadReader {
@@ -47,6 +52,7 @@ export class UploadReader {
   private waiting: (() => void) | null = null;
   private analysed: ((outcome: { results: Record<string, unknown> } | { problem: string }) => void) | null = null;
   private released: ((blobs: ChannelBlob[] | null) => void) | null = null;
+  private prepared: ((blobs: ChannelBlob[] | null) => void) | null = null;
   private closed = false;
   /** The read is over (done or failed): blocks are no longer needed. */
   private settled = false;
@@ -63,6 +69,10 @@ export class UploadReader {
           this.ahead -= reply.bytes;
           if (reply.buffer !== undefined && this.spare.length < MAX_SPARE) this.spare.push(new Uint8Array(reply.buffer));
           if (this.ahead <= MAX_AHEAD) this.release();
+        } else if (reply.type === 'files') {
+          const done = this.prepared;
+          this.prepared = null;
+          done?.(reply.blobs);
         } else if (reply.type === 'released') {
           const done = this.released;
           this.released = null;
@@ -87,6 +97,9 @@ export class UploadReader {
         const gone = this.released;
         this.released = null;
         gone?.(null);
+        const files = this.prepared;
+        this.prepared = null;
+        files?.(null);
       };
       this.worker.on('error', (error) => fail(`the reading thread failed: ${error.message}`));
       this.worker.on('exit', () => fail('the reading thread stopped'));
@@ -144,6 +157,18 @@ export class UploadReader {
     });
   }
 
+  /**
+   * The files the trace plots read (Float32 copies of the channels, their pyramids, an explicit time column), keys
+   * relative to the capture's folder, prepared in the thread; null when it stopped first or could not prepare them.
+   */
+  takeFiles(): Promise<ChannelBlob[] | null> {
+    if (this.closed || this.prepared !== null) return Promise.resolve(null);
+    return new Promise((resolve) => {
+      this.prepared = resolve;
+      this.send({ type: 'files' });
+    });
+  }
+
   /** The full-precision value files the thread held back (then it lets the capture go); null when it stopped first. */
   takeKept(): Promise<ChannelBlob[] | null> {
     if (this.closed || this.released !== null) return Promise.resolve(null);
@@ -164,6 +189,9 @@ export class UploadReader {
     const gone = this.released;
     this.released = null;
     gone?.(null);
+    const files = this.prepared;
+    this.prepared = null;
+    files?.(null);
     await this.worker.terminate();
   }
 }

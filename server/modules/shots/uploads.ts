@@ -8,6 +8,7 @@ import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, badRequest } from '../../lib/errors.ts';
+import { channelFilesWriting } from '../../traces/channel-files-in-flight.ts';
 import { captureFilesPrefix, placeChannelFiles, putChannelBlobs, syncChannelBlobs, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import type { ChannelFiles } from '../../traces/channel-files.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
@@ -162,23 +163,27 @@ const INGEST_HOLD_MS = 60_000;
  * Anything that goes wrong here (a file the reader refused, a full disk) leaves the capture queued: the worker
  * then reads the stored file and records what it finds, with the importer's message.
  *
- * What stands between the last byte and the result is kept short (measured on the lab machine with the
- * 10-million-sample capture, where writing its 250 MB of channel files took 0.9–1.2 s and reading them back in the
- * worker 0.1–0.2 s):
- * - When the file is the shot's only one, the reading thread, which still holds the samples, works out the
- *   automatic version's numbers while the files are written, and the analysis job stores them instead of reading
- *   the files and running the engine again (analyseReadFiles checks they are for the version's captures and
- *   parameters, and the job checks again).
- * - The files the trace plots read are written before the capture is marked read; the full-precision values (two
- *   thirds of the bytes, read only by later recomputes) follow. A recompute asked for in between reads the stored
- *   upload instead (readStoredChannels finds no values file).
- * - The files are written without waiting for the disk and synced afterwards: they can be made again from the
- *   upload, which is on the disk before the upload is answered. A write or sync that fails puts the capture back
- *   in the queue, so the worker writes them again from the stored file.
+ * What stands between the last byte and the result is kept short. Measured with the 10-million-sample capture
+ * on the lab machine, preparing its channel files took 0.3–0.45 s in the thread and writing their 90 MB 0.25–1.1 s
+ * (the bytes go into fresh memory), while the engine on the samples in memory took 0.1–0.2 s. So when the file is
+ * the shot's only one:
+ * - the thread, which still holds the samples, works out the automatic version's numbers first; the capture is
+ *   recorded as read (its files' descriptor needs no file) and its version queued with those numbers, which the
+ *   analysis job stores instead of reading the files and running the engine again (analyseReadFiles checks they
+ *   are for the version's captures and parameters, and the job checks again);
+ * - then the files follow: those the trace plots read, then the full-precision values (read only by later
+ *   recomputes; one asked for in between reads the stored upload instead, as readStoredChannels finds no values
+ *   file). A trace request in between waits for them in this process (channelFilesWritten); if this process
+ *   stops before they are all written, the held ingest job finds them missing and writes them from the upload.
+ * With several files the analysis job reads every file's values, so all the files go first, as in the worker.
+ * The files are written without waiting for the disk and synced afterwards: they can be made again from the
+ * upload, which is on the disk before the upload is answered. A write or sync that fails puts the capture back in
+ * the queue, so the worker writes them again from the stored file.
  */
 async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadReader): Promise<void> {
   const data = { captureId: capture.id, attempt: capture.ingestAttempt };
   let marked = 0;
+  let filesWritten: () => void = () => {};
   try {
     const read = await reader.outcome;
     if ('problem' in read) {
@@ -186,42 +191,49 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
       return;
     }
     const prefix = captureFilesPrefix(capture.labId, capture.id);
-    const { files, blobs } = placeChannelFiles(prefix, read);
-    const takeValues = async () => {
-      const kept = await reader.takeKept();
-      if (kept === null) throw new Error('the reading thread stopped before it handed over the values');
-      return placeChannelFiles(prefix, { files: read.files, blobs: kept }).blobs;
+    const { files } = placeChannelFiles(prefix, { files: read.files, blobs: [] });
+    const take = async (blobs: Promise<ChannelBlob[] | null>, what: string) => {
+      const taken = await blobs;
+      if (taken === null) throw new Error(`the reading thread stopped before it handed over ${what}`);
+      return placeChannelFiles(prefix, { files: read.files, blobs: taken }).blobs;
+    };
+    // Only a capture still queued for this attempt: a worker that took the job over meanwhile has the last word.
+    const markRead = async () => {
+      [marked] = await Capture.update(
+        { state: 'ready', progress: 100, layout: read.layout, channels: files, sampleCount: read.length, timeBase: files.time, warnings: read.warnings, error: null },
+        { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'queued' } },
+      );
     };
     const parameters = await soleCaptureParameters(capture, files);
-    const analysing = parameters === null ? null : reader.analyse(parameters);
-    let values: ChannelBlob[] = [];
-    if (analysing === null) {
-      // Another file of the shot takes part: the analysis job reads every file's values, so they go first.
-      values = await takeValues();
-      await putChannelBlobs(deps.blobStore, [...blobs, ...values], { sync: false });
+    const outcome = parameters === null ? null : await reader.analyse(parameters);
+    if (outcome !== null && 'problem' in outcome) deps.logger.info({ captureId: capture.id, problem: outcome.problem }, 'automatic version not worked out in the API; the worker does it');
+    const precomputed = outcome !== null && 'results' in outcome ? { captureIds: [capture.id], parameters, results: outcome.results } : undefined;
+    const written: ChannelBlob[] = [];
+    if (precomputed === undefined) {
+      written.push(...await take(reader.takeFiles(), 'the trace files'), ...await take(reader.takeKept(), 'the values'));
+      await putChannelBlobs(deps.blobStore, written, { sync: false });
+      await markRead();
     } else {
-      await putChannelBlobs(deps.blobStore, blobs, { sync: false });
+      channelFilesWriting(capture.id, new Promise<void>((resolve) => { filesWritten = resolve; }));
+      await markRead();
+      if (marked === 0) return;
     }
-    // Only a capture still queued for this attempt: a worker that took the job over meanwhile has the last word.
-    [marked] = await Capture.update(
-      { state: 'ready', progress: 100, layout: read.layout, channels: files, sampleCount: read.length, timeBase: files.time, warnings: read.warnings, error: null },
-      { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'queued' } },
-    );
     // Queue the shot's analysis from here, as the ingest job would once it found the capture read: one job
     // hand-over less between the last byte and the result. The released ingest job then finds the analysis
     // keyed and queued already (the same key, so never a second one) and only writes the status again.
     if (marked > 0) {
-      const outcome = analysing === null ? null : await analysing;
-      if (outcome !== null && 'problem' in outcome) deps.logger.info({ captureId: capture.id, problem: outcome.problem }, 'automatic version not worked out in the API; the worker does it');
-      const precomputed = outcome !== null && 'results' in outcome ? { captureIds: [capture.id], parameters, results: outcome.results } : undefined;
       await analyseReadFiles(deps, capture.shotId, precomputed);
       await settleShot(capture.shotId);
     }
-    if (analysing !== null) {
-      values = await takeValues();
+    if (precomputed !== undefined) {
+      const plots = await take(reader.takeFiles(), 'the trace files');
+      await putChannelBlobs(deps.blobStore, plots, { sync: false });
+      filesWritten();
+      const values = await take(reader.takeKept(), 'the values');
       await putChannelBlobs(deps.blobStore, values, { sync: false });
+      written.push(...plots, ...values);
     }
-    await syncChannelBlobs(deps.blobStore, [...blobs, ...values]);
+    await syncChannelBlobs(deps.blobStore, written);
   } catch (err) {
     deps.logger.warn({ captureId: capture.id, err: (err as Error).message }, 'reading the upload in the API failed; the worker reads it');
     if (marked > 0) {
@@ -231,6 +243,7 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
         .catch((error: Error) => deps.logger.warn({ captureId: capture.id, err: error.message }, 'capture not put back in the queue'));
     }
   } finally {
+    filesWritten();
     await reader.close();
     await deps.queues.releaseIngest(data).catch((err: Error) => deps.logger.warn({ captureId: capture.id, err: err.message }, 'held ingest job not released; it runs when its hold ends'));
   }

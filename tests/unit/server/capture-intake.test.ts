@@ -12,6 +12,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { simulatedCsv } from '../../../bench/lib/pipeline-client.ts';
 import { captureIntake, type ReceivedFile } from '../../../server/modules/shots/capture-intake.ts';
 import { LocalDiskStore } from '../../../server/storage/local-disk-store.ts';
+import { channelFilesOf } from '../../../server/traces/write-channel-files.ts';
 import { readCaptureFile } from '../../../worker/import/read-capture-file.ts';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'intake-test-'));
@@ -58,14 +59,26 @@ describe('When an upload arrives in uneven chunks through small blocks', () => {
     expect(Buffer.compare(readFileSync(got.path), Buffer.from(csv.bytes))).toBe(0);
     const read = await got.reader!.outcome;
     if ('problem' in read) throw new Error(read.problem);
-    // The full-precision values stay with the thread until asked for (the engine may still run on them there).
-    expect(read.blobs.map((b) => b.key)).not.toContain('ch1/values.f64');
-    expect(read.keptKeys).toEqual(read.files.channels.map((c) => c.values!.key));
-    expect(read.keptKeys).toContain('ch1/values.f64');
+    // At once only the descriptor; the files stay with the thread until asked for: the plot files, then the values.
+    expect(Object.keys(read)).not.toContain('blobs');
+    const plots = await got.reader!.takeFiles();
+    expect(plots!.map((b) => b.key)).toEqual(expect.arrayContaining(['ch0/samples.f32', 'ch1/samples.f32', 'ch1/level-1.f32']));
+    expect(plots!.map((b) => b.key)).not.toContain('ch1/values.f64');
     const kept = await got.reader!.takeKept();
+    expect(kept!.map((b) => b.key)).toEqual(read.files.channels.map((c) => c.values!.key));
+    expect(kept!.map((b) => b.key)).toContain('ch1/values.f64');
     await got.reader!.close();
     const reference = await readCaptureFile(got.path);
     expect(read.length).toBe(reference.length);
+    // The descriptor sent before any file was built, and every file, are the worker's (channelFilesOf) to the byte.
+    const worker = channelFilesOf(reference);
+    // (The time grid's jitter is a rounding-level residual that the one-pass and two-part reads sum in another order.)
+    const withoutJitter = (f: typeof read.files) => ({ ...f, time: { ...f.time, jitter: 0 } });
+    expect(withoutJitter(read.files)).toEqual(withoutJitter(worker.files));
+    expect([...plots!, ...kept!].map((b) => b.key).sort()).toEqual(worker.blobs.map((b) => b.key).sort());
+    for (const blob of [...plots!, ...kept!]) {
+      expect(Buffer.compare(Buffer.from(blob.bytes), Buffer.from(worker.blobs.find((b) => b.key === blob.key)!.bytes)), blob.key).toBe(0);
+    }
     const f64 = kept!.find((b) => b.key === 'ch1/values.f64')!;
     const values = new Float64Array(f64.bytes.buffer, f64.bytes.byteOffset, f64.bytes.byteLength / 8);
     expect(Buffer.compare(Buffer.from(values.buffer, values.byteOffset, values.byteLength), Buffer.from(reference.channels[1].values.buffer, reference.channels[1].values.byteOffset, reference.channels[1].values.byteLength))).toBe(0);

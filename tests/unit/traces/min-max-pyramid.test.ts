@@ -2,7 +2,7 @@
 // extremes are known analytically (block b of size B holds b·B … b·B + B − 1).
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { buildMinMaxPyramid } from '../../../shared/traces/build-min-max-pyramid.ts';
+import { buildMinMaxPyramid, pyramidShape } from '../../../shared/traces/build-min-max-pyramid.ts';
 import { bruteMinMax } from './brute-force.ts';
 
 const sample = fc.oneof(
@@ -80,3 +80,19 @@ describe('buildMinMaxPyramid', () => {
     expect(() => buildMinMaxPyramid([1, 2] as unknown as Float64Array)).toThrow(new TypeError('values must be a Float32Array or a Float64Array'));
   });
 });
+
+describe('pyramidShape', () => {
+  it('When asked for any length, factor and top size, then it names the levels buildMinMaxPyramid builds (block sizes and pair counts)', () => {
+    // The channel files' descriptor is recorded from pyramidShape before the pyramid exists (a deep upload's
+    // result comes before its files): the two must never disagree. Lengths at and around every boundary.
+    const lengths = [0, 1, 15, 16, 17, 1023, 1024, 1025, 16 * 1024, 16 * 1024 + 1, 256 * 1024, 256 * 1024 + 1, 100_000, 1_048_577];
+    for (const [factor, maxTopPairs] of [[16, 1024], [2, 1], [4, 3], [10, 100]]) {
+      for (const n of lengths) {
+        const built = buildMinMaxPyramid(new Float32Array(n), { factor, maxTopPairs });
+        expect(pyramidShape(n, { factor, maxTopPairs }), `n=${n}, factor=${factor}, top=${maxTopPairs}`)
+          .toEqual(built.map((l) => ({ blockSize: l.blockSize, pairs: l.pairs.length / 2 })));
+      }
+    }
+  });
+});
+
