@@ -127,7 +127,7 @@ describe('When a capture is uploaded to an API that reads uploads as they arrive
     writeFileSync(file, csv.bytes);
     const imported = await readCaptureFile(file);
     const row = await Capture.findByPk(shot.captures[0].id, { rejectOnEmpty: true });
-    const files = row.channels as { channels: { values: { key: string; type: string } }[]; length: number };
+    const files = row.channels as { channels: { samplesKey: string; values: { key: string; type: string } }[]; length: number };
     expect(files.length).toBe(imported.length);
     for (const [k, c] of files.channels.entries()) {
       expect(c.values.type).toBe('f64');
@@ -135,6 +135,9 @@ describe('When a capture is uploaded to an API that reads uploads as they arrive
       const stored = float64FromBytes(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength).slice());
       const expected = imported.channels[k].values as Float64Array;
       expect(Buffer.compare(Buffer.from(stored.buffer), Buffer.from(expected.buffer, expected.byteOffset, expected.byteLength))).toBe(0);
+      // The plot files were prepared after the engine ran on the same samples in the thread: still the importer's.
+      const samples = await storedFile(c.samplesKey);
+      expect(Buffer.compare(samples, Buffer.from(Float32Array.from(expected).buffer))).toBe(0);
     }
     expect(row.layout).toMatchObject({ reader: 'stream', delimiter: ',' });
     expect(row.warnings).toEqual(imported.warnings);
@@ -154,6 +157,15 @@ describe('When the API stopped before a read upload\'s channel files were all on
   it('then its traces answer 503 "still being written" instead of failing, and the shot keeps its version', async () => {
     const row = await Capture.findByPk(shot.captures[0].id, { rejectOnEmpty: true });
     captureId = row.id;
+    // The held ingest job, released once the files were synced, has run (it would find the damage and repair it).
+    const ingest = new Queue(QUEUE_NAMES.ingest, { connection: h.redis });
+    try {
+      await pollUntil(async () => ((await ingest.getJob(ingestJobId({ captureId, attempt: row.ingestAttempt })))?.finishedOn ? true : undefined), {
+        timeoutMs: 30_000, intervalMs: 50, what: 'the released ingest job to finish',
+      });
+    } finally {
+      await ingest.close();
+    }
     const files = row.channels as { channels: { samplesKey: string; values: { key: string }; levels: { key: string }[] }[] };
     // Channel 0's plot files (its samples and every pyramid level: a window may be drawn from any of them), channel
     // 1's samples, and channel 1's values cut short.
