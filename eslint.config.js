@@ -4,7 +4,7 @@ import reactHooks from 'eslint-plugin-react-hooks';
 import globals from 'globals';
 
 export default tseslint.config(
-  { ignores: ['dist', 'node_modules', '.data', '.cache', '.test-artifacts', 'coverage'] },
+  { ignores: ['dist', 'node_modules', '.data', '.cache', '.test-artifacts', 'coverage', 'shared/import/wasm/assembly'] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {

@@ -3,6 +3,7 @@ import type { CapturePlan } from './detect-capture-plan.ts';
 import { invalidTimeMessage, readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
 import { MAX_TIME_SECONDS, timeOutOfRange } from './value-limits.ts';
 import type { TimeGridHull } from './time-grid-hull.ts';
+import { countRowScannerRows, MAX_WASM_COLUMNS, OUTPUT_DOUBLES, rowScanner, WINDOW_BYTES, type RowScanner } from './wasm/scan-rows-wasm.ts';
 
 /** Column roles for the scanner, one per column of the file. */
 export const SLOT_IGNORE = -1;
@@ -122,8 +123,34 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   for (const slot of slots) if (slot < 0 && slot !== SLOT_TIME) fastRows = false;
   const noSentinels = numericSentinels.size === 0;
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  // Runs of such rows go to the compiled scanner (./wasm/scan-rows-wasm.ts) when there is one: it takes the rows
+  // this lean loop would take, with the same arithmetic, and stops at the first other row, which the loops below
+  // read (and word, if it is wrong). Lines are copied into its memory a window at a time; its values are copied out.
+  const wasm = fastRows && width <= MAX_WASM_COLUMNS ? rowScanner() : null;
+  const run: WasmRun = { start: 0, end: 0, pause: 0, misses: 0, rows: 0, p: 0, lastTime: NaN };
+  if (wasm !== null) setWasmColumns(wasm, slots, factors, timeFactor);
 
   while (p < end) {
+    if (wasm !== null && row < capacity) {
+      if (run.pause > 0) run.pause--;
+      else {
+        const n = scanWithWasm(wasm, run, bytes, p, end, width, delimiter, decimal, capacity - row, lastTime, minSentinel);
+        if (n > 0) {
+          copyWasmRows(wasm, n, width, slots, row, values, times, hull);
+          row += n;
+          line += n;
+          lastTime = run.lastTime;
+          p = run.p;
+          run.misses = 0;
+        } else if (n === 0) {
+          // It took none: this row is the JS loops'. After misses in a row, leave it the next 1, 3, 7, … rows too.
+          run.misses++;
+          run.pause = Math.min(2 ** run.misses - 1, 1023);
+        }
+        // Stopped at the window's end or a full output: go round again; else the row at p is the JS loops'.
+        if (n < 0 || (n > 0 && (p >= run.end || run.rows === n))) continue;
+      }
+    }
     const lineStart = p;
     if (fastRows && row < capacity) {
       // A row of plain numbers ([-] digits [. digits] [e [sign] digits], no spaces, exactly `width` fields) with
@@ -377,6 +404,69 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   }
   state.row = row; state.line = line; state.lastTime = lastTime; state.nextIndex = nextIndex;
   return null;
+}
+
+interface WasmRun {
+  /** Bytes [start, end) of `bytes` are in the scanner's input window. */
+  start: number;
+  end: number;
+  /** Rows left to the JS loops before the compiled scanner is tried again. */
+  pause: number;
+  misses: number;
+  /** Of the last call: the most rows it could take, where it stopped, the last time. */
+  rows: number;
+  p: number;
+  lastTime: number;
+}
+
+function setWasmColumns(wasm: RowScanner, slots: number[], factors: number[], timeFactor: number): void {
+  const width = slots.length;
+  for (let c = 0; c < width; c++) {
+    const slot = slots[c];
+    wasm.f64[(wasm.columns >> 3) + c] = slot >= 0 ? factors[slot] : timeFactor;
+    wasm.i32[((wasm.columns + width * 8) >> 2) + c] = slot === SLOT_TIME ? 1 : 0;
+  }
+}
+
+/** Rows the compiled scanner took from p (run.p: where it stopped), or −1 when the window had to move first and
+ * holds no complete line (a line longer than the window: the JS loops read it). */
+function scanWithWasm(
+  wasm: RowScanner, run: WasmRun, bytes: Uint8Array, p: number, end: number, width: number, delimiter: number, decimal: number,
+  room: number, lastTime: number, minSentinel: number,
+): number {
+  if (p < run.start || p >= run.end) {
+    // Fill the window with the complete lines from p: up to the last LF, or a CR not followed by an LF, in it.
+    const limit = Math.min(end, p + WINDOW_BYTES);
+    let j = limit - 1;
+    while (j >= p && !(bytes[j] === 10 || (bytes[j] === 13 && (j + 1 >= end || bytes[j + 1] !== 10)))) j--;
+    if (j < p) {
+      run.start = run.end = 0;
+      run.pause = 1;
+      return -1;
+    }
+    wasm.u8.set(bytes.subarray(p, j + 1), wasm.input);
+    run.start = p;
+    run.end = j + 1;
+  }
+  const stride = Math.floor(OUTPUT_DOUBLES / width);
+  run.rows = Math.min(stride, room);
+  const n = wasm.scan(wasm.input + (p - run.start), wasm.input + (run.end - run.start), width, delimiter, decimal, wasm.columns, wasm.output, stride, run.rows, lastTime, minSentinel);
+  run.p = run.start + (wasm.stopAt() - wasm.input);
+  run.lastTime = wasm.lastTimeAfter();
+  countRowScannerRows(n);
+  return n;
+}
+
+function copyWasmRows(wasm: RowScanner, n: number, width: number, slots: number[], row: number, values: Float64Array[], times: Float64Array | null, hull: TimeGridHull | null): void {
+  const stride = Math.floor(OUTPUT_DOUBLES / width);
+  const base = wasm.output >> 3;
+  for (let c = 0; c < width; c++) {
+    const from = base + c * stride;
+    const slot = slots[c];
+    if (slot >= 0) values[slot].set(wasm.f64.subarray(from, from + n), row);
+    else if (times !== null) times.set(wasm.f64.subarray(from, from + n), row);
+    else if (hull !== null) for (let i = 0; i < n; i++) hull.push(row + i, wasm.f64[from + i]);
+  }
 }
 
 const ODD_SKIP = 0;

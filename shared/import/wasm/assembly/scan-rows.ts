@@ -1,0 +1,237 @@
+// AssemblyScript source of the compiled row scanner (see ../scan-rows-wasm.ts for why it exists and how it is
+// used, and ../../README.md). Built by `npm run build:wasm` into ../scan-rows-wasm.generated.ts; a unit test
+// rebuilds it and fails when the committed bytes differ from what this source gives.
+//
+// It takes only rows of plain numbers in a fixed delimiter ([-] digits [. digits] [e [sign] digits], exactly
+// `width` fields, every one a channel or the time), with the JS scanner's arithmetic: the digits as an integer
+// mantissa below 2^53, multiplied or divided once by an exact power of ten up to 1e22 (Clinger's fast path,
+// correctly rounded, so bit-identical to parseFloat; f64.mul and f64.div are IEEE 754 round-to-nearest as in JS).
+// It stops at the start of the first row it does not take (any other form, a sentinel, a time out of range or not
+// increasing, a blank line, a full output) and says where; the JS scanner reads that row and words any error.
+//
+// Memory, laid out by the caller from heapBase(): the input window (complete lines, at least 8 readable bytes
+// after its end), per column its factor (f64) and whether it is the time (i32), and the output, column c's
+// value for row r at out + (c * stride + r) * 8.
+
+// Exact powers of ten 1e0 … 1e22 (the largest exactly representable in a double).
+const POW10 = memory.data<f64>([
+  1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19,
+  1e20, 1e21, 1e22,
+]);
+// 10^n for n = 0 … 8, as integers.
+const IPOW10 = memory.data<u64>([1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100000000]);
+
+const MAX_EXACT: u64 = 9007199254740991; // 2^53 − 1
+const MAX_TIME_SECONDS: f64 = 1e12; // shared/import/value-limits.ts
+
+let stopOffset: i32 = 0;
+let timeAfter: f64 = NaN;
+
+export function heapBase(): usize {
+  return __heap_base;
+}
+
+/** Offset (in memory) of the first row not taken by the last scan. */
+export function stopAt(): i32 {
+  return stopOffset;
+}
+
+/** The last time taken by the last scan (its `lastTime` argument when it took no row with a time). */
+export function lastTimeAfter(): f64 {
+  return timeAfter;
+}
+
+// Non-zero in the byte lanes of v that are not '0'–'9'. Exact up to and including the first such lane (a carry
+// of the + 6 only moves towards later bytes, and only out of a lane that is not a digit), which is all the
+// callers use.
+// @ts-ignore: decorator
+@inline function nonDigits(v: u64): u64 {
+  return ((v & 0xf0f0f0f0f0f0f0f0) | (((v + 0x0606060606060606) & 0xf0f0f0f0f0f0f0f0) >> 4)) ^ 0x3333333333333333;
+}
+
+// The number the eight digit values in the byte lanes of d spell (first digit in the lowest byte): pairs, then
+// quads, then the eight (Lemire's SWAR digit parsing, as in simdjson's parse_eight_digits_unrolled).
+// @ts-ignore: decorator
+@inline function eightDigits(d: u64): u64 {
+  d = d * 10 + (d >> 8);
+  return (((d & 0x000000ff000000ff) * (100 + (1000000 << 32))) + (((d >> 16) & 0x000000ff000000ff) * (1 + (10000 << 32)))) >> 32;
+}
+
+// 10^n for n = 0 … 16.
+// @ts-ignore: decorator
+@inline function ipow10(n: i32): u64 {
+  return n <= 8 ? load<u64>(IPOW10 + (<usize>n << 3)) : load<u64>(IPOW10 + (<usize>(n - 8) << 3)) * 100000000;
+}
+
+// The number the n digits (1 … 16) at p spell; reads 8 or 16 bytes from p.
+// @ts-ignore: decorator
+@inline function digitRun(p: usize, n: i32): u64 {
+  if (n <= 8) return eightDigits((load<u64>(p) - 0x3030303030303030) << (<u64>(8 - n) << 3));
+  return eightDigits(load<u64>(p) - 0x3030303030303030) * load<u64>(IPOW10 + (<usize>(n - 8) << 3))
+    + eightDigits((load<u64>(p + 8) - 0x3030303030303030) << (<u64>(16 - n) << 3));
+}
+
+/**
+ * Scans rows from `start` while they are plain numbers, up to `maxRows` rows or `end` (the window's end, just
+ * after a line end). Returns the rows taken; stopAt() gives where it stopped and lastTimeAfter() the last time.
+ * `lastTime` is NaN before a file's first row.
+ */
+export function scan(
+  start: i32, end: i32, width: i32, delimiter: i32, decimal: i32, columns: i32, out: i32, stride: i32,
+  maxRows: i32, lastTime: f64, minSentinel: f64,
+): i32 {
+  const delimiters = i8x16.splat(<i8>delimiter);
+  const lineFeeds = i8x16.splat(10);
+  const returns = i8x16.splat(13);
+  const zeros = i8x16.splat(48);
+  const tens = i8x16.splat(10);
+  let p = start;
+  let row = 0;
+  while (p < end && row < maxRows) {
+    let q = p;
+    let col = 0;
+    let rowTime: f64 = NaN;
+    let taken = false;
+    for (;;) {
+      let neg = false;
+      let mant: u64 = 0;
+      let exp10: i32 = 0;
+      let c: i32 = 0;
+      // The common field, at most 15 bytes, read from one
+      // 16-byte vector: where it ends (the first delimiter or line end) and where its digits are come from two
+      // lane masks, so the next field's start does not wait for this one's digits to be read. Anything else takes
+      // the byte-by-byte reading below, which also decides what the JS scanner is left.
+      const v = v128.load(q);
+      const ends = i8x16.bitmask(v128.or(v128.or(i8x16.eq(v, delimiters), i8x16.eq(v, lineFeeds)), i8x16.eq(v, returns)));
+      let simple = false;
+      if (ends != 0) {
+        const length = <i32>ctz(ends);
+        const digitLanes = ~i8x16.bitmask(i8x16.lt_u(i8x16.sub(v, zeros), tens)); // set where not a digit
+        const sign = i8x16.extract_lane_u(v, 0) == 45 ? 1 : 0;
+        const intDigits = <i32>ctz(digitLanes >> sign);
+        let k = sign + intDigits;
+        let fracDigits = 0;
+        if (<i32>load<u8>(q + k) == decimal) {
+          fracDigits = <i32>ctz(digitLanes >> (k + 1));
+          k += 1 + fracDigits;
+        }
+        let e: i32 = 0;
+        let eneg = false;
+        let formOk = intDigits + fracDigits > 0;
+        if (formOk && k < length) {
+          const m = <i32>load<u8>(q + k);
+          formOk = m == 101 || m == 69;
+          k++;
+          const s = <i32>load<u8>(q + k);
+          if (s == 45) { eneg = true; k++; } else if (s == 43) { k++; }
+          const expDigits = length - k;
+          formOk = formOk && expDigits >= 1 && expDigits <= 4 && <i32>ctz(digitLanes >> k) >= expDigits;
+          if (formOk) for (let i = k; i < length; i++) e = e * 10 + (<i32>load<u8>(q + i) - 48);
+        }
+        if (formOk) {
+          simple = true;
+          neg = sign != 0;
+          if (intDigits != 0) mant = digitRun(q + sign, intDigits);
+          if (fracDigits != 0) mant = mant * ipow10(fracDigits) + digitRun(q + sign + intDigits + 1, fracDigits);
+          exp10 = (eneg ? -e : e) - fracDigits;
+          q += length;
+          c = <i32>load<u8>(q);
+        }
+      }
+      if (!simple) {
+        // Byte by byte (eight digits at a time where eight are there): longer fields, and every form to refuse.
+        if (load<u8>(q) == 45) { neg = true; q++; }
+        // Integer part: eight digits at a time, then the 1–7 left in one more step (the lanes after them shifted out).
+        const intStart = q;
+        for (;;) {
+          const v = load<u64>(q);
+          const x = nonDigits(v);
+          if (x == 0) {
+            mant = mant * 100000000 + eightDigits(v - 0x3030303030303030);
+            q += 8;
+            continue;
+          }
+          const n = <i32>(ctz(x) >> 3);
+          if (n != 0) {
+            mant = mant * load<u64>(IPOW10 + (<usize>n << 3)) + eightDigits((v - 0x3030303030303030) << (<u64>(8 - n) << 3));
+            q += n;
+          }
+          break;
+        }
+        let digits = q - intStart;
+        c = <i32>load<u8>(q);
+        if (c == decimal) {
+          const fracStart = ++q;
+          for (;;) {
+            const v = load<u64>(q);
+            const x = nonDigits(v);
+            if (x == 0) {
+              mant = mant * 100000000 + eightDigits(v - 0x3030303030303030);
+              q += 8;
+              continue;
+            }
+            const n = <i32>(ctz(x) >> 3);
+            if (n != 0) {
+              mant = mant * load<u64>(IPOW10 + (<usize>n << 3)) + eightDigits((v - 0x3030303030303030) << (<u64>(8 - n) << 3));
+              q += n;
+            }
+            break;
+          }
+          c = <i32>load<u8>(q);
+          exp10 = fracStart - q;
+          digits -= exp10;
+        }
+        // More than 19 digits could have wrapped the 64-bit mantissa: left to the JS scanner (which reads them).
+        if (digits == 0 || digits > 19) break;
+        if (c == 101 || c == 69) {
+          c = <i32>load<u8>(++q);
+          let eneg = false;
+          if (c == 45) { eneg = true; c = <i32>load<u8>(++q); } else if (c == 43) { c = <i32>load<u8>(++q); }
+          let e: i32 = 0;
+          const expStart = q;
+          while (<u32>(c - 48) < 10) { e = e * 10 + (c - 48); c = <i32>load<u8>(++q); }
+          const expDigits = q - expStart;
+          if (expDigits == 0 || expDigits > 4) break;
+          exp10 += eneg ? -e : e;
+        }
+      }
+      if (c != delimiter && c != 10 && c != 13) break;
+      if (mant > MAX_EXACT) break;
+      let value: f64 = 0;
+      if (mant == 0) value = 0;
+      else if (exp10 == 0) value = <f64>mant;
+      else if (exp10 > 0 && exp10 <= 22) value = <f64>mant * load<f64>(POW10 + (<usize>exp10 << 3));
+      else if (exp10 < 0 && exp10 >= -22) value = <f64>mant / load<f64>(POW10 + (<usize>(-exp10) << 3));
+      else break;
+      if (neg) value = -value;
+      // A value that may be a numeric sentinel: the JS scanner decides.
+      if (value != 0 && abs(value) >= minSentinel) break;
+      const param = columns + (col << 3);
+      const scaled = value * load<f64>(param);
+      if (load<i32>(columns + (width << 3) + (col << 2)) != 0) {
+        if (!(abs(scaled) <= MAX_TIME_SECONDS)) break;
+        rowTime = scaled;
+      }
+      store<f64>(out + ((col * stride + row) << 3), scaled);
+      if (c == delimiter) {
+        if (++col == width) break;
+        q++;
+        continue;
+      }
+      taken = col + 1 == width;
+      break;
+    }
+    if (!taken) break;
+    if (rowTime == rowTime) {
+      if (lastTime == lastTime && !(rowTime > lastTime)) break;
+      lastTime = rowTime;
+    }
+    row++;
+    if (q < end && load<u8>(q) == 13) q++;
+    if (q < end && load<u8>(q) == 10) q++;
+    p = q;
+  }
+  stopOffset = p;
+  timeAfter = lastTime;
+  return row;
+}

@@ -1,0 +1,102 @@
+import { SCAN_ROWS_WASM_BASE64 } from './scan-rows-wasm.generated.ts';
+
+/**
+ * The compiled row scanner (WebAssembly, from AssemblyScript: ./assembly/scan-rows.ts) that scanNumericRows hands
+ * runs of plain rows to.
+ *
+ * Why the project has its own compiled code here, against the rule "prefer well-known packages": a measured need,
+ * speed. Reading a deep record's numbers is most of a deep import and of the analyze CLI (issue 13: the CLI is to
+ * run in 0.2× numpy's time on the 10-million-sample capture, and the JS byte scanner ran at ~300 MB per
+ * CPU-second); no package on the registry parses delimited decimal text into typed arrays bit-identically to
+ * parseFloat with the importer's line-numbered refusals. The figures are in shared/import/README.md.
+ *
+ * The bytes are compiled in, base64 (a generated module, committed; `npm run build:wasm` rebuilds it and a unit
+ * test checks it matches its source), so the same import works unchanged under tsx, in the esbuild bundle of
+ * dist/node, in worker threads and in the Vite bundle of the browser, without a file lookup or a loader plugin.
+ * The module is 1–2 KB, under the 4 KB that browsers allow to compile synchronously on the main thread.
+ */
+export interface RowScanner {
+  /** Rows taken; see the AssemblyScript source for the arguments. */
+  scan(start: number, end: number, width: number, delimiter: number, decimal: number, columns: number, out: number, stride: number, maxRows: number, lastTime: number, minSentinel: number): number;
+  stopAt(): number;
+  lastTimeAfter(): number;
+  /** The module's memory as bytes, doubles and 32-bit integers (it never grows after set-up, so these stay valid). */
+  u8: Uint8Array;
+  f64: Float64Array;
+  i32: Int32Array;
+  /** Byte offsets of the input window (WINDOW_BYTES, then padding), the column parameters and the output. */
+  input: number;
+  columns: number;
+  output: number;
+}
+
+/** Input window: complete lines are copied here a window at a time. */
+export const WINDOW_BYTES = 1 << 20;
+/** Output doubles (row values, column after column): rows per call = OUTPUT_DOUBLES / columns. */
+export const OUTPUT_DOUBLES = 1 << 17;
+/** Widest row handed to the compiled scanner; wider files take the JS scanner. */
+export const MAX_WASM_COLUMNS = 1024;
+const PADDING = 64;
+
+let scanner: RowScanner | null | undefined;
+let enabled = true;
+let rowsTaken = 0;
+
+function setUp(instance: WebAssembly.Instance): RowScanner {
+  const exports = instance.exports as unknown as {
+    memory: WebAssembly.Memory; heapBase(): number; scan: RowScanner['scan']; stopAt(): number; lastTimeAfter(): number;
+  };
+  const input = (exports.heapBase() + 63) & ~63;
+  const columns = input + WINDOW_BYTES + PADDING;
+  const output = columns + MAX_WASM_COLUMNS * 12 + PADDING;
+  const top = output + OUTPUT_DOUBLES * 8 + PADDING;
+  const pages = Math.ceil(top / 65536) - exports.memory.buffer.byteLength / 65536;
+  if (pages > 0) exports.memory.grow(pages);
+  const buffer = exports.memory.buffer;
+  return {
+    scan: exports.scan, stopAt: exports.stopAt, lastTimeAfter: exports.lastTimeAfter,
+    u8: new Uint8Array(buffer), f64: new Float64Array(buffer), i32: new Int32Array(buffer), input, columns, output,
+  };
+}
+
+function decode(base64: string): Uint8Array {
+  const text = atob(base64);
+  const bytes = new Uint8Array(text.length);
+  for (let i = 0; i < text.length; i++) bytes[i] = text.charCodeAt(i);
+  return bytes;
+}
+
+/**
+ * The scanner of this thread, or null: turned off (tests), or WebAssembly unavailable or refused here (then the JS
+ * scanner does all, with the same results). Compiled on first use, synchronously; where that is refused it is
+ * compiled in the background and used from when it is ready.
+ */
+export function rowScanner(): RowScanner | null {
+  if (!enabled) return null;
+  if (scanner !== undefined) return scanner;
+  scanner = null;
+  if (typeof WebAssembly !== 'object') return null;
+  const bytes = decode(SCAN_ROWS_WASM_BASE64);
+  try {
+    scanner = setUp(new WebAssembly.Instance(new WebAssembly.Module(bytes as BufferSource), {}));
+  } catch {
+    WebAssembly.instantiate(bytes as BufferSource, {}).then((r) => { scanner = setUp(r.instance); }, () => { /* the JS scanner stays */ });
+  }
+  return scanner;
+}
+
+/** Turns the compiled scanner off or on in this thread (tests run both paths); returns the previous setting. */
+export function setRowScannerEnabled(on: boolean): boolean {
+  const was = enabled;
+  enabled = on;
+  return was;
+}
+
+/** Rows the compiled scanner has taken in this thread, for tests that must know it ran. */
+export function rowScannerRowsTaken(): number {
+  return rowsTaken;
+}
+
+export function countRowScannerRows(rows: number): void {
+  rowsTaken += rows;
+}
