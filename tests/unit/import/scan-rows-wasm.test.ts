@@ -1,0 +1,201 @@
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import fc from 'fast-check';
+import { afterEach, describe, expect, it } from 'vitest';
+import { SLOT_TIME, scanNumericRows, type ScanSpec, type ScanState, type ScanStop } from '../../../shared/import/scan-numeric-rows.ts';
+import { TimeGridHull } from '../../../shared/import/time-grid-hull.ts';
+import { OUTPUT_DOUBLES, rowScanner, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
+import { compileScanWasm, renderGenerated, repoRoot, SCAN_WASM_GENERATED } from '../../../scripts/lib/compile-scan-wasm.ts';
+
+const encoder = new TextEncoder();
+
+function spec(over: Partial<ScanSpec> = {}): ScanSpec {
+  return {
+    delimiter: 44, decimal: 46, slots: [SLOT_TIME, 0, 1], requiredFields: 3, factors: [1, 1e-3], timeFactor: 1e-6,
+    textSentinels: ['nan', 'over'], numericSentinels: [], expected: 3, ...over,
+  };
+}
+
+interface Result {
+  values: Float64Array[];
+  times: Float64Array | null;
+  hull: TimeGridHull | null;
+  invalidCounts: number[];
+  state: ScanState;
+  stops: (Omit<ScanStop, 'error'> & { message: string | null; code: string | null; line: number | null })[];
+  wasmRows: number;
+}
+
+/** Scans `text` in blocks of `block` bytes (cut at line ends, as the disk reader does), resuming after stops
+ * that are text or errors the way a caller that skips a bad line would, with the compiled scanner on or off. */
+function scan(text: string | Uint8Array, s: ScanSpec, compiled: boolean, options: { block?: number; capacity?: number; hull?: boolean } = {}): Result {
+  const bytes = typeof text === 'string' ? encoder.encode(text) : text;
+  const capacity = options.capacity ?? bytes.length;
+  const channels = s.factors.length;
+  const hasTime = s.slots.includes(SLOT_TIME);
+  const out = {
+    values: Array.from({ length: channels }, () => new Float64Array(capacity)),
+    times: hasTime && !options.hull ? new Float64Array(capacity) : null,
+    hull: hasTime && options.hull ? new TimeGridHull(0, 1e-6) : null,
+    invalidCounts: Array.from({ length: channels }, () => 0),
+  };
+  const state: ScanState = { row: 0, line: 1, lastTime: NaN, nextIndex: NaN };
+  const stops: Result['stops'] = [];
+  const was = setRowScannerEnabled(compiled);
+  const before = rowScannerRowsTaken();
+  try {
+    let p = 0;
+    while (p < bytes.length) {
+      let end = Math.min(bytes.length, p + (options.block ?? bytes.length));
+      while (end > p && bytes[end - 1] !== 10) end--;
+      if (end === p) end = bytes.length;
+      let at = p;
+      for (;;) {
+        const stop = scanNumericRows(bytes, at, end, s, out, state);
+        if (stop === null) break;
+        stops.push({ kind: stop.kind, offset: stop.offset, message: stop.error?.message ?? null, code: stop.error?.code ?? null, line: stop.error?.line ?? null });
+        if (stop.kind === 'full') return { ...out, state, stops, wasmRows: rowScannerRowsTaken() - before };
+        // Skip the line it stopped at, as a reader that reports and goes on would.
+        at = stop.offset;
+        while (at < end && bytes[at] !== 10) at++;
+        at++;
+        state.line++;
+        if (at >= end) break;
+      }
+      p = end;
+    }
+  } finally {
+    setRowScannerEnabled(was);
+  }
+  return { ...out, state, stops, wasmRows: rowScannerRowsTaken() - before };
+}
+
+/** The two scans agree to the bit: every value, the state, every stop with its message, line and code. */
+function expectSame(a: Result, b: Result): void {
+  expect(b.state).toEqual(a.state);
+  expect(b.stops).toEqual(a.stops);
+  expect(b.invalidCounts).toEqual(a.invalidCounts);
+  const same = (x: Float64Array, y: Float64Array) => {
+    expect(x.length).toBe(y.length);
+    for (let i = 0; i < a.state.row; i++) if (!Object.is(x[i], y[i])) expect(`row ${i}: ${y[i]}`).toBe(`row ${i}: ${x[i]}`);
+  };
+  a.values.forEach((v, k) => same(v, b.values[k]));
+  if (a.times !== null && b.times !== null) same(a.times, b.times);
+  if (a.hull !== null && b.hull !== null) expect(b.hull.toData()).toEqual(a.hull.toData());
+}
+
+function both(text: string | Uint8Array, s: ScanSpec, options: Parameters<typeof scan>[3] = {}): { js: Result; wasm: Result } {
+  const js = scan(text, s, false, options);
+  const wasm = scan(text, s, true, options);
+  expectSame(js, wasm);
+  return { js, wasm };
+}
+
+afterEach(() => {
+  setRowScannerEnabled(true);
+});
+
+describe('compiled row scanner (shared/import/wasm)', () => {
+  it('When the committed module is compared with its AssemblyScript source compiled again, then the bytes are the same', async () => {
+    const cwd = process.cwd();
+    process.chdir(repoRoot);
+    try {
+      const binary = await compileScanWasm();
+      expect(readFileSync(join(repoRoot, SCAN_WASM_GENERATED), 'utf8'), 'run npm run build:wasm and commit the result').toBe(renderGenerated(binary));
+    } finally {
+      process.chdir(cwd);
+    }
+  }, 60_000);
+
+  it('When WebAssembly is there, then the scanner loads and takes plain rows', () => {
+    expect(rowScanner()).not.toBeNull();
+    const { wasm } = both('0,1.5,2\n1,2.5,3\n2,3.5,4\n', spec());
+    expect(wasm.wasmRows).toBe(3);
+  });
+
+  // Edges of the exact fast path (Clinger 1990: mantissa below 2^53, power of ten up to 1e22, the largest exact
+  // double power of ten) and of the forms it reads; the JS scanner and parseFloat are the reference.
+  const edges = [
+    '9007199254740991', '9007199254740992', '9007199254740993', '900719925474099.1', '90071992547409.93', '12345678901234567',
+    '1.2345678901234567', '0.1', '0.3', '1e22', '1e23', '1e-22', '1e-23', '9007199254740991e22', '9007199254740991e-22', '4.9e-324',
+    '1.7976931348623157e308', '-0', '-0.0', '-0e5', '0e-400', '.5', '5.', '-.5', '1.e3', '1E+3', '1e+0003', '1e-0003', '1e00004',
+    '00000000000000000001.5', '000000000000000000000000001', '0.00000000000000000000000000012', '12345678', '123456789',
+    '1234567.8', '12345678.9', '1.23456789012345', '-9.999900000e-4', '4.783753', '99999999999999999999',
+  ];
+
+  it('When fields sit at the edges of the exact fast path, then both scanners give the same doubles as parseFloat', () => {
+    const rows = edges.map((f, i) => `${i},${f},${f}`).join('\n') + '\n';
+    const { wasm } = both(rows, spec({ factors: [1, 1], timeFactor: 1 }));
+    expect(wasm.stops).toEqual([]);
+    // At or beyond SCPI's ±9.9e37 infinity mark a value is no reading: NaN (shared/import/value-limits.ts).
+    const expected = (f: string) => (Math.abs(parseFloat(f)) < 9.9e37 ? parseFloat(f) : NaN);
+    edges.forEach((f, i) => {
+      expect(Object.is(wasm.values[0][i], expected(f)), f).toBe(true);
+      expect(Object.is(wasm.values[1][i], expected(f)), f).toBe(true);
+    });
+    expect(wasm.wasmRows).toBeGreaterThan(10); // the others (more digits, exponents out of range) are read by JS
+  });
+
+  // A grammar of rows: mostly plain numbers, sometimes every odd form a capture holds (signs, spaces, sentinels,
+  // text, short and long rows, blank lines, CRLF, repeated or falling times).
+  const digits = (n: number) => fc.stringMatching(new RegExp(`^\\d{0,${n}}$`));
+  const plain = fc.tuple(fc.boolean(), digits(18), fc.option(digits(18), { nil: undefined }), fc.option(fc.tuple(fc.constantFrom('e', 'E'), fc.constantFrom('', '-', '+'), fc.integer({ min: 0, max: 400 })), { nil: undefined }))
+    .map(([neg, int, frac, exp]) => `${neg ? '-' : ''}${int}${frac !== undefined ? `.${frac}` : ''}${exp ? `${exp[0]}${exp[1]}${exp[2]}` : ''}`);
+  const odd = fc.constantFrom('', ' 1.5', '+2', '1.5 ', 'NaN', 'OVER', '9.91E+37', '1e', '-', '.', 'e5', '1,5', 'x', '1.2.3', '\u00ff1', '1:', '0/');
+  const field = fc.oneof({ weight: 12, arbitrary: plain }, { weight: 1, arbitrary: odd });
+  const row = fc.tuple(fc.integer({ min: -1, max: 3 }), field, field, fc.oneof({ weight: 20, arbitrary: fc.constant('') }, { weight: 1, arbitrary: fc.constantFrom(',', ',7', '\n', ',\n') }));
+
+  it('When random rows mix plain numbers with odd forms, then both scanners give the same values, stops, messages, lines and codes', () => {
+    fc.assert(fc.property(fc.array(row, { minLength: 1, maxLength: 40 }), fc.boolean(), fc.integer({ min: 8, max: 200 }), fc.boolean(), (rows, crlf, block, hull) => {
+      let t = 0;
+      const text = rows.map(([step, a, b, tail]) => {
+        t += step;
+        return `${t}e-1,${a},${b}${tail}`;
+      }).join(crlf ? '\r\n' : '\n') + (crlf ? '\r\n' : '\n');
+      both(text, spec({ numericSentinels: [9.91e37] }), { block, hull });
+      both(text, spec({ slots: [0, SLOT_TIME, 1], numericSentinels: [9.91e37] }), { hull });
+    }), { numRuns: 400 });
+  });
+
+  it('When the rows run past the input window and the output block, then nothing is lost or doubled at the seams', () => {
+    // Lines of 27 to 40-odd bytes, ~1.6 MiB: several refills of the 1 MiB window, and output blocks of
+    // OUTPUT_DOUBLES / 3 rows; a CRLF line end may fall on the window's last byte.
+    const n = Math.ceil((WINDOW_BYTES * 1.6) / 30);
+    expect(n).toBeGreaterThan(OUTPUT_DOUBLES / 3);
+    const lines: string[] = [];
+    let seed = 12345;
+    const next = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
+    for (let i = 0; i < n; i++) lines.push(`${(i * 1e-3).toExponential(9)},${(next() * 10 - 5).toFixed(6)},${(next() * 2e4 - 1e4).toPrecision(1 + Math.floor(next() * 16))}`);
+    for (const eol of ['\n', '\r\n']) {
+      const text = lines.join(eol) + eol;
+      const { wasm } = both(text, spec({ factors: [1, 1], timeFactor: 1 }));
+      expect(wasm.state.row).toBe(n);
+      // All but the rows with a 16-digit mantissa above 2^53 (left to the JS scanner's exact reader).
+      expect(wasm.wasmRows).toBeGreaterThan(n * 0.95);
+      lines.forEach((l, i) => {
+        const [t, a, b] = l.split(',').map(Number);
+        if (!Object.is(wasm.times?.[i], t) || !Object.is(wasm.values[0][i], a) || !Object.is(wasm.values[1][i], b)) expect(l).toBe(`row ${i} as read`);
+      });
+      // The same rows in the disk reader's blocks, and with a bad row every so often: line numbers stay right.
+      both(text, spec({ factors: [1, 1], timeFactor: 1 }), { block: 300_000, hull: true });
+      const bad = lines.map((l, i) => (i % 50_001 === 50_000 ? l.replace(',', ',ERR') : l)).join(eol) + eol;
+      const { wasm: w2 } = both(bad, spec({ factors: [1, 1], timeFactor: 1 }));
+      expect(w2.stops.map((s) => s.line)).toEqual([50_001]);
+      expect(w2.stops[0].message).toMatch(/^line 50,001: expected 3 numbers, found 'ERR/);
+    }
+  });
+
+  it('When the output is about to be full, then the compiled scanner stops at the capacity and the JS scanner says so', () => {
+    const text = Array.from({ length: 10 }, (_, i) => `${i},${i}.5,${i}.25`).join('\n') + '\n';
+    const { wasm } = both(text, spec(), { capacity: 7 });
+    expect(wasm.state.row).toBe(7);
+    expect(wasm.stops.map((s) => s.kind)).toEqual(['full']);
+  });
+
+  it('When every row is one the compiled scanner leaves to JS, then the results are the same and it soon stops trying', () => {
+    const text = Array.from({ length: 5000 }, (_, i) => `${i}, +${i}.5,${i}`).join('\n') + '\n';
+    const { wasm } = both(text, spec());
+    expect(wasm.state.row).toBe(5000);
+    expect(wasm.wasmRows).toBe(0);
+  });
+});
