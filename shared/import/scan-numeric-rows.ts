@@ -3,7 +3,7 @@ import type { CapturePlan } from './detect-capture-plan.ts';
 import { invalidTimeMessage, readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
 import { MAX_TIME_SECONDS, timeOutOfRange } from './value-limits.ts';
 import type { TimeGridHull } from './time-grid-hull.ts';
-import { countRowScannerRows, MAX_WASM_COLUMNS, OUTPUT_DOUBLES, rowScanner, WINDOW_BYTES, type RowScanner } from './wasm/scan-rows-wasm.ts';
+import { countRowScannerRows, HULL_ROOM, MAX_WASM_COLUMNS, OUTPUT_DOUBLES, rowScanner, WINDOW_BYTES, type RowScanner } from './wasm/scan-rows-wasm.ts';
 
 /** Column roles for the scanner, one per column of the file. */
 export const SLOT_IGNORE = -1;
@@ -127,16 +127,16 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   // this lean loop would take, with the same arithmetic, and stops at the first other row, which the loops below
   // read (and word, if it is wrong). Lines are copied into its memory a window at a time; its values are copied out.
   const wasm = fastRows && width <= MAX_WASM_COLUMNS ? rowScanner() : null;
-  const run: WasmRun = { start: 0, end: 0, pause: 0, misses: 0, rows: 0, p: 0, lastTime: NaN };
+  const run: WasmRun = { start: 0, end: 0, pause: 0, misses: 0, rows: 0, p: 0, lastTime: NaN, hulled: false };
   if (wasm !== null) setWasmColumns(wasm, slots, factors, timeFactor);
 
   while (p < end) {
     if (wasm !== null && row < capacity) {
       if (run.pause > 0) run.pause--;
       else {
-        const n = scanWithWasm(wasm, run, bytes, p, end, width, delimiter, decimal, capacity - row, lastTime, minSentinel);
+        const n = scanWithWasm(wasm, run, bytes, p, end, width, delimiter, decimal, row, capacity - row, lastTime, minSentinel, times === null ? hull : null);
         if (n > 0) {
-          copyWasmRows(wasm, n, width, slots, row, values, times, hull);
+          copyWasmRows(wasm, n, width, slots, row, values, times, run.hulled ? null : hull);
           row += n;
           line += n;
           lastTime = run.lastTime;
@@ -417,6 +417,8 @@ interface WasmRun {
   rows: number;
   p: number;
   lastTime: number;
+  /** The last call pushed the times on the hull itself. */
+  hulled: boolean;
 }
 
 function setWasmColumns(wasm: RowScanner, slots: number[], factors: number[], timeFactor: number): void {
@@ -432,7 +434,7 @@ function setWasmColumns(wasm: RowScanner, slots: number[], factors: number[], ti
  * holds no complete line (a line longer than the window: the JS loops read it). */
 function scanWithWasm(
   wasm: RowScanner, run: WasmRun, bytes: Uint8Array, p: number, end: number, width: number, delimiter: number, decimal: number,
-  room: number, lastTime: number, minSentinel: number,
+  row: number, room: number, lastTime: number, minSentinel: number, hull: TimeGridHull | null,
 ): number {
   if (p < run.start || p >= run.end) {
     // Fill the window with the complete lines from p: up to the last LF, or a CR not followed by an LF, in it.
@@ -450,7 +452,14 @@ function scanWithWasm(
   }
   const stride = Math.floor(OUTPUT_DOUBLES / width);
   run.rows = Math.min(stride, room);
-  const n = wasm.scan(wasm.input + (p - run.start), wasm.input + (run.end - run.start), width, delimiter, decimal, wasm.columns, wasm.output, stride, run.rows, lastTime, minSentinel);
+  // The hull's few vertices go in and out around the call (when they fit; else JS pushes the times).
+  run.hulled = hull !== null && hull.saveTo(wasm.f64, wasm.hull >> 3, HULL_ROOM);
+  const [upper, lower] = run.hulled ? (hull as TimeGridHull).counts : [0, 0];
+  const n = wasm.scan(
+    wasm.input + (p - run.start), wasm.input + (run.end - run.start), width, delimiter, decimal, wasm.columns, wasm.output, stride, run.rows,
+    lastTime, minSentinel, run.hulled ? wasm.hull : 0, HULL_ROOM, upper, lower, row, run.hulled ? (hull as TimeGridHull).t0 : 0, run.hulled ? (hull as TimeGridHull).dtHint : 0,
+  );
+  if (run.hulled) (hull as TimeGridHull).loadFrom(wasm.f64, wasm.hull >> 3, HULL_ROOM, wasm.upperAfter(), wasm.lowerAfter());
   run.p = run.start + (wasm.stopAt() - wasm.input);
   run.lastTime = wasm.lastTimeAfter();
   countRowScannerRows(n);

@@ -113,6 +113,36 @@ export class TimeGridHull {
     return hull;
   }
 
+  /**
+   * Copies the vertices into `to` from index `at` (upper i, upper r, lower i, lower r, `room` slots each) for the
+   * compiled row scanner, which pushes with the same arithmetic (shared/import/wasm/assembly/scan-rows.ts);
+   * false when they do not fit. `loadFrom` takes them back, `upper` and `lower` of them.
+   */
+  saveTo(to: Float64Array, at: number, room: number): boolean {
+    if (this.un > room || this.ln > room) return false;
+    to.set(this.ui.subarray(0, this.un), at);
+    to.set(this.ur.subarray(0, this.un), at + room);
+    to.set(this.li.subarray(0, this.ln), at + 2 * room);
+    to.set(this.lr.subarray(0, this.ln), at + 3 * room);
+    return true;
+  }
+
+  loadFrom(from: Float64Array, at: number, room: number, upper: number, lower: number): void {
+    while (this.ui.length < upper) [this.ui, this.ur] = [grow(this.ui), grow(this.ur)];
+    while (this.li.length < lower) [this.li, this.lr] = [grow(this.li), grow(this.lr)];
+    this.ui.set(from.subarray(at, at + upper));
+    this.ur.set(from.subarray(at + room, at + room + upper));
+    this.li.set(from.subarray(at + 2 * room, at + 2 * room + lower));
+    this.lr.set(from.subarray(at + 3 * room, at + 3 * room + lower));
+    this.un = upper;
+    this.ln = lower;
+  }
+
+  /** Vertices of the upper and of the lower hull. */
+  get counts(): [number, number] {
+    return [this.un, this.ln];
+  }
+
   /** Vertices held, for tests and for a cap on memory. */
   get size(): number {
     return this.un + this.ln;

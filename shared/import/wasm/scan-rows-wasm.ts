@@ -17,17 +17,24 @@ import { SCAN_ROWS_WASM_BASE64 } from './scan-rows-wasm.generated.ts';
  */
 export interface RowScanner {
   /** Rows taken; see the AssemblyScript source for the arguments. */
-  scan(start: number, end: number, width: number, delimiter: number, decimal: number, columns: number, out: number, stride: number, maxRows: number, lastTime: number, minSentinel: number): number;
+  scan(
+    start: number, end: number, width: number, delimiter: number, decimal: number, columns: number, out: number, stride: number, maxRows: number,
+    lastTime: number, minSentinel: number, hull: number, hullRoom: number, upper: number, lower: number, firstRow: number, t0: number, dtHint: number,
+  ): number;
   stopAt(): number;
   lastTimeAfter(): number;
+  upperAfter(): number;
+  lowerAfter(): number;
   /** The module's memory as bytes, doubles and 32-bit integers (it never grows after set-up, so these stay valid). */
   u8: Uint8Array;
   f64: Float64Array;
   i32: Int32Array;
-  /** Byte offsets of the input window (WINDOW_BYTES, then padding), the column parameters and the output. */
+  /** Byte offsets of the input window (WINDOW_BYTES, then padding), the column parameters, the output and the
+   * time grid's hull vertices (4 × HULL_ROOM doubles). */
   input: number;
   columns: number;
   output: number;
+  hull: number;
 }
 
 /** Input window: complete lines are copied here a window at a time. */
@@ -36,6 +43,8 @@ export const WINDOW_BYTES = 1 << 20;
 export const OUTPUT_DOUBLES = 1 << 17;
 /** Widest row handed to the compiled scanner; wider files take the JS scanner. */
 export const MAX_WASM_COLUMNS = 1024;
+/** Vertices of each time-grid hull the compiled scanner can hold (a few for rounding noise; more make JS take over). */
+export const HULL_ROOM = 4096;
 const PADDING = 64;
 
 let scanner: RowScanner | null | undefined;
@@ -45,17 +54,19 @@ let rowsTaken = 0;
 function setUp(instance: WebAssembly.Instance): RowScanner {
   const exports = instance.exports as unknown as {
     memory: WebAssembly.Memory; heapBase(): number; scan: RowScanner['scan']; stopAt(): number; lastTimeAfter(): number;
+    upperAfter(): number; lowerAfter(): number;
   };
   const input = (exports.heapBase() + 63) & ~63;
   const columns = input + WINDOW_BYTES + PADDING;
   const output = columns + MAX_WASM_COLUMNS * 12 + PADDING;
-  const top = output + OUTPUT_DOUBLES * 8 + PADDING;
+  const hull = output + OUTPUT_DOUBLES * 8 + PADDING;
+  const top = hull + HULL_ROOM * 32;
   const pages = Math.ceil(top / 65536) - exports.memory.buffer.byteLength / 65536;
   if (pages > 0) exports.memory.grow(pages);
   const buffer = exports.memory.buffer;
   return {
-    scan: exports.scan, stopAt: exports.stopAt, lastTimeAfter: exports.lastTimeAfter,
-    u8: new Uint8Array(buffer), f64: new Float64Array(buffer), i32: new Int32Array(buffer), input, columns, output,
+    scan: exports.scan, stopAt: exports.stopAt, lastTimeAfter: exports.lastTimeAfter, upperAfter: exports.upperAfter, lowerAfter: exports.lowerAfter,
+    u8: new Uint8Array(buffer), f64: new Float64Array(buffer), i32: new Int32Array(buffer), input, columns, output, hull,
   };
 }
 

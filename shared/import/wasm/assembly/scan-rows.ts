@@ -26,6 +26,17 @@ const MAX_TIME_SECONDS: f64 = 1e12; // shared/import/value-limits.ts
 
 let stopOffset: i32 = 0;
 let timeAfter: f64 = NaN;
+let upperCount: i32 = 0;
+let lowerCount: i32 = 0;
+
+/** Vertices of the upper and lower hull after the last scan (with a hull). */
+export function upperAfter(): i32 {
+  return upperCount;
+}
+
+export function lowerAfter(): i32 {
+  return lowerCount;
+}
 
 export function heapBase(): usize {
   return __heap_base;
@@ -79,7 +90,17 @@ export function lastTimeAfter(): f64 {
 export function scan(
   start: i32, end: i32, width: i32, delimiter: i32, decimal: i32, columns: i32, out: i32, stride: i32,
   maxRows: i32, lastTime: f64, minSentinel: f64,
+  hull: i32, hullRoom: i32, upper: i32, lower: i32, firstRow: f64, t0: f64, dtHint: f64,
 ): i32 {
+  // With `hull` (an address, else 0), the times are not written out but pushed on the convex hulls of their
+  // deviation from an even grid, exactly as TimeGridHull.push (shared/import/time-grid-hull.ts) does with the same
+  // IEEE operations in the same order: vertices (i, r) at hull (upper i), + hullRoom (upper r), + 2·hullRoom
+  // (lower i), + 3·hullRoom (lower r), `upper` and `lower` of them in use; it stops before a row that could
+  // overflow them (the caller then grows them in JS).
+  const ui = hull;
+  const ur = hull + (hullRoom << 3);
+  const li = hull + (hullRoom << 4);
+  const lr = hull + (hullRoom << 3) * 3;
   const delimiters = i8x16.splat(<i8>delimiter);
   const lineFeeds = i8x16.splat(10);
   const returns = i8x16.splat(13);
@@ -88,6 +109,7 @@ export function scan(
   let p = start;
   let row = 0;
   while (p < end && row < maxRows) {
+    if (hull != 0 && (upper >= hullRoom || lower >= hullRoom)) break;
     let q = p;
     let col = 0;
     let rowTime: f64 = NaN;
@@ -225,6 +247,31 @@ export function scan(
     if (rowTime == rowTime) {
       if (lastTime == lastTime && !(rowTime > lastTime)) break;
       lastTime = rowTime;
+      if (hull != 0) {
+        const i = firstRow + <f64>row;
+        const r = rowTime - t0 - i * dtHint;
+        // Upper hull: drop the last vertex while it does not make a right turn; lower hull: a left turn.
+        let n = upper;
+        while (n >= 2) {
+          const x0 = load<f64>(ui + ((n - 2) << 3));
+          const y0 = load<f64>(ur + ((n - 2) << 3));
+          if ((load<f64>(ui + ((n - 1) << 3)) - x0) * (r - y0) - (load<f64>(ur + ((n - 1) << 3)) - y0) * (i - x0) >= 0) n--;
+          else break;
+        }
+        store<f64>(ui + (n << 3), i);
+        store<f64>(ur + (n << 3), r);
+        upper = n + 1;
+        n = lower;
+        while (n >= 2) {
+          const x0 = load<f64>(li + ((n - 2) << 3));
+          const y0 = load<f64>(lr + ((n - 2) << 3));
+          if ((load<f64>(li + ((n - 1) << 3)) - x0) * (r - y0) - (load<f64>(lr + ((n - 1) << 3)) - y0) * (i - x0) <= 0) n--;
+          else break;
+        }
+        store<f64>(li + (n << 3), i);
+        store<f64>(lr + (n << 3), r);
+        lower = n + 1;
+      }
     }
     row++;
     if (q < end && load<u8>(q) == 13) q++;
@@ -233,5 +280,7 @@ export function scan(
   }
   stopOffset = p;
   timeAfter = lastTime;
+  upperCount = upper;
+  lowerCount = lower;
   return row;
 }
