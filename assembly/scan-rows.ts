@@ -1,5 +1,6 @@
-// AssemblyScript source of the compiled row scanner (see ../scan-rows-wasm.ts for why it exists and how it is
-// used, and ../../README.md). Built by `npm run build:wasm` into ../scan-rows-wasm.generated.ts; a unit test
+// AssemblyScript source of the compiled row scanner (see shared/import/wasm/scan-rows-wasm.ts for why it exists and
+// how it is used, and shared/import/README.md). Built by `npm run build:wasm` into
+// shared/import/wasm/scan-rows-wasm.generated.ts; a unit test
 // rebuilds it and fails when the committed bytes differ from what this source gives.
 //
 // It takes only rows of plain numbers in a fixed delimiter ([-] digits [. digits] [e [sign] digits], exactly
