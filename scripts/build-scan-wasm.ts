@@ -6,7 +6,6 @@ import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { compileScanWasm, renderGenerated, repoRoot, SCAN_WASM_GENERATED } from './lib/compile-scan-wasm.ts';
 
-process.chdir(repoRoot);
 const binary = await compileScanWasm();
 writeFileSync(join(repoRoot, SCAN_WASM_GENERATED), renderGenerated(binary));
 console.log(`${SCAN_WASM_GENERATED}: ${binary.length} bytes of WebAssembly`);

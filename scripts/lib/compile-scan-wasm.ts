@@ -20,7 +20,7 @@ export const repoRoot = fileURLToPath(new URL('../..', import.meta.url));
 export async function compileScanWasm(): Promise<Uint8Array> {
   let binary: Uint8Array | null = null;
   const errors: string[] = [];
-  const result = await asc.main([SCAN_WASM_SOURCE, ...FLAGS, '--outFile', 'scan-rows.wasm'], {
+  const result = await asc.main(['--baseDir', repoRoot, SCAN_WASM_SOURCE, ...FLAGS, '--outFile', 'scan-rows.wasm'], {
     writeFile: (name: string, contents: Uint8Array | string) => {
       if (name.endsWith('scan-rows.wasm') && typeof contents !== 'string') binary = contents;
     },

@@ -98,14 +98,8 @@ afterEach(() => {
 
 describe('compiled row scanner (shared/import/wasm)', () => {
   it('When the committed module is compared with its AssemblyScript source compiled again, then the bytes are the same', async () => {
-    const cwd = process.cwd();
-    process.chdir(repoRoot);
-    try {
-      const binary = await compileScanWasm();
-      expect(readFileSync(join(repoRoot, SCAN_WASM_GENERATED), 'utf8'), 'run npm run build:wasm and commit the result').toBe(renderGenerated(binary));
-    } finally {
-      process.chdir(cwd);
-    }
+    const binary = await compileScanWasm();
+    expect(readFileSync(join(repoRoot, SCAN_WASM_GENERATED), 'utf8'), 'run npm run build:wasm and commit the result').toBe(renderGenerated(binary));
   }, 60_000);
 
   it('When WebAssembly is there, then the scanner loads and takes plain rows', () => {
