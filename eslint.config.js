@@ -4,8 +4,8 @@ import reactHooks from 'eslint-plugin-react-hooks';
 import globals from 'globals';
 
 export default tseslint.config(
-  { ignores: ['dist', 'node_modules', '.data', '.cache', '.test-artifacts', 'coverage', 'assembly'] },
-  // assembly/ is AssemblyScript (compiled to WebAssembly by asc, which checks it): see shared/import/wasm/scan-rows-wasm.ts.
+  { ignores: ['dist', 'node_modules', '.data', '.cache', '.test-artifacts', 'coverage', '**/*.as.ts'] },
+  // *.as.ts is AssemblyScript (compiled to WebAssembly by asc, which checks it): see shared/import/wasm/scan-rows-wasm.ts.
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {

@@ -1,5 +1,5 @@
 /**
- * npm run build:wasm — compiles the import's row scanner (assembly/scan-rows.ts, AssemblyScript)
+ * npm run build:wasm — compiles the import's row scanner (shared/import/wasm/scan-rows.as.ts, AssemblyScript)
  * and writes its bytes into shared/import/wasm/scan-rows-wasm.generated.ts (committed; see shared/import/README.md).
  */
 import { writeFileSync } from 'node:fs';

@@ -49,7 +49,7 @@ export function nodeBuildIsCurrent(root: string): boolean {
 export async function buildNode(root: string): Promise<number> {
   const out = join(root, NODE_BUILD_DIR);
   rmSync(out, { recursive: true, force: true });
-  const sources = NODE_SOURCES.flatMap((dir) => filesUnder(join(root, dir), (name) => name.endsWith('.ts') && !name.endsWith('.d.ts')));
+  const sources = NODE_SOURCES.flatMap((dir) => filesUnder(join(root, dir), (name) => name.endsWith('.ts') && !name.endsWith('.d.ts') && !name.endsWith('.as.ts')));
   await build({
     absWorkingDir: root,
     entryPoints: sources,

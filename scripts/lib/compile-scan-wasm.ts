@@ -1,5 +1,5 @@
 /**
- * Compiles the row scanner's AssemblyScript source (assembly/scan-rows.ts) and renders the
+ * Compiles the row scanner's AssemblyScript source (shared/import/wasm/scan-rows.as.ts) and renders the
  * generated module that carries its bytes (shared/import/wasm/scan-rows-wasm.generated.ts). Used by
  * `npm run build:wasm` (writes it) and by tests/unit/import/scan-rows-wasm.test.ts (checks the committed file is
  * what the source gives). Everything runs from node_modules (the `assemblyscript` devDependency): no downloads.
@@ -8,8 +8,8 @@ import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import asc from 'assemblyscript/asc';
 
-// AssemblyScript's usual folder, outside the TypeScript sources (tsc, eslint and the dist/node build skip it).
-export const SCAN_WASM_SOURCE = 'assembly/scan-rows.ts';
+// AssemblyScript beside the module that loads it; tsc, eslint and the dist/node build skip *.as.ts.
+export const SCAN_WASM_SOURCE = 'shared/import/wasm/scan-rows.as.ts';
 export const SCAN_WASM_GENERATED = 'shared/import/wasm/scan-rows-wasm.generated.ts';
 // -O3 and no garbage collector or allocator (the scanner allocates nothing); no abort import (nothing asserts).
 // SIMD stays enabled (asc's default features) so the source may use v128.

@@ -115,7 +115,7 @@ export class TimeGridHull {
 
   /**
    * Copies the vertices into `to` from index `at` (upper i, upper r, lower i, lower r, `room` slots each) for the
-   * compiled row scanner, which pushes with the same arithmetic (assembly/scan-rows.ts);
+   * compiled row scanner, which pushes with the same arithmetic (shared/import/wasm/scan-rows.as.ts);
    * false when they do not fit. `loadFrom` takes them back, `upper` and `lower` of them.
    */
   saveTo(to: Float64Array, at: number, room: number): boolean {

@@ -1,7 +1,7 @@
 import { SCAN_ROWS_WASM_BASE64 } from './scan-rows-wasm.generated.ts';
 
 /**
- * The compiled row scanner (WebAssembly, from AssemblyScript: assembly/scan-rows.ts at the top of the repository) that scanNumericRows hands
+ * The compiled row scanner (WebAssembly, from AssemblyScript: scan-rows.as.ts beside this file) that scanNumericRows hands
  * runs of plain rows to.
  *
  * Why the project has its own compiled code here, against the rule "prefer well-known packages": a measured need,
