@@ -1,29 +1,20 @@
 // The compiled build of the Node side (API server, worker, their threads, the database CLI, the fake SMTP server):
 // every .ts file of server/, worker/, shared/, fixtures/lib/ and scripts/ becomes a .js file at the same place under
 // dist/node/, imports rewritten from .ts to .js, with esbuild (no type check: `npm run typecheck` does that). The
-// .mjs thread boot files and .json data files are copied beside them. Run by `npm start`; `npm run build:node`.
-import { copyFileSync, existsSync, mkdirSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+// .mjs thread boot files and .json data files are copied beside them. The command-line tools (CLI_BUNDLES) are
+// bundled instead: one file with everything they import, packages included, so that a run resolves and loads one
+// module instead of a few hundred. Run by `npm start`, by `npm run analyze` / `npm run import`
+// (scripts/run-compiled.mjs) when the build is older than its sources, and by `npm run build:node`.
+import { copyFileSync, existsSync, mkdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { build, type Plugin } from 'esbuild';
+import { filesUnder, NODE_BUILD_DIR, NODE_BUILD_STAMP, NODE_SOURCES, nodeBuildIsCurrent } from './node-build-state.mjs';
 
-export const NODE_SOURCES = ['server', 'worker', 'shared', 'fixtures/lib', 'scripts'];
-/** The folder of the compiled build, and the file whose time says when it was made. */
-export const NODE_BUILD_DIR = 'dist/node';
-const STAMP = '.built';
+export { NODE_BUILD_DIR, NODE_SOURCES, nodeBuildIsCurrent };
 
-function filesUnder(dir: string, keep: (name: string) => boolean): string[] {
-  if (!existsSync(dir)) return [];
-  return readdirSync(dir, { withFileTypes: true }).flatMap((entry) => {
-    const path = join(dir, entry.name);
-    if (entry.isDirectory()) return entry.name === 'node_modules' ? [] : filesUnder(path, keep);
-    return keep(entry.name) ? [path] : [];
-  });
-}
-
-function newestMtime(paths: string[]): number {
-  return Math.max(0, ...paths.map((p) => statSync(p).mtimeMs));
-}
+/** Entry points built as one bundled file each (at their usual place in dist/node). */
+export const CLI_BUNDLES = ['worker/cli/analyze.ts', 'worker/cli/import.ts'];
 
 /** Each relative import stays an import of the compiled sibling (.ts → .js); packages stay imports of node_modules. */
 const keepImports: Plugin = {
@@ -36,40 +27,59 @@ const keepImports: Plugin = {
   },
 };
 
-/** True when dist/node was built after every source, the lock file and the TypeScript configuration changed. */
-export function nodeBuildIsCurrent(root: string): boolean {
-  const stamp = join(root, NODE_BUILD_DIR, STAMP);
-  if (!existsSync(stamp)) return false;
-  const inputs = NODE_SOURCES.flatMap((dir) => filesUnder(join(root, dir), () => true));
-  inputs.push(...['package-lock.json', 'tsconfig.json'].map((f) => join(root, f)).filter((f) => existsSync(f)));
-  return statSync(stamp).mtimeMs > newestMtime(inputs);
+/**
+ * In a bundle, `import.meta.url` would be the bundle's address for every module in it; this keeps each of our
+ * modules' own (the address of its compiled .js file in dist/node), so that files found beside a module, such as
+ * a worker thread's boot file, are still found.
+ */
+function keepModuleUrls(root: string, out: string, bundle: string): Plugin {
+  return {
+    name: 'keep-module-urls',
+    setup(b) {
+      b.onLoad({ filter: /\.ts$/ }, (args) => {
+        const source = readFileSync(args.path, 'utf8');
+        if (args.path.includes('/node_modules/') || !source.includes('import.meta')) return undefined;
+        if (/import\.meta\.(dirname|filename)/.test(source)) {
+          return { errors: [{ text: 'use import.meta.url in a bundled module (keep-module-urls rewrites only that)' }] };
+        }
+        const compiled = join(out, relative(root, args.path)).replace(/\.ts$/, '.js');
+        const from = relative(dirname(join(out, bundle)), compiled);
+        const url = `new URL(${JSON.stringify(`./${from}`)}, import.meta.url).href`;
+        return { contents: source.replaceAll('import.meta.url', url), loader: 'ts' };
+      });
+    },
+  };
 }
 
-/** Compiles the Node side into dist/node (replacing what was there); returns the number of files written. */
+const COMMON = { bundle: true, platform: 'node', format: 'esm', target: 'node20', sourcemap: 'linked', logLevel: 'warning' } as const;
+
+/** Bundles the tool at `entry` (a .ts path relative to `root`) into one .js file at the same place under `out`,
+ * everything it imports included; its modules' import.meta.url stay those of their compiled files under `out`. */
+export async function bundleCli(root: string, entry: string, out: string): Promise<void> {
+  const bundle = entry.replace(/\.ts$/, '.js');
+  await build({ ...COMMON, absWorkingDir: root, entryPoints: [join(root, entry)], outfile: join(out, bundle), plugins: [keepModuleUrls(root, out, bundle)] });
+}
+
+/** Compiles the Node side into dist/node (replacing what was there); returns the number of files written. It is
+ * built beside it and moved in when complete, so a run that starts meanwhile finds the old build or the new one. */
 export async function buildNode(root: string): Promise<number> {
   const out = join(root, NODE_BUILD_DIR);
-  rmSync(out, { recursive: true, force: true });
+  const partial = `${out}.partial-${process.pid}`;
+  rmSync(partial, { recursive: true, force: true });
   const sources = NODE_SOURCES.flatMap((dir) => filesUnder(join(root, dir), (name) => name.endsWith('.ts') && !name.endsWith('.d.ts') && !name.endsWith('.as.ts')));
-  await build({
-    absWorkingDir: root,
-    entryPoints: sources,
-    outdir: out,
-    outbase: root,
-    bundle: true,
-    plugins: [keepImports],
-    platform: 'node',
-    format: 'esm',
-    target: 'node20',
-    sourcemap: 'linked',
-    logLevel: 'warning',
-  });
+  await build({ ...COMMON, absWorkingDir: root, outbase: root, entryPoints: sources, outdir: partial, plugins: [keepImports] });
+  for (const entry of CLI_BUNDLES) await bundleCli(root, entry, partial);
   const assets = NODE_SOURCES.flatMap((dir) => filesUnder(join(root, dir), (name) => name.endsWith('.mjs') || name.endsWith('.json')));
   for (const asset of assets) {
-    const target = join(out, relative(root, asset));
+    const target = join(partial, relative(root, asset));
     mkdirSync(dirname(target), { recursive: true });
     copyFileSync(asset, target);
   }
-  writeFileSync(join(out, STAMP), `${new Date().toISOString()}\n`);
+  writeFileSync(join(partial, NODE_BUILD_STAMP), `${new Date().toISOString()}\n`);
+  const old = `${out}.old-${process.pid}`;
+  if (existsSync(out)) renameSync(out, old);
+  renameSync(partial, out);
+  rmSync(old, { recursive: true, force: true });
   return sources.length + assets.length;
 }
 
@@ -77,5 +87,6 @@ if (process.argv[1] === fileURLToPath(import.meta.url)) {
   const root = join(dirname(fileURLToPath(import.meta.url)), '../..');
   const started = performance.now();
   const files = await buildNode(root);
-  console.log(`compiled the Node side into ${NODE_BUILD_DIR}: ${files} files in ${((performance.now() - started) / 1000).toFixed(1)} s`);
+  // On stderr: run-compiled.mjs builds before a CLI whose standard output is its result.
+  console.error(`compiled the Node side into ${NODE_BUILD_DIR}: ${files} files in ${((performance.now() - started) / 1000).toFixed(1)} s`);
 }
