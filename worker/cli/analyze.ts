@@ -7,7 +7,6 @@
  * input or bad arguments (one line on stderr).
  */
 import { pathToFileURL } from 'node:url';
-import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import type { ShotAnalysis } from '../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
@@ -128,9 +127,16 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
     return 2;
   }
   let capture: ImportedCapture;
+  // The engine (zod and the rest: some 50 ms to load) is loaded once the read is under way: the reader runs on this
+  // thread without a pause until it waits for its second thread, so the engine loads in that wait instead of
+  // delaying the start of that thread.
+  let engine: Promise<typeof import('../../shared/analysis/analyze-shot.ts')> | undefined;
   try {
     const readOptions = args.dt === undefined ? {} : { dt: args.dt };
-    capture = await (io.readCapture ?? ((path: string, options: { dt?: number }) => readCaptureFile(path, options)))(args.file, readOptions);
+    const reading = (io.readCapture ?? ((path: string, options: { dt?: number }) => readCaptureFile(path, options)))(args.file, readOptions);
+    engine = import('../../shared/analysis/analyze-shot.ts');
+    engine.catch(() => undefined);
+    capture = await reading;
   } catch (error) {
     const e = error as NodeJS.ErrnoException;
     const reason = (e.code === 'ENOENT' ? 'no such file' : e.code === 'EISDIR' ? 'it is a folder' : e.message).split('\n')[0];
@@ -148,6 +154,7 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
     io.stderr(`analyze: ${args.file} has ${capture.channels.length} channels; give --spacing M or --gate CHANNEL@POSITION_M for each gate\n`);
     return 2;
   }
+  const { analyzeShot } = await engine;
   let analysis: ShotAnalysis;
   try {
     analysis = analyzeShot(capture, options);

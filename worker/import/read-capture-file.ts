@@ -1,5 +1,4 @@
-import { closeSync, openSync, readSync } from 'node:fs';
-import { stat } from 'node:fs/promises';
+import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
@@ -48,7 +47,9 @@ async function readCaptureFileOnce(path: string, options: ReadCaptureFileOptions
   const { parallelFromBytes = 64 << 20 } = options;
   let size: number;
   try {
-    const s = await stat(path);
+    // Synchronous: from here to the wait for the scan thread nothing pauses, so that work a caller starts after
+    // calling this (the analyze CLI loads its engine) is done in that wait rather than before the thread starts.
+    const s = statSync(path);
     if (s.isDirectory()) throw new ImportError(`${path} is a folder, not a file`);
     size = s.size;
   } catch (error) {

@@ -71,4 +71,13 @@ describe('the compiled build of the Node side', () => {
     expect(badImport.status).toBe(2);
     expect(badImport.stderr).toMatch(/^import: unknown option --bogus; usage:/);
   });
+
+  it('When the analyze bundle is loaded, then the analysis engine (zod and the rest) is not yet: it loads during the read', () => {
+    // Runs after the test above, which left dist/node current. zod marks globalThis when it is evaluated.
+    const bundle = pathToFileURL(join(root, 'dist/node/worker/cli/analyze.js')).href;
+    const probe = `await import(${JSON.stringify(bundle)}); console.log(typeof globalThis.__zod_globalRegistry);`;
+    const loaded = spawnSync(process.execPath, ['--input-type=module', '-e', probe], { cwd: root, encoding: 'utf8' });
+    expect(loaded.stderr).toBe('');
+    expect(loaded.stdout.trim()).toBe('undefined');
+  });
 });
