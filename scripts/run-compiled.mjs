@@ -23,4 +23,11 @@ if (!nodeBuildIsCurrent(root)) {
 const compiled = join(root, NODE_BUILD_DIR, entry.replace(/\.ts$/, '.js'));
 // The tool sees the arguments as if node had been started on it: argv[1] is its own file.
 process.argv.splice(1, 2, compiled);
-await import(pathToFileURL(compiled).href);
+try {
+  await import(pathToFileURL(compiled).href);
+} catch (error) {
+  // Another first run may have been moving its build into place at that instant (build-node.ts): once more.
+  if (error?.code !== 'ERR_MODULE_NOT_FOUND') throw error;
+  await new Promise((resolve) => setTimeout(resolve, 200));
+  await import(pathToFileURL(compiled).href);
+}

@@ -5,7 +5,7 @@
 // bundled instead: one file with everything they import, packages included, so that a run resolves and loads one
 // module instead of a few hundred. Run by `npm start`, by `npm run analyze` / `npm run import`
 // (scripts/run-compiled.mjs) when the build is older than its sources, and by `npm run build:node`.
-import { copyFileSync, existsSync, mkdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { copyFileSync, mkdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { dirname, join, relative } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { build, type Plugin } from 'esbuild';
@@ -76,9 +76,24 @@ export async function buildNode(root: string): Promise<number> {
     copyFileSync(asset, target);
   }
   writeFileSync(join(partial, NODE_BUILD_STAMP), `${new Date().toISOString()}\n`);
+  // Another process may be swapping its own build in at the same moment (two first runs of a CLI after a clone):
+  // then one of the renames finds the place taken or emptied, and this one tries again; the last one stays.
   const old = `${out}.old-${process.pid}`;
-  if (existsSync(out)) renameSync(out, old);
-  renameSync(partial, out);
+  for (let attempt = 1; ; attempt++) {
+    rmSync(old, { recursive: true, force: true });
+    try {
+      renameSync(out, old);
+    } catch (error) {
+      if ((error as NodeJS.ErrnoException).code !== 'ENOENT') throw error;
+    }
+    try {
+      renameSync(partial, out);
+      break;
+    } catch (error) {
+      const code = (error as NodeJS.ErrnoException).code;
+      if ((code !== 'ENOTEMPTY' && code !== 'EEXIST') || attempt === 5) throw error;
+    }
+  }
   rmSync(old, { recursive: true, force: true });
   return sources.length + assets.length;
 }
