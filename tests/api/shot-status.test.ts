@@ -72,7 +72,11 @@ async function statusOnceQuiet(shotId: string): Promise<ShotDetail> {
   return pollUntil(async () => {
     const d = await detail(shotId);
     const pending = d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
-    return pending || d.shot.status === 'processing' ? undefined : d;
+    // Two files finishing together: the job of the one that finished first can settle the shot after the other
+    // finished and before that other job made the version, so "failed" beside a read file and no version shows for
+    // a moment (seen once on a loaded CI machine). Wait that out; if it stays, the poll times out and the test fails.
+    const versionComing = d.shot.status === 'failed' && d.analyses.length === 0 && d.captures.some((c) => c.state === 'ready');
+    return pending || versionComing || d.shot.status === 'processing' ? undefined : d;
   }, { timeoutMs: 30_000, intervalMs: 50, what: `shot ${shotId} to leave "processing" once nothing is pending` });
 }
 
