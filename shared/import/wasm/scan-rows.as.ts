@@ -71,6 +71,32 @@ export function lastTimeAfter(): f64 {
 
 // 10^n for n = 0 … 16.
 // @ts-ignore: decorator
+/** The mantissa after the last digitsFrom (a second result: AssemblyScript functions return one value). */
+let runMant: u64 = 0;
+
+/**
+ * Reads the run of digits at `q` onto `mant` (runMant: mant·10^k + the run), eight at a time, then the 1–7 left in
+ * one more step (the lanes after them shifted out); returns where the run ends. The integer part and the fraction
+ * both go through it.
+ */
+@inline function digitsFrom(q: usize, mant: u64): usize {
+  let v = load<u64>(q);
+  let x = nonDigits(v);
+  while (x == 0) {
+    mant = mant * 100000000 + eightDigits(v - 0x3030303030303030);
+    q += 8;
+    v = load<u64>(q);
+    x = nonDigits(v);
+  }
+  const n = <i32>(ctz(x) >> 3);
+  if (n != 0) {
+    mant = mant * load<u64>(IPOW10 + (<usize>n << 3)) + eightDigits((v - 0x3030303030303030) << (<u64>(8 - n) << 3));
+    q += n;
+  }
+  runMant = mant;
+  return q;
+}
+
 @inline function ipow10(n: i32): u64 {
   return n <= 8 ? load<u64>(IPOW10 + (<usize>n << 3)) : load<u64>(IPOW10 + (<usize>(n - 8) << 3)) * 100000000;
 }
@@ -164,42 +190,16 @@ export function scan(
       if (!simple) {
         // Byte by byte (eight digits at a time where eight are there): longer fields, and every form to refuse.
         if (load<u8>(q) == 45) { neg = true; q++; }
-        // Integer part: eight digits at a time, then the 1–7 left in one more step (the lanes after them shifted out).
+        // Integer part (digitsFrom: eight digits at a time).
         const intStart = q;
-        for (;;) {
-          const v = load<u64>(q);
-          const x = nonDigits(v);
-          if (x == 0) {
-            mant = mant * 100000000 + eightDigits(v - 0x3030303030303030);
-            q += 8;
-            continue;
-          }
-          const n = <i32>(ctz(x) >> 3);
-          if (n != 0) {
-            mant = mant * load<u64>(IPOW10 + (<usize>n << 3)) + eightDigits((v - 0x3030303030303030) << (<u64>(8 - n) << 3));
-            q += n;
-          }
-          break;
-        }
+        q = digitsFrom(q, mant);
+        mant = runMant;
         let digits = q - intStart;
         c = <i32>load<u8>(q);
         if (c == decimal) {
           const fracStart = ++q;
-          for (;;) {
-            const v = load<u64>(q);
-            const x = nonDigits(v);
-            if (x == 0) {
-              mant = mant * 100000000 + eightDigits(v - 0x3030303030303030);
-              q += 8;
-              continue;
-            }
-            const n = <i32>(ctz(x) >> 3);
-            if (n != 0) {
-              mant = mant * load<u64>(IPOW10 + (<usize>n << 3)) + eightDigits((v - 0x3030303030303030) << (<u64>(8 - n) << 3));
-              q += n;
-            }
-            break;
-          }
+          q = digitsFrom(q, mant);
+          mant = runMant;
           c = <i32>load<u8>(q);
           exp10 = fracStart - q;
           digits -= exp10;
