@@ -1,4 +1,5 @@
 import { AppError } from '../lib/errors.ts';
+import { BlobNotFoundError } from '../storage/blob-store.ts';
 
 /**
  * Channel files this process is still writing for captures already recorded as read. A deep upload's result comes
@@ -27,4 +28,9 @@ export function channelFilesWritten(captureId: string): Promise<void> {
  */
 export function tracesPending(): AppError {
   return new AppError(503, 'traces_pending', 'The trace files of this capture are still being written; try again in a moment.');
+}
+
+/** Rethrows `err`, as tracesPending() when a trace file was missing: for `.catch()` on reads of a capture's files. */
+export function missingAsPending(err: unknown): never {
+  throw err instanceof BlobNotFoundError ? tracesPending() : err;
 }

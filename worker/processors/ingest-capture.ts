@@ -54,8 +54,9 @@ async function readAndStore(job: Job, capture: Capture): Promise<void> {
 async function channelFilesIncomplete(capture: Capture): Promise<boolean> {
   const parsed = channelFilesSchema.safeParse(capture.channels);
   if (!parsed.success) return true;
-  const missing = await missingChannelFiles(workerContext().blobStore, parsed.data);
-  if (missing.length > 0) workerContext().logger.warn({ captureId: capture.id, missing: missing.length }, 'channel files missing; writing them again from the stored upload');
+  const { blobStore, logger } = workerContext();
+  const missing = await missingChannelFiles(blobStore, parsed.data);
+  if (missing.length > 0) logger.warn({ captureId: capture.id, missing: missing.length }, 'channel files missing; writing them again from the stored upload');
   return missing.length > 0;
 }
 
@@ -77,8 +78,7 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
   // Read already: by the API while the upload arrived, or by an earlier run of this job that stopped after it. The
   // API records a deep upload as read before its channel files are written: any it did not finish (it stopped, or
   // the machine lost power before they reached the disk) are written again from the stored upload.
-  if (capture.state !== 'ready') await readAndStore(job, capture);
-  else if (await channelFilesIncomplete(capture)) await readAndStore(job, capture);
+  if (capture.state !== 'ready' || (await channelFilesIncomplete(capture))) await readAndStore(job, capture);
 
   await afterCaptureFinished(capture.shotId);
   return { captureId: capture.id, state: 'ready' };

@@ -7,8 +7,7 @@ import type { RouteDef } from '../../lib/routes.ts';
 import { parseInput } from '../../lib/validate.ts';
 import { PREVIEW_MEMORY_BYTES, previewBytes } from '../../../shared/traces/preview-budget.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
-import { channelFilesWritten, tracesPending } from '../../traces/channel-files-in-flight.ts';
-import { BlobNotFoundError } from '../../storage/blob-store.ts';
+import { channelFilesWritten, missingAsPending, tracesPending } from '../../traces/channel-files-in-flight.ts';
 import { readWindow, recordExtent, type TraceWindow } from '../../traces/read-window.ts';
 
 /** Routes addressed by a capture id find their lab from the capture itself. */
@@ -166,9 +165,7 @@ export function captureRoutes(deps: Deps): RouteDef[] {
         const from = query.from ?? extent?.first ?? 0;
         const to = query.to ?? Math.max(from, extent?.last ?? 0);
         if (from > to) throw badRequest('Please correct the request: from: must not be later than to');
-        const window = await readWindow(deps.blobStore, files, index, from, to, query.points).catch((err: unknown) => {
-          throw err instanceof BlobNotFoundError ? tracesPending() : err;
-        });
+        const window = await readWindow(deps.blobStore, files, index, from, to, query.points).catch(missingAsPending);
         const channel = files.channels[index];
         res.json({
           captureId: capture.id,

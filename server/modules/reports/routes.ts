@@ -9,8 +9,7 @@ import { badRequest, notFound } from '../../lib/errors.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { channelFilesSchema, type ChannelFiles } from '../../traces/channel-files.ts';
 import { readWindow, recordExtent } from '../../traces/read-window.ts';
-import { channelFilesWritten, tracesPending } from '../../traces/channel-files-in-flight.ts';
-import { BlobNotFoundError } from '../../storage/blob-store.ts';
+import { channelFilesWritten, missingAsPending } from '../../traces/channel-files-in-flight.ts';
 import { combinedChannelNames } from '../analyses/service.ts';
 import { timeBaseStatus } from '../analyses/time-base-status.ts';
 import { namesOf } from '../reviews/people.ts';
@@ -120,9 +119,7 @@ export function reportRoutes(deps: Deps): RouteDef[] {
           const label = rig?.gates.find((g) => Math.abs(g.position_m - gate.position) < 1e-9)?.label ?? String.fromCharCode(65 + i);
           traces.push({
             gateLabel: label, channel: gate.channel, positionM: gate.position,
-            window: at && span ? await readWindow(deps.blobStore, at.files, at.index, span.from, span.to, TRACE_POINTS).catch((err: unknown) => {
-              throw err instanceof BlobNotFoundError ? tracesPending() : err;
-            }) : null,
+            window: at && span ? await readWindow(deps.blobStore, at.files, at.index, span.from, span.to, TRACE_POINTS).catch(missingAsPending) : null,
             thresholdV: channel?.threshold?.level ?? null,
             pulses: gate.pulses,
             note: gate.status === 'missed' ? `missed: ${channel?.reason ?? 'no pulse found'}` : null,

@@ -91,15 +91,7 @@ export class UploadReader {
         this.settled = true;
         resolve({ problem });
         this.release();
-        const done = this.analysed;
-        this.analysed = null;
-        done?.({ problem });
-        const gone = this.released;
-        this.released = null;
-        gone?.(null);
-        const files = this.prepared;
-        this.prepared = null;
-        files?.(null);
+        this.answerWaiting(problem);
       };
       this.worker.on('error', (error) => fail(`the reading thread failed: ${error.message}`));
       this.worker.on('exit', () => fail('the reading thread stopped'));
@@ -109,6 +101,17 @@ export class UploadReader {
 
   private send(message: UploadReaderRequest, transfer: ArrayBuffer[] = []) {
     if (!this.closed) this.worker.postMessage(message, transfer);
+  }
+
+  /** Answers every request still waiting for the thread, which will not answer: `problem` for the engine's numbers, no files. */
+  private answerWaiting(problem: string) {
+    const done = this.analysed;
+    const gone = this.released;
+    const files = this.prepared;
+    this.analysed = this.released = this.prepared = null;
+    done?.({ problem });
+    gone?.(null);
+    files?.(null);
   }
 
   private release() {
@@ -183,15 +186,7 @@ export class UploadReader {
     this.closed = true;
     this.onClose();
     this.release();
-    const done = this.analysed;
-    this.analysed = null;
-    done?.({ problem: 'the reader is closed' });
-    const gone = this.released;
-    this.released = null;
-    gone?.(null);
-    const files = this.prepared;
-    this.prepared = null;
-    files?.(null);
+    this.answerWaiting('the reader is closed');
     await this.worker.terminate();
   }
 }
