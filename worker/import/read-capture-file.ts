@@ -198,9 +198,11 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
       path, start: split, end: size, spec, values: shared, times: sharedTimes, rowOffset: cap0, line: 1, hull: hint,
     };
     worker.postMessage(request);
+    // The first part writes only rows [0, cap0): past that the other thread writes at the same time, so a first
+    // part that outgrows its bound stops 'full' (and the read is done again counted) instead of running on.
     const out: ScanOutput = {
-      values: shared.map((b) => new Float64Array(b)),
-      times: sharedTimes === null ? null : new Float64Array(sharedTimes),
+      values: shared.map((b) => new Float64Array(b, 0, cap0)),
+      times: sharedTimes === null ? null : new Float64Array(sharedTimes, 0, cap0),
       hull: hint === null ? null : new TimeGridHull(hint.t0, hint.dtHint),
       invalidCounts: plan.channels.map(() => 0),
     };
@@ -210,6 +212,8 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
       if (stop0.kind === 'full' && !counted) return RECOUNT;
       throw stop0.error ?? new Error('the first part of the file held more rows than lines');
     }
+    out.values = shared.map((b) => new Float64Array(b));
+    if (sharedTimes !== null) out.times = new Float64Array(sharedTimes);
     // Line number in the file of the second part's line `line`.
     const splitLine = state.line;
     const lineAt = (line: number): number => splitLine + line - 1;

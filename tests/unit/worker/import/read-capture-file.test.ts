@@ -117,6 +117,36 @@ describe('readCaptureFile', () => {
     expect(two.time).toEqual(reference.time);
   });
 
+  it("When the first part's rows are shorter than the bound assumed but still fit the whole arrays, then it never writes into the second part's rows", async () => {
+    // The first part's rows are a little over 4/5 of the length the bound assumed: more rows than its share of the
+    // arrays (cap0), fewer than the arrays hold in all. The first part must stop at its share (and the read be done
+    // again counted) rather than run on over the rows the other thread writes at the same time.
+    const long = (i: number) => `${(i * 1e-6).toExponential(15)},${(0.123456789012345 + (i % 7)).toFixed(15)}`;
+    const mid = (i: number) => `${(i * 1e-6).toExponential(6)},${(0.5 + (i % 7)).toFixed(6)}`;
+    const rows = [
+      ...Array.from({ length: 60 }, (_, i) => long(i)),
+      ...Array.from({ length: 7000 }, (_, i) => mid(60 + i)),
+      ...Array.from({ length: 4200 }, (_, i) => long(7060 + i)),
+    ];
+    const text = `Time (s),CH1 (V)\n${rows.join('\n')}\n`;
+    const bytes = new TextEncoder().encode(text);
+    const dataOffset = text.indexOf('\n') + 1;
+    const shortestSeen = shortestRowBytes(bytes, dataOffset, 2048, 10);
+    expect(shortestSeen).toBe(long(0).length + 1);
+    const split = text.indexOf('\n', dataOffset + Math.floor((bytes.length - dataOffset) / 2)) + 1;
+    const rowsBefore = text.slice(dataOffset, split).split('\n').length - 1;
+    const cap0 = rowsUpperBound(split - dataOffset, shortestSeen);
+    expect(rowsBefore).toBeGreaterThan(cap0); // outgrows its share…
+    expect(rowsBefore).toBeLessThan(cap0 + rowsUpperBound(bytes.length - split, shortestSeen)); // …not the arrays
+    const two = await readCaptureFile(save('overlap.csv', text), { threads: 2, headBytes: 2048 });
+    const reference = parseScopeCsv(bytes);
+    expect(two.length).toBe(rows.length);
+    expect(two.channels[0].values).toEqual(reference.channels[0].values);
+    expect(two.time).toMatchObject({ kind: 'uniform', t0: 0, dt: 1e-6 });
+    // The jitter only to its rounding level: the two-thread read merges hulls where one pass fits them whole.
+    expect((two.time as { jitter: number }).jitter).toBeLessThan(1e-9 * 1e-6);
+  });
+
   it('When the printed times start to repeat only in the second part of a split file, then the grid is rebuilt as in one thread', async () => {
     // Four significant digits: i·1e-8 s repeats from i = 10 000 on, past the middle of 12 000 rows.
     const dt = 1e-8;
