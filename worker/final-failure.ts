@@ -24,10 +24,18 @@ export async function recordFinalFailure(queue: string, job: Job, reason: string
     // A later attempt (a re-read with other importer settings) owns the row once it exists: this job's end says
     // nothing of it.
     const attempt = { id: job.data.captureId, ingestAttempt: job.data.attempt };
-    await Capture.update({ state: 'failed', progress: 100, error }, { where: { ...attempt, state: { [Op.notIn]: ['ready', 'failed'] } } });
-    const capture = await Capture.findOne({ where: attempt, attributes: ['id', 'labId', 'shotId', 'uploadedBy', 'state', 'fileName'] });
+    const of = await Capture.findOne({ where: attempt, attributes: ['shotId'] });
+    if (!of) return;
+    // The row's failure, the automatic version of the files read beside it and the shot's status in one transaction
+    // under the shot's lock (worker/settle-shot.ts).
+    const ended: { capture?: Capture | null } = {};
+    await afterCaptureFinished(of.shotId, async (transaction) => {
+      await Capture.update({ state: 'failed', progress: 100, error }, { where: { ...attempt, state: { [Op.notIn]: ['ready', 'failed'] } }, transaction });
+      ended.capture = await Capture.findOne({ where: attempt, attributes: ['id', 'labId', 'shotId', 'uploadedBy', 'state', 'fileName'], transaction });
+      return ended.capture?.state === 'failed';
+    });
+    const { capture } = ended;
     if (capture?.state !== 'failed') return;
-    await afterCaptureFinished(capture.shotId);
     await notifyPeople(notifyQueue(), {
       kind: 'jobFailed', labId: capture.labId, shotId: capture.shotId, eventId: String(job.id),
       recipientIds: [capture.uploadedBy], error: `${capture.fileName}: ${reason}`,

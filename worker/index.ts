@@ -75,7 +75,7 @@ async function sweep(config: Config) {
   // was made) gets the missing step and its status again; settling is idempotent.
   const stuck = await Shot.findAll({ where: { status: 'processing', updatedAt: { [Op.lt]: before } }, attributes: ['id'], limit: 500 });
   for (const s of stuck) {
-    if ((await afterCaptureFinished(s.id))?.status !== 'processing') mended += 1;
+    if ((await afterCaptureFinished(s.id)).shot?.status !== 'processing') mended += 1;
   }
   if (requeued > 0) logger.info({ requeued }, 'sweep re-queued work');
   if (mended > 0) logger.info({ mended }, 'sweep recorded failures whose first write was lost');

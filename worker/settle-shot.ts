@@ -1,14 +1,20 @@
+import type { Transaction } from 'sequelize';
 import type { Shot } from '../server/db/models/index.ts';
-import { analyseReadFiles } from '../server/modules/analyses/service.ts';
-import { settleShot } from '../server/modules/shots/settle-shot.ts';
+import { endCaptureRead } from '../server/modules/shots/end-capture-read.ts';
 import { workerContext } from './context.ts';
 
 /**
- * After a capture of the shot finished reading, well or badly: the files that were read get their automatic
- * analysis once nothing else is being read, then the shot's status is written. So a bad file beside a good one
- * ends in a result, whichever of the two finishes last.
+ * A capture of the shot finished reading, well or badly: `write` records how (under the shot's row lock, in the
+ * same transaction as what follows; see endCaptureRead), then the files that were read get their automatic
+ * analysis once nothing else is being read, and the shot's status is written. So a bad file beside a good one ends
+ * in a result, whichever of the two finishes last, and the shot never reads "failed" while the version is on its
+ * way. Without `write` (the sweep), only the missing version and the status are made. Returns the shot (null when
+ * it is gone) and whether `write` wrote.
  */
-export async function afterCaptureFinished(shotId: string): Promise<Shot | null> {
-  await analyseReadFiles(workerContext(), shotId);
-  return settleShot(shotId);
+export async function afterCaptureFinished(
+  shotId: string,
+  write?: (transaction: Transaction) => Promise<boolean>,
+): Promise<{ shot: Shot | null; written: boolean }> {
+  const { shot, written } = await endCaptureRead(workerContext(), shotId, { write });
+  return { shot, written };
 }

@@ -62,21 +62,19 @@ async function quiet(shotId: string): Promise<ShotDetail> {
 }
 
 /**
- * After the last job ended, the status the worker wrote (it settles right after the row's final state), read in the
- * same answer as the files and versions: nothing pending and a status other than "processing". Between a file read
- * and its version being created nothing is pending yet; the status then still says "processing", so this waits on.
- * A status that stays "processing" with nothing pending fails here.
+ * After the last job ended, the status the worker wrote, read in the same answer as the files and versions: nothing
+ * pending and a status other than "processing". A version's failure is written a moment before the status it
+ * leaves (worker/processors/analyse-shot.ts), so "processing" with nothing pending is waited out; a status that
+ * stays so fails here. A file's end, its version and the status are one transaction (endCaptureRead): whatever
+ * status is read here is one the files and versions beside it justify (tests/api/shot-status-race.test.ts holds
+ * two files' ends in every order).
  */
 async function statusOnceQuiet(shotId: string): Promise<ShotDetail> {
   await quiet(shotId);
   return pollUntil(async () => {
     const d = await detail(shotId);
     const pending = d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
-    // Two files finishing together: the job of the one that finished first can settle the shot after the other
-    // finished and before that other job made the version, so "failed" beside a read file and no version shows for
-    // a moment (seen once on a loaded CI machine). Wait that out; if it stays, the poll times out and the test fails.
-    const versionComing = d.shot.status === 'failed' && d.analyses.length === 0 && d.captures.some((c) => c.state === 'ready');
-    return pending || versionComing || d.shot.status === 'processing' ? undefined : d;
+    return pending || d.shot.status === 'processing' ? undefined : d;
   }, { timeoutMs: 30_000, intervalMs: 50, what: `shot ${shotId} to leave "processing" once nothing is pending` });
 }
 

@@ -1,4 +1,5 @@
 import { UnrecoverableError, type Job } from 'bullmq';
+import type { Transaction } from 'sequelize';
 import { ingestJobData } from '../../shared/contracts/jobs.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { Capture } from '../../server/db/models/index.ts';
@@ -12,8 +13,14 @@ import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { afterCaptureFinished } from '../settle-shot.ts';
 
-/** Reads the stored raw file, writes the channel files and records what was detected: the capture is ready. */
-async function readAndStore(job: Job, capture: Capture): Promise<void> {
+/** What the capture's row says once it is read. */
+type ReadCapture = Pick<Capture, 'state' | 'progress' | 'layout' | 'channels' | 'sampleCount' | 'timeBase' | 'warnings' | 'error'>;
+
+/**
+ * Reads the stored raw file and writes the channel files; returns what was detected, for the row (written with the
+ * shot's analysis and status, afterCaptureFinished). A file that cannot be read is recorded as failed here.
+ */
+async function readAndStore(job: Job, capture: Capture): Promise<ReadCapture> {
   const { blobStore, config } = workerContext();
   await capture.update({ state: 'reading', progress: 10, error: null });
   await settleShot(capture.shotId);
@@ -27,27 +34,34 @@ async function readAndStore(job: Job, capture: Capture): Promise<void> {
     if (err instanceof ImportError || err instanceof RangeError || err instanceof TypeError || (err instanceof AppError && err.code === 'storage_quota')) {
       // A file that cannot be read stays stored and says why; retrying cannot change its bytes. The files of the
       // shot that were read still get their analysis.
-      await capture.update({ state: 'failed', progress: 100, error: err.message });
-      await afterCaptureFinished(capture.shotId);
-      throw new UnrecoverableError(err.message);
+      const message = err.message;
+      await afterCaptureFinished(capture.shotId, (transaction) => writeIfCurrent(capture, { state: 'failed', progress: 100, error: message }, transaction));
+      throw new UnrecoverableError(message);
     }
     throw err;
   }
   await capture.update({ progress: 60 });
   await job.updateProgress(60);
   const descriptor = await writeChannelFiles(blobStore, capture.labId, capture.id, imported);
-  const timeBase = descriptor.time;
-  await capture.update({
+  return {
     state: 'ready',
     progress: 100,
     layout: imported.layout,
     channels: descriptor,
     sampleCount: imported.length,
-    timeBase,
+    timeBase: descriptor.time,
     warnings: imported.warnings,
     error: null,
-  });
-  await job.updateProgress(100);
+  };
+}
+
+/**
+ * Writes the row's final state unless a later attempt took the row over while this one read (a re-read with other
+ * importer settings): that attempt's job has the last word. True when written.
+ */
+async function writeIfCurrent(capture: Capture, values: Partial<ReadCapture>, transaction: Transaction): Promise<boolean> {
+  const [written] = await Capture.update(values, { where: { id: capture.id, ingestAttempt: capture.ingestAttempt }, transaction });
+  return written > 0;
 }
 
 /** Whether a capture recorded as read lacks any of its channel files (or has one cut short). */
@@ -78,8 +92,12 @@ export default async function ingestCapture(job: Job): Promise<{ captureId: stri
   // Read already: by the API while the upload arrived, or by an earlier run of this job that stopped after it. The
   // API records a deep upload as read before its channel files are written: any it did not finish (it stopped, or
   // the machine lost power before they reached the disk) are written again from the stored upload.
-  if (capture.state !== 'ready' || (await channelFilesIncomplete(capture))) await readAndStore(job, capture);
+  const read = capture.state !== 'ready' || (await channelFilesIncomplete(capture)) ? await readAndStore(job, capture) : null;
 
-  await afterCaptureFinished(capture.shotId);
+  // The row's new state, the automatic version and the shot's status in one transaction (worker/settle-shot.ts).
+  const write = read === null ? undefined : (transaction: Transaction) => writeIfCurrent(capture, read, transaction);
+  const { written } = await afterCaptureFinished(capture.shotId, write);
+  if (write && !written) return { captureId: capture.id, state: 'superseded' };
+  if (read) await job.updateProgress(100);
   return { captureId: capture.id, state: 'ready' };
 }

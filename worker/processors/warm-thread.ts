@@ -8,7 +8,8 @@ import { writeCaptureLayout } from '../../fixtures/lib/write-capture-layout.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
 import { LocalDiskStore } from '../../server/storage/local-disk-store.ts';
-import { analyseReadFiles } from '../../server/modules/analyses/service.ts';
+import { automaticVersionIn } from '../../server/modules/analyses/service.ts';
+import { endCaptureRead } from '../../server/modules/shots/end-capture-read.ts';
 import { settleShot } from '../../server/modules/shots/settle-shot.ts';
 import { readCaptureFile } from '../import/read-capture-file.ts';
 import { readCaptureStream } from '../import/read-capture-stream.ts';
@@ -45,12 +46,14 @@ export async function warmDatabase(kind: 'ingest' | 'analysis'): Promise<void> {
     await analysis.update({ state: 'running', progress: 10 }, { transaction });
     await Analysis.update({ state: 'done', progress: 100, completedAt: new Date(), error: null }, { where: { id: none }, transaction });
     await settleShot(none, transaction);
+    // What an ingest job's end asks under the shot's lock (endCaptureRead): files still pending, files read.
+    if (kind === 'ingest') await automaticVersionIn(Shot.build({ id: none } as never, { isNewRecord: false }), transaction);
     throw new WarmRollback();
   }).catch((err: unknown) => {
     if (!(err instanceof WarmRollback)) throw err;
   });
-  // Read-only for a shot that does not exist: it stops before anything is written or queued.
-  if (kind === 'ingest') await analyseReadFiles(ctx, none);
+  // For a shot that does not exist: it stops at the shot's lock, before anything is written or queued.
+  if (kind === 'ingest') await endCaptureRead(ctx, none);
   await settleShot(none);
 }
 

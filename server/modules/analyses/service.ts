@@ -5,8 +5,6 @@ import { ENGINE_VERSION } from '../../../shared/analysis/engine-version.ts';
 import { applySettings, analysisSettingsSchema } from '../../../shared/contracts/analysis-settings.ts';
 import { Analysis, Campaign, Capture, GateRig, Projectile, Shot } from '../../db/models/index.ts';
 import { badRequest, conflict } from '../../lib/errors.ts';
-import type { JobQueues } from '../../lib/job-queues.ts';
-import type { Logger } from '../../lib/logger.ts';
 import type { AnalysisJobData } from '../../../shared/contracts/jobs.ts';
 import { settleShot } from '../shots/settle-shot.ts';
 
@@ -39,10 +37,10 @@ export function combinedChannelNames(captures: { fileName: string; channels: unk
  * temperature, and the engine's automatic levels and thresholds, with the campaign's default settings (if it keeps
  * any) laid over them.
  */
-export async function defaultParameters(shot: Shot, channelNames: string[]): Promise<AnalysisOptionsInput> {
+export async function defaultParameters(shot: Shot, channelNames: string[], transaction?: Transaction): Promise<AnalysisOptionsInput> {
   const [rig, projectile] = await Promise.all([
-    shot.gateRigId ? GateRig.findByPk(shot.gateRigId) : null,
-    shot.projectileId ? Projectile.findByPk(shot.projectileId) : null,
+    shot.gateRigId ? GateRig.findByPk(shot.gateRigId, { transaction }) : null,
+    shot.projectileId ? Projectile.findByPk(shot.projectileId, { transaction }) : null,
   ]);
   const params: AnalysisOptionsInput = {};
   if (rig && channelNames.length > 0) {
@@ -60,7 +58,7 @@ export async function defaultParameters(shot: Shot, channelNames: string[]): Pro
   }
   if (shot.ambientTemperatureK) params.ambient = { temperature: shot.ambientTemperatureK };
   // The campaign's default settings (threshold, smoothing, polarity, edges, gate mapping) win over the engine's.
-  const campaign = await Campaign.findByPk(shot.campaignId, { attributes: ['analysisSettings'] });
+  const campaign = await Campaign.findByPk(shot.campaignId, { attributes: ['analysisSettings'], transaction });
   const settings = analysisSettingsSchema.safeParse(campaign?.analysisSettings ?? {});
   return settings.success ? applySettings(params, settings.data) : params;
 }
@@ -128,29 +126,31 @@ export async function shotIsBusy(shotId: string): Promise<boolean> {
 
 /**
  * Once no file of the shot is still being read, the files that were read get their automatic analysis, keyed by
- * exactly which capture attempts it reads (so two callers finishing together make one version, and a set that
- * already has one gets no other). Called when a file finished reading, well or badly, and when one was removed.
- * Returns true when a version was made.
+ * exactly which capture attempts it reads (so a set that already has one gets no other). Runs inside `transaction`,
+ * which holds the shot's row lock (server/modules/shots/end-capture-read.ts takes it before the capture's final
+ * state is written): so the files of the shot are seen as they are, and a file another job is ending waits for this
+ * one. Returns the version's job to queue once the transaction is committed, or null.
  */
-export async function analyseReadFiles(
-  ctx: { sequelize: Sequelize; queues: JobQueues; logger: Logger },
-  shotId: string,
+export async function automaticVersionIn(
+  shot: Shot,
+  transaction: Transaction,
   /** Numbers already worked out for these captures and parameters (uploads.ts): handed to the job when they fit. */
   precomputed?: AnalysisJobData['precomputed'],
-): Promise<boolean> {
-  // Pending first, then ready: once nothing is pending, the ready set read afterwards is final, so two ingests
-  // finishing together compute the same key. Read the other way round, one could key a stale ready set (itself
-  // only) while the other capture turned ready in between, and the shot got two automatic analyses.
-  const pending = await Capture.count({ where: { shotId, removedAt: null, state: { [Op.in]: ['queued', 'reading'] } } });
-  if (pending > 0) return false;
-  const ready = await readyCaptures(shotId);
-  const shot = await Shot.findByPk(shotId);
-  if (!shot || shot.deletedAt || ready.length === 0) return false;
+): Promise<{ created: boolean; job: AnalysisJobData | null }> {
+  const none = { created: false, job: null };
+  if (shot.deletedAt) return none;
+  const pending = await Capture.count({ where: { shotId: shot.id, removedAt: null, state: { [Op.in]: ['queued', 'reading'] } }, transaction });
+  if (pending > 0) return none;
+  const ready = await readyCaptures(shot.id, transaction);
+  if (ready.length === 0) return none;
   const key = createHash('sha256').update(ready.map((c) => `${c.id}:${c.ingestAttempt}`).join(',')).digest('hex').slice(0, 32);
-  const parameters = await defaultParameters(shot, combinedChannelNames(ready));
-  const { analysis, created } = await createAnalysisVersion(ctx.sequelize, { shotId, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shotId}-${key}` });
+  const parameters = await defaultParameters(shot, combinedChannelNames(ready), transaction);
+  const { analysis, created } = await createAnalysisVersion(
+    shot.sequelize, { shotId: shot.id, parametersInput: parameters, requestedBy: null, jobKey: `auto-${shot.id}-${key}` }, transaction,
+  );
   const fits = precomputed !== undefined && JSON.stringify(precomputed.captureIds) === JSON.stringify(ready.map((c) => c.id))
     && JSON.stringify(precomputed.parameters) === JSON.stringify(parameters);
-  if (created || analysis.state === 'queued') await ctx.queues.addAnalysisOrDefer({ analysisId: analysis.id, ...(fits && { precomputed }) }, ctx.logger);
-  return created;
+  // A version made earlier whose job may never have reached Redis is queued again (its job id is fixed).
+  const job = created || analysis.state === 'queued' ? { analysisId: analysis.id, ...(fits && { precomputed }) } : null;
+  return { created, job };
 }

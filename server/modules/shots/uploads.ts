@@ -12,10 +12,12 @@ import { channelFilesWriting } from '../../traces/channel-files-in-flight.ts';
 import { captureFilesPrefix, placeChannelFiles, putChannelBlobs, syncChannelBlobs, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import type { ChannelFiles } from '../../traces/channel-files.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
+import type { AnalysisJobData } from '../../../shared/contracts/jobs.ts';
 import { captureIntake, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
 import { settleShot } from './settle-shot.ts';
-import { analyseReadFiles, combinedChannelNames, defaultParameters } from '../analyses/service.ts';
+import { endCaptureRead } from './end-capture-read.ts';
+import { combinedChannelNames, defaultParameters } from '../analyses/service.ts';
 import { formatBytes } from '../../../shared/units/format-bytes.ts';
 import { assertStorageRoom } from '../storage/service.ts';
 
@@ -169,7 +171,7 @@ const INGEST_HOLD_MS = 60_000;
  * the shot's only one:
  * - the thread, which still holds the samples, works out the automatic version's numbers first; the capture is
  *   recorded as read (its files' descriptor needs no file) and its version queued with those numbers, which the
- *   analysis job stores instead of reading the files and running the engine again (analyseReadFiles checks they
+ *   analysis job stores instead of reading the files and running the engine again (automaticVersionIn checks they
  *   are for the version's captures and parameters, and the job checks again);
  * - then the files follow: those the trace plots read, then the full-precision values (read only by later
  *   recomputes; one asked for in between reads the stored upload instead, as readStoredChannels finds no values
@@ -198,11 +200,22 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
       return placeChannelFiles(prefix, { files: read.files, blobs: taken }).blobs;
     };
     // Only a capture still queued for this attempt: a worker that took the job over meanwhile has the last word.
-    const markRead = async () => {
-      [marked] = await Capture.update(
-        { state: 'ready', progress: 100, layout: read.layout, channels: files, sampleCount: read.length, timeBase: files.time, warnings: read.warnings, error: null },
-        { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'queued' } },
-      );
+    // Queue the shot's analysis from here, as the ingest job would once it found the capture read: one job hand-over
+    // less between the last byte and the result. The mark, the version and the shot's status are written in one
+    // transaction under the shot's lock (endCaptureRead), so a file of the shot ending beside this one never shows
+    // the shot "failed" in between. The released ingest job then finds the analysis keyed and queued already (the
+    // same key, so never a second one) and only writes the status again.
+    const markRead = async (precomputed: AnalysisJobData['precomputed']) => {
+      await endCaptureRead(deps, capture.shotId, {
+        precomputed,
+        write: async (transaction) => {
+          [marked] = await Capture.update(
+            { state: 'ready', progress: 100, layout: read.layout, channels: files, sampleCount: read.length, timeBase: files.time, warnings: read.warnings, error: null },
+            { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'queued' }, transaction },
+          );
+          return marked > 0;
+        },
+      });
     };
     const parameters = await soleCaptureParameters(capture, files);
     const outcome = parameters === null ? null : await reader.analyse(parameters);
@@ -212,18 +225,11 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
     if (precomputed === undefined) {
       written.push(...await take(reader.takeFiles(), 'the trace files'), ...await take(reader.takeKept(), 'the values'));
       await putChannelBlobs(deps.blobStore, written, { sync: false });
-      await markRead();
+      await markRead(undefined);
     } else {
       channelFilesWriting(capture.id, new Promise<void>((resolve) => { filesWritten = resolve; }));
-      await markRead();
+      await markRead(precomputed);
       if (marked === 0) return;
-    }
-    // Queue the shot's analysis from here, as the ingest job would once it found the capture read: one job
-    // hand-over less between the last byte and the result. The released ingest job then finds the analysis
-    // keyed and queued already (the same key, so never a second one) and only writes the status again.
-    if (marked > 0) {
-      await analyseReadFiles(deps, capture.shotId, precomputed);
-      await settleShot(capture.shotId);
     }
     if (precomputed !== undefined) {
       const plots = await take(reader.takeFiles(), 'the trace files');
@@ -238,8 +244,12 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
     deps.logger.warn({ captureId: capture.id, err: (err as Error).message }, 'reading the upload in the API failed; the worker reads it');
     if (marked > 0) {
       // Files not surely all on the disk: back to the queue, so the released ingest job writes them again from the stored file.
-      await Capture.update({ state: 'queued', progress: 0 }, { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'ready' } })
-        .then(() => settleShot(capture.shotId))
+      await endCaptureRead(deps, capture.shotId, {
+        write: async (transaction) => {
+          const [back] = await Capture.update({ state: 'queued', progress: 0 }, { where: { id: capture.id, ingestAttempt: capture.ingestAttempt, state: 'ready' }, transaction });
+          return back > 0;
+        },
+      })
         .catch((error: Error) => deps.logger.warn({ captureId: capture.id, err: error.message }, 'capture not put back in the queue'));
     }
   } finally {
@@ -251,7 +261,7 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
 
 /**
  * The automatic version's parameters when this upload is the shot's only file (none other ready or being read),
- * so the reading thread can work out its numbers; null otherwise. The same function analyseReadFiles uses.
+ * so the reading thread can work out its numbers; null otherwise. The same function automaticVersionIn uses.
  */
 async function soleCaptureParameters(capture: Capture, files: ChannelFiles): Promise<AnalysisOptionsInput | null> {
   const others = await Capture.count({ where: { shotId: capture.shotId, removedAt: null, id: { [Op.ne]: capture.id }, state: { [Op.in]: ['queued', 'reading', 'ready'] } } });

@@ -1,0 +1,49 @@
+import type { Sequelize, Transaction } from 'sequelize';
+import type { AnalysisJobData } from '../../../shared/contracts/jobs.ts';
+import { Shot } from '../../db/models/index.ts';
+import type { JobQueues } from '../../lib/job-queues.ts';
+import type { Logger } from '../../lib/logger.ts';
+import { automaticVersionIn } from '../analyses/service.ts';
+import { settleShot } from './settle-shot.ts';
+
+export interface EndCaptureReadOptions {
+  /**
+   * Writes the capture's final state (read, failed, or back in the queue) in the transaction and says whether it
+   * did; when it did not (a condition on the row failed), nothing else happens. @default nothing to write
+   */
+  write?: (transaction: Transaction) => Promise<boolean>;
+  /** Numbers already worked out for the automatic version (uploads.ts), handed to its job when they fit. @default none */
+  precomputed?: AnalysisJobData['precomputed'];
+}
+
+/**
+ * Ends a capture's read and does what follows, in one transaction under the shot's row lock: the capture's final
+ * state (`write`), the check for files still pending, the automatic version once none is (automaticVersionIn), and
+ * the shot's status (settleShot). The version's job is queued after the commit.
+ *
+ * Why one transaction: two files of a shot ending together are then taken one after the other, and no reader sees
+ * a state between two of these steps. Done as separate steps, the job of the file that ended first could see the
+ * other still being read, then settle the shot after the other file's read was recorded but before its job made
+ * the version: the shot read "failed" (a read file, no version) until the version appeared. Every path that ends a
+ * read goes through here: the worker's ingest job, the API's read of an upload as it arrives, a job's last failed
+ * attempt, and the worker's sweep (with nothing to write: it only makes the missing version and status).
+ *
+ * Lock order: the shot's row, then the capture's (settleShot and createAnalysisVersion lock the shot first too).
+ * No existing version row is locked here, so the analysis job (its version, then the shot) cannot close a cycle.
+ */
+export async function endCaptureRead(
+  ctx: { sequelize: Sequelize; queues: JobQueues; logger: Logger },
+  shotId: string,
+  options: EndCaptureReadOptions = {},
+): Promise<{ shot: Shot | null; written: boolean; versionMadeId: string | null }> {
+  const { write, precomputed } = options;
+  const ended = await ctx.sequelize.transaction(async (transaction) => {
+    const shot = await Shot.findByPk(shotId, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!shot) return { shot: null, written: false, created: false, job: null };
+    if (write && !(await write(transaction))) return { shot, written: false, created: false, job: null };
+    const { created, job } = await automaticVersionIn(shot, transaction, precomputed);
+    return { shot: await settleShot(shotId, transaction), written: write !== undefined, created, job };
+  });
+  if (ended.job) await ctx.queues.addAnalysisOrDefer(ended.job, ctx.logger);
+  return { shot: ended.shot, written: ended.written, versionMadeId: ended.created && ended.job ? ended.job.analysisId : null };
+}
