@@ -129,8 +129,11 @@ async function storedCapture(shotId: string, fileName: string, bytes: Uint8Array
 
 const jobOf = (data: object, more: object = {}) => ({ id: `race-${Math.random()}`, data, updateProgress: async () => {}, ...more }) as unknown as Job;
 
-/** An end of a read, as the product runs it; `sha` keys the barrier its final write waits at. */
-interface End { name: string; sha: string; start(): Promise<unknown> }
+/**
+ * An end of a read, as the product runs it; `sha` keys the barrier its final write waits at. `recorded`, when
+ * given, settles once the file's row exists (an upload answered): the ends after it start only then.
+ */
+interface End { name: string; sha: string; start(): Promise<unknown>; recorded?: Promise<unknown> }
 
 /** The worker's ingest job reads the file and records it read (or failed: the importer refuses it). */
 const ingestEnd = (capture: Capture): End => ({
@@ -149,20 +152,25 @@ const finalFailureEnd = (capture: Capture): End => ({
 });
 
 /** Uploaded to the API, which reads the file as it arrives, marks it read and queues the version itself. */
-const apiReadEnd = (shotId: string, fileName: string, bytes: Uint8Array): End => ({
-  name: `API read of ${fileName}`, sha: sha256(bytes),
-  start: async () => {
-    const res = await request(readingApi).post(`/api/shots/${shotId}/captures`).set('Cookie', h.sessionCookie(demo.users.experimenter.id))
-      .attach('files', Buffer.from(bytes), fileName);
-    expect(res.status, JSON.stringify(res.body)).toBe(202);
-    const [capture] = res.body.captures as { id: string }[];
-    // The upload is answered first; the read's end follows and ends by releasing the held ingest job.
-    await new Promise<void>((resolve) => {
-      released.set(capture.id, resolve);
-      void Capture.findByPk(capture.id).then((c) => { if (c?.state === 'ready' || c?.state === 'failed') resolve(); });
-    });
-  },
-});
+const apiReadEnd = (shotId: string, fileName: string, bytes: Uint8Array): End => {
+  let answered: () => void = () => {};
+  const recorded = new Promise<void>((resolve) => { answered = resolve; });
+  return {
+    name: `API read of ${fileName}`, sha: sha256(bytes), recorded,
+    start: async () => {
+      const upload = request(readingApi).post(`/api/shots/${shotId}/captures`).set('Cookie', h.sessionCookie(demo.users.experimenter.id))
+        .attach('files', Buffer.from(bytes), fileName);
+      const res = await Promise.resolve(upload).finally(answered);
+      expect(res.status, JSON.stringify(res.body)).toBe(202);
+      const [capture] = res.body.captures as { id: string }[];
+      // The upload is answered first; the read's end follows and ends by releasing the held ingest job.
+      await new Promise<void>((resolve) => {
+        released.set(capture.id, resolve);
+        void Capture.findByPk(capture.id).then((c) => { if (c?.state === 'ready' || c?.state === 'failed') resolve(); });
+      });
+    },
+  };
+};
 
 interface Tracked { name: string; done: boolean; promise: Promise<unknown> }
 function track(name: string, promise: Promise<unknown>): Tracked {
@@ -208,7 +216,13 @@ const letGo = (sha: string) => control.query('SELECT pg_advisory_unlock($1, hash
 async function race(shotId: string, ends: End[], order: number[]): Promise<{ outcomes: PromiseSettledResult<unknown>[]; statuses: string[] }> {
   for (const end of ends) await hold(end.sha);
   let lockTask: Tracked | null = null;
-  const tasks = ends.map((end) => track(end.name, end.start()));
+  // An end that records its file first (an upload) has its row in before the next end starts: otherwise the other
+  // file's read could end before this file exists, which is not two files ending together.
+  const tasks: Tracked[] = [];
+  for (const end of ends) {
+    tasks.push(track(end.name, end.start()));
+    await end.recorded;
+  }
   try {
     await untilHeld(tasks, 'every end at its final write');
     for (const t of tasks) expect(t.done, `${t.name} ended before its final write was held`).toBe(false);
@@ -336,4 +350,3 @@ describe('When a file the API reads as it arrives ends beside a file of an earli
     });
   }
 });
-
