@@ -350,3 +350,25 @@ describe('When a file the API reads as it arrives ends beside a file of an earli
     });
   }
 });
+
+describe('When the only file a read file waited for is removed before its job ran', () => {
+  it('then the read file gets its version at once and the shot never reads "failed" (the removed file\'s job makes none)', async () => {
+    const shotId = await newShot();
+    const read = await storedCapture(shotId, 'good.csv', good(151));
+    const dropped = await storedCapture(shotId, 'wrong-shot.csv', good(152));
+    // The read file's job ends while the other is still queued: no version yet, the shot is processing.
+    await ingestCapture(jobOf({ captureId: read.id, attempt: read.ingestAttempt }));
+    expect((await rowsOf(shotId)).analyses).toHaveLength(0);
+    const res = await request(readingApi).delete(`/api/shots/${shotId}/captures/${dropped.id}`).set('Cookie', h.sessionCookie(demo.users.experimenter.id));
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    // The removed file's job, when it runs, finds it removed and ends there.
+    expect(await ingestCapture(jobOf({ captureId: dropped.id, attempt: dropped.ingestAttempt }))).toEqual({ captureId: dropped.id, state: 'removed' });
+    const { shot, analyses } = await rowsOf(shotId);
+    expect(analyses.map((a) => [a.version, a.state, a.captureIds])).toEqual([[1, 'queued', [read.id]]]);
+    expect(res.body.analysis).toMatchObject({ id: analyses[0].id });
+    expect(shot.status).toBe('processing');
+    const statuses = await statusesRead(shotId);
+    expect(statuses, statuses.join(' → ')).not.toContain('failed');
+    expect((await analyseQueued(shotId)).shot.status).toBe('analysed');
+  });
+});

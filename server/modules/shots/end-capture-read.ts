@@ -14,6 +14,11 @@ export interface EndCaptureReadOptions {
   write?: (transaction: Transaction) => Promise<boolean>;
   /** Numbers already worked out for the automatic version (uploads.ts), handed to its job when they fit. @default none */
   precomputed?: AnalysisJobData['precomputed'];
+  /**
+   * Make the automatic version only when the shot has no current version (a file removed: the numbers shown stand
+   * when they did not read it). @default false
+   */
+  onlyWithoutCurrent?: boolean;
 }
 
 /**
@@ -26,7 +31,8 @@ export interface EndCaptureReadOptions {
  * other still being read, then settle the shot after the other file's read was recorded but before its job made
  * the version: the shot read "failed" (a read file, no version) until the version appeared. Every path that ends a
  * read goes through here: the worker's ingest job, the API's read of an upload as it arrives, a job's last failed
- * attempt, and the worker's sweep (with nothing to write: it only makes the missing version and status).
+ * attempt, the removal of a file the current version does not read (one still being read may be all the others
+ * waited for), and the worker's sweep (with nothing to write: it only makes the missing version and status).
  *
  * Lock order: the shot's row, then the capture's (settleShot and createAnalysisVersion lock the shot first too).
  * No existing version row is locked here, so the analysis job (its version, then the shot) cannot close a cycle.
@@ -36,12 +42,14 @@ export async function endCaptureRead(
   shotId: string,
   options: EndCaptureReadOptions = {},
 ): Promise<{ shot: Shot | null; written: boolean; versionMadeId: string | null }> {
-  const { write, precomputed } = options;
+  const { write, precomputed, onlyWithoutCurrent = false } = options;
   const ended = await ctx.sequelize.transaction(async (transaction) => {
     const shot = await Shot.findByPk(shotId, { transaction, lock: transaction.LOCK.UPDATE });
     if (!shot) return { shot: null, written: false, created: false, job: null };
     if (write && !(await write(transaction))) return { shot, written: false, created: false, job: null };
-    const { created, job } = await automaticVersionIn(shot, transaction, precomputed);
+    const { created, job } = onlyWithoutCurrent && shot.currentAnalysisId
+      ? { created: false, job: null }
+      : await automaticVersionIn(shot, transaction, precomputed);
     return { shot: await settleShot(shotId, transaction), written: write !== undefined, created, job };
   });
   if (ended.job) await ctx.queues.addAnalysisOrDefer(ended.job, ctx.logger);

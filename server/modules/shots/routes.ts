@@ -12,6 +12,7 @@ import { namesOf } from '../reviews/people.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import { combinedChannelNames, createAnalysisVersion, defaultParameters, readyCaptures } from '../analyses/service.ts';
 import { campaignNeeds } from '../campaigns/needed-conditions.ts';
+import { endCaptureRead } from './end-capture-read.ts';
 import { settleShot } from './settle-shot.ts';
 import { acceptUpload } from './uploads.ts';
 import { analysisSummary, analysisView, captureView, shotSummary } from './view.ts';
@@ -242,24 +243,40 @@ export function shotRoutes(deps: Deps): RouteDef[] {
         const capture = await Capture.findOne({ where: { id: req.params.captureId as string, shotId: shot.id } });
         if (!capture) throw notFound('No such file on this shot.');
         if (capture.removedAt) return res.json({ capture: captureView(capture), analysis: null });
-        await capture.update({ removedAt: new Date(), removedBy: req.auth!.userId });
-        await recordAudit({
+        const removal = { removedAt: new Date(), removedBy: req.auth!.userId };
+        const audit = () => recordAudit({
           labId: shot.labId, actorId: req.auth!.userId, action: 'capture.removed', targetType: 'shot', targetId: shot.id,
           details: { captureId: capture.id, file: capture.fileName, sha256: capture.sha256 }, ip: clientIp(req),
         });
-        // The current version read this file: the shot is analysed again from what is left (or has no version).
         const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { attributes: ['id', 'captureIds'] }) : null;
+        if (!current || !current.captureIds.includes(capture.id)) {
+          // A file no current version reads (refused, still being read, or read after it): with it gone, the files
+          // read may be all the shot waited for, and a shot without a version gets its automatic one now, as when a
+          // read ends (else the shot would read "failed" beside read files, and a queued file's job, finding it
+          // removed, would never make the version). Under the shot's lock with the status (endCaptureRead).
+          const { versionMadeId } = await endCaptureRead(deps, shot.id, {
+            onlyWithoutCurrent: true,
+            write: async (transaction) => {
+              await capture.update(removal, { transaction });
+              return true;
+            },
+          });
+          await audit();
+          const auto = versionMadeId ? await Analysis.findByPk(versionMadeId) : null;
+          return res.json({ capture: captureView(capture), analysis: auto ? analysisSummary(auto) : null });
+        }
+        // The current version read this file: the shot is analysed again from what is left (or has no version).
+        await capture.update(removal);
+        await audit();
         let made: Analysis | null = null;
-        if (current && current.captureIds.includes(capture.id)) {
-          if ((await readyCaptures(shot.id)).length > 0) {
-            const { analysis } = await createAnalysisVersion(deps.sequelize, {
-              shotId: shot.id, parametersInput: await parametersAfterRemoval(shot), requestedBy: req.auth!.userId, jobKey: `removed-${capture.id}`,
-            });
-            await deps.queues.addAnalysisOrDefer({ analysisId: analysis.id }, deps.logger);
-            made = analysis;
-          } else {
-            await shot.update({ currentAnalysisId: null, reviewAnalysisId: null });
-          }
+        if ((await readyCaptures(shot.id)).length > 0) {
+          const { analysis } = await createAnalysisVersion(deps.sequelize, {
+            shotId: shot.id, parametersInput: await parametersAfterRemoval(shot), requestedBy: req.auth!.userId, jobKey: `removed-${capture.id}`,
+          });
+          await deps.queues.addAnalysisOrDefer({ analysisId: analysis.id }, deps.logger);
+          made = analysis;
+        } else {
+          await shot.update({ currentAnalysisId: null, reviewAnalysisId: null });
         }
         await settleShot(shot.id);
         res.json({ capture: captureView(capture), analysis: made ? analysisSummary(made) : null });
