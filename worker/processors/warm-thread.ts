@@ -1,5 +1,4 @@
-import { mkdtemp, rm, writeFile } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
+import { rm, writeFile } from 'node:fs/promises';
 import path from 'node:path';
 import { Op } from 'sequelize';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
@@ -9,6 +8,7 @@ import { writeCaptureLayout } from '../../fixtures/lib/write-capture-layout.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
 import { LocalDiskStore } from '../../server/storage/local-disk-store.ts';
+import { warmFolder } from '../../server/lib/warm-folder.ts';
 import { analyseReadFiles, readyCaptures } from '../../server/modules/analyses/service.ts';
 import { settleShot } from '../../server/modules/shots/settle-shot.ts';
 import { readCaptureStream } from '../import/read-capture-stream.ts';
@@ -100,7 +100,7 @@ export async function warmThread(kind: 'ingest' | 'analysis'): Promise<void> {
   const none = '00000000-0000-0000-0000-000000000000';
   const { config } = workerContext();
   const limits = { maxChannels: config.maxChannelsPerCapture, maxSamples: config.maxSamplesPerChannel };
-  const dir = await mkdtemp(path.join(tmpdir(), 'gatepost-warm-'));
+  const dir = await warmFolder('gatepost-warm');
   try {
     const store = new LocalDiskStore(path.join(dir, 'blobs'));
     // Plain decimal times and volts (what most scopes and our own exports write) and exponent times.

@@ -1,6 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import { mkdtemp, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
+import { rm } from 'node:fs/promises';
 import path from 'node:path';
 import { PassThrough } from 'node:stream';
 import multer from 'multer';
@@ -8,6 +7,7 @@ import type { Config } from '../../config.ts';
 import { Capture, Shot } from '../../db/models/index.ts';
 import type { JobQueues } from '../../lib/job-queues.ts';
 import { LocalDiskStore } from '../../storage/local-disk-store.ts';
+import { warmFolder } from '../../lib/warm-folder.ts';
 import { assertStorageRoom } from '../storage/service.ts';
 import { captureIntake } from './capture-intake.ts';
 import { settleShot } from './settle-shot.ts';
@@ -41,7 +41,7 @@ export async function warmUploadPath(config: Config, queues: JobQueues): Promise
     settleShot(none),
   ]);
   let taken = 0;
-  const dir = await mkdtemp(path.join(tmpdir(), 'gatepost-warm-upload-'));
+  const dir = await warmFolder('gatepost-warm-upload');
   try {
     const storage = captureIntake({ store: new LocalDiskStore(path.join(dir, 'blobs')), uploadsDir: path.join(dir, 'uploads'), readFromBytes: -1 });
     const receive = multer({ storage, limits: { files: 1 } }).array('files', 1);
