@@ -80,9 +80,9 @@ export async function warmDatabase(kind: 'ingest' | 'analysis'): Promise<void> {
  * other work (load average 3–5): 1.22–2.53× (six runs) with this as it then was, 1.29–1.82× (five runs) once it read
  * through the job's own functions on capture rows (readStoredCapture, readStoredChannels on model instances) and made
  * the statements of an automatic version, and the API readied its upload path too (server/modules/shots/warm-upload.ts);
- * 1.15–1.58× (five runs) once the warm-up shot had noise and a rise time (before, its clean square pulses left the
- * engine's crossing and noise paths cold: the first analysis job took 1.5–2.8× a warm one, and 2.7–3.3× before any of
- * these changes; now 0.9–1.2×).
+ * 1.15–1.76× in 16 of 17 runs and 2.00× in one (median 1.46×) once the warm-up shot had noise and a rise time
+ * (before, its clean square pulses left the engine's crossing and noise paths cold: the first analysis job took
+ * 1.5–2.8× a warm one's median, and 2.7–3.3× before any of these changes; now 0.6–2.2×, median 1.15×).
  * Nothing is written to the database or the lab's storage; a failure (database not up yet) only means the first job
  * does the work itself.
  */
