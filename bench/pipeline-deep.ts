@@ -7,10 +7,13 @@
  * `npm run analyze` ran when issue 13 set the target). Three rounds; medians. Targets (issue 13): pipeline ≤ 1.5× the
  * CLI, and the result ≤ 1 s after the upload's response (which comes after the server has the last byte). Run in one
  * command with the API reading the file while it arrives, and with the worker reading it afterwards.
- * Two clients send the file: curl (Debian's, as a lab script or the bench uploader's shell users would; a few
- * hundredths of a CPU-second for the whole file) and Node's fetch with a FormData of the file (undici copies every
- * chunk through web streams: about 0.7 CPU-second here, taken from the same two cores the server uses). The ratio
- * is printed for each; without curl only fetch runs.
+ * Two clients send the file: curl (Debian's, as a lab script would) and Node's fetch with a FormData of the file
+ * (undici copies every chunk through web streams). The ratio is printed for each, with the processor seconds the
+ * client, the API server and the worker used during the upload request; without curl only fetch runs. On the lab
+ * machine (2 December 2026, load average 4–5) curl used 0.11–0.14 CPU-s for the whole file and fetch 2.6–2.75 CPU-s,
+ * taken from the same two cores the server uses, while the API server used about the same for both (2.4–4.7 CPU-s,
+ * its reading thread included; it receives both in the same 64 KiB socket reads, about 5 040 for the file): the
+ * gap between the two clients' ratios is the client's own work.
  * Figures only, no pass/fail.
  */
 import { spawn, spawnSync } from 'node:child_process';
@@ -22,6 +25,7 @@ import { demoAccounts } from '../server/db/seeders/demo.ts';
 import { BIG_CAPTURE_SHOT, ensureBigCapture } from './lib/big-capture.ts';
 import { startBenchApp } from './lib/bench-app.ts';
 import { pollUntil, signIn } from './lib/pipeline-client.ts';
+import { cpuSeconds } from './lib/process-usage.ts';
 import { timeCli } from './lib/time-process.ts';
 
 const ROUNDS = 3;
@@ -35,6 +39,7 @@ interface ShotView {
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
+const cpuS = (xs: number[]) => (xs.length > 0 ? `${median(xs).toFixed(2)} s [${xs.map((x) => x.toFixed(2)).join(', ')}]` : 'not measured');
 
 type Client = 'curl' | 'fetch';
 
@@ -46,22 +51,32 @@ interface Mode {
 
 const HAS_CURL = spawnSync('curl', ['--version'], { stdio: 'ignore' }).status === 0;
 
-/** Uploads `file` in the multipart field "files" with the session cookie; resolves when the answer is in. */
-async function send(client: Client, url: string, cookie: string, file: string, name: string): Promise<{ status: number; text: string }> {
+/**
+ * Uploads `file` in the multipart field "files" with the session cookie; resolves when the answer is in, with the
+ * processor seconds the client used for it: this process's own for fetch (process.cpuUsage), curl's read from /proc
+ * every 20 ms while it runs (so up to 20 ms of it may be missed; null where /proc cannot say).
+ */
+async function send(client: Client, url: string, cookie: string, file: string, name: string): Promise<{ status: number; text: string; clientCpuS: number | null }> {
   if (client === 'fetch') {
+    const before = process.cpuUsage();
     const form = new FormData();
     form.append('files', await openAsBlob(file, { type: 'text/csv' }), name);
     const response = await fetch(url, { method: 'POST', headers: { cookie }, body: form });
-    return { status: response.status, text: await response.text() };
+    const text = await response.text();
+    const used = process.cpuUsage(before);
+    return { status: response.status, text, clientCpuS: (used.user + used.system) / 1e6 };
   }
   const curl = spawn('curl', ['-sS', '-o', '-', '-w', '\\n%{http_code}', '-H', `cookie: ${cookie}`, '-F', `files=@${file};type=text/csv;filename=${name}`, url]);
+  let clientCpuS: number | null = null;
+  const sampler = setInterval(() => { clientCpuS = cpuSeconds(curl.pid!) ?? clientCpuS; }, 20);
   let out = '';
   curl.stdout.setEncoding('utf8').on('data', (d: string) => { out += d; });
   curl.stderr.setEncoding('utf8').on('data', (d: string) => { out += d; });
   const code = await new Promise<number | null>((resolve) => curl.on('close', resolve));
+  clearInterval(sampler);
   if (code !== 0) throw new Error(`curl failed (exit ${code}): ${out}`);
   const cut = out.lastIndexOf('\n');
-  return { status: Number(out.slice(cut + 1)), text: out.slice(0, cut) };
+  return { status: Number(out.slice(cut + 1)), text: out.slice(0, cut), clientCpuS };
 }
 
 /** The API reads the upload while it arrives (the default for a file this large), and, for comparison, the worker
@@ -109,6 +124,9 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
     const upload: number[] = [];
     const afterUpload: number[] = [];
     const analysis: number[] = [];
+    // Processor seconds during the upload request: the client's, the API server's (all its threads: the reading
+    // thread too) and the worker's.
+    const cpu = { client: [] as number[], api: [] as number[], worker: [] as number[] };
     let speed = '';
     for (let round = 0; round < ROUNDS; round++) {
       cli.push((await timeCli(file, 'npm')).ms);
@@ -120,9 +138,16 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
       if (created.status !== 201) throw new Error(`could not log a shot: HTTP ${created.status} ${JSON.stringify(created.body)}`);
       const shotId = created.body.shot.id;
       const url = `${bench.app.baseUrl}/api/shots/${shotId}/captures`;
+      const apiBefore = cpuSeconds(bench.app.api.pid);
+      const workerBefore = bench.app.worker ? cpuSeconds(bench.app.worker.pid) : null;
       const started = performance.now();
       const answer = await send(mode.client, url, client.cookie, file, `deep-${round}.csv`);
       const uploaded = performance.now();
+      const apiAfter = cpuSeconds(bench.app.api.pid);
+      const workerAfter = bench.app.worker ? cpuSeconds(bench.app.worker.pid) : null;
+      if (answer.clientCpuS !== null) cpu.client.push(answer.clientCpuS);
+      if (apiBefore !== null && apiAfter !== null) cpu.api.push(apiAfter - apiBefore);
+      if (workerBefore !== null && workerAfter !== null) cpu.worker.push(workerAfter - workerBefore);
       if (answer.status !== 202) throw new Error(`upload refused: HTTP ${answer.status} ${answer.text}`);
       const shot = await pollUntil(async () => {
         const d = (await client.get<ShotView>(`/api/shots/${shotId}`)).body;
@@ -145,6 +170,8 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
       `  pipeline, upload start → analysed result seen, median of ${ROUNDS}: ${s(median(total))}   [${total.map(s).join(', ')}]`,
       `    upload request (until its 202 response): ${s(median(upload))}`,
       `    upload response → result seen: ${s(median(afterUpload))} (target ≤ 1 s); analysis job alone ${s(median(analysis))}`,
+      `    processor seconds during the upload request (medians; ${cpus().length} cores shared): client (${mode.client}) ${cpuS(cpu.client)}, ` +
+        `API server ${cpuS(cpu.api)}, worker ${cpuS(cpu.worker)}`,
       `  ratio pipeline / CLI (medians): ${(median(total) / median(cli)).toFixed(2)}× (target ≤ 1.5×); against the compiled bundle ` +
         `alone (node dist/node/…, median ${s(median(compiledCli))}): ${(median(total) / median(compiledCli)).toFixed(2)}×; against the CLI ` +
         `through tsx (as when the target was set, median ${s(median(tsxCli))}): ${(median(total) / median(tsxCli)).toFixed(2)}×`,

@@ -8,6 +8,7 @@ import { createJobQueues } from './lib/job-queues.ts';
 import { labEventHubFor } from './modules/events/lab-event-hub.ts';
 import { createSequelize } from './db/sequelize.ts';
 import { createBlobStore } from './storage/create-blob-store.ts';
+import { warmUploadPath } from './modules/shots/warm-upload.ts';
 
 /** The API server process: reads config, connects, listens, and shuts down cleanly on SIGINT/SIGTERM. */
 async function main() {
@@ -26,6 +27,8 @@ async function main() {
 
   const server = app.listen(config.port, config.host, () => {
     logger.info({ url: config.publicUrl, port: config.port }, 'Gatepost API listening');
+    // Not awaited: requests are served meanwhile (the first upload after a start then pays for what is not ready).
+    void warmUploadPath(config, queues).catch((err: Error) => logger.debug({ err: err.message }, 'upload path not readied ahead'));
   });
   server.on('error', (err) => {
     logger.fatal({ err }, 'cannot listen');
