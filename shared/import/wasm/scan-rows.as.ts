@@ -77,9 +77,10 @@ let runMant: u64 = 0;
 /**
  * Reads the run of digits at `q` onto `mant` (runMant: mant·10^k + the run), eight at a time, then the 1–7 left in
  * one more step (the lanes after them shifted out); returns where the run ends. The integer part and the fraction
- * both go through it.
+ * both go through it. Not inlined: only the byte-by-byte reading (longer fields, odd forms) calls it, and two
+ * inlined copies of its loop made the module bigger for no measured gain.
  */
-@inline function digitsFrom(q: usize, mant: u64): usize {
+function digitsFrom(q: usize, mant: u64): usize {
   let v = load<u64>(q);
   let x = nonDigits(v);
   while (x == 0) {
@@ -220,7 +221,9 @@ export function scan(
         // All the mantissa's digits (at most 15, after the sign), the point left out and right-aligned in 16 lanes.
         const lanes = i8x16.swizzle(i8x16.sub(v128.load(p + load<u8>(info)), zeros), v128.load(SHAPE_DIGIT_LANES + (<usize>col << 4)));
         const mant = eightDigits(i64x2.extract_lane(lanes, 0)) * 100000000 + eightDigits(i64x2.extract_lane(lanes, 1));
-        const e = expDigits != 0 ? <i32>digitRun(p + load<u8>(info, 4), expDigits) : 0;
+        let e: i32 = 0;
+        const expAt = p + load<u8>(info, 4);
+        for (let i = 0; i < expDigits; i++) e = e * 10 + (<i32>load<u8>(expAt + i) - 48);
         const value = exactValue(load<u8>(info, 6) != 0, mant, (load<u8>(info, 7) != 0 ? -e : e) - fracDigits);
         if (value != value || (value != 0 && abs(value) >= minSentinel)) { taken = false; break; }
         const scaled = value * load<f64>(columns + (col << 3));
