@@ -4,7 +4,7 @@ import fc from 'fast-check';
 import { afterEach, describe, expect, it } from 'vitest';
 import { SLOT_TIME, scanNumericRows, type ScanSpec, type ScanState, type ScanStop } from '../../../shared/import/scan-numeric-rows.ts';
 import { TimeGridHull } from '../../../shared/import/time-grid-hull.ts';
-import { OUTPUT_DOUBLES, rowScanner, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
+import { BLOCK_BYTES, OUTPUT_DOUBLES, rowScanner, rowScannerBlock, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
 import { compileScanWasm, renderGenerated, repoRoot, SCAN_WASM_GENERATED } from '../../../scripts/lib/compile-scan-wasm.ts';
 
 const encoder = new TextEncoder();
@@ -28,8 +28,15 @@ interface Result {
 
 /** Scans `text` in blocks of `block` bytes (cut at line ends, as the disk reader does), resuming after stops
  * that are text or errors the way a caller that skips a bad line would, with the compiled scanner on or off. */
-function scan(text: string | Uint8Array, s: ScanSpec, compiled: boolean, options: { block?: number; capacity?: number; hull?: boolean } = {}): Result {
-  const bytes = typeof text === 'string' ? encoder.encode(text) : text;
+function scan(text: string | Uint8Array, s: ScanSpec, compiled: boolean, options: { block?: number; capacity?: number; hull?: boolean; inScannerBlock?: boolean } = {}): Result {
+  let bytes = typeof text === 'string' ? encoder.encode(text) : text;
+  if (options.inScannerBlock) {
+    // The bytes where the disk reader reads them: in the scanner's own memory (rowScannerBlock), scanned in place.
+    const block = rowScannerBlock(bytes.length);
+    expect(block).not.toBeNull();
+    (block as Uint8Array).set(bytes);
+    bytes = block as Uint8Array;
+  }
   const capacity = options.capacity ?? bytes.length;
   const channels = s.factors.length;
   const hasTime = s.slots.includes(SLOT_TIME);
@@ -89,6 +96,13 @@ function both(text: string | Uint8Array, s: ScanSpec, options: Parameters<typeof
   const js = scan(text, s, false, options);
   const wasm = scan(text, s, true, options);
   expectSame(js, wasm);
+  // And with the bytes in the scanner's file block (no copy into its window), when they fit in one.
+  const length = typeof text === 'string' ? encoder.encode(text).length : text.length;
+  if (length > 0 && length <= BLOCK_BYTES) {
+    const inPlace = scan(text, s, true, { ...options, inScannerBlock: true });
+    expectSame(js, inPlace);
+    expect(inPlace.wasmRows).toBe(wasm.wasmRows);
+  }
   return { js, wasm };
 }
 
