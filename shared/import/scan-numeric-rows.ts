@@ -3,7 +3,7 @@ import type { CapturePlan } from './detect-capture-plan.ts';
 import { invalidTimeMessage, readSampleField, type ReadSampleFieldOptions } from './read-sample-field.ts';
 import { MAX_TIME_SECONDS, timeOutOfRange } from './value-limits.ts';
 import type { TimeGridHull } from './time-grid-hull.ts';
-import { countRowScannerRows, HULL_ROOM, MAX_WASM_COLUMNS, OUTPUT_DOUBLES, rowScanner, WINDOW_BYTES, type RowScanner } from './wasm/scan-rows-wasm.ts';
+import { BLOCK_BYTES, countRowScannerRows, HULL_ROOM, MAX_WASM_COLUMNS, OUTPUT_DOUBLES, rowScanner, WINDOW_BYTES, type RowScanner } from './wasm/scan-rows-wasm.ts';
 
 /** Column roles for the scanner, one per column of the file. */
 export const SLOT_IGNORE = -1;
@@ -125,9 +125,10 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   // Runs of such rows go to the compiled scanner (./wasm/scan-rows-wasm.ts) when there is one: it takes the rows
   // this lean loop would take, with the same arithmetic, and stops at the first other row, which the loops below
-  // read (and word, if it is wrong). Lines are copied into its memory a window at a time; its values are copied out.
+  // read (and word, if it is wrong). Lines are copied into its memory a window at a time (unless `bytes` is its file
+  // block already: rowScannerBlock); its values are copied out.
   const wasm = fastRows && width <= MAX_WASM_COLUMNS ? rowScanner() : null;
-  const run: WasmRun = { start: 0, end: 0, pause: 0, misses: 0, rows: 0, p: 0, lastTime: NaN, hulled: false };
+  const run: WasmRun = { start: 0, end: 0, base: 0, pause: 0, misses: 0, rows: 0, p: 0, lastTime: NaN, hulled: false };
   if (wasm !== null) setWasmColumns(wasm, slots, factors, timeFactor);
 
   while (p < end) {
@@ -407,9 +408,11 @@ export function scanNumericRows(bytes: Uint8Array, start: number, end: number, s
 }
 
 interface WasmRun {
-  /** Bytes [start, end) of `bytes` are in the scanner's input window. */
+  /** Bytes [start, end) of `bytes` are in the scanner's memory from address `base` (its input window, or where
+   * they are when `bytes` is its file block). */
   start: number;
   end: number;
+  base: number;
   /** Rows left to the JS loops before the compiled scanner is tried again. */
   pause: number;
   misses: number;
@@ -436,7 +439,12 @@ function scanWithWasm(
   wasm: RowScanner, run: WasmRun, bytes: Uint8Array, p: number, end: number, width: number, delimiter: number, decimal: number,
   row: number, room: number, lastTime: number, minSentinel: number, hull: TimeGridHull | null,
 ): number {
-  if (p < run.start || p >= run.end) {
+  if (wasm.block !== 0 && bytes.buffer === wasm.u8.buffer && bytes.byteOffset >= wasm.block && bytes.byteOffset + bytes.length <= wasm.block + BLOCK_BYTES) {
+    // The bytes are in the scanner's file block already (rowScannerBlock): every complete line up to `end` at once.
+    run.start = p;
+    run.end = end;
+    run.base = bytes.byteOffset + p;
+  } else if (p < run.start || p >= run.end || run.base !== wasm.input) {
     // Fill the window with the complete lines from p: up to the last LF, or a CR not followed by an LF, in it.
     const limit = Math.min(end, p + WINDOW_BYTES);
     let j = limit - 1;
@@ -449,6 +457,7 @@ function scanWithWasm(
     wasm.u8.set(bytes.subarray(p, j + 1), wasm.input);
     run.start = p;
     run.end = j + 1;
+    run.base = wasm.input;
   }
   const stride = Math.floor(OUTPUT_DOUBLES / width);
   run.rows = Math.min(stride, room);
@@ -456,11 +465,11 @@ function scanWithWasm(
   run.hulled = hull !== null && hull.saveTo(wasm.f64, wasm.hull >> 3, HULL_ROOM);
   const [upper, lower] = run.hulled ? (hull as TimeGridHull).counts : [0, 0];
   const n = wasm.scan(
-    wasm.input + (p - run.start), wasm.input + (run.end - run.start), width, delimiter, decimal, wasm.columns, wasm.output, stride, run.rows,
+    run.base + (p - run.start), run.base + (run.end - run.start), width, delimiter, decimal, wasm.columns, wasm.output, stride, run.rows,
     lastTime, minSentinel, run.hulled ? wasm.hull : 0, HULL_ROOM, upper, lower, row, run.hulled ? (hull as TimeGridHull).t0 : 0, run.hulled ? (hull as TimeGridHull).dtHint : 0,
   );
   if (run.hulled) (hull as TimeGridHull).loadFrom(wasm.f64, wasm.hull >> 3, HULL_ROOM, wasm.upperAfter(), wasm.lowerAfter());
-  run.p = run.start + (wasm.stopAt() - wasm.input);
+  run.p = run.start + (wasm.stopAt() - run.base);
   run.lastTime = wasm.lastTimeAfter();
   countRowScannerRows(n);
   return n;

@@ -1,6 +1,7 @@
 import { readSync } from 'node:fs';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { scanNumericRows, type ScanOutput, type ScanSpec, type ScanState, type ScanStop } from '../../shared/import/scan-numeric-rows.ts';
+import { BLOCK_BYTES, rowScannerBlock } from '../../shared/import/wasm/scan-rows-wasm.ts';
 
 export interface ScanFileRangeOptions {
   /** Bytes read per system call; also the longest line accepted. @default 4 MiB */
@@ -15,8 +16,10 @@ export interface ScanFileRangeOptions {
 export function scanFileRange(fd: number, start: number, end: number, spec: ScanSpec, out: ScanOutput, state: ScanState, options: ScanFileRangeOptions = {}): ScanStop | null {
   const { blockBytes = 4 << 20 } = options;
   if (!(start >= 0 && start <= end)) throw new RangeError('start and end must satisfy 0 <= start <= end');
-  // One spare byte to end a last line that has no line end, as the scanner wants.
-  const buffer = new Uint8Array(Math.min(blockBytes, Math.max(1, end - start)) + 1);
+  // One spare byte to end a last line that has no line end, as the scanner wants. Read straight into the compiled
+  // scanner's memory where there is one (no copy of every byte into its window; the JS scanner reads it as well).
+  const size = Math.min(blockBytes, Math.max(1, end - start)) + 1;
+  const buffer = (size <= BLOCK_BYTES ? rowScannerBlock(size) : null) ?? new Uint8Array(size);
   const room = buffer.length - 1;
   let filled = 0; // bytes in buffer
   let bufferAt = start; // file offset of buffer[0]

@@ -77,9 +77,10 @@ let runMant: u64 = 0;
 /**
  * Reads the run of digits at `q` onto `mant` (runMant: mant·10^k + the run), eight at a time, then the 1–7 left in
  * one more step (the lanes after them shifted out); returns where the run ends. The integer part and the fraction
- * both go through it.
+ * both go through it. Not inlined: only the byte-by-byte reading (longer fields, odd forms) calls it, and two
+ * inlined copies of its loop made the module bigger for no measured gain.
  */
-@inline function digitsFrom(q: usize, mant: u64): usize {
+function digitsFrom(q: usize, mant: u64): usize {
   let v = load<u64>(q);
   let x = nonDigits(v);
   while (x == 0) {
@@ -109,6 +110,70 @@ let runMant: u64 = 0;
     + eightDigits((load<u64>(p + 8) - 0x3030303030303030) << (<u64>(16 - n) << 3));
 }
 
+// The double a field spells, from its sign, its digits as an integer `mant` and its power of ten: one exact IEEE
+// multiplication or division (Clinger's fast path); NaN when the field is outside that path (the JS scanner reads
+// it). NaN is never a field's value here, as only digits are read.
+// @ts-ignore: decorator
+@inline function exactValue(neg: bool, mant: u64, exp10: i32): f64 {
+  if (mant > MAX_EXACT) return NaN;
+  let value: f64 = 0;
+  if (mant == 0) value = 0;
+  else if (exp10 == 0) value = <f64>mant;
+  else if (exp10 > 0 && exp10 <= 22) value = <f64>mant * load<f64>(POW10 + (<usize>exp10 << 3));
+  else if (exp10 < 0 && exp10 >= -22) value = <f64>mant / load<f64>(POW10 + (<usize>(-exp10) << 3));
+  else return NaN;
+  return neg ? -value : value;
+}
+
+// The row shape: a scope writes its rows with one printf format, so a row is usually laid out as the one before
+// it, byte for byte, but for which digits it holds. The last row the field-by-field reading took is kept as such a
+// shape (its bytes with every digit replaced by '0', up to SHAPE_BYTES long, line end included) with where each
+// field's digits are; a row of the same shape is then read at those places without looking for its fields. Its
+// fields are read the same way (the same digit runs, the same arithmetic) as the field-by-field reading would, and
+// every check that depends on the digits' values (the range of the exponent, sentinels, the time) is made again;
+// a row that fails one goes to the field-by-field reading, which then stops at it as before.
+const SHAPE_BYTES = 48;
+const SHAPE_FIELDS = 24; // at most SHAPE_BYTES / 2 fields fit in a shape
+// Per field, 8 bytes: offset of the integer digits, their count, offset of the fraction's digits, their count,
+// offset of the exponent's digits, their count, minus sign, exponent's minus sign (offsets from the row's start).
+const SHAPE_FIELD_INFO = memory.data(SHAPE_FIELDS * 8, 8);
+const SHAPE = memory.data(SHAPE_BYTES, 16);
+// Per field, 16 lanes for i8x16.swizzle from its first digit on: its mantissa's digits right-aligned, zeros before.
+const SHAPE_DIGIT_LANES = memory.data(SHAPE_FIELDS * 16, 16);
+const IOTA = memory.data<u8>([0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15]);
+// Length of the row shape in bytes, 0 for none.
+let shapeLength: i32 = 0;
+
+// Lanes of the row bytes v equal to the shape s, once each digit counts as '0' (a bit set per lane).
+// @ts-ignore: decorator
+@inline function shapeLanes(v: v128, s: v128): i32 {
+  const zeros = i8x16.splat(48);
+  const digit = i8x16.lt_u(i8x16.sub(v, zeros), i8x16.splat(10));
+  return i8x16.bitmask(i8x16.eq(v128.bitselect(zeros, v, digit), s));
+}
+
+// The row at p has the shape (it ends inside the window: the caller checks p + shapeLength <= end).
+// @ts-ignore: decorator
+@inline function hasShape(p: usize, length: i32): bool {
+  const want: u64 = (<u64>1 << <u64>length) - 1;
+  const got = <u64>shapeLanes(v128.load(p), v128.load(SHAPE))
+    | (<u64>shapeLanes(v128.load(p + 16), v128.load(SHAPE + 16)) << 16)
+    | (<u64>shapeLanes(v128.load(p + 32), v128.load(SHAPE + 32)) << 32);
+  return (got & want) == want;
+}
+
+// Keeps the row [p, p + length) as the shape (its fields' places are already in SHAPE_FIELD_INFO).
+// @ts-ignore: decorator
+@inline function keepShape(p: usize, length: i32): void {
+  const zeros = i8x16.splat(48);
+  const tens = i8x16.splat(10);
+  for (let k = 0; k < SHAPE_BYTES; k += 16) {
+    const v = v128.load(p + k);
+    v128.store(SHAPE + k, v128.bitselect(zeros, v, i8x16.lt_u(i8x16.sub(v, zeros), tens)));
+  }
+  shapeLength = length;
+}
+
 /**
  * Scans rows from `start` while they are plain numbers, up to `maxRows` rows or `end` (the window's end, just
  * after a line end). Returns the rows taken; stopAt() gives where it stopped and lastTimeAfter() the last time.
@@ -135,13 +200,49 @@ export function scan(
   const tens = i8x16.splat(10);
   let p = start;
   let row = 0;
+  // A shape is kept within one call only: the next may be for other columns or another delimiter.
+  shapeLength = 0;
   while (p < end && row < maxRows) {
     if (hull != 0 && (upper >= hullRoom || lower >= hullRoom)) break;
     let q = p;
     let col = 0;
     let rowTime: f64 = NaN;
     let taken = false;
-    for (;;) {
+    const length = shapeLength;
+    let byShape = length != 0 && p + length <= end && hasShape(p, length);
+    if (byShape) {
+      // Laid out as the row before: each field's digits are where the shape says (see SHAPE_BYTES).
+      taken = true;
+      for (; col < width; col++) {
+        const info = SHAPE_FIELD_INFO + (<usize>col << 3);
+        const intDigits = <i32>load<u8>(info, 1);
+        const fracDigits = <i32>load<u8>(info, 3);
+        const expDigits = <i32>load<u8>(info, 5);
+        // All the mantissa's digits (at most 15, after the sign), the point left out and right-aligned in 16 lanes.
+        const lanes = i8x16.swizzle(i8x16.sub(v128.load(p + load<u8>(info)), zeros), v128.load(SHAPE_DIGIT_LANES + (<usize>col << 4)));
+        const mant = eightDigits(i64x2.extract_lane(lanes, 0)) * 100000000 + eightDigits(i64x2.extract_lane(lanes, 1));
+        let e: i32 = 0;
+        const expAt = p + load<u8>(info, 4);
+        for (let i = 0; i < expDigits; i++) e = e * 10 + (<i32>load<u8>(expAt + i) - 48);
+        const value = exactValue(load<u8>(info, 6) != 0, mant, (load<u8>(info, 7) != 0 ? -e : e) - fracDigits);
+        if (value != value || (value != 0 && abs(value) >= minSentinel)) { taken = false; break; }
+        const scaled = value * load<f64>(columns + (col << 3));
+        if (load<i32>(columns + (width << 3) + (col << 2)) != 0) {
+          if (!(abs(scaled) <= MAX_TIME_SECONDS)) { taken = false; break; }
+          rowTime = scaled;
+        }
+        store<f64>(out + ((col * stride + row) << 3), scaled);
+      }
+      if (taken) q = p + length;
+      else {
+        byShape = false;
+        col = 0;
+        rowTime = NaN;
+      }
+    }
+    // Field by field; a row taken this way that is short enough becomes the shape.
+    let shapeOk = width <= SHAPE_FIELDS && <u32>(delimiter - 48) >= 10;
+    if (!taken) for (;;) {
       let neg = false;
       let mant: u64 = 0;
       let exp10: i32 = 0;
@@ -183,11 +284,31 @@ export function scan(
           if (intDigits != 0) mant = digitRun(q + sign, intDigits);
           if (fracDigits != 0) mant = mant * ipow10(fracDigits) + digitRun(q + sign + intDigits + 1, fracDigits);
           exp10 = (eneg ? -e : e) - fracDigits;
+          if (shapeOk) {
+            const info = SHAPE_FIELD_INFO + (<usize>col << 3);
+            const at = q - p; // below SHAPE_BYTES while the row may become the shape; checked at its end
+            store<u8>(info, <u8>(at + sign));
+            store<u8>(info, <u8>intDigits, 1);
+            store<u8>(info, <u8>(at + sign + intDigits + 1), 2);
+            store<u8>(info, <u8>fracDigits, 3);
+            store<u8>(info, <u8>(at + k), 4); // k: past the exponent's mark and sign, else the field's end
+            store<u8>(info, <u8>(length - k), 5);
+            store<u8>(info, <u8>sign, 6);
+            store<u8>(info, <u8>(eneg ? 1 : 0), 7);
+            // Output lane j takes digit i = j − (16 − n) of the n, from lane i of the integer part or i + 1 (past the
+            // point) of the fraction; lanes before the digits get 255, which swizzle turns into 0.
+            const iota = v128.load(IOTA);
+            const n = intDigits + fracDigits;
+            const i = i8x16.sub(iota, i8x16.splat(<i8>(16 - n)));
+            const from = i8x16.sub(i, i8x16.ge_s(i, i8x16.splat(<i8>intDigits)));
+            v128.store(SHAPE_DIGIT_LANES + (<usize>col << 4), v128.or(from, i8x16.lt_u(iota, i8x16.splat(<i8>(16 - n)))));
+          }
           q += length;
           c = <i32>load<u8>(q);
         }
       }
       if (!simple) {
+        shapeOk = false;
         // Byte by byte (eight digits at a time where eight are there): longer fields, and every form to refuse.
         if (load<u8>(q) == 45) { neg = true; q++; }
         // Integer part (digitsFrom: eight digits at a time).
@@ -219,14 +340,8 @@ export function scan(
         }
       }
       if (c != delimiter && c != 10 && c != 13) break;
-      if (mant > MAX_EXACT) break;
-      let value: f64 = 0;
-      if (mant == 0) value = 0;
-      else if (exp10 == 0) value = <f64>mant;
-      else if (exp10 > 0 && exp10 <= 22) value = <f64>mant * load<f64>(POW10 + (<usize>exp10 << 3));
-      else if (exp10 < 0 && exp10 >= -22) value = <f64>mant / load<f64>(POW10 + (<usize>(-exp10) << 3));
-      else break;
-      if (neg) value = -value;
+      const value = exactValue(neg, mant, exp10);
+      if (value != value) break;
       // A value that may be a numeric sentinel: the JS scanner decides.
       if (value != 0 && abs(value) >= minSentinel) break;
       const param = columns + (col << 3);
@@ -275,8 +390,15 @@ export function scan(
       }
     }
     row++;
+    if (byShape) {
+      p = q; // line end included
+      continue;
+    }
     if (q < end && load<u8>(q) == 13) q++;
     if (q < end && load<u8>(q) == 10) q++;
+    // Only a row ended by an LF: after a lone CR the next row might begin with an LF that would be taken with it.
+    if (shapeOk && q - p <= SHAPE_BYTES && load<u8>(q - 1) == 10) keepShape(p, q - p);
+    else shapeLength = 0;
     p = q;
   }
   stopOffset = p;

@@ -4,7 +4,7 @@ import fc from 'fast-check';
 import { afterEach, describe, expect, it } from 'vitest';
 import { SLOT_TIME, scanNumericRows, type ScanSpec, type ScanState, type ScanStop } from '../../../shared/import/scan-numeric-rows.ts';
 import { TimeGridHull } from '../../../shared/import/time-grid-hull.ts';
-import { OUTPUT_DOUBLES, rowScanner, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
+import { BLOCK_BYTES, OUTPUT_DOUBLES, rowScanner, rowScannerBlock, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
 import { compileScanWasm, renderGenerated, repoRoot, SCAN_WASM_GENERATED } from '../../../scripts/lib/compile-scan-wasm.ts';
 
 const encoder = new TextEncoder();
@@ -28,8 +28,15 @@ interface Result {
 
 /** Scans `text` in blocks of `block` bytes (cut at line ends, as the disk reader does), resuming after stops
  * that are text or errors the way a caller that skips a bad line would, with the compiled scanner on or off. */
-function scan(text: string | Uint8Array, s: ScanSpec, compiled: boolean, options: { block?: number; capacity?: number; hull?: boolean } = {}): Result {
-  const bytes = typeof text === 'string' ? encoder.encode(text) : text;
+function scan(text: string | Uint8Array, s: ScanSpec, compiled: boolean, options: { block?: number; capacity?: number; hull?: boolean; inScannerBlock?: boolean } = {}): Result {
+  let bytes = typeof text === 'string' ? encoder.encode(text) : text;
+  if (options.inScannerBlock) {
+    // The bytes where the disk reader reads them: in the scanner's own memory (rowScannerBlock), scanned in place.
+    const block = rowScannerBlock(bytes.length);
+    expect(block).not.toBeNull();
+    (block as Uint8Array).set(bytes);
+    bytes = block as Uint8Array;
+  }
   const capacity = options.capacity ?? bytes.length;
   const channels = s.factors.length;
   const hasTime = s.slots.includes(SLOT_TIME);
@@ -89,6 +96,13 @@ function both(text: string | Uint8Array, s: ScanSpec, options: Parameters<typeof
   const js = scan(text, s, false, options);
   const wasm = scan(text, s, true, options);
   expectSame(js, wasm);
+  // And with the bytes in the scanner's file block (no copy into its window), when they fit in one.
+  const length = typeof text === 'string' ? encoder.encode(text).length : text.length;
+  if (length > 0 && length <= BLOCK_BYTES) {
+    const inPlace = scan(text, s, true, { ...options, inScannerBlock: true });
+    expectSame(js, inPlace);
+    expect(inPlace.wasmRows).toBe(wasm.wasmRows);
+  }
   return { js, wasm };
 }
 
@@ -150,6 +164,66 @@ describe('compiled row scanner (shared/import/wasm)', () => {
       both(text, spec({ numericSentinels: [9.91e37] }), { block, hull });
       both(text, spec({ slots: [0, SLOT_TIME, 1], numericSentinels: [9.91e37] }), { hull });
     }), { numRuns: 400 });
+  });
+
+  // Rows printed with one format, as a scope writes them: the compiled scanner reads a row laid out as the one before
+  // it from that row's layout (its "shape"). Mostly the same layout with random digits, now and then another
+  // (a sign that comes or goes, one digit more, an odd form, an exponent out of the exact range, a sentinel,
+  // a time that repeats or goes back, a blank line, a sentinel, another line end): every such row must end up where
+  // the field-by-field reading puts it.
+  const layout = fc.record({
+    neg: fc.constantFrom('', '-', '?'),
+    int: fc.integer({ min: 0, max: 9 }),
+    frac: fc.option(fc.integer({ min: 0, max: 9 }), { nil: undefined }),
+    exp: fc.option(fc.tuple(fc.constantFrom('e', 'E'), fc.constantFrom('', '-', '+'), fc.integer({ min: 1, max: 4 })), { nil: undefined }),
+  }).filter((l) => l.int + (l.frac ?? 0) > 0 && l.int + (l.frac ?? 0) + (l.frac === undefined ? 0 : 1) + (l.exp ? 2 + l.exp[2] : 0) < 15);
+  const printed = (l: { neg: string; int: number; frac?: number; exp?: [string, string, number] }, digit: () => string, big: boolean) => {
+    const run = (n: number) => Array.from({ length: n }, digit).join('');
+    const neg = l.neg === '?' ? (digit() < '5' ? '-' : '') : l.neg;
+    // Exponents of one digit but for the leading zeros (always within the exact range), or all nines (beyond it, mostly).
+    const exp = l.exp ? `${l.exp[0]}${l.exp[1]}${big ? '9'.repeat(l.exp[2]) : '0'.repeat(l.exp[2] - 1) + digit()}` : '';
+    return `${neg}${run(l.int)}${l.frac === undefined ? '' : `.${run(l.frac)}`}${exp}`;
+  };
+  it('When runs of rows share one printed layout, then reading them by layout gives what reading field by field gives', () => {
+    fc.assert(fc.property(
+      fc.array(layout, { minLength: 2, maxLength: 4 }), fc.integer({ min: 0, max: 2 ** 31 - 1 }), fc.constantFrom('\n', '\r\n', '\r'), fc.boolean(), fc.integer({ min: 8, max: 400 }), fc.boolean(),
+      (layouts, seed, eol, hull, block, smallSentinel) => {
+        let state = seed >>> 0;
+        const rand = () => (state = (Math.imul(state, 1103515245) + 12345) >>> 0) / 2 ** 32;
+        const digit = () => String(Math.floor(rand() * 10));
+        const lines: string[] = [];
+        let t = 100000;
+        for (let i = 0; i < 300; i++) {
+          const odd = rand();
+          t += odd < 0.01 ? 0 : odd < 0.02 ? -1 : 1;
+          const fields = layouts.map((l, k) => printed(odd < 0.05 && k === 1 ? layouts[(k + 1) % layouts.length] : l, digit, odd >= 0.05 && odd < 0.06));
+          let line = `${t},${fields.join(',')}`;
+          if (odd >= 0.06 && odd < 0.07) line = line.replace(',', ', ');
+          else if (odd >= 0.07 && odd < 0.075) line = `${t},9.91E+37${line.slice(line.indexOf(',', line.indexOf(',') + 1))}`;
+          else if (odd >= 0.075 && odd < 0.08) line = '';
+          else if (odd >= 0.08 && odd < 0.085) line = `${line},1`;
+          // Now and then another line end (a CRLF after lone CRs, where the LF must not start a row of its own).
+          lines.push(line + (odd >= 0.085 && odd < 0.1 ? ['\n', '\r\n', '\r'][Math.floor(rand() * 3)] : eol));
+        }
+        const text = lines.join('');
+        // A sentinel of 5 makes every value from 5 up one the compiled scanner must leave to JS to decide.
+        const sentinels = smallSentinel ? [9.91e37, 5] : [9.91e37];
+        const s = spec({ slots: [SLOT_TIME, ...layouts.map((_, k) => k)], factors: layouts.map(() => 1), requiredFields: layouts.length + 1, expected: layouts.length + 1, numericSentinels: sentinels });
+        const { wasm } = both(text, s, { block, hull });
+        if (eol !== '\r' && !smallSentinel) expect(wasm.wasmRows).toBeGreaterThan(0);
+      },
+    ), { numRuns: 300 });
+  });
+
+  it('When a row laid out as the one before holds a sentinel or a time out of range, then it is left to JS as field by field', () => {
+    // "5" is laid out as "3": only its value makes it the sentinel (NaN, counted). A time of 1.5e+12 s is laid out
+    // as 1.4e+12 s but beyond the ±1e12 s the importer accepts (shared/import/value-limits.ts): an error on its line.
+    const sentinel = both('1,3,1\n2,3,1\n3,5,1\n4,3,1\n', spec({ factors: [1, 1], timeFactor: 1, numericSentinels: [5] }));
+    expect(Array.from(sentinel.wasm.values[0].subarray(0, 4))).toEqual([3, 3, NaN, 3]);
+    expect(sentinel.wasm.invalidCounts).toEqual([1, 0]);
+    const time = both('1.1e+11,1,1\n1.2e+11,1,1\n1.5e+12,1,1\n', spec({ factors: [1, 1], timeFactor: 1 }));
+    expect(time.wasm.stops.map((x) => x.line)).toEqual([3]);
+    expect(time.wasm.wasmRows).toBe(2);
   });
 
   it('When the rows run past the input window and the output block, then nothing is lost or doubled at the seams', () => {
