@@ -23,8 +23,8 @@ describe('readCaptureFile on every fixture layout', () => {
       }
       capture.channels.forEach((c, k) => expect(Array.from(c.values)).toEqual(Array.from(text.channels[k].values)));
       expect(capture.warnings).toEqual(text.warnings);
-      // The arrays own exactly their samples: no hidden slack behind values.buffer.
-      for (const c of capture.channels) expect(c.values.buffer.byteLength).toBe(c.values.length * 8);
+      // Plain buffers: loops over typed arrays on resizable ones run about 2× slower in Node 20's V8.
+      for (const c of capture.channels) expect((c.values.buffer as ArrayBuffer & { resizable?: boolean }).resizable).not.toBe(true);
       expect(capture.metadata).toEqual(text.metadata);
     });
   }
