@@ -1,10 +1,11 @@
 /**
- * `npm run bench:pipeline -- --deep`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB) uploaded to a
+ * `npm run bench:pipeline -- --deep [--rounds N]`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB) uploaded to a
  * shot through the real API server and worker, timed from the start of the upload to the analysed result seen by
  * a poll every 20 ms. Baselines in the same run, before each shot, each a process of its own (wall time) on the
  * same file: the CLI as users run it (`npm run --silent analyze -- FILE --gate …`: npm, then the compiled bundle),
  * the compiled bundle alone (`node dist/node/worker/cli/analyze.js`), and the TypeScript through tsx (how
- * `npm run analyze` ran when issue 13 set the target). Three rounds; medians. Targets (issue 13): pipeline ≤ 1.5× the
+ * `npm run analyze` ran when issue 13 set the target). Three rounds (or N); medians. Each timing starts once the API
+ * server and the worker are idle. Targets (issue 13): pipeline ≤ 1.5× the
  * CLI, and the result ≤ 1 s after the upload's response (which comes after the server has the last byte). Run in one
  * command with the API reading the file while it arrives, and with the worker reading it afterwards.
  * Two clients send the file: curl (Debian's, as a lab script would) and Node's fetch with a FormData of the file
@@ -28,8 +29,34 @@ import { pollUntil, signIn } from './lib/pipeline-client.ts';
 import { cpuSeconds } from './lib/process-usage.ts';
 import { timeCli } from './lib/time-process.ts';
 
-const ROUNDS = 3;
+/** Rounds per mode: `--rounds N`, default 3. */
+const ROUNDS = roundsArgument(process.argv);
 const POLL_MS = 20;
+
+function roundsArgument(argv: string[]): number {
+  const at = argv.indexOf('--rounds');
+  if (at < 0) return 3;
+  const n = Number(argv[at + 1]);
+  if (!Number.isInteger(n) || n < 1) throw new Error(`--rounds needs a whole number of rounds, got '${argv[at + 1] ?? ''}'`);
+  return n;
+}
+
+/**
+ * Waits until the API server and the worker have used less than 10 ms of processor time in 250 ms (at most 15 s),
+ * so that what they still do after a result (channel files written, a reading thread started ahead for the next
+ * upload) is not counted in the next timing: neither against the CLI, nor for the next upload.
+ */
+async function untilIdle(pids: number[]): Promise<void> {
+  const used = () => pids.reduce((sum, pid) => sum + (cpuSeconds(pid) ?? 0), 0);
+  const until = performance.now() + 15_000;
+  let before = used();
+  while (performance.now() < until) {
+    await new Promise((resolve) => setTimeout(resolve, 250));
+    const now = used();
+    if (now - before < 0.015) return;
+    before = now;
+  }
+}
 
 interface ShotView {
   captures: { state: string; error: string | null }[];
@@ -128,7 +155,9 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
     // thread too) and the worker's.
     const cpu = { client: [] as number[], api: [] as number[], worker: [] as number[] };
     let speed = '';
+    const serverPids = [bench.app.api.pid!, ...(bench.app.worker?.pid !== undefined ? [bench.app.worker.pid] : [])];
     for (let round = 0; round < ROUNDS; round++) {
+      await untilIdle(serverPids);
       cli.push((await timeCli(file, 'npm')).ms);
       compiledCli.push((await timeCli(file, 'compiled')).ms);
       tsxCli.push((await timeCli(file, 'tsx')).ms);
@@ -138,6 +167,7 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
       if (created.status !== 201) throw new Error(`could not log a shot: HTTP ${created.status} ${JSON.stringify(created.body)}`);
       const shotId = created.body.shot.id;
       const url = `${bench.app.baseUrl}/api/shots/${shotId}/captures`;
+      await untilIdle(serverPids);
       const apiBefore = cpuSeconds(bench.app.api.pid);
       const workerBefore = bench.app.worker ? cpuSeconds(bench.app.worker.pid) : null;
       const started = performance.now();

@@ -9,6 +9,7 @@ import { labEventHubFor } from './modules/events/lab-event-hub.ts';
 import { createSequelize } from './db/sequelize.ts';
 import { createBlobStore } from './storage/create-blob-store.ts';
 import { warmUploadPath } from './modules/shots/warm-upload.ts';
+import { prestartUploadReader } from './modules/shots/upload-reader.ts';
 
 /** The API server process: reads config, connects, listens, and shuts down cleanly on SIGINT/SIGTERM. */
 async function main() {
@@ -28,7 +29,10 @@ async function main() {
   const server = app.listen(config.port, config.host, () => {
     logger.info({ url: config.publicUrl, port: config.port }, 'Gatepost API listening');
     // Not awaited: requests are served meanwhile (the first upload after a start then pays for what is not ready).
-    void warmUploadPath(config, queues).catch((err: Error) => logger.debug({ err: err.message }, 'upload path not readied ahead'));
+    void warmUploadPath(config, queues)
+      .catch((err: Error) => logger.debug({ err: err.message }, 'upload path not readied ahead'))
+      // Then the thread that reads the next large upload while it arrives, started and warmed up ahead of it.
+      .finally(() => { if (config.readUploadsFromBytes >= 0) prestartUploadReader(); });
   });
   server.on('error', (err) => {
     logger.fatal({ err }, 'cannot listen');

@@ -3,7 +3,7 @@ import path from 'node:path';
 import { Op } from 'sequelize';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
-import { simulateShot } from '../../shared/simulate/simulate-shot.ts';
+import { simulatedShotCsv, WARM_UP_PARAMETERS, warmUpShot } from '../../shared/simulate/warm-up-shot.ts';
 import { writeCaptureLayout } from '../../fixtures/lib/write-capture-layout.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
@@ -91,14 +91,7 @@ export async function warmDatabase(kind: 'ingest' | 'analysis'): Promise<void> {
  */
 export async function warmThread(kind: 'ingest' | 'analysis'): Promise<void> {
   await warmDatabase(kind).catch(() => {});
-  // Two gates 0.15 m apart, as a bench or lab pair, a 300 m/s projectile; 100 000 samples at 10 ns (1 ms), as a
-  // fast scope records a shot: each pulse is thousands of samples long, as in the records the engine meets.
-  // With noise and a photodiode's rise time, as real records have: on clean square pulses the engine's crossing and
-  // noise paths and the reader's many-digit numbers would stay cold for the first real job.
-  const shot = simulateShot({
-    length: 100_000, sampleInterval: 1e-8, t0: -1e-4, speed: 300, seed: 7, gatePositions: [0, 0.15], channelNames: ['Gate A', 'Gate B'],
-    noiseRms: 0.01, responseTime: 1e-6,
-  });
+  const shot = warmUpShot();
   const source = { t0: shot.time.t0, dt: shot.time.dt, channels: shot.channels };
   const none = '00000000-0000-0000-0000-000000000000';
   const { config } = workerContext();
@@ -107,7 +100,7 @@ export async function warmThread(kind: 'ingest' | 'analysis'): Promise<void> {
   try {
     const store = new LocalDiskStore(path.join(dir, 'blobs'));
     // Plain decimal times and volts (what most scopes and our own exports write) and exponent times.
-    const files = [writeCaptureLayout('plain-time', source).bytes, exponentCsv(shot)];
+    const files = [writeCaptureLayout('plain-time', source).bytes, simulatedShotCsv(shot)];
     if (kind === 'ingest') {
       for (let round = 0; round < READ_ROUNDS; round++) {
         for (const [i, bytes] of files.entries()) {
@@ -134,12 +127,7 @@ export async function warmThread(kind: 'ingest' | 'analysis'): Promise<void> {
       const row = Capture.build({
         id: none, channels: await writeChannelFiles(store, 'warm', 'warm', imported), layout: imported.layout, warnings: imported.warnings,
       } as never, { isNewRecord: false });
-      // The parameters a shot's defaults give: its gates with their channels, the projectile's size and mass.
-      const parameters = analysisOptionsSchema.parse({
-        gates: [{ channel: 'Gate A', position: 0 }, { channel: 'Gate B', position: 0.15 }],
-        positionTolerance: 0.0005,
-        projectile: { length: 0.04, lengthTolerance: 0.0001, mass: 0.0027, massTolerance: 0.00005 },
-      });
+      const parameters = analysisOptionsSchema.parse(WARM_UP_PARAMETERS);
       let results: unknown = null;
       for (let round = 0; round < ANALYSIS_ROUNDS; round++) {
         const capture = await readStoredChannels(store, row);
@@ -165,12 +153,4 @@ async function warmResultsWrite(results: Record<string, unknown>): Promise<void>
   }).catch((err: unknown) => {
     if (!(err instanceof WarmRollback)) throw err;
   });
-}
-
-/** The shot as CSV with times in exponent notation and five-decimal volts. */
-function exponentCsv(shot: ReturnType<typeof simulateShot>): Uint8Array {
-  const [a, b] = shot.channels.map((c) => c.values);
-  const lines = ['Time (s),Gate A (V),Gate B (V)'];
-  for (let i = 0; i < a.length; i++) lines.push(`${(shot.time.t0 + i * shot.time.dt).toExponential(8)},${a[i].toFixed(5)},${b[i].toFixed(5)}`);
-  return new TextEncoder().encode(`${lines.join('\n')}\n`);
 }

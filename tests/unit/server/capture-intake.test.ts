@@ -11,6 +11,7 @@ import type { Request } from 'express';
 import { afterAll, describe, expect, it } from 'vitest';
 import { simulatedCsv } from '../../../bench/lib/pipeline-client.ts';
 import { captureIntake, type ReceivedFile } from '../../../server/modules/shots/capture-intake.ts';
+import { prestartUploadReader, spareUploadReaderThreadId, stopSpareUploadReader } from '../../../server/modules/shots/upload-reader.ts';
 import { LocalDiskStore } from '../../../server/storage/local-disk-store.ts';
 import { channelFilesOf } from '../../../server/traces/write-channel-files.ts';
 import { readCaptureFile } from '../../../worker/import/read-capture-file.ts';
@@ -52,9 +53,8 @@ describe('When an upload arrives in uneven chunks through small blocks', () => {
     expect(Buffer.compare(readFileSync(got.path), Buffer.from(csv.bytes))).toBe(0);
   });
 
-  it("then with a reader the file is the same too, and the reader's samples are the disk reader's to the bit", async () => {
-    const got = await receive(csv.bytes, 0, 11);
-    expect(got.reader).not.toBeNull();
+  /** The stored file is the upload's bytes, and what the reader read (descriptor, files, values) the disk reader's. */
+  async function expectReadAsOnDisk(got: ReceivedFile): Promise<void> {
     expect(got.sha256).toBe(sha256);
     expect(Buffer.compare(readFileSync(got.path), Buffer.from(csv.bytes))).toBe(0);
     const read = await got.reader!.outcome;
@@ -82,5 +82,35 @@ describe('When an upload arrives in uneven chunks through small blocks', () => {
     const f64 = kept!.find((b) => b.key === 'ch1/values.f64')!;
     const values = new Float64Array(f64.bytes.buffer, f64.bytes.byteOffset, f64.bytes.byteLength / 8);
     expect(Buffer.compare(Buffer.from(values.buffer, values.byteOffset, values.byteLength), Buffer.from(reference.channels[1].values.buffer, reference.channels[1].values.byteOffset, reference.channels[1].values.byteLength))).toBe(0);
+  }
+
+  it("then with a reader the file is the same too, and the reader's samples are the disk reader's to the bit", async () => {
+    const got = await receive(csv.bytes, 0, 11);
+    expect(got.reader).not.toBeNull();
+    await expectReadAsOnDisk(got);
+  });
+
+  it('then a thread started ahead (warmed up on a simulated shot) reads it the same, and the next is started after it', async () => {
+    try {
+      prestartUploadReader();
+      const spare = spareUploadReaderThreadId();
+      expect(spare).not.toBeNull();
+      // Let it warm up first, as it does between uploads; the upload then waits for nothing.
+      await new Promise((resolve) => setTimeout(resolve, 300));
+      const got = await receive(csv.bytes, 0, 13);
+      expect(got.reader!.threadId).toBe(spare);
+      expect(spareUploadReaderThreadId()).toBeNull();
+      await expectReadAsOnDisk(got);
+      const next = spareUploadReaderThreadId();
+      expect(next).not.toBeNull();
+      expect(next).not.toBe(spare);
+      // An upload that comes while the spare still warms up waits for it, and is read the same.
+      const early = await receive(csv.bytes, 0, 17);
+      expect(early.reader!.threadId).toBe(next);
+      await expectReadAsOnDisk(early);
+    } finally {
+      await stopSpareUploadReader();
+    }
+    expect(spareUploadReaderThreadId()).toBeNull();
   });
 });
