@@ -438,4 +438,16 @@ describe('When a job gave up for good but writing that down was lost (the databa
       await notify.close();
     }
   }, 60_000);
+
+  it('then a shot left "processing" with nothing pending (its status write lost) is settled by the sweep, and logged as such', async () => {
+    const shotId = await newShot(exitRigId);
+    expect((await experimenter.upload(shotId, [{ name: 'lost-status.csv', bytes: simulatedCsv({ speed: 300, seed: 79 }).bytes }])).status).toBe(202);
+    const done = await settled(shotId, 60_000);
+    expect(done.shot.status).not.toBe('processing');
+    const logged = () => workers.reduce((n, w) => n + w.output().split('sweep settled shots left processing with nothing pending').length - 1, 0);
+    const before = logged();
+    await Shot.update({ status: 'processing' }, { where: { id: shotId } });
+    await pollUntil(async () => ((await detail(shotId)).shot.status === done.shot.status ? true : undefined), { timeoutMs: 20_000, what: 'the sweep to settle the shot' });
+    await pollUntil(async () => (logged() > before ? true : undefined), { timeoutMs: 10_000, what: 'the sweep to log the shot it settled' });
+  }, 90_000);
 });
