@@ -23,9 +23,13 @@ export async function settleShot<T extends SettlingShot>(client: PipelineClient,
     for (const a of d.analyses) note(a.id, a.state);
     // The shot's status is settled by the job after the row's state, so wait for it too.
     const busy = d.shot.status === 'processing' || d.captures.some((c) => c.state === 'queued' || c.state === 'reading') || d.analyses.some((a) => a.state === 'queued' || a.state === 'running');
-    const anyCaptureReady = d.captures.some((c) => c.state === 'ready');
-    // A ready capture is followed by an analysis: wait for it to appear as well.
-    return busy || (anyCaptureReady && d.analyses.length === 0) ? undefined : d;
+    if (busy) return undefined;
+    // A capture is marked ready in the same transaction as the shot's automatic version is made
+    // (server/modules/shots/end-capture-read.ts), so a ready capture with no version is never a state to wait out.
+    if (d.captures.some((c) => c.state === 'ready') && d.analyses.length === 0) {
+      throw new Error(`shot ${shotId} has a ready capture and no analysis version (captures: ${d.captures.map((c) => c.state).join(', ')})`);
+    }
+    return d;
   }, { timeoutMs, intervalMs: 20, what: `shot ${shotId} to settle` });
   return { shot, seen };
 }
