@@ -100,8 +100,8 @@ function analyse(parameters: AnalysisOptionsInput): UploadReaderReply {
  * is kept for arrives. Measured with --cpu-prof on the 330 MB capture (3 December 2026): a thread started by the
  * upload spent its first 0.5–0.75 s loading its modules and reading the head slowly while the upload waited for it.
  * Once: only uploads of 16 MB and more are read this way, long enough for V8 to optimise the hot loops on the way;
- * two rounds of 100 000 samples (as the worker's warm-up does) cost about 2 s of processor time on the lab's 2-core
- * machine, right after an upload. A failure only means the upload warms the code up itself.
+ * two rounds of 100 000 samples (as the worker's warm-up does) took about 2 s on the lab's 2-core machine right after
+ * an upload, beside that upload's own last steps. A failure only means the upload warms the code up itself.
  */
 async function warmUp(): Promise<void> {
   try {

@@ -56,9 +56,9 @@ function startThread(ahead: boolean): Worker {
 
 /**
  * Starts a reading thread ahead of the next large upload, if none is waiting: it loads its code and warms it up on
- * a simulated shot (upload-reader-thread.ts), then waits, costing memory only (about 60 MB, measured on the compiled build). The API starts one
- * when it starts (when it reads uploads while they arrive), and another each time an upload has taken the spare one
- * and its read is over.
+ * a simulated shot (upload-reader-thread.ts), then waits, costing memory only (about 60 MB with the compiled build).
+ * The API starts one when it starts (when it reads uploads while they arrive), and from then on another each time a
+ * reader is closed, so one is waiting again once an upload's read is over.
  */
 export function prestartUploadReader(): void {
   keepSpare = true;
