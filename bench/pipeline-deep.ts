@@ -1,6 +1,6 @@
 /**
- * `npm run bench:pipeline -- --deep [--rounds N]`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB) uploaded to a
- * shot through the real API server and worker, timed from the start of the upload to the analysed result seen by
+ * `npm run bench:pipeline -- --deep [--rounds N]`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB)
+ * uploaded to a shot through the real API server and worker, timed from the start of the upload to the analysed result seen by
  * a poll every 20 ms. Baselines in the same run, before each shot, each a process of its own (wall time) on the
  * same file: the CLI as users run it (`npm run --silent analyze -- FILE --gate …`: npm, then the compiled bundle),
  * the compiled bundle alone (`node dist/node/worker/cli/analyze.js`), and the TypeScript through tsx (how
@@ -42,7 +42,7 @@ function roundsArgument(argv: string[]): number {
 }
 
 /**
- * Waits until the API server and the worker have used less than 10 ms of processor time in 250 ms (at most 15 s),
+ * Waits until the API server and the worker have used at most one 10 ms tick of processor time in 250 ms (at most 15 s),
  * so that what they still do after a result (channel files written, a reading thread started ahead for the next
  * upload) is not counted in the next timing: neither against the CLI, nor for the next upload.
  */

@@ -6,9 +6,9 @@ import { simulateShot, type SimulatedShot } from './simulate-shot.ts';
  * worker/processors/warm-thread.ts; the API's spare reading thread, server/modules/shots/upload-reader-thread.ts):
  * V8 compiles and optimises a function when it runs, so the first real job would otherwise pay for that.
  * Two gates 0.15 m apart, as a bench or lab pair, a 300 m/s projectile; 1 ms recorded in `length` samples (100 000:
- * 10 ns, as a fast scope records a shot, each pulse thousands of samples long, as in the records the engine meets). With noise and
- * a photodiode's rise time, as real records have: on clean square pulses the engine's crossing and noise paths and
- * the reader's many-digit numbers would stay cold for the first real job.
+ * every 10 ns, as a fast scope records a shot, each pulse thousands of samples long, as in the records the engine
+ * meets). With noise and a photodiode's rise time, as real records have: on clean square pulses the engine's
+ * crossing and noise paths and the reader's many-digit numbers would stay cold for the first real job.
  */
 export function warmUpShot(length = 100_000): SimulatedShot {
   return simulateShot({
