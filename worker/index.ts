@@ -73,15 +73,12 @@ async function sweep(config: Config) {
   }
   // A shot left "processing" by a write lost between two steps (a crash after a file was read, before its analysis
   // was made) gets the missing step and its status again; settling is idempotent.
-  // One with work still queued or running is left to that work's job, which settles it (the loops above mend lost
-  // jobs): only a shot with nothing pending is stuck, and only those are counted.
+  // Counted only when this call changed the status (read under the shot's lock): one with work still pending stays
+  // "processing", and one its own job settled meanwhile was already changed when the lock was taken.
   let settled = 0;
   const stuck = await Shot.findAll({ where: { status: 'processing', updatedAt: { [Op.lt]: before } }, attributes: ['id'], limit: 500 });
   for (const s of stuck) {
-    const pending = await Capture.count({ where: { shotId: s.id, removedAt: null, state: { [Op.in]: ['queued', 'reading'] } } })
-      + await Analysis.count({ where: { shotId: s.id, state: { [Op.in]: ['queued', 'running'] } } });
-    if (pending > 0) continue;
-    if ((await afterCaptureFinished(s.id)).shot?.status !== 'processing') settled += 1;
+    if ((await afterCaptureFinished(s.id)).statusChanged) settled += 1;
   }
   if (requeued > 0) logger.info({ requeued }, 'sweep re-queued work');
   if (mended > 0) logger.info({ mended }, 'sweep recorded failures whose first write was lost');

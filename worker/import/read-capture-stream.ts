@@ -164,7 +164,7 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
       while (stop !== null && stop.kind === 'full') {
         // Full: every row so far is stored and at least one more is waiting.
         checkSampleCount(state.row + 1, options);
-        if (reserve && capacity >= most) throw new ImportError('the file grew while it was being read; read it again when the scope has finished writing it');
+        if (reserve) throw new ImportError('the file grew while it was being read; read it again when the scope has finished writing it');
         capacity *= 2;
         grow(out, capacity);
         stop = scanNumericRows(work, stop.offset, stopAt, spec, out, state);

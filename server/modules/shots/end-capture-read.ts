@@ -34,6 +34,9 @@ export interface EndCaptureReadOptions {
  * attempt, the removal of a file the current version does not read (one still being read may be all the others
  * waited for), and the worker's sweep (with nothing to write: it only makes the missing version and status).
  *
+ * Returns the shot as settled (null when it is gone), whether `write` wrote, the version made (if any) and whether
+ * the shot's status changed from the one read under the lock.
+ *
  * Lock order: the shot's row, then the capture's (settleShot and createAnalysisVersion lock the shot first too).
  * No existing version row is locked here, so the analysis job (its version, then the shot) cannot close a cycle.
  */
@@ -41,17 +44,20 @@ export async function endCaptureRead(
   ctx: { sequelize: Sequelize; queues: JobQueues; logger: Logger },
   shotId: string,
   options: EndCaptureReadOptions = {},
-): Promise<{ shot: Shot | null; written: boolean; versionMadeId: string | null }> {
+): Promise<{ shot: Shot | null; written: boolean; versionMadeId: string | null; statusChanged: boolean }> {
   const { write, precomputed, onlyWithoutCurrent = false } = options;
   const ended = await ctx.sequelize.transaction(async (transaction) => {
     const shot = await Shot.findByPk(shotId, { transaction, lock: transaction.LOCK.UPDATE });
-    if (!shot) return { shot: null, written: false, created: false, job: null };
-    if (write && !(await write(transaction))) return { shot, written: false, created: false, job: null };
+    if (!shot) return { shot: null, written: false, created: false, job: null, statusChanged: false };
+    if (write && !(await write(transaction))) return { shot, written: false, created: false, job: null, statusChanged: false };
     const { created, job } = onlyWithoutCurrent && shot.currentAnalysisId
       ? { created: false, job: null }
       : await automaticVersionIn(shot, transaction, precomputed);
-    return { shot: await settleShot(shotId, transaction), written: write !== undefined, created, job };
+    const settled = await settleShot(shotId, transaction);
+    return { shot: settled, written: write !== undefined, created, job, statusChanged: settled !== null && settled.status !== shot.status };
   });
   if (ended.job) await ctx.queues.addAnalysisOrDefer(ended.job, ctx.logger);
-  return { shot: ended.shot, written: ended.written, versionMadeId: ended.created && ended.job ? ended.job.analysisId : null };
+  return {
+    shot: ended.shot, written: ended.written, versionMadeId: ended.created && ended.job ? ended.job.analysisId : null, statusChanged: ended.statusChanged,
+  };
 }

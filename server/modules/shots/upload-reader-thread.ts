@@ -68,11 +68,11 @@ async function read(sizeHint: number, limits: CaptureLimits): Promise<void> {
  * transferred, not copied; a blob that views the capture's own arrays (an explicit time column) goes over as a
  * copy. The values view the capture's arrays: they stay here until `release`.
  */
-function prepareFiles(): UploadReaderReply {
-  if (capture === null) return { type: 'files', blobs: null };
+function prepareFiles(read: ImportedCapture | null): UploadReaderReply {
+  if (read === null) return { type: 'files', blobs: null };
   try {
-    const own = new Set<ArrayBufferLike>([...capture.channels.map((c) => c.values.buffer), ...(capture.time.kind === 'explicit' ? [capture.time.t.buffer] : [])]);
-    const { blobs } = channelFilesOf(capture);
+    const own = new Set<ArrayBufferLike>([...read.channels.map((c) => c.values.buffer), ...(read.time.kind === 'explicit' ? [read.time.t.buffer] : [])]);
+    const { blobs } = channelFilesOf(read);
     const sent = blobs.filter((b) => !b.key.endsWith('/values.f64')).map(({ key, bytes }) => ({ key, bytes: own.has(bytes.buffer) ? bytes.slice() : bytes }));
     return { type: 'files', blobs: sent };
   } catch {
@@ -82,10 +82,10 @@ function prepareFiles(): UploadReaderReply {
 }
 
 /** The engine on the capture read, as the analysis job runs it; only results that are all finite numbers come back. */
-function analyse(parameters: AnalysisOptionsInput): UploadReaderReply {
-  if (capture === null) return { type: 'analysed', ok: false, reason: 'nothing was read' };
+function analyse(read: ImportedCapture | null, parameters: AnalysisOptionsInput): UploadReaderReply {
+  if (read === null) return { type: 'analysed', ok: false, reason: 'nothing was read' };
   try {
-    const results = analyzeShot(capture, analysisOptionsSchema.parse(parameters));
+    const results = analyzeShot(read, analysisOptionsSchema.parse(parameters));
     const nonFinite = nonFinitePaths(results);
     if (nonFinite.length > 0) return { type: 'analysed', ok: false, reason: nonFiniteResultMessage(nonFinite) };
     return { type: 'analysed', ok: true, results: JSON.parse(JSON.stringify(results)) as Record<string, unknown> };
@@ -95,7 +95,7 @@ function analyse(parameters: AnalysisOptionsInput): UploadReaderReply {
 }
 
 /**
- * Runs what a read runs (the stream reader, the descriptor, the engine, the channel files) once on a small simulated
+ * Runs what a read runs (the stream reader, the descriptor, `analyse`, `prepareFiles`) once on a small simulated
  * shot (20 000 samples, 0.7 MB), so that a thread started ahead has loaded and compiled its code before the upload it
  * is kept for arrives. Measured with --cpu-prof on the 330 MB capture (3 December 2026): a thread started by the
  * upload spent its first 0.5–0.75 s loading its modules and reading the head slowly while the upload waited for it.
@@ -108,10 +108,8 @@ async function warmUp(): Promise<void> {
     const bytes = simulatedShotCsv(warmUpShot(20_000));
     const read = await readCaptureStream((async function* () { yield bytes; })(), { sizeHint: bytes.length });
     describeChannelFiles(read);
-    const results = analyzeShot(read, analysisOptionsSchema.parse(WARM_UP_PARAMETERS));
-    nonFinitePaths(results);
-    JSON.parse(JSON.stringify(results));
-    channelFilesOf(read);
+    analyse(read, WARM_UP_PARAMETERS);
+    prepareFiles(read);
   } catch {
     // Nothing to do: the first upload pays for it.
   }
@@ -121,11 +119,11 @@ const warmedUp = startedAhead ? warmUp() : Promise.resolve();
 
 port.on('message', (message: UploadReaderRequest) => {
   if (message.type === 'analyse') {
-    post(analyse(message.parameters));
+    post(analyse(capture, message.parameters));
     return;
   }
   if (message.type === 'files') {
-    const reply = prepareFiles();
+    const reply = prepareFiles(capture);
     post(reply, reply.type === 'files' && reply.blobs !== null ? buffersOf(reply.blobs) : []);
     return;
   }
