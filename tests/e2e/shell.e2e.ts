@@ -39,7 +39,12 @@ async function signIn(page: Page, email: string, password: string) {
   await page.getByRole('button', { name: 'Sign in' }).click();
 }
 
-const navLabels = (page: Page) => page.getByRole('navigation', { name: 'Lab sections' }).getByRole('link').allTextContents();
+// The shell draws its navigation once the session has loaded, which can be after the URL changed: wait for it.
+const navLabels = async (page: Page) => {
+  const links = page.getByRole('navigation', { name: 'Lab sections' }).getByRole('link');
+  await links.first().waitFor();
+  return links.allTextContents();
+};
 
 describe('client shell', () => {
   it('When sign-out fails (Redis away: 503), then the page says so and stays, instead of pretending the session ended (issue 12, item 11)', async () => {
