@@ -52,17 +52,33 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   if (!(Number.isInteger(maxSamples) && maxSamples >= 0)) throw new RangeError('maxSamples must be an integer ≥ 0');
   const n = values.length;
   const stride = maxSamples > 0 && n > 2 * maxSamples ? Math.floor(n / maxSamples) : 1;
+  // A subsample is copied out in the first pass and the later passes (the trim and the histogram) read the copy:
+  // with a stride every sample read from the record is on a cache line of its own. Same samples in the same order,
+  // so the same levels; on the 10 M-sample capture (stride 10) both channels took 73–89 ms against 99–121 ms for
+  // three strided passes, alternating in one process (3 December 2026).
+  const sample = stride === 1 ? values : new Float64Array(Math.ceil(n / stride));
   let min = Number.POSITIVE_INFINITY;
   let max = Number.NEGATIVE_INFINITY;
   let examined = 0;
   let nanCount = 0;
   // NaN fails both comparisons, so it never becomes min or max; counting it apart keeps this loop branch-light.
-  for (let i = 0; i < n; i += stride) {
-    const v = values[i];
-    if (v < min) min = v;
-    if (v > max) max = v;
-    if (v !== v) nanCount++;
-    examined++;
+  if (sample === values) {
+    for (let i = 0; i < n; i++) {
+      const v = values[i];
+      if (v < min) min = v;
+      if (v > max) max = v;
+      if (v !== v) nanCount++;
+    }
+    examined = n;
+  } else {
+    const copy = sample as Float64Array;
+    for (let i = 0; i < n; i += stride) {
+      const v = values[i];
+      copy[examined++] = v;
+      if (v < min) min = v;
+      if (v > max) max = v;
+      if (v !== v) nanCount++;
+    }
   }
   let finiteCount = examined - nanCount;
   if (min === Number.NEGATIVE_INFINITY || max === Number.POSITIVE_INFINITY) {
@@ -70,8 +86,8 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
     min = Number.POSITIVE_INFINITY;
     max = Number.NEGATIVE_INFINITY;
     finiteCount = 0;
-    for (let i = 0; i < n; i += stride) {
-      const v = values[i];
+    for (let i = 0; i < examined; i++) {
+      const v = sample[i];
       if (v - v !== 0) continue;
       finiteCount++;
       if (v < min) min = v;
@@ -83,8 +99,8 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   if (trimFraction > 0 && max > min) {
     const counts = new Float64Array(TRIM_BINS);
     const scale = TRIM_BINS / (max - min);
-    for (let i = 0; i < n; i += stride) {
-      const k = Math.floor((values[i] - min) * scale);
+    for (let i = 0; i < examined; i++) {
+      const k = Math.floor((sample[i] - min) * scale);
       if (k >= 0 && k < TRIM_BINS) counts[k]++;
       else if (k === TRIM_BINS) counts[TRIM_BINS - 1]++;
     }
@@ -110,8 +126,8 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   if (!(upper > lower)) return { low: min, high: max, histogramMin: min, histogramMax: max, finiteCount, stride };
   const counts = new Float64Array(bins + 1); // 1-based, as in the reference implementation
   const scale = bins / (upper - lower);
-  for (let i = 0; i < n; i += stride) {
-    const v = values[i];
+  for (let i = 0; i < examined; i++) {
+    const v = sample[i];
     if (!(v >= lower && v <= upper)) continue; // also skips NaN and trimmed samples
     let k = Math.ceil((v - lower) * scale);
     if (k < 1) k = 1;

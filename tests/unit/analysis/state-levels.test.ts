@@ -67,6 +67,23 @@ describe('stateLevels (IEEE Std 181-2011 histogram method)', () => {
     expect(Math.abs(s.high - 4.8)).toBeLessThan(0.05);
   });
 
+  it('When a deep record is subsampled, then the levels are those of every stride-th sample taken alone (NaN and ±Infinity among them)', () => {
+    const n = 250_003;
+    const v = new Float64Array(n);
+    for (let i = 0; i < n; i++) v[i] = (i % 5000 < 700 ? 0.3 : 4.6) + 0.01 * Math.sin(i * 0.37);
+    v[2 * 7] = Number.NaN; // examined (a multiple of the stride, 2)
+    v[2 * 11] = Number.POSITIVE_INFINITY;
+    v[2 * 13] = Number.NEGATIVE_INFINITY;
+    v[2 * 17 + 1] = 1e9; // not examined: must not stretch the histogram
+    for (const trimFraction of [0, 0.01]) {
+      const deep = stateLevels(v, { trimFraction, maxSamples: 100_000 });
+      expect(deep.stride).toBe(2);
+      const every = v.filter((_, i) => i % deep.stride === 0);
+      const alone = stateLevels(every, { trimFraction, maxSamples: 0 });
+      expect({ ...deep, stride: 1 }).toEqual(alone);
+    }
+  });
+
   it('trims many isolated spikes of random height (0.5 % of the samples)', () => {
     const v = new Float64Array(20000);
     for (let i = 0; i < v.length; i++) v[i] = i % 10 < 3 ? 0 : 5;
