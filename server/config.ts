@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 
 /**
  * Every setting the API server and the worker read, checked once at start-up. Each key has a default for

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 import { PERMISSIONS } from '../../shared/contracts/roles.ts';
 import type { RouteDef } from './routes.ts';
 

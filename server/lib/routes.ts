@@ -1,5 +1,5 @@
 import type { NextFunction, Request, RequestHandler, Response, Router } from 'express';
-import type { z } from 'zod';
+import type * as z from 'zod';
 import { can, type Permission, type Role } from '../../shared/contracts/roles.ts';
 import { Membership } from '../db/models/index.ts';
 import { forbidden, notFound, unauthorized } from './errors.ts';

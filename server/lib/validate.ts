@@ -1,4 +1,4 @@
-import type { z } from 'zod';
+import type * as z from 'zod';
 import { badRequest } from './errors.ts';
 
 /** Parses input with a zod schema; failures become a 400 listing each field and what is wrong with it. */

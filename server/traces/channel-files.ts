@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 
 /**
  * What writeChannelFiles stored for one capture, kept in the Capture row's `channels` JSONB so a window request

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 import { analysisOptionsSchema, type AnalysisOptions, type AnalysisOptionsInput } from '../contracts/analysis.ts';
 import type { ImportedCapture } from '../contracts/capture.ts';
 import { buildShotModel, type FiredGate } from './build-shot-model.ts';

@@ -3,7 +3,7 @@
  * of the parameter set (threshold and hysteresis, smoothing, polarity, edges, gate mapping). Each shot keeps its own
  * projectile, ambient conditions and tolerances; settings left out keep each shot's own.
  */
-import { z } from 'zod';
+import * as z from 'zod';
 import { gateSchema, smoothingSchema, thresholdSchema, type AnalysisOptionsInput } from './analysis.ts';
 
 export const analysisSettingsSchema = z

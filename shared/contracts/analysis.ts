@@ -3,7 +3,7 @@
  * the worker's job data, so all three accept exactly the same options. SI units throughout
  * (metres, seconds, volts, kilograms, kelvin); percentages are of the clear-to-blocked step.
  */
-import { z } from 'zod';
+import * as z from 'zod';
 
 export const thresholdSchema = z
   .object({

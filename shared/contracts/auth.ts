@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 import { ROLES } from './roles.ts';
 
 /** Request and response shapes of sign-in, invitations, members and API tokens, shared by server and client. */

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 
 /**
  * Queue names, job payloads and job ids shared by the API (which queues jobs) and the worker (which runs them).

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 
 /**
  * The lab's library: projectiles and gate rigs, SI inside (metres, kilograms). The client's forms take millimetres

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 
 /**
  * Review and sign-off, comments, notification preferences, exports and campaign trends: request bodies and query

@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import diff from 'microdiff';
-import { z } from 'zod';
+import * as z from 'zod';
 import { Analysis, Capture, Shot } from '../../db/models/index.ts';
 import { recordAudit } from '../../lib/audit.ts';
 import { clientIp } from '../../lib/client-ip.ts';

@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import * as z from 'zod';
 import { Op } from 'sequelize';
 import { AuditEvent, Campaign, Shot, User } from '../../db/models/index.ts';
 import type { RouteDef } from '../../lib/routes.ts';

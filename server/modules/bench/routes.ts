@@ -1,5 +1,5 @@
 import { literal, Op } from 'sequelize';
-import { z } from 'zod';
+import * as z from 'zod';
 import { Analysis, Capture, Shot } from '../../db/models/index.ts';
 import type { RouteDef } from '../../lib/routes.ts';
 import { campaignInLab } from '../campaigns/routes.ts';

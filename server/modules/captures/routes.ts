@@ -1,5 +1,5 @@
 import type { Request } from 'express';
-import { z } from 'zod';
+import * as z from 'zod';
 import { Capture } from '../../db/models/index.ts';
 import type { Deps } from '../../lib/deps.ts';
 import { AppError, badRequest, conflict, notFound } from '../../lib/errors.ts';

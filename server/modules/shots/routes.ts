@@ -1,5 +1,5 @@
 import type { Request } from 'express';
-import { z } from 'zod';
+import * as z from 'zod';
 import { col, literal, Op, Transaction, UniqueConstraintError, type Order } from 'sequelize';
 import { createShotBody, missingConditions, updateShotBody, type CreateShotBody, type UpdateShotBody } from '../../../shared/contracts/shots.ts';
 import { Analysis, Campaign, Capture, GateRig, Projectile, Review, Shot } from '../../db/models/index.ts';

@@ -1,6 +1,6 @@
 import { toNestErrors } from '@hookform/resolvers';
 import type { FieldError, FieldValues, Resolver } from 'react-hook-form';
-import type { z } from 'zod';
+import type * as z from 'zod';
 import { parseLabNumber } from '../../campaigns/utils/lab-units.ts';
 
 /** Reads the numbers typed in lab units; each unreadable one is noted against its field. */

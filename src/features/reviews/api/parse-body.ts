@@ -1,4 +1,4 @@
-import type { z } from 'zod';
+import type * as z from 'zod';
 
 /** Checks a request body with the shared schema before sending it; a problem becomes one readable sentence. */
 export function parseBody<S extends z.ZodType>(schema: S, body: unknown): z.infer<S> {
