@@ -194,6 +194,9 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
       const v = a.results?.speed;
       speed = v ? `${v.value.toFixed(2)} ± ${v.uncertainty.toFixed(2)} m/s` : 'no speed';
     }
+    // Each round's pipeline against the CLI timed just before it: on a machine whose speed drifts (a shared VM), the
+    // pairs keep what the two had in common.
+    const byRound = total.map((t, i) => t / cli[i]);
     return [
       `${mode.label}:`,
       `  CLI (npm run analyze, own process, wall), median of ${ROUNDS}: ${s(median(cli))}   [${cli.map(s).join(', ')}]`,
@@ -202,10 +205,8 @@ async function runMode(file: string, mode: Mode, k: number): Promise<string[]> {
       `    upload response → result seen: ${s(median(afterUpload))} (target ≤ 1 s); analysis job alone ${s(median(analysis))}`,
       `    processor seconds during the upload request (medians; ${cpus().length} cores shared): client (${mode.client}) ${cpuS(cpu.client)}, ` +
         `API server ${cpuS(cpu.api)}, worker ${cpuS(cpu.worker)}`,
-      // Each round's pipeline against the CLI timed just before it: on a machine whose speed drifts (a shared VM), the
-      // pairs keep what the two had in common.
       `  ratio pipeline / CLI (medians): ${(median(total) / median(cli)).toFixed(2)}× (target ≤ 1.5×); round by round ` +
-        `${total.map((t, i) => (t / cli[i]).toFixed(2)).join(', ')}, median ${median(total.map((t, i) => t / cli[i])).toFixed(2)}×; against the compiled bundle ` +
+        `${byRound.map((r) => r.toFixed(2)).join(', ')}, median ${median(byRound).toFixed(2)}×; against the compiled bundle ` +
         `alone (node dist/node/…, median ${s(median(compiledCli))}): ${(median(total) / median(compiledCli)).toFixed(2)}×; against the CLI ` +
         `through tsx (as when the target was set, median ${s(median(tsxCli))}): ${(median(total) / median(tsxCli)).toFixed(2)}×`,
       `  check: stored speed ${speed} (simulated truth ${BIG_CAPTURE_SHOT.speed} m/s)`,
