@@ -1,5 +1,5 @@
 /**
- * `npm run bench:pipeline -- --deep [--rounds N]`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB)
+ * `npm run bench:pipeline -- --deep [--rounds N] [--clients curl-body,curl,fetch-body,fetch]`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB)
  * uploaded to a shot through the real API server and worker, timed from the start of the upload to the analysed result seen by
  * a poll every 20 ms. Baselines in the same run, before each shot, each a process of its own (wall time) on the
  * same file: the CLI as users run it (`npm run --silent analyze -- FILE --gate …`: npm, then the compiled bundle),
@@ -8,8 +8,10 @@
  * server and the worker are idle. Targets (issue 13): pipeline ≤ 1.5× the
  * CLI, and the result ≤ 1 s after the upload's response (which comes after the server has the last byte). Run in one
  * command with the API reading the file while it arrives, and with the worker reading it afterwards.
- * Two clients send the file: curl (Debian's, as a lab script would) and Node's fetch with a FormData of the file
- * (undici copies every chunk through web streams). The ratio is printed for each, with the processor seconds the
+ * Two clients send the file: curl (Debian's, as a lab script would) and Node's fetch (undici copies every chunk through
+ * web streams), each both ways the upload route takes it: as the whole request body named by ?fileName= (no multipart
+ * encoding or parsing; the way for scripts) and as multipart/form-data (field "files", as browsers send it);
+ * `--clients` picks some of the four. The ratio is printed for each, with the processor seconds the
  * client, the API server and the worker used during the upload request; without curl only fetch runs. On the lab
  * machine (2 December 2026, load average 4–5) curl used 0.11–0.14 CPU-s for the whole file and fetch 2.6–2.75 CPU-s,
  * taken from the same two cores the server uses, while the API server used about the same for both (2.4–4.7 CPU-s,
@@ -32,6 +34,18 @@ import { timeCli } from './lib/time-process.ts';
 /** Rounds per mode: `--rounds N`, default 3. */
 const ROUNDS = roundsArgument(process.argv);
 const POLL_MS = 20;
+/** Clients to run: `--clients a,b` (curl-body, curl, fetch-body, fetch), default all. */
+const CLIENTS = clientsArgument(process.argv);
+
+function clientsArgument(argv: string[]): Set<string> | null {
+  const at = argv.indexOf('--clients');
+  if (at < 0) return null;
+  const names = (argv[at + 1] ?? '').split(',').map((n) => n.trim().replace('-', ' '));
+  const known = ['curl body', 'curl', 'fetch body', 'fetch'];
+  const unknown = names.filter((n) => !known.includes(n));
+  if (unknown.length > 0 || names.length === 0) throw new Error(`--clients takes some of curl-body, curl, fetch-body, fetch (comma-separated), got '${argv[at + 1] ?? ''}'`);
+  return new Set(names);
+}
 
 function roundsArgument(argv: string[]): number {
   const at = argv.indexOf('--rounds');
@@ -68,7 +82,9 @@ const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.len
 const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
 const cpuS = (xs: number[]) => (xs.length > 0 ? `${median(xs).toFixed(2)} s [${xs.map((x) => x.toFixed(2)).join(', ')}]` : 'not measured');
 
-type Client = 'curl' | 'fetch';
+/** curl or Node's fetch, sending the file as multipart/form-data (field "files", as browsers do) or, with `body`,
+ * as the whole request body named by ?fileName= (no multipart encoding or parsing). */
+type Client = 'curl' | 'curl body' | 'fetch' | 'fetch body';
 
 interface Mode {
   label: string;
@@ -84,16 +100,25 @@ const HAS_CURL = spawnSync('curl', ['--version'], { stdio: 'ignore' }).status ==
  * every 20 ms while it runs (so up to 20 ms of it may be missed; null where /proc cannot say).
  */
 async function send(client: Client, url: string, cookie: string, file: string, name: string): Promise<{ status: number; text: string; clientCpuS: number | null }> {
-  if (client === 'fetch') {
+  const bodyUrl = `${url}?fileName=${encodeURIComponent(name)}`;
+  if (client === 'fetch' || client === 'fetch body') {
     const before = process.cpuUsage();
-    const form = new FormData();
-    form.append('files', await openAsBlob(file, { type: 'text/csv' }), name);
-    const response = await fetch(url, { method: 'POST', headers: { cookie }, body: form });
+    const blob = await openAsBlob(file, { type: 'text/csv' });
+    let response: Response;
+    if (client === 'fetch body') response = await fetch(bodyUrl, { method: 'POST', headers: { cookie, 'content-type': 'text/csv' }, body: blob });
+    else {
+      const form = new FormData();
+      form.append('files', blob, name);
+      response = await fetch(url, { method: 'POST', headers: { cookie }, body: form });
+    }
     const text = await response.text();
     const used = process.cpuUsage(before);
     return { status: response.status, text, clientCpuS: (used.user + used.system) / 1e6 };
   }
-  const curl = spawn('curl', ['-sS', '-o', '-', '-w', '\\n%{http_code}', '-H', `cookie: ${cookie}`, '-F', `files=@${file};type=text/csv;filename=${name}`, url]);
+  const what = client === 'curl body'
+    ? ['-H', 'content-type: text/csv', '-X', 'POST', '-T', file, bodyUrl] // -T streams the file (--data-binary would load it whole first)
+    : ['-F', `files=@${file};type=text/csv;filename=${name}`, url];
+  const curl = spawn('curl', ['-sS', '-o', '-', '-w', '\\n%{http_code}', '-H', `cookie: ${cookie}`, ...what]);
   let clientCpuS: number | null = null;
   const sampler = setInterval(() => { clientCpuS = cpuSeconds(curl.pid!) ?? clientCpuS; }, 20);
   let out = '';
@@ -113,8 +138,12 @@ const READ_MODES = [
   { label: 'the worker reads it after the upload (GATEPOST_READ_UPLOADS_FROM_BYTES=-1)', env: { GATEPOST_READ_UPLOADS_FROM_BYTES: '-1' } },
 ];
 const MODES: Mode[] = [
-  ...(HAS_CURL ? [{ ...READ_MODES[0], client: 'curl' as const, label: `${READ_MODES[0].label}, sent by curl` }] : []),
-  { ...READ_MODES[0], client: 'fetch', label: `${READ_MODES[0].label}, sent by Node's fetch` },
+  ...(HAS_CURL ? [
+    { ...READ_MODES[0], client: 'curl body' as const, label: `${READ_MODES[0].label}, sent by curl as the request body (?fileName=)` },
+    { ...READ_MODES[0], client: 'curl' as const, label: `${READ_MODES[0].label}, sent by curl as multipart/form-data` },
+  ] : []),
+  { ...READ_MODES[0], client: 'fetch body', label: `${READ_MODES[0].label}, sent by Node's fetch as the request body (?fileName=)` },
+  { ...READ_MODES[0], client: 'fetch', label: `${READ_MODES[0].label}, sent by Node's fetch as multipart/form-data` },
   { ...READ_MODES[1], client: HAS_CURL ? 'curl' : 'fetch', label: `${READ_MODES[1].label}, sent by ${HAS_CURL ? 'curl' : "Node's fetch"}` },
 ];
 
@@ -125,7 +154,9 @@ export async function runDeepPipelineBench(): Promise<void> {
   console.log(`capture: ${file}, ${(bytes / 1e6).toFixed(0)} MB, 10 000 000 samples × 2 channels`);
   const loadBefore = loadavg();
   const lines: string[] = [];
-  for (const [k, mode] of MODES.entries()) lines.push(...(await runMode(file, mode, k)));
+  for (const [k, mode] of MODES.entries()) {
+    if (CLIENTS === null || CLIENTS.has(mode.client)) lines.push(...(await runMode(file, mode, k)));
+  }
   const load = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
   console.log(`machine: ${cpus().length} cores, load average before ${load(loadBefore)}, after ${load(loadavg())}`);
   for (const line of lines) console.log(line);

@@ -21,6 +21,8 @@ export interface PipelineClient {
   post<T = Record<string, unknown>>(path: string, body: unknown, headers?: Record<string, string>): Promise<JsonResponse<T>>;
   /** POST multipart to /api/shots/:shotId/captures, field "files". */
   upload<T = Record<string, unknown>>(shotId: string, files: { name: string; bytes: Uint8Array }[]): Promise<JsonResponse<T>>;
+  /** POST one file as the whole request body to /api/shots/:shotId/captures?fileName=… (text/csv). */
+  uploadBody<T = Record<string, unknown>>(shotId: string, file: { name: string; bytes: Uint8Array }): Promise<JsonResponse<T>>;
 }
 
 export interface SignInOptions {
@@ -66,6 +68,8 @@ export async function signIn(baseUrl: string, email: string, password: string, o
       for (const f of files) form.append('files', new Blob([f.bytes as Uint8Array<ArrayBuffer>], { type: 'text/csv' }), f.name);
       return send('POST', `/api/shots/${shotId}/captures`, form);
     },
+    uploadBody: (shotId, file) =>
+      send('POST', `/api/shots/${shotId}/captures?fileName=${encodeURIComponent(file.name)}`, file.bytes as Uint8Array<ArrayBuffer>, { 'content-type': 'text/csv' }),
   };
 }
 

@@ -56,11 +56,14 @@ export function buildOpenApi(routes: RouteDef[], info: { version: string; server
     };
     if (route.body) {
       operation.requestBody = { required: true, content: { 'application/json': { schema: jsonSchema(route.body) } } };
-    } else if (route.multipartFiles) {
-      operation.requestBody = {
-        required: true,
-        content: { 'multipart/form-data': { schema: { type: 'object', properties: { [route.multipartFiles]: { type: 'array', items: { type: 'string', format: 'binary' } } } } } },
-      };
+    } else if (route.multipartFiles || route.fileBody) {
+      const content: Record<string, unknown> = {};
+      if (route.multipartFiles) {
+        content['multipart/form-data'] = { schema: { type: 'object', properties: { [route.multipartFiles]: { type: 'array', items: { type: 'string', format: 'binary' } } } } };
+      }
+      // OpenAPI 3.1: a body that is a file's bytes has a media type and no schema (contentMediaType is implied).
+      for (const type of route.fileBody ?? []) content[type] = {};
+      operation.requestBody = { required: true, content };
     }
     (paths[openPath] ??= {})[route.method] = operation;
   }

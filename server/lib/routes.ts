@@ -31,6 +31,8 @@ export interface RouteDef {
   query?: z.ZodType;
   /** Body is multipart/form-data with files in this field (documentation; the handler receives them). */
   multipartFiles?: string;
+  /** Or the body is one file itself, of one of these media types (documentation; the handler receives it). */
+  fileBody?: string[];
   /** Success status and what the response holds, for the OpenAPI document. @default 200, "JSON" */
   response?: {
     status: number;

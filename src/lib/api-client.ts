@@ -64,10 +64,11 @@ function errorFromXhr(xhr: XMLHttpRequest): ApiError {
 }
 
 /**
- * A multipart upload with progress (fetch cannot report upload progress, XMLHttpRequest can).
+ * An upload with progress (fetch cannot report upload progress, XMLHttpRequest can): a multipart form, or one file
+ * as the whole body (sent with the file's own media type, none when the browser knows none).
  * `onProgress` gets the fraction sent, 0 to 1.
  */
-function upload<T>(path: string, form: FormData, onProgress?: (fraction: number) => void, signal?: AbortSignal): Promise<T> {
+function upload<T>(path: string, body: FormData | Blob, onProgress?: (fraction: number) => void, signal?: AbortSignal): Promise<T> {
   return new Promise<T>((resolve, reject) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', path);
@@ -87,7 +88,7 @@ function upload<T>(path: string, form: FormData, onProgress?: (fraction: number)
     xhr.onerror = () => reject(new ApiError(0, 'network', 'The upload was interrupted. Check the connection and try again.'));
     xhr.onabort = () => reject(new ApiError(0, 'aborted', 'Upload cancelled.'));
     signal?.addEventListener('abort', () => xhr.abort());
-    xhr.send(form);
+    xhr.send(body);
   });
 }
 

@@ -147,6 +147,30 @@ describe('When a capture is uploaded to an API that reads uploads as they arrive
   });
 });
 
+describe('When a capture is sent as the whole request body (?fileName=) to an API that reads uploads as they arrive', () => {
+  it('then it is read on arrival like a multipart file: stored byte for byte, ready without a worker read, and the results are the engine\'s', async () => {
+    const csv = simulatedCsv({ speed: 300, seed: 24 });
+    const shotId = await newShot(demo.hollowmere.gateRigIds[0]);
+    const up = await experimenter.uploadBody<{ captures: { id: string; state: string; sha256: string; fileName: string }[] }>(shotId, { name: 'as-the-body.csv', bytes: csv.bytes });
+    expect(up.status, JSON.stringify(up.body)).toBe(202);
+    expect(up.body.captures[0]).toMatchObject({ state: 'queued', sha256: sha256(csv.bytes), fileName: 'as-the-body.csv' });
+    const { shot: read, seen } = await settleShot<ShotDetail>(experimenter, shotId);
+    expect(seen.get(up.body.captures[0].id)).not.toContain('reading');
+    expect(read.captures[0].state).toBe('ready');
+    const data = await analysisJobData(read.analyses[0].id);
+    expect(data.precomputed?.captureIds).toEqual([up.body.captures[0].id]);
+    const stored = readFileSync(path.join(dataDir, 'blobs', 'labs', demo.labs.hollowmere.id, 'raw', sha256(csv.bytes)));
+    expect(Buffer.compare(stored, Buffer.from(csv.bytes))).toBe(0);
+    expect(incoming()).toEqual([]);
+    const file = path.join(work, 'as-the-body.csv');
+    writeFileSync(file, csv.bytes);
+    const analysis = await Analysis.findByPk(read.analyses[0].id, { rejectOnEmpty: true });
+    expect(analysis.results).toEqual(JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(file), analysis.parameters as object))));
+    const speed = read.currentAnalysis!.results.speed!;
+    expect(Math.abs(speed.value - 300)).toBeLessThanOrEqual(speed.uncertainty);
+  });
+});
+
 describe('When the API stopped before a read upload\'s channel files were all on the disk', () => {
   // The API records a deep upload as read, with its version's numbers, before its channel files are written, and
   // syncs them after (uploads.ts). Here the API's process "stopped" in that gap: a plot file and a values file of

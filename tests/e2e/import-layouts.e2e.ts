@@ -1,7 +1,8 @@
 // Real scope layouts on the shot page, in Chromium against the real API and worker: a file whose printed times are
 // too coarse is read with its grid rebuilt from the stated interval, and the page says how it was read; a file of
 // bare sample numbers is refused with a message that asks for the interval, and giving it in "Fix how it is read"
-// reads it. Fixtures: fixtures/generate.ts (layout families, our own files).
+// reads it. One file dropped alone goes up as the request body, named in the URL. Fixtures: fixtures/generate.ts
+// (layout families, our own files).
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -77,4 +78,38 @@ describe('how a file was read', () => {
       await browser.close();
     }
   }, 400_000);
+
+  it('When one file is dropped, then it goes up as the request body named in the URL, keeps its name and is analysed', async () => {
+    const demo = harness.demo;
+    const oneShotId = await createDemoShotRow(demo, 103);
+    const browser = await launchBrowser();
+    try {
+      const page = await browser.newPage();
+      await page.setViewportSize({ width: 1280, height: 900 });
+      await signInOnPage(page, app.baseUrl, demo.users.experimenter);
+      await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${oneShotId}`);
+      await page.getByText('Drop the scope’s CSV exports here').waitFor();
+      const uploads: { url: string; type: string | null }[] = [];
+      page.on('request', (r) => {
+        if (r.method() === 'POST' && r.url().includes('/captures')) uploads.push({ url: r.url(), type: r.headers()['content-type'] ?? null });
+      });
+      // A name with letters outside ASCII and spaces, as labs name their files.
+      const name = 'Lauf 7 – Schräge, 2 µs.csv';
+      const file = { name, text: readFileSync(path.join(FIXTURES, 'plain-time.csv'), 'latin1') };
+      await page.getByTestId('drop-zone').evaluate((zone, f) => {
+        const transfer = new DataTransfer();
+        transfer.items.add(new File([f.text], f.name, { type: 'text/csv' }));
+        zone.dispatchEvent(new DragEvent('dragover', { bubbles: true, cancelable: true, dataTransfer: transfer }));
+        zone.dispatchEvent(new DragEvent('drop', { bubbles: true, cancelable: true, dataTransfer: transfer }));
+      }, file);
+      const list = page.getByTestId('capture-list');
+      await list.getByText(name).waitFor();
+      await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(1);
+      await page.getByTestId('speed').waitFor({ timeout: 120_000 });
+      expect(uploads).toEqual([{ url: `${app.baseUrl}/api/shots/${oneShotId}/captures?fileName=${encodeURIComponent(name)}`, type: 'text/csv' }]);
+      await saveScreenshot(page, 'upload-one-file-analysed');
+    } finally {
+      await browser.close();
+    }
+  }, 300_000);
 });

@@ -46,15 +46,24 @@ const SYNC_EVERY_BYTES = 64 << 20;
 /** Blocks written or handed over at once while the next ones arrive. */
 const MAX_IN_FLIGHT = 4;
 
+/** Thrown by a receiver when a file grows past its `maxBytes` (the bytes taken so far are removed). */
+export class FileTooLargeError extends Error {
+  constructor(readonly maxBytes: number) {
+    super(`the file is larger than ${maxBytes} bytes`);
+    this.name = 'FileTooLargeError';
+  }
+}
+
 /**
- * A multer storage engine that takes each uploaded file in one pass over its bytes: hashed (SHA-256), written
- * where the blob store can adopt it without a copy (local disk: its own `.incoming` folder), synced to disk as it
- * arrives, and, for a large upload, read by the importer in a thread at the same time (UploadReader). The upload
- * route then names the blob by its hash.
+ * Takes one uploaded file's bytes from a stream in one pass: hashed (SHA-256), written where the blob store can
+ * adopt it without a copy (local disk: its own `.incoming` folder), synced to disk as it arrives, and, for a large
+ * upload, read by the importer in a thread at the same time (UploadReader). The upload route then names the blob
+ * by its hash. The stream is a multipart part (captureIntake, through multer) or the request itself (a file sent
+ * as the whole request body). With `maxBytes`, a file that grows past it is dropped with FileTooLargeError.
  */
-export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
+export function captureReceiver(options: CaptureIntakeOptions): (req: Request, stream: Readable, maxBytes?: number) => Promise<ReceivedFile> {
   const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {}, blockBytes = BLOCK_BYTES, syncEveryBytes = SYNC_EVERY_BYTES } = options;
-  const receive = async (req: Request, stream: Readable): Promise<ReceivedFile> => {
+  return async (req: Request, stream: Readable, maxBytes = Infinity): Promise<ReceivedFile> => {
     const onStoreDisk = store.stagingPath !== undefined && store.adoptFile !== undefined;
     let file: string;
     if (onStoreDisk) file = await store.stagingPath!();
@@ -123,6 +132,7 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
       };
       for await (const chunk of stream as AsyncIterable<Buffer>) {
         size += chunk.length;
+        if (size > maxBytes) throw new FileTooLargeError(maxBytes);
         let at = 0;
         while (at < chunk.length) {
           const n = Math.min(blockBytes - filled, chunk.length - at);
@@ -147,6 +157,11 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
     await fh.close();
     return { path: file, size, sha256: hash.digest('hex'), onStoreDisk, reader };
   };
+}
+
+/** A multer storage engine that takes each file of a multipart upload with captureReceiver. */
+export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
+  const receive = captureReceiver(options);
   return {
     _handleFile(req, file, cb) {
       receive(req as Request, file.stream).then((info) => cb(null, info as Partial<Express.Multer.File>), (error: Error) => cb(error));

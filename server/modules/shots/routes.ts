@@ -30,6 +30,16 @@ const shotListQuery = z.object({
   deleted: z.enum(['only']).optional(),
 });
 
+/** `fileName`: the name of the one file sent as the request body (a multipart upload names its files itself). */
+const uploadQuery = z.object({
+  fileName: z.string()
+    .min(1, 'fileName must not be empty')
+    .max(255, 'fileName must be at most 255 characters')
+    // eslint-disable-next-line no-control-regex -- control characters (NUL among them) are what it refuses.
+    .regex(/^[^\u0000-\u001f\u007f]*$/, 'fileName must not hold control characters')
+    .optional(),
+});
+
 /** The current analysis's speed as a number, or NULL when there is none (a missed speed, a failed or queued analysis). */
 const SPEED_SQL = `(SELECT CASE WHEN jsonb_typeof(a.results #> '{speed,value}') = 'number' THEN (a.results #>> '{speed,value}')::float8 END
   FROM analyses a WHERE a.id = "Shot"."current_analysis_id" AND a.lab_id = "Shot"."lab_id")`;
@@ -198,14 +208,18 @@ export function shotRoutes(deps: Deps): RouteDef[] {
       method: 'post',
       path: '/api/shots/:shotId/captures',
       access: { kind: 'lab', permission: 'shots:write', labOf: labOfShot },
-      summary: 'Upload scope CSV files (multipart field "files"); each is stored byte for byte and queued for reading',
+      summary: 'Upload scope CSV files: several as multipart/form-data (field "files"), or one as the whole request body named by ?fileName= ' +
+        '(no multipart encoding: less work on both sides for a large file). Each is stored byte for byte and queued for reading',
       multipartFiles: 'files',
+      fileBody: ['text/csv', 'text/plain', 'application/octet-stream'],
+      query: uploadQuery,
       response: { status: 202, description: 'The captures, stored and queued for reading' },
       async handler(req, res) {
         const shot = await shotInLab(req);
         if (shot.status === 'approved') throw conflict('This shot is signed off; files can no longer be added.');
         refuseDeleted(shot);
-        res.status(202).json({ captures: await acceptUpload(deps, req, res, shot) });
+        const { fileName } = res.locals.query as z.infer<typeof uploadQuery>;
+        res.status(202).json({ captures: await acceptUpload(deps, req, res, shot, fileName) });
       },
     },
     {
