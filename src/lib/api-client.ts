@@ -65,7 +65,8 @@ function errorFromXhr(xhr: XMLHttpRequest): ApiError {
 
 /**
  * An upload with progress (fetch cannot report upload progress, XMLHttpRequest can): a multipart form, or one file
- * as the whole body (sent with the file's own media type, none when the browser knows none).
+ * as the whole body, sent as application/octet-stream whatever type the browser gives the file (a .csv may come as
+ * a spreadsheet type, a misnamed one as JSON: the server takes the bytes as they are and the importer judges them).
  * `onProgress` gets the fraction sent, 0 to 1.
  */
 function upload<T>(path: string, body: FormData | Blob, onProgress?: (fraction: number) => void, signal?: AbortSignal): Promise<T> {
@@ -73,6 +74,7 @@ function upload<T>(path: string, body: FormData | Blob, onProgress?: (fraction: 
     const xhr = new XMLHttpRequest();
     xhr.open('POST', path);
     xhr.setRequestHeader('Accept', 'application/json');
+    if (!(body instanceof FormData)) xhr.setRequestHeader('Content-Type', 'application/octet-stream');
     xhr.upload.onprogress = (e) => {
       if (e.lengthComputable) onProgress?.(e.loaded / e.total);
     };

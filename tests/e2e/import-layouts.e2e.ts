@@ -106,7 +106,7 @@ describe('how a file was read', () => {
       await list.getByText(name).waitFor();
       await expect.poll(async () => list.getByText('read', { exact: true }).count(), { timeout: 120_000 }).toBe(1);
       await page.getByTestId('speed').waitFor({ timeout: 120_000 });
-      expect(uploads).toEqual([{ url: `${app.baseUrl}/api/shots/${oneShotId}/captures?fileName=${encodeURIComponent(name)}`, type: 'text/csv' }]);
+      expect(uploads).toEqual([{ url: `${app.baseUrl}/api/shots/${oneShotId}/captures?fileName=${encodeURIComponent(name)}`, type: 'application/octet-stream' }]);
       await saveScreenshot(page, 'upload-one-file-analysed');
     } finally {
       await browser.close();
