@@ -1,22 +1,22 @@
 /**
- * `npm run bench:pipeline -- --deep [--rounds N] [--clients curl-body,curl,fetch-body,fetch]`: the 10-million-sample capture (bench/lib/big-capture.ts, 330 MB)
- * uploaded to a shot through the real API server and worker, timed from the start of the upload to the analysed result seen by
- * a poll every 20 ms. Baselines in the same run, before each shot, each a process of its own (wall time) on the
- * same file: the CLI as users run it (`npm run --silent analyze -- FILE --gate …`: npm, then the compiled bundle),
- * the compiled bundle alone (`node dist/node/worker/cli/analyze.js`), and the TypeScript through tsx (how
- * `npm run analyze` ran when issue 13 set the target). Three rounds (or N); medians. Each timing starts once the API
- * server and the worker are idle. Targets (issue 13): pipeline ≤ 1.5× the
- * CLI, and the result ≤ 1 s after the upload's response (which comes after the server has the last byte). Run in one
- * command with the API reading the file while it arrives, and with the worker reading it afterwards.
- * Two clients send the file: curl (Debian's, as a lab script would) and Node's fetch (undici copies every chunk through
- * web streams), each both ways the upload route takes it: as the whole request body named by ?fileName= (no multipart
- * encoding or parsing; the way for scripts) and as multipart/form-data (field "files", as browsers send it);
- * `--clients` picks some of the four. The ratio is printed for each, with the processor seconds the
- * client, the API server and the worker used during the upload request; without curl only fetch runs. On the lab
+ * `npm run bench:pipeline -- --deep [--rounds N] [--clients curl-body,curl,fetch-body,fetch]`: the 10-million-sample
+ * capture (bench/lib/big-capture.ts, 330 MB) uploaded to a shot through the real API server and worker, timed from the
+ * start of the upload to the analysed result seen by a poll every 20 ms. Baselines in the same run, before each shot,
+ * each a process of its own (wall time) on the same file: the CLI as users run it (`npm run --silent analyze -- FILE
+ * --gate …`: npm, then the compiled bundle), the compiled bundle alone (`node dist/node/worker/cli/analyze.js`), and
+ * the TypeScript through tsx (how `npm run analyze` ran when issue 13 set the target). Three rounds (or N); medians.
+ * Each timing starts once the API server and the worker are idle. Targets (issue 13): pipeline ≤ 1.5× the CLI, and the
+ * result ≤ 1 s after the upload's response (which comes after the server has the last byte). Run in one command with
+ * the API reading the file while it arrives, and with the worker reading it afterwards. Two clients send the file: curl
+ * (Debian's, as a lab script would) and Node's fetch (undici copies every chunk through web streams), each both ways
+ * the upload route takes it: as the whole request body named by ?fileName= (no multipart encoding or parsing; the way
+ * for scripts) and as multipart/form-data (field "files", as browsers send it); `--clients` picks some of the four (the
+ * worker-reads mode runs when its client, curl, is picked). The ratio is printed for each, with the processor seconds
+ * the client, the API server and the worker used during the upload request; without curl only fetch runs. On the lab
  * machine (2 December 2026, load average 4–5) curl used 0.11–0.14 CPU-s for the whole file and fetch 2.6–2.75 CPU-s,
- * taken from the same two cores the server uses, while the API server used about the same for both (2.4–4.7 CPU-s,
- * its reading thread included; it receives both in the same 64 KiB socket reads, about 5 040 for the file): the
- * gap between the two clients' ratios is the client's own work.
+ * taken from the same two cores the server uses, while the API server used about the same for both (2.4–4.7 CPU-s, its
+ * reading thread included; it receives both in the same 64 KiB socket reads, about 5 040 for the file): the gap between
+ * the two clients' ratios is the client's own work.
  * Figures only, no pass/fail.
  */
 import { spawn, spawnSync } from 'node:child_process';
