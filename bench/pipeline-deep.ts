@@ -34,6 +34,10 @@ import { timeCli } from './lib/time-process.ts';
 /** Rounds per mode: `--rounds N`, default 3. */
 const ROUNDS = roundsArgument(process.argv);
 const POLL_MS = 20;
+/** curl or Node's fetch, sending the file as multipart/form-data (field "files", as browsers do) or, with `body`,
+ * as the whole request body named by ?fileName= (no multipart encoding or parsing). */
+const CLIENT_NAMES = ['curl body', 'curl', 'fetch body', 'fetch'] as const;
+type Client = (typeof CLIENT_NAMES)[number];
 /** Clients to run: `--clients a,b` (curl-body, curl, fetch-body, fetch), default all. */
 const CLIENTS = clientsArgument(process.argv);
 
@@ -41,8 +45,7 @@ function clientsArgument(argv: string[]): Set<string> | null {
   const at = argv.indexOf('--clients');
   if (at < 0) return null;
   const names = (argv[at + 1] ?? '').split(',').map((n) => n.trim().replace('-', ' '));
-  const known = ['curl body', 'curl', 'fetch body', 'fetch'];
-  const unknown = names.filter((n) => !known.includes(n));
+  const unknown = names.filter((n) => !(CLIENT_NAMES as readonly string[]).includes(n));
   if (unknown.length > 0 || names.length === 0) throw new Error(`--clients takes some of curl-body, curl, fetch-body, fetch (comma-separated), got '${argv[at + 1] ?? ''}'`);
   return new Set(names);
 }
@@ -81,10 +84,6 @@ interface ShotView {
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
 const cpuS = (xs: number[]) => (xs.length > 0 ? `${median(xs).toFixed(2)} s [${xs.map((x) => x.toFixed(2)).join(', ')}]` : 'not measured');
-
-/** curl or Node's fetch, sending the file as multipart/form-data (field "files", as browsers do) or, with `body`,
- * as the whole request body named by ?fileName= (no multipart encoding or parsing). */
-type Client = 'curl' | 'curl body' | 'fetch' | 'fetch body';
 
 interface Mode {
   label: string;

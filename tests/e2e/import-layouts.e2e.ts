@@ -29,16 +29,22 @@ afterAll(async () => {
   await harness?.close();
 });
 
+/** The experimenter on a shot's page, its drop zone drawn. */
+async function openShotAsExperimenter(browser: Awaited<ReturnType<typeof launchBrowser>>, id: string) {
+  const demo = harness.demo;
+  const page = await browser.newPage();
+  await page.setViewportSize({ width: 1280, height: 900 });
+  await signInOnPage(page, app.baseUrl, demo.users.experimenter);
+  await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${id}`);
+  await page.getByText('Drop the scope’s CSV exports here').waitFor();
+  return page;
+}
+
 describe('how a file was read', () => {
   it('When a coarse file and a file of sample numbers are dropped, then the first says its time base was rebuilt and the second is fixed by giving the interval', async () => {
-    const demo = harness.demo;
     const browser = await launchBrowser();
     try {
-      const page = await browser.newPage();
-      await page.setViewportSize({ width: 1280, height: 900 });
-      await signInOnPage(page, app.baseUrl, demo.users.experimenter);
-      await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${shotId}`);
-      await page.getByText('Drop the scope’s CSV exports here').waitFor();
+      const page = await openShotAsExperimenter(browser, shotId);
       let numbers = 'Sample,Gate A\n';
       for (let i = 0; i < 400; i++) numbers += `${i},${(Math.sin(i / 11) * 2).toFixed(4)}\n`;
       const files = [
@@ -84,11 +90,7 @@ describe('how a file was read', () => {
     const oneShotId = await createDemoShotRow(demo, 103);
     const browser = await launchBrowser();
     try {
-      const page = await browser.newPage();
-      await page.setViewportSize({ width: 1280, height: 900 });
-      await signInOnPage(page, app.baseUrl, demo.users.experimenter);
-      await page.goto(`${app.baseUrl}/labs/${demo.labs.hollowmere.id}/shots/${oneShotId}`);
-      await page.getByText('Drop the scope’s CSV exports here').waitFor();
+      const page = await openShotAsExperimenter(browser, oneShotId);
       const uploads: { url: string; type: string | null }[] = [];
       page.on('request', (r) => {
         if (r.method() === 'POST' && r.url().includes('/captures')) uploads.push({ url: r.url(), type: r.headers()['content-type'] ?? null });
