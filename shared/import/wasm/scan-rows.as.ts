@@ -128,10 +128,12 @@ function digitsFrom(q: usize, mant: u64): usize {
 // The row shape: a scope writes its rows with one printf format, so a row is usually laid out as the one before
 // it, byte for byte, but for which digits it holds. The last row the field-by-field reading took is kept as such a
 // shape (its bytes with every digit replaced by '0', up to SHAPE_BYTES long, line end included) with where each
-// field's digits are; a row of the same shape is then read at those places without looking for its fields. Its
-// fields are read the same way (the same digit runs, the same arithmetic) as the field-by-field reading would, and
-// every check that depends on the digits' values (the range of the exponent, sentinels, the time) is made again;
-// a row that fails one goes to the field-by-field reading, which then stops at it as before.
+// field's digits are. The rows after it that have the same shape (up to BATCH_ROWS of them) are then read as a
+// batch at those places without looking for their fields, one column at a time (readShapeColumn), and their times
+// checked and pushed on the hull after. Their fields give the same doubles as the field-by-field reading would
+// (the same exact power of ten, one IEEE division or multiplication), and every check that depends on the digits'
+// values (the range of the exponent, sentinels, the time) is made again; the batch ends before a row that fails
+// one, and that row goes to the field-by-field reading, which then takes it or stops at it as before.
 const SHAPE_BYTES = 48;
 const SHAPE_FIELDS = 24; // at most SHAPE_BYTES / 2 fields fit in a shape
 // Per field, 8 bytes: offset of the integer digits, their count, offset of the fraction's digits, their count,
@@ -144,22 +146,21 @@ const IOTA = memory.data<u8>([0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 
 // Length of the row shape in bytes, 0 for none.
 let shapeLength: i32 = 0;
 
-// Lanes of the row bytes v equal to the shape s, once each digit counts as '0' (a bit set per lane).
+// The shape's bytes (digits as '0') and, per lane, the largest value the lane's byte XOR the shape's may have:
+// 9 where the shape has a digit, 0 where it has another byte, 255 past its end (any byte: the next row's).
+const SHAPE_LIMIT = memory.data(SHAPE_BYTES, 16);
+
 // @ts-ignore: decorator
-@inline function shapeLanes(v: v128, s: v128): i32 {
-  const zeros = i8x16.splat(48);
-  const digit = i8x16.lt_u(i8x16.sub(v, zeros), i8x16.splat(10));
-  return i8x16.bitmask(i8x16.eq(v128.bitselect(zeros, v, digit), s));
+@inline function shapeVector(p: usize, k: usize): v128 {
+  const x = v128.xor(v128.load(p + k), v128.load(SHAPE + k));
+  const lim = v128.load(SHAPE_LIMIT + k);
+  return i8x16.eq(i8x16.max_u(x, lim), lim);
 }
 
 // The row at p has the shape (it ends inside the window: the caller checks p + shapeLength <= end).
 // @ts-ignore: decorator
-@inline function hasShape(p: usize, length: i32): bool {
-  const want: u64 = (<u64>1 << <u64>length) - 1;
-  const got = <u64>shapeLanes(v128.load(p), v128.load(SHAPE))
-    | (<u64>shapeLanes(v128.load(p + 16), v128.load(SHAPE + 16)) << 16)
-    | (<u64>shapeLanes(v128.load(p + 32), v128.load(SHAPE + 32)) << 32);
-  return (got & want) == want;
+@inline function hasShape(p: usize): bool {
+  return i8x16.all_true(v128.and(v128.and(shapeVector(p, 0), shapeVector(p, 16)), shapeVector(p, 32)));
 }
 
 // Keeps the row [p, p + length) as the shape (its fields' places are already in SHAPE_FIELD_INFO).
@@ -167,11 +168,140 @@ let shapeLength: i32 = 0;
 @inline function keepShape(p: usize, length: i32): void {
   const zeros = i8x16.splat(48);
   const tens = i8x16.splat(10);
+  const iota = v128.load(IOTA);
   for (let k = 0; k < SHAPE_BYTES; k += 16) {
     const v = v128.load(p + k);
-    v128.store(SHAPE + k, v128.bitselect(zeros, v, i8x16.lt_u(i8x16.sub(v, zeros), tens)));
+    const digit = i8x16.lt_u(i8x16.sub(v, zeros), tens);
+    v128.store(SHAPE + k, v128.bitselect(zeros, v, digit));
+    const past = i8x16.ge_u(iota, i8x16.splat(<i8>max(length - k, 0)));
+    v128.store(SHAPE_LIMIT + k, v128.or(past, v128.and(digit, i8x16.splat(9))));
   }
   shapeLength = length;
+}
+
+// The number the 16 digit values in the lanes of d spell (first lane most significant, each 0-9): pairs with one
+// 16-bit multiply (10·a + b = (a + 256·b)·2561 >> 8 while it fits 16 bits), fours with a multiply-add, eights
+// with another after narrowing, then the two eights.
+// @ts-ignore: decorator
+@inline function simdDigits(d: v128): u64 {
+  const pairs = i16x8.shr_u(i16x8.mul(d, i16x8.splat(2561)), 8);
+  const fours = i32x4.dot_i16x8_s(pairs, i32x4.splat(0x00010064));
+  const eights = i32x4.dot_i16x8_s(i16x8.narrow_i32x4_s(fours, fours), i32x4.splat(0x00012710));
+  return <u64>i32x4.extract_lane(eights, 0) * 100000000 + <u64>i32x4.extract_lane(eights, 1);
+}
+
+// Pushes (i, r) on the upper hull of n vertices (xs, ys): drops the last vertex while it does not make a right
+// turn. Returns the new count.
+// @ts-ignore: decorator
+@inline function pushUpper(xs: usize, ys: usize, n: i32, i: f64, r: f64): i32 {
+  while (n >= 2) {
+    const x0 = load<f64>(xs + ((n - 2) << 3));
+    const y0 = load<f64>(ys + ((n - 2) << 3));
+    if ((load<f64>(xs + ((n - 1) << 3)) - x0) * (r - y0) - (load<f64>(ys + ((n - 1) << 3)) - y0) * (i - x0) >= 0) n--;
+    else break;
+  }
+  store<f64>(xs + (n << 3), i);
+  store<f64>(ys + (n << 3), r);
+  return n + 1;
+}
+
+// The same for the lower hull: drops the last vertex while it does not make a left turn.
+// @ts-ignore: decorator
+@inline function pushLower(xs: usize, ys: usize, n: i32, i: f64, r: f64): i32 {
+  while (n >= 2) {
+    const x0 = load<f64>(xs + ((n - 2) << 3));
+    const y0 = load<f64>(ys + ((n - 2) << 3));
+    if ((load<f64>(xs + ((n - 1) << 3)) - x0) * (r - y0) - (load<f64>(ys + ((n - 1) << 3)) - y0) * (i - x0) <= 0) n--;
+    else break;
+  }
+  store<f64>(xs + (n << 3), i);
+  store<f64>(ys + (n << 3), r);
+  return n + 1;
+}
+
+// Rows of one shape read in a batch, column after column (see readShapeColumn); at most this many at a time so
+// that the batch's bytes stay in the first-level cache while each column is read.
+const BATCH_ROWS = 256;
+
+/**
+ * Reads field `col` of `k` rows of the shape from p (one every `length` bytes) into the doubles at `to`, with
+ * everything about the field (its places, its power of ten, the column's factor) held in locals for the batch.
+ * Returns how many rows it read before the first one it could not take this way (k when all): a row whose
+ * exponent is out of the exact range, a possible sentinel, or a time out of range; the field-by-field reading
+ * then takes that row or stops at it.
+ */
+function readShapeColumn(p: usize, length: i32, k: i32, col: i32, factor: f64, isTime: bool, to: usize, minSentinel: f64): i32 {
+  const info = SHAPE_FIELD_INFO + (<usize>col << 3);
+  // (−v)·f and v·(−f) are the same double (IEEE 754 rounding is symmetric), so the sign goes into the factor.
+  const signedFactor = load<u8>(info, 6) != 0 ? -factor : factor;
+  if (load<u8>(info, 5) == 0) {
+    return isTime ? readPlainColumn(p, length, k, info, col, signedFactor, true, to, minSentinel)
+      : readPlainColumn(p, length, k, info, col, signedFactor, false, to, minSentinel);
+  }
+  return isTime ? readExpColumn(p, length, k, info, col, signedFactor, true, to, minSentinel)
+    : readExpColumn(p, length, k, info, col, signedFactor, false, to, minSentinel);
+}
+
+// A field without an exponent: the power of ten is the fraction's, the same for every row.
+// @ts-ignore: decorator
+@inline function readPlainColumn(p: usize, length: i32, k: i32, info: usize, col: i32, signedFactor: f64, isTime: bool, to: usize, minSentinel: f64): i32 {
+  const lanes = v128.load(SHAPE_DIGIT_LANES + (<usize>col << 4));
+  const zeros = i8x16.splat(48);
+  const divisor = load<f64>(POW10 + (<usize>load<u8>(info, 3) << 3));
+  let q = p + <usize>load<u8>(info);
+  for (let j = 0; j < k; j++) {
+    const value = <f64><i64>simdDigits(i8x16.swizzle(i8x16.sub(v128.load(q), zeros), lanes)) / divisor;
+    if (value >= minSentinel) {
+      if (value != 0) return j;
+    }
+    const scaled = value * signedFactor;
+    if (isTime) {
+      if (!(abs(scaled) <= MAX_TIME_SECONDS)) return j;
+    }
+    store<f64>(to + (<usize>j << 3), scaled);
+    q += length;
+  }
+  return k;
+}
+
+// A field with an exponent of 1–4 digits, read from one 32-bit load shifted to the top lanes and summed as in
+// eightDigits.
+// @ts-ignore: decorator
+@inline function readExpColumn(p: usize, length: i32, k: i32, info: usize, col: i32, signedFactor: f64, isTime: bool, to: usize, minSentinel: f64): i32 {
+  const lanes = v128.load(SHAPE_DIGIT_LANES + (<usize>col << 4));
+  const zeros = i8x16.splat(48);
+  const fracDigits = <i32>load<u8>(info, 3);
+  const shift = <u32>(4 - <i32>load<u8>(info, 5)) << 3;
+  const eneg = load<u8>(info, 7) != 0;
+  let q = p + <usize>load<u8>(info);
+  let at = p + <usize>load<u8>(info, 4);
+  for (let j = 0; j < k; j++) {
+    const mant = simdDigits(i8x16.swizzle(i8x16.sub(v128.load(q), zeros), lanes));
+    let x = (load<u32>(at) - 0x30303030) << shift;
+    x = x * 10 + (x >> 8);
+    const e = <i32>((((x & 0x00ff00ff) * 0x00640001) >> 16) & 0xffff);
+    const exp10 = (eneg ? -e : e) - fracDigits;
+    const fm = <f64><i64>mant;
+    let value: f64;
+    if (exp10 < 0) {
+      if (exp10 < -22) return j;
+      value = fm / load<f64>(POW10 + (<usize>(-exp10) << 3));
+    } else {
+      if (exp10 > 22) return j;
+      value = fm * load<f64>(POW10 + (<usize>exp10 << 3));
+    }
+    if (value >= minSentinel) {
+      if (value != 0) return j;
+    }
+    const scaled = value * signedFactor;
+    if (isTime) {
+      if (!(abs(scaled) <= MAX_TIME_SECONDS)) return j;
+    }
+    store<f64>(to + (<usize>j << 3), scaled);
+    q += length;
+    at += length;
+  }
+  return k;
 }
 
 /**
@@ -202,44 +332,57 @@ export function scan(
   let row = 0;
   // A shape is kept within one call only: the next may be for other columns or another delimiter.
   shapeLength = 0;
+  // The time's column, -1 for none.
+  let timeCol = -1;
+  for (let col = 0; col < width; col++) if (load<i32>(columns + (width << 3) + (col << 2)) != 0) timeCol = col;
+  // The row at p is to be read field by field (its shape matched but a field did not).
+  let fieldByField = false;
   while (p < end && row < maxRows) {
     if (hull != 0 && (upper >= hullRoom || lower >= hullRoom)) break;
+    const length = shapeLength;
+    if (!fieldByField && length != 0 && p + length <= end && hasShape(p)) {
+      // Laid out as the row before: a batch of the rows of this shape, each field's digits where the shape says
+      // (see SHAPE_BYTES), read column after column.
+      const most = min(BATCH_ROWS, maxRows - row);
+      let k = 1;
+      let next = p + length;
+      while (k < most && next + length <= end && hasShape(next)) {
+        k++;
+        next += length;
+      }
+      const shaped = k;
+      for (let col = 0; col < width && k > 0; col++) {
+        k = readShapeColumn(p, length, k, col, load<f64>(columns + (col << 3)), col == timeCol, out + ((<usize>(col * stride + row)) << 3), minSentinel);
+      }
+      // The times, row by row: increasing, and on the hulls.
+      let taken = k;
+      let stop = false;
+      if (timeCol >= 0) {
+        const times = out + ((<usize>(timeCol * stride + row)) << 3);
+        for (let j = 0; j < k; j++) {
+          if (hull != 0 && (upper >= hullRoom || lower >= hullRoom)) { taken = j; stop = true; break; }
+          const rowTime = load<f64>(times + (<usize>j << 3));
+          if (lastTime == lastTime && !(rowTime > lastTime)) { taken = j; stop = true; break; }
+          lastTime = rowTime;
+          if (hull != 0) {
+            const i = firstRow + <f64>(row + j);
+            const r = rowTime - t0 - i * dtHint;
+            upper = pushUpper(ui, ur, upper, i, r);
+            lower = pushLower(li, lr, lower, i, r);
+          }
+        }
+      }
+      row += taken;
+      p += <usize>(taken * length);
+      if (stop) break;
+      fieldByField = taken < shaped;
+      continue;
+    }
+    fieldByField = false;
     let q = p;
     let col = 0;
     let rowTime: f64 = NaN;
     let taken = false;
-    const length = shapeLength;
-    let byShape = length != 0 && p + length <= end && hasShape(p, length);
-    if (byShape) {
-      // Laid out as the row before: each field's digits are where the shape says (see SHAPE_BYTES).
-      taken = true;
-      for (; col < width; col++) {
-        const info = SHAPE_FIELD_INFO + (<usize>col << 3);
-        const intDigits = <i32>load<u8>(info, 1);
-        const fracDigits = <i32>load<u8>(info, 3);
-        const expDigits = <i32>load<u8>(info, 5);
-        // All the mantissa's digits (at most 15, after the sign), the point left out and right-aligned in 16 lanes.
-        const lanes = i8x16.swizzle(i8x16.sub(v128.load(p + load<u8>(info)), zeros), v128.load(SHAPE_DIGIT_LANES + (<usize>col << 4)));
-        const mant = eightDigits(i64x2.extract_lane(lanes, 0)) * 100000000 + eightDigits(i64x2.extract_lane(lanes, 1));
-        let e: i32 = 0;
-        const expAt = p + load<u8>(info, 4);
-        for (let i = 0; i < expDigits; i++) e = e * 10 + (<i32>load<u8>(expAt + i) - 48);
-        const value = exactValue(load<u8>(info, 6) != 0, mant, (load<u8>(info, 7) != 0 ? -e : e) - fracDigits);
-        if (value != value || (value != 0 && abs(value) >= minSentinel)) { taken = false; break; }
-        const scaled = value * load<f64>(columns + (col << 3));
-        if (load<i32>(columns + (width << 3) + (col << 2)) != 0) {
-          if (!(abs(scaled) <= MAX_TIME_SECONDS)) { taken = false; break; }
-          rowTime = scaled;
-        }
-        store<f64>(out + ((col * stride + row) << 3), scaled);
-      }
-      if (taken) q = p + length;
-      else {
-        byShape = false;
-        col = 0;
-        rowTime = NaN;
-      }
-    }
     // Field by field; a row taken this way that is short enough becomes the shape.
     let shapeOk = width <= SHAPE_FIELDS && <u32>(delimiter - 48) >= 10;
     if (!taken) for (;;) {
@@ -366,34 +509,11 @@ export function scan(
       if (hull != 0) {
         const i = firstRow + <f64>row;
         const r = rowTime - t0 - i * dtHint;
-        // Upper hull: drop the last vertex while it does not make a right turn; lower hull: a left turn.
-        let n = upper;
-        while (n >= 2) {
-          const x0 = load<f64>(ui + ((n - 2) << 3));
-          const y0 = load<f64>(ur + ((n - 2) << 3));
-          if ((load<f64>(ui + ((n - 1) << 3)) - x0) * (r - y0) - (load<f64>(ur + ((n - 1) << 3)) - y0) * (i - x0) >= 0) n--;
-          else break;
-        }
-        store<f64>(ui + (n << 3), i);
-        store<f64>(ur + (n << 3), r);
-        upper = n + 1;
-        n = lower;
-        while (n >= 2) {
-          const x0 = load<f64>(li + ((n - 2) << 3));
-          const y0 = load<f64>(lr + ((n - 2) << 3));
-          if ((load<f64>(li + ((n - 1) << 3)) - x0) * (r - y0) - (load<f64>(lr + ((n - 1) << 3)) - y0) * (i - x0) <= 0) n--;
-          else break;
-        }
-        store<f64>(li + (n << 3), i);
-        store<f64>(lr + (n << 3), r);
-        lower = n + 1;
+        upper = pushUpper(ui, ur, upper, i, r);
+        lower = pushLower(li, lr, lower, i, r);
       }
     }
     row++;
-    if (byShape) {
-      p = q; // line end included
-      continue;
-    }
     if (q < end && load<u8>(q) == 13) q++;
     if (q < end && load<u8>(q) == 10) q++;
     // Only a row ended by an LF: after a lone CR the next row might begin with an LF that would be taken with it.

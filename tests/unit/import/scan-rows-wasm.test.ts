@@ -4,7 +4,7 @@ import fc from 'fast-check';
 import { afterEach, describe, expect, it } from 'vitest';
 import { SLOT_TIME, scanNumericRows, type ScanSpec, type ScanState, type ScanStop } from '../../../shared/import/scan-numeric-rows.ts';
 import { TimeGridHull } from '../../../shared/import/time-grid-hull.ts';
-import { BLOCK_BYTES, OUTPUT_DOUBLES, rowScanner, rowScannerBlock, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
+import { BLOCK_BYTES, HULL_ROOM, OUTPUT_DOUBLES, rowScanner, rowScannerBlock, rowScannerRowsTaken, setRowScannerEnabled, WINDOW_BYTES } from '../../../shared/import/wasm/scan-rows-wasm.ts';
 import { compileScanWasm, renderGenerated, repoRoot, SCAN_WASM_GENERATED } from '../../../scripts/lib/compile-scan-wasm.ts';
 
 const encoder = new TextEncoder();
@@ -224,6 +224,56 @@ describe('compiled row scanner (shared/import/wasm)', () => {
     const time = both('1.1e+11,1,1\n1.2e+11,1,1\n1.5e+12,1,1\n', spec({ factors: [1, 1], timeFactor: 1 }));
     expect(time.wasm.stops.map((x) => x.line)).toEqual([3]);
     expect(time.wasm.wasmRows).toBe(2);
+  });
+
+  it('When a long run of one layout breaks at or near the edge of a batch, then every row ends up where the field-by-field reading puts it', () => {
+    // The compiled scanner reads up to 256 rows of one shape as a batch, column after column, then checks their
+    // times; a row that breaks the run (a value only its digits make odd) must end the batch just before it.
+    const rows = 1100;
+    const at = [0, 1, 254, 255, 256, 257, 511, 512, 513, 1099];
+    // Exponents of two digits, as many scopes print them ("1.500000e+12", "1.250000e+00").
+    const exp2 = (x: number) => x.toExponential(6).replace(/e([+-])(\d)$/, 'e$10$2');
+    const line = (i: number, t: number, a: string) => `${exp2(t)},${a},${(-4 - (i % 5) * 0.001).toFixed(6)},${exp2(1.25 + (i % 3))}`;
+    const breaks: Record<string, (i: number, t: number) => string> = {
+      'a sentinel': (i, t) => line(i, t, '5.000000'),
+      'a repeated time': (i, t) => line(i, t - 1e-4, '1.000000'),
+      'a time that goes back': (i, t) => line(i, t - 2e-4, '1.000000'),
+      'an exponent beyond the exact range': (i, t) => line(i, t, '1.000000').replace(/e\+0\d$/, 'e+99'),
+      'a time beyond ±1e12 s': (i) => line(i, 1.5e12, '1.000000'),
+    };
+    for (const [what, broken] of Object.entries(breaks)) {
+      // A sentinel of 5 only where it is the break: any value from 5 up would otherwise end the batch first.
+      const s = spec({ slots: [SLOT_TIME, 0, 1, 2], factors: [1, 1e-3, 1], timeFactor: 1, requiredFields: 4, expected: 4, numericSentinels: what === 'a sentinel' ? [5] : [] });
+      for (const i0 of at) {
+        const text = Array.from({ length: rows }, (_, i) => {
+          const t = 1 + i * 1e-4;
+          return i === i0 ? broken(i, t) : line(i, t, (0.1 + (i % 7) * 0.1).toFixed(6));
+        }).join('\n') + '\n';
+        for (const hull of [false, true]) {
+          const { js, wasm } = both(text, s, { hull });
+          expect(js.state.row, `${what} at row ${i0}`).toBeGreaterThan(rows - 2);
+          expect(wasm.wasmRows, `${what} at row ${i0}`).toBeGreaterThan(rows - 5);
+        }
+      }
+    }
+  });
+
+  it('When the time grid hull fills up in the middle of a batch, then the compiled scanner stops there and JS carries on', () => {
+    // Times bent away from the even grid (r_i = −i²·1e-12 s, concave): every sample is a vertex of the upper hull,
+    // so the module's HULL_ROOM (4096) vertices fill at row 4096. Row 4000 is printed otherwise (a wider value), so
+    // a batch starts at 4001 and the hull fills in its middle.
+    const n = 6000;
+    const text = Array.from({ length: n }, (_, i) => `${(i * 1e-6 - i * i * 1e-12).toExponential(9)},${i === 4000 ? '12.25' : (i % 9) * 0.5 + 0.25},1.5`).join('\n') + '\n';
+    const { wasm } = both(text, spec({ factors: [1, 1], timeFactor: 1 }), { hull: true });
+    expect(wasm.state.row).toBe(n);
+    expect(wasm.hull?.counts[0]).toBe(n);
+    // The module itself, called once on all the rows: it stops before the row that would overflow the hull.
+    const bytes = encoder.encode(text);
+    const module = rowScanner() as NonNullable<ReturnType<typeof rowScanner>>;
+    module.u8.set(bytes, module.input);
+    [1, 1, 1].forEach((f, c) => { module.f64[(module.columns >> 3) + c] = f; module.i32[((module.columns + 24) >> 2) + c] = c === 0 ? 1 : 0; });
+    const rows = module.scan(module.input, module.input + bytes.length, 3, 44, 46, module.columns, module.output, Math.floor(OUTPUT_DOUBLES / 3), n, NaN, Infinity, module.hull, HULL_ROOM, 0, 0, 0, 0, 1e-6);
+    expect([rows, module.upperAfter()]).toEqual([HULL_ROOM, HULL_ROOM]);
   });
 
   it('When the rows run past the input window and the output block, then nothing is lost or doubled at the seams', () => {
