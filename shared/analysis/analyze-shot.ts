@@ -5,9 +5,8 @@ import { buildShotModel, type FiredGate } from './build-shot-model.ts';
 import { checkTimeBase } from './check-time-base.ts';
 import { ENGINE_VERSION } from './engine-version.ts';
 import { findDipCandidate } from './find-dip-candidate.ts';
-import { findPulses } from './find-pulses.ts';
-import { measureChannel, type ChannelMeasurement } from './measure-channel.ts';
 import type { ModelInput } from './measurement-model.ts';
+import { prepareChannel, thresholdOf, type PreparedChannel } from './prepare-channel.ts';
 import { propagateMonteCarlo } from './propagate-monte-carlo.ts';
 import { propagateUncertainty } from './propagate-uncertainty.ts';
 import { smoothSavitzkyGolay } from './smooth-savitzky-golay.ts';
@@ -71,11 +70,23 @@ function linear(inputs: ModelInput[], evaluate: (x: Float64Array) => number) {
 /** Which pulse instant times the flight: both like edges averaged (mid-time), or one edge alone. */
 const EDGE = { both: 'mid', leading: 'leading', trailing: 'trailing' } as const;
 
-export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsInput = {}): ShotAnalysis {
+/** The options as analyzeShot reads them (defaults filled in); RangeError naming what is wrong. */
+export function parseAnalysisOptions(options: AnalysisOptionsInput = {}): AnalysisOptions {
   const parsed = analysisOptionsSchema.safeParse(options);
   if (!parsed.success) throw new RangeError(`invalid analysis options: ${z.prettifyError(parsed.error)}`);
-  const opts: AnalysisOptions = parsed.data;
+  return parsed.data;
+}
+
+/**
+ * `prepared`: every channel already prepared (prepareChannel, in channel order, on the unsmoothed traces: a caller
+ * that has the channels prepared in parallel passes them here); the result is the same as without.
+ */
+export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsInput = {}, prepared?: PreparedChannel[]): ShotAnalysis {
+  const opts = parseAnalysisOptions(options);
   checkCapture(capture);
+  if (prepared !== undefined && (prepared.length !== capture.channels.length || opts.smoothing !== null)) {
+    throw new RangeError('prepared channels must be one per channel, and only without smoothing');
+  }
   const warnings: string[] = [];
   const time = capture.time;
 
@@ -106,21 +117,19 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     warnings.push('smoothing assumes evenly spaced samples, but this capture has an explicit, uneven time base');
   }
   const traces: ArrayLike<number>[] = capture.channels.map((c) => c.values);
-  const measured: (ChannelMeasurement | null)[] = traces.map((raw, i) => {
+  const ready: PreparedChannel[] = prepared ?? traces.map((raw, i) => {
+    let trace = raw;
     try {
-      const trace = opts.smoothing === null ? raw : smoothSavitzkyGolay(raw, opts.smoothing);
-      traces[i] = trace;
-      return measureChannel(trace, {
-        bins: opts.levels.bins,
-        method: opts.levels.method,
-        trimFraction: opts.levels.trimFraction,
-        polarity: opts.polarity,
-      });
+      if (opts.smoothing !== null) trace = traces[i] = smoothSavitzkyGolay(raw, opts.smoothing);
     } catch (error) {
-      warnings.push(`${capture.channels[i].name}: ${(error as Error).message}`);
-      return null;
+      return { measured: null, error: (error as Error).message, found: null };
     }
+    return prepareChannel(trace, time, opts);
   });
+  ready.forEach((r, i) => {
+    if (r.error !== null) warnings.push(`${capture.channels[i].name}: ${r.error}`);
+  });
+  const measured = ready.map((r) => r.measured);
 
   // 2. The reference step: the rig's, or the largest clean step among the channels.
   let referenceStep = opts.missed.expectedStep ?? 0;
@@ -137,7 +146,6 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
   for (let c = 0; c < capture.channels.length; c++) {
     const channel = capture.channels[c];
     const m = measured[c];
-    const trace = traces[c];
     if (channel.invalidCount > 0) warnings.push(`${channel.name}: ${channel.invalidCount} invalid samples were skipped`);
     const base = {
       name: channel.name,
@@ -176,15 +184,9 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     }
     let result: ChannelResult | null = null;
     if (reason === null) {
-      const step = m.blockedLevel - m.clearLevel;
-      const t = opts.threshold;
-      const level = t.unit === 'percent' ? m.clearLevel + (t.level / 100) * step : t.level;
-      const armA = t.unit === 'percent' ? m.clearLevel + ((t.level - t.hysteresis) / 100) * step : t.level - t.hysteresis;
-      const armB = t.unit === 'percent' ? m.clearLevel + ((t.level + t.hysteresis) / 100) * step : t.level + t.hysteresis;
-      const lowArm = Math.min(armA, armB);
-      const highArm = Math.max(armA, armB);
-      if (lowArm < level && level < highArm) {
-        const found = findPulses(trace, { time, crossLevel: level, lowArm, highArm, low: m.low, high: m.high, polarity: m.polarity, noise: m.noise });
+      const { level, lowArm, highArm } = thresholdOf(m, opts);
+      const found = ready[c].found;
+      if (found !== null) {
         if (found.openAtStart && isGate[c]) warnings.push(`${channel.name}: the record starts with the beam blocked; that pulse was ignored`);
         if (found.openAtEnd && isGate[c]) warnings.push(`${channel.name}: the record ends with the beam blocked; that pulse was ignored`);
         // A pulse no longer than two sample intervals is a spike, not a projectile (common practice).

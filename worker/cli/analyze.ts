@@ -6,11 +6,15 @@
  * missed, or the result is marked "check the time base": both are results, stated in the output), 2 unreadable
  * input or bad arguments (one line on stderr).
  */
+import { statSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import type { ShotAnalysis } from '../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { readCaptureFile } from '../import/read-capture-file.ts';
+import { ScanThread } from '../import/scan-thread.ts';
+import { prepareInTwoThreads } from './prepare-in-two-threads.ts';
 import { resultNotes } from './result-notes.ts';
 
 const USAGE = 'usage: analyze FILE [--gate CHANNEL@POSITION_M]... [--spacing M] [--diameter M] [--position-tolerance M] [--timebase-ppm N] [--dt S] [--json]';
@@ -126,6 +130,28 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
     io.stderr(`analyze: ${(error as Error).message}\n${USAGE}\n`);
     return 2;
   }
+  // A deep record is read in two threads (readCaptureFile) and its channels prepared for the analysis in the same
+  // two (prepareInTwoThreads): the second thread is made here, so that it outlives the read.
+  const thread = io.readCapture === undefined && fileBytes(args.file) >= PARALLEL_BYTES && availableParallelism() >= 2 ? new ScanThread() : null;
+  try {
+    return await analyzeRead(args, io, thread);
+  } finally {
+    await thread?.close();
+  }
+}
+
+/** Smallest file worth a second thread (the reader's own default). */
+const PARALLEL_BYTES = 64 << 20;
+
+function fileBytes(path: string): number {
+  try {
+    return statSync(path).size;
+  } catch {
+    return 0; // the reader words the error
+  }
+}
+
+async function analyzeRead(args: CliArgs, io: CliIo, thread: ScanThread | null): Promise<number> {
   let capture: ImportedCapture;
   // The engine (zod and the rest: some 50 ms to load) is loaded once the read is under way: the reader runs on this
   // thread without a pause until it waits for its second thread, so the engine loads in that wait instead of
@@ -133,7 +159,7 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
   let engine: Promise<typeof import('../../shared/analysis/analyze-shot.ts')> | undefined;
   try {
     const readOptions = args.dt === undefined ? {} : { dt: args.dt };
-    const reading = (io.readCapture ?? ((path: string, options: { dt?: number }) => readCaptureFile(path, options)))(args.file, readOptions);
+    const reading = (io.readCapture ?? ((path: string, options: { dt?: number }) => readCaptureFile(path, { ...options, thread: thread ?? undefined })))(args.file, readOptions);
     engine = import('../../shared/analysis/analyze-shot.ts');
     engine.catch(() => undefined);
     capture = await reading;
@@ -154,10 +180,11 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
     io.stderr(`analyze: ${args.file} has ${capture.channels.length} channels; give --spacing M or --gate CHANNEL@POSITION_M for each gate\n`);
     return 2;
   }
-  const { analyzeShot } = await engine;
+  const { analyzeShot, parseAnalysisOptions } = await engine;
   let analysis: ShotAnalysis;
   try {
-    analysis = analyzeShot(capture, options);
+    const prepared = thread === null ? null : await prepareInTwoThreads(thread, capture, parseAnalysisOptions(options));
+    analysis = analyzeShot(capture, options, prepared ?? undefined);
   } catch (error) {
     io.stderr(`analyze: ${args.file}: ${(error as Error).message.split('\n')[0]}\n`);
     return 2;

@@ -1,6 +1,5 @@
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import { decodeCaptureBytes } from '../../shared/import/decode-capture-bytes.ts';
 import { detectCapturePlan } from '../../shared/import/detect-capture-plan.ts';
@@ -15,6 +14,7 @@ import { lineStartOffset } from '../../shared/import/line-start-offset.ts';
 import { readCaptureStream, type ReadCaptureStreamOptions } from './read-capture-stream.ts';
 import { scanFileRange } from './scan-file-range.ts';
 import type { ScanRangeReply, ScanRangeRequest } from './scan-range-worker.ts';
+import { ScanThread } from './scan-thread.ts';
 import { checkChannelCount, checkSampleCount } from './capture-limits.ts';
 
 export interface ReadCaptureFileOptions extends ReadCaptureStreamOptions {
@@ -22,6 +22,9 @@ export interface ReadCaptureFileOptions extends ReadCaptureStreamOptions {
   threads?: number;
   /** Smallest file worth a second thread (a worker takes ~0.3 s to start under tsx). @default 64 MiB */
   parallelFromBytes?: number;
+  /** The second thread to scan in, made and closed by the caller (who has more work for it); else one is made
+   * for the read and closed after it. */
+  thread?: ScanThread;
 }
 
 const BLOCK = 4 << 20;
@@ -125,12 +128,7 @@ const RECOUNT = 'recount';
  * pass over the file first, the way taken again when a part outgrows its bound). */
 async function readInTwoParts(path: string, size: number, options: ReadCaptureFileOptions, counted = false): Promise<ImportedCapture | null | typeof RECOUNT> {
   // Start the worker first: it boots while this thread reads the head.
-  const worker = new Worker(new URL('./scan-range-worker-boot.mjs', import.meta.url));
-  const ready = new Promise<ScanRangeReply>((resolve, reject) => {
-    worker.once('message', resolve);
-    worker.once('error', reject);
-  });
-  ready.catch(() => undefined);
+  const thread = options.thread ?? new ScanThread();
   const fd = openSync(path, 'r');
   try {
     const head = new Uint8Array(Math.min(size, options.headBytes ?? 256 << 10));
@@ -197,7 +195,7 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     const request: ScanRangeRequest = {
       path, start: split, end: size, spec, values: shared, times: sharedTimes, rowOffset: cap0, line: 1, hull: hint,
     };
-    worker.postMessage(request);
+    const ready = thread.request<ScanRangeReply>({ kind: 'scan', ...request });
     // The first part writes only rows [0, cap0): past that the other thread writes at the same time, so a first
     // part that outgrows its bound stops 'full' (and the read is done again counted) instead of running on.
     const out: ScanOutput = {
@@ -260,6 +258,6 @@ async function readInTwoParts(path: string, size: number, options: ReadCaptureFi
     return finishCapture({ plan, out, rows, footerText, source, time: { kind: 'uniform', t0, dt, jitter } });
   } finally {
     closeSync(fd);
-    await worker.terminate();
+    if (options.thread === undefined) await thread.close();
   }
 }

@@ -1,9 +1,11 @@
-// Worker-thread side of the parallel disk read: scans one byte range of a file into shared sample arrays.
+// Worker-thread side of the parallel disk read (see scan-thread.ts): scans one byte range of a file into shared
+// sample arrays; asked after the read, prepares channels of the capture for its analysis (the analyze CLI).
 import { closeSync, openSync } from 'node:fs';
 import { parentPort } from 'node:worker_threads';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { TimeGridHull, type TimeGridHullData } from '../../shared/import/time-grid-hull.ts';
 import type { ScanOutput, ScanSpec, ScanState } from '../../shared/import/scan-numeric-rows.ts';
+import type { PrepareChannelsReply, PrepareChannelsRequest } from '../../shared/analysis/prepare-channel.ts';
 import { scanFileRange } from './scan-file-range.ts';
 
 export interface ScanRangeRequest {
@@ -31,7 +33,27 @@ export interface ScanRangeReply {
   failure: string | null;
 }
 
-parentPort?.once('message', (request: ScanRangeRequest) => {
+export type ScanThreadRequest = ({ kind: 'scan' } & ScanRangeRequest) | ({ kind: 'prepare' } & PrepareChannelsRequest);
+export type ScanThreadReply = ScanRangeReply | PrepareChannelsReply;
+
+parentPort?.on('message', (request: ScanThreadRequest) => {
+  if (request.kind === 'prepare') void prepare(request);
+  else scan(request);
+});
+
+/** Channels prepared here; the analysis modules are loaded on the first such request (the reader needs none). */
+async function prepare(request: PrepareChannelsRequest): Promise<void> {
+  let reply: PrepareChannelsReply;
+  try {
+    const { prepareChannels } = await import('../../shared/analysis/prepare-channel.ts');
+    reply = { prepared: prepareChannels(request), failure: null };
+  } catch (error) {
+    reply = { prepared: null, failure: error instanceof Error ? `${error.name}: ${error.message}` : String(error) };
+  }
+  parentPort?.postMessage(reply);
+}
+
+function scan(request: ScanRangeRequest): void {
   let reply: ScanRangeReply;
   try {
     const out: ScanOutput = {
@@ -66,4 +88,4 @@ parentPort?.once('message', (request: ScanRangeRequest) => {
     reply = { row: 0, line: 0, lastTime: NaN, firstIndex: null, hull: null, stop: null, invalidCounts: [], failure: error instanceof Error ? `${error.name}: ${error.message}` : String(error) };
   }
   parentPort?.postMessage(reply);
-});
+}

@@ -6,6 +6,9 @@ import { writeCaptureLayout } from '../../../../fixtures/lib/write-capture-layou
 import { parseScopeCsv } from '../../../../shared/import/parse-scope-csv.ts';
 import { countLineEnds } from '../../../../shared/import/count-line-ends.ts';
 import { readCaptureFile, rowsUpperBound, shortestRowBytes } from '../../../../worker/import/read-capture-file.ts';
+import { ScanThread } from '../../../../worker/import/scan-thread.ts';
+import { prepareInTwoThreads } from '../../../../worker/cli/prepare-in-two-threads.ts';
+import { analyzeShot, parseAnalysisOptions } from '../../../../shared/analysis/analyze-shot.ts';
 import { checkAgainstTruth } from '../../import/check-against-truth.ts';
 import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
 import { rejection } from '../../../helpers/import-rejection.ts';
@@ -234,6 +237,36 @@ describe('readCaptureFile with the installation\'s limits (issue 12)', () => {
     const path = save('wide.csv', written().bytes);
     for (const threads of [1, 2] as const) {
       expect((await rejection(readCaptureFile(path, { threads, headBytes: 4096, maxChannels: 1 }))).message, `threads ${threads}`).toBe(tooWide);
+    }
+  });
+});
+
+describe('readCaptureFile with a second thread the caller keeps (the analyze CLI)', () => {
+  it('When the caller brings the thread, then the reads use it, it stays up after them, and it prepares channels as analyzeShot would', async () => {
+    const { bytes } = written(20_000);
+    const path = save('kept.csv', bytes);
+    const thread = new ScanThread();
+    try {
+      const own = await readCaptureFile(path, { threads: 2, headBytes: 4096 });
+      const first = await readCaptureFile(path, { threads: 2, headBytes: 4096, thread });
+      const second = await readCaptureFile(path, { threads: 2, headBytes: 4096, thread });
+      for (const capture of [first, second]) {
+        expect(capture.layout.reader).toBe('two threads');
+        capture.channels.forEach((c, k) => expect(Buffer.from(c.values.buffer, c.values.byteOffset, c.values.byteLength).equals(Buffer.from(own.channels[k].values.buffer, own.channels[k].values.byteOffset, own.channels[k].values.byteLength))).toBe(true));
+      }
+      // Half of the channels go to the kept thread; the analysis from them is the one analyzeShot makes alone.
+      const options = { spacing: 0.1 };
+      const prepared = await prepareInTwoThreads(thread, second, parseAnalysisOptions(options));
+      expect(prepared).not.toBeNull();
+      expect(prepared?.[0].found?.pulses.length).toBeGreaterThan(5);
+      expect(analyzeShot(second, options, prepared ?? undefined)).toEqual(analyzeShot(second, options));
+      // Not with smoothing (the traces would differ), nor from arrays another thread cannot see.
+      expect(await prepareInTwoThreads(thread, second, parseAnalysisOptions({ ...options, smoothing: { windowSize: 11, polynomial: 2 } }))).toBeNull();
+      const plain = { ...second, channels: second.channels.map((c) => ({ ...c, values: Float64Array.from(c.values) })) };
+      expect(await prepareInTwoThreads(thread, plain, parseAnalysisOptions(options))).toBeNull();
+      expect(() => analyzeShot(second, { ...options, smoothing: { windowSize: 11, polynomial: 2 } }, prepared ?? undefined)).toThrow(/only without smoothing/);
+    } finally {
+      await thread.close();
     }
   });
 });

@@ -1,0 +1,55 @@
+import type { AnalysisOptions } from '../contracts/analysis.ts';
+import type { TimeBase } from '../contracts/capture.ts';
+import { findPulses, type FoundPulses } from './find-pulses.ts';
+import { measureChannel, type ChannelMeasurement } from './measure-channel.ts';
+
+/**
+ * One channel's levels, noise and polarity, and its pulses at the threshold: the part of the analysis that needs
+ * only that channel's samples (each pass over a deep record's channel is most of the analysis). The pulses are
+ * found before the reference step is known; analyzeShot uses them only if the channel is not missed.
+ */
+export interface PreparedChannel {
+  measured: ChannelMeasurement | null;
+  /** Why the channel could not be measured (it becomes the channel's warning), or null. */
+  error: string | null;
+  found: FoundPulses | null;
+}
+
+/** Prepares one channel's trace (smoothed already when smoothing is asked for) with parsed options. */
+export function prepareChannel(trace: ArrayLike<number>, time: TimeBase, opts: AnalysisOptions): PreparedChannel {
+  let m: ChannelMeasurement;
+  try {
+    m = measureChannel(trace, { bins: opts.levels.bins, method: opts.levels.method, trimFraction: opts.levels.trimFraction, polarity: opts.polarity });
+  } catch (error) {
+    return { measured: null, error: (error as Error).message, found: null };
+  }
+  const { level, lowArm, highArm } = thresholdOf(m, opts);
+  // A flat channel (one level) has no transitions, and is missed whatever its threshold.
+  const found = m.high > m.low && lowArm < level && level < highArm
+    ? findPulses(trace, { time, crossLevel: level, lowArm, highArm, low: m.low, high: m.high, polarity: m.polarity, noise: m.noise })
+    : null;
+  return { measured: m, error: null, found };
+}
+
+/** Channels whose samples are views of shared memory, for another thread to prepare (see ScanThread). */
+export interface PrepareChannelsRequest {
+  channels: { buffer: SharedArrayBuffer; byteOffset: number; length: number }[];
+  time: TimeBase;
+  opts: AnalysisOptions;
+}
+
+export type PrepareChannelsReply = { prepared: PreparedChannel[]; failure: null } | { prepared: null; failure: string };
+
+export function prepareChannels(request: PrepareChannelsRequest): PreparedChannel[] {
+  return request.channels.map((c) => prepareChannel(new Float64Array(c.buffer, c.byteOffset, c.length), request.time, request.opts));
+}
+
+/** The threshold level and its hysteresis arms for a measured channel. */
+export function thresholdOf(m: ChannelMeasurement, opts: AnalysisOptions): { level: number; lowArm: number; highArm: number } {
+  const step = m.blockedLevel - m.clearLevel;
+  const t = opts.threshold;
+  const level = t.unit === 'percent' ? m.clearLevel + (t.level / 100) * step : t.level;
+  const armA = t.unit === 'percent' ? m.clearLevel + ((t.level - t.hysteresis) / 100) * step : t.level - t.hysteresis;
+  const armB = t.unit === 'percent' ? m.clearLevel + ((t.level + t.hysteresis) / 100) * step : t.level + t.hysteresis;
+  return { level, lowArm: Math.min(armA, armB), highArm: Math.max(armA, armB) };
+}

@@ -1,0 +1,42 @@
+import { Worker } from 'node:worker_threads';
+import type { ScanThreadReply, ScanThreadRequest } from './scan-range-worker.ts';
+
+/**
+ * The disk reader's second thread (scan-range-worker): one request at a time, each answered by one reply. The
+ * reader makes its own for a read and closes it after; a caller that has more work for the thread after the read
+ * (the analyze CLI: half of the channels' analysis) makes it, passes it to readCaptureFile and closes it itself.
+ */
+export class ScanThread {
+  private readonly worker = new Worker(new URL('./scan-range-worker-boot.mjs', import.meta.url));
+  private failure: Error | null = null;
+
+  constructor() {
+    this.worker.on('error', (error) => {
+      this.failure = error;
+    });
+  }
+
+  /** Posts a request; the promise settles with its reply (or the thread's failure). */
+  request<R extends ScanThreadReply>(message: ScanThreadRequest): Promise<R> {
+    if (this.failure !== null) return Promise.reject(this.failure);
+    const reply = new Promise<R>((resolve, reject) => {
+      const onMessage = (value: R) => {
+        this.worker.off('error', onError);
+        resolve(value);
+      };
+      const onError = (error: Error) => {
+        this.worker.off('message', onMessage);
+        reject(error);
+      };
+      this.worker.once('message', onMessage);
+      this.worker.once('error', onError);
+    });
+    reply.catch(() => undefined);
+    this.worker.postMessage(message);
+    return reply;
+  }
+
+  async close(): Promise<void> {
+    await this.worker.terminate();
+  }
+}
