@@ -242,6 +242,21 @@ function readShapeColumn(p: usize, length: i32, k: i32, col: i32, factor: f64, i
     : readExpColumn(p, length, k, info, col, signedFactor, false, to, minSentinel);
 }
 
+// Stores a batch row's value (its sign is in the factor) at `at`; false, storing nothing, for a row to leave to the
+// field-by-field reading: a value that may be a sentinel, or a time out of range.
+// @ts-ignore: decorator
+@inline function storeValue(value: f64, signedFactor: f64, isTime: bool, minSentinel: f64, at: usize): bool {
+  if (value >= minSentinel) {
+    if (value != 0) return false;
+  }
+  const scaled = value * signedFactor;
+  if (isTime) {
+    if (!(abs(scaled) <= MAX_TIME_SECONDS)) return false;
+  }
+  store<f64>(at, scaled);
+  return true;
+}
+
 // A field without an exponent: the power of ten is the fraction's, the same for every row.
 // @ts-ignore: decorator
 @inline function readPlainColumn(p: usize, length: i32, k: i32, info: usize, col: i32, signedFactor: f64, isTime: bool, to: usize, minSentinel: f64): i32 {
@@ -251,14 +266,7 @@ function readShapeColumn(p: usize, length: i32, k: i32, col: i32, factor: f64, i
   let q = p + <usize>load<u8>(info);
   for (let j = 0; j < k; j++) {
     const value = <f64><i64>simdDigits(i8x16.swizzle(i8x16.sub(v128.load(q), zeros), lanes)) / divisor;
-    if (value >= minSentinel) {
-      if (value != 0) return j;
-    }
-    const scaled = value * signedFactor;
-    if (isTime) {
-      if (!(abs(scaled) <= MAX_TIME_SECONDS)) return j;
-    }
-    store<f64>(to + (<usize>j << 3), scaled);
+    if (!storeValue(value, signedFactor, isTime, minSentinel, to + (<usize>j << 3))) return j;
     q += length;
   }
   return k;
@@ -290,14 +298,7 @@ function readShapeColumn(p: usize, length: i32, k: i32, col: i32, factor: f64, i
       if (exp10 > 22) return j;
       value = fm * load<f64>(POW10 + (<usize>exp10 << 3));
     }
-    if (value >= minSentinel) {
-      if (value != 0) return j;
-    }
-    const scaled = value * signedFactor;
-    if (isTime) {
-      if (!(abs(scaled) <= MAX_TIME_SECONDS)) return j;
-    }
-    store<f64>(to + (<usize>j << 3), scaled);
+    if (!storeValue(value, signedFactor, isTime, minSentinel, to + (<usize>j << 3))) return j;
     q += length;
     at += length;
   }
