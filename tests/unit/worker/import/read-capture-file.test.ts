@@ -9,6 +9,7 @@ import { readCaptureFile, rowsUpperBound, shortestRowBytes } from '../../../../w
 import { ScanThread } from '../../../../worker/import/scan-thread.ts';
 import { prepareInTwoThreads } from '../../../../worker/cli/prepare-in-two-threads.ts';
 import { analyzeShot, parseAnalysisOptions } from '../../../../shared/analysis/analyze-shot.ts';
+import type { PrepareChannelsReply } from '../../../../shared/analysis/prepare-channel.ts';
 import { checkAgainstTruth } from '../../import/check-against-truth.ts';
 import { CAPTURES_DIR, readManifest } from '../../import/fixture-manifest.ts';
 import { rejection } from '../../../helpers/import-rejection.ts';
@@ -260,6 +261,11 @@ describe('readCaptureFile with a second thread the caller keeps (the analyze CLI
       expect(prepared).not.toBeNull();
       expect(prepared?.[0].found?.pulses.length).toBeGreaterThan(5);
       expect(analyzeShot(second, options, prepared ?? undefined)).toEqual(analyzeShot(second, options));
+      // The thread itself answers (prepareInTwoThreads would fall back to this thread if it failed).
+      const b = second.channels[1].values;
+      const answer = await thread.request<PrepareChannelsReply>({ kind: 'prepare', channels: [{ buffer: b.buffer as SharedArrayBuffer, byteOffset: b.byteOffset, length: b.length }], time: second.time, opts: parseAnalysisOptions(options) });
+      expect(answer.failure).toBeNull();
+      expect(answer.prepared).toEqual([prepared?.[1]]);
       // Not with smoothing (the traces would differ), nor from arrays another thread cannot see.
       expect(await prepareInTwoThreads(thread, second, parseAnalysisOptions({ ...options, smoothing: { windowSize: 11, polynomial: 2 } }))).toBeNull();
       const plain = { ...second, channels: second.channels.map((c) => ({ ...c, values: Float64Array.from(c.values) })) };
