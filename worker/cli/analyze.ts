@@ -7,12 +7,11 @@
  * input or bad arguments (one line on stderr).
  */
 import { statSync } from 'node:fs';
-import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import type { ShotAnalysis } from '../../shared/analysis/types.ts';
 import type { AnalysisOptionsInput } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
-import { readCaptureFile } from '../import/read-capture-file.ts';
+import { readCaptureFile, readsInTwoThreads } from '../import/read-capture-file.ts';
 import { ScanThread } from '../import/scan-thread.ts';
 import { prepareInTwoThreads } from './prepare-in-two-threads.ts';
 import { resultNotes } from './result-notes.ts';
@@ -132,16 +131,13 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
   }
   // A deep record is read in two threads (readCaptureFile) and its channels prepared for the analysis in the same
   // two (prepareInTwoThreads): the second thread is made here, so that it outlives the read.
-  const thread = io.readCapture === undefined && fileBytes(args.file) >= PARALLEL_BYTES && availableParallelism() >= 2 ? new ScanThread() : null;
+  const thread = io.readCapture === undefined && readsInTwoThreads(fileBytes(args.file)) ? new ScanThread() : null;
   try {
     return await analyzeRead(args, io, thread);
   } finally {
     await thread?.close();
   }
 }
-
-/** Smallest file worth a second thread (the reader's own default). */
-const PARALLEL_BYTES = 64 << 20;
 
 function fileBytes(path: string): number {
   try {

@@ -28,6 +28,13 @@ export interface ReadCaptureFileOptions extends ReadCaptureStreamOptions {
 }
 
 const BLOCK = 4 << 20;
+/** Default of `parallelFromBytes`. */
+const PARALLEL_FROM_BYTES = 64 << 20;
+
+/** Whether a file of `bytes` bytes is read in two threads when the caller does not say (the reader's default). */
+export function readsInTwoThreads(bytes: number, parallelFromBytes = PARALLEL_FROM_BYTES): boolean {
+  return bytes >= parallelFromBytes && availableParallelism() >= 2;
+}
 
 /**
  * Reads a scope export from disk into an ImportedCapture: the layout from the file's head, then the plain numeric
@@ -47,7 +54,7 @@ export async function readCaptureFile(path: string, options: ReadCaptureFileOpti
 
 async function readCaptureFileOnce(path: string, options: ReadCaptureFileOptions): Promise<ImportedCapture> {
   if (typeof path !== 'string' || path === '') throw new TypeError('path must be a non-empty string');
-  const { parallelFromBytes = 64 << 20 } = options;
+
   let size: number;
   try {
     // Synchronous: from here to the wait for the scan thread nothing pauses, so that work a caller starts after
@@ -62,7 +69,7 @@ async function readCaptureFileOnce(path: string, options: ReadCaptureFileOptions
     throw new ImportError(`cannot open ${path}: ${why}`);
   }
   if (size === 0) throw new ImportError('the file is empty: there is no text in it');
-  const threads = options.threads ?? (size >= parallelFromBytes && availableParallelism() >= 2 ? 2 : 1);
+  const threads = options.threads ?? (readsInTwoThreads(size, options.parallelFromBytes) ? 2 : 1);
   if (threads !== 1 && threads !== 2) throw new RangeError('threads must be 1 or 2');
   if (threads === 2) {
     let capture = await readInTwoParts(path, size, options);

@@ -9,6 +9,7 @@ import type { ScanThreadReply, ScanThreadRequest } from './scan-range-worker.ts'
 export class ScanThread {
   private readonly worker = new Worker(new URL('./scan-range-worker-boot.mjs', import.meta.url));
   private failure: Error | null = null;
+  private closing: Promise<void> | null = null;
 
   constructor() {
     this.worker.on('error', (error) => {
@@ -36,7 +37,9 @@ export class ScanThread {
     return reply;
   }
 
-  async close(): Promise<void> {
-    await this.worker.terminate();
+  /** Stops the thread; later calls return the same promise. */
+  close(): Promise<void> {
+    this.closing ??= this.worker.terminate().then(() => undefined);
+    return this.closing;
   }
 }
