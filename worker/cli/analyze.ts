@@ -131,7 +131,7 @@ export async function runAnalyze(argv: string[], io: CliIo): Promise<number> {
   }
   // A deep record is read in two threads (readCaptureFile) and its channels prepared for the analysis in the same
   // two (prepareInTwoThreads): the second thread is made here, so that it outlives the read.
-  const thread = io.readCapture === undefined && readsInTwoThreads(fileBytes(args.file)) ? new ScanThread() : null;
+  const thread = io.readCapture === undefined && readsInTwoThreads(fileBytes(args.file)) ? new ScanThread({ prepares: true }) : null;
   try {
     return await analyzeRead(args, io, thread);
   } finally {

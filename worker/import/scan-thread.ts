@@ -7,11 +7,14 @@ import type { ScanThreadReply, ScanThreadRequest } from './scan-range-worker.ts'
  * (the analyze CLI: half of the channels' analysis) makes it, passes it to readCaptureFile and closes it itself.
  */
 export class ScanThread {
-  private readonly worker = new Worker(new URL('./scan-range-worker-boot.mjs', import.meta.url));
+  private readonly worker: Worker;
   private failure: Error | null = null;
   private closing: Promise<void> | null = null;
 
-  constructor() {
+  /** `prepares`: it will be asked to prepare channels after its scan, so it loads the analysis modules as soon as
+   * it has replied to a scan (scan-range-worker.ts). */
+  constructor(options: { prepares?: boolean } = {}) {
+    this.worker = new Worker(new URL('./scan-range-worker-boot.mjs', import.meta.url), { workerData: { prepares: options.prepares === true } });
     this.worker.on('error', (error) => {
       this.failure = error;
     });

@@ -243,10 +243,12 @@ describe('readCaptureFile with the installation\'s limits (issue 12)', () => {
 });
 
 describe('readCaptureFile with a second thread the caller keeps (the analyze CLI)', () => {
-  it('When the caller brings the thread, then the reads use it, it stays up after them, and it prepares channels as analyzeShot would', async () => {
+  // `prepares: true` (as the CLI makes it): the thread loads the analysis modules right after each scan's reply;
+  // without it, on the first prepare request.
+  it.each([{ prepares: true }, {}])('When the caller brings the thread (%o), then the reads use it, it stays up after them, and it prepares channels as analyzeShot would', async (threadOptions) => {
     const { bytes } = written(20_000);
     const path = save('kept.csv', bytes);
-    const thread = new ScanThread();
+    const thread = new ScanThread(threadOptions);
     try {
       const own = await readCaptureFile(path, { threads: 2, headBytes: 4096 });
       const first = await readCaptureFile(path, { threads: 2, headBytes: 4096, thread });
