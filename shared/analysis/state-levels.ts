@@ -57,21 +57,11 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   // so the same levels; on the 10 M-sample capture (stride 10) both channels took 73–89 ms against 99–121 ms for
   // three strided passes, alternating in one process (3 December 2026).
   const copy = stride === 1 ? null : new Float64Array(Math.ceil(n / stride));
-  let min = Number.POSITIVE_INFINITY;
-  let max = Number.NEGATIVE_INFINITY;
-  let examined = 0;
-  let nanCount = 0;
-  // NaN fails both comparisons, so it never becomes min or max; counting it apart keeps this loop branch-light.
-  for (let i = 0; i < n; i += stride) {
-    const v = values[i];
-    if (copy !== null) copy[examined] = v;
-    examined++;
-    if (v < min) min = v;
-    if (v > max) max = v;
-    if (v !== v) nanCount++;
-  }
+  const range = rangeOf(values, stride, copy);
+  const examined = range.examined;
   const sample: ArrayLike<number> = copy ?? values;
-  let finiteCount = examined - nanCount;
+  let { min, max } = range;
+  let finiteCount = examined - range.nanCount;
   if (min === Number.NEGATIVE_INFINITY || max === Number.POSITIVE_INFINITY) {
     // ±Infinity is not a level: recount with finite samples only (rare, so the slow path is fine).
     min = Number.POSITIVE_INFINITY;
@@ -88,13 +78,7 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   if (finiteCount < 2) throw new RangeError('state levels need at least 2 finite samples');
 
   if (trimFraction > 0 && max > min) {
-    const counts = new Float64Array(TRIM_BINS);
-    const scale = TRIM_BINS / (max - min);
-    for (let i = 0; i < examined; i++) {
-      const k = Math.floor((sample[i] - min) * scale);
-      if (k >= 0 && k < TRIM_BINS) counts[k]++;
-      else if (k === TRIM_BINS) counts[TRIM_BINS - 1]++;
-    }
+    const counts = trimCounts(sample, examined, min, max);
     const cap = trimFraction * finiteCount;
     const sparse = Math.max(1, SPARSE_SHARE * finiteCount);
     let below = 0;
@@ -115,16 +99,7 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
   const upper = max + eps;
   // A flat record (or one so large that ε vanishes in rounding) has a single level.
   if (!(upper > lower)) return { low: min, high: max, histogramMin: min, histogramMax: max, finiteCount, stride };
-  const counts = new Float64Array(bins + 1); // 1-based, as in the reference implementation
-  const scale = bins / (upper - lower);
-  for (let i = 0; i < examined; i++) {
-    const v = sample[i];
-    if (!(v >= lower && v <= upper)) continue; // also skips NaN and trimmed samples
-    let k = Math.ceil((v - lower) * scale);
-    if (k < 1) k = 1;
-    else if (k > bins) k = bins;
-    counts[k]++;
-  }
+  const counts = histogram(sample, examined, lower, upper, bins);
   let iLow = 1;
   while (iLow < bins && counts[iLow] === 0) iLow++;
   let iHigh = bins;
@@ -147,4 +122,60 @@ export function stateLevels(values: ArrayLike<number>, options: StateLevelsOptio
     return sum / weight;
   };
   return { low: level(iLow, iMid), high: level(iMid, iHigh), histogramMin: lower, histogramMax: upper, finiteCount, stride };
+}
+
+// The passes over the samples are functions of their own. A deep record is read once per analysis, so each loop is
+// made fast by on-stack replacement while it runs; in one large function every loop after the first met code that
+// had never run (no type feedback), fell back to the interpreter and waited for the whole function to be compiled
+// again (7 compilations and 7 deoptimizations of stateLevels for the two channels of the 10 M-sample capture, each
+// 2–10 ms of compiling while the loop ran slowly). Small functions compile in a fraction of that, once each.
+
+/** Every `stride`-th sample from index 0: how many, their min and max, their NaNs; copied into `copy` when given. */
+function rangeOf(values: ArrayLike<number>, stride: number, copy: Float64Array | null): { examined: number; min: number; max: number; nanCount: number } {
+  const n = values.length;
+  let min = Number.POSITIVE_INFINITY;
+  let max = Number.NEGATIVE_INFINITY;
+  let examined = 0;
+  let nanCount = 0;
+  // NaN fails both comparisons, so it never becomes min or max; counting it apart keeps this loop branch-light.
+  for (let i = 0; i < n; i += stride) {
+    const v = values[i];
+    if (copy !== null) copy[examined] = v;
+    examined++;
+    if (v < min) min = v;
+    if (v > max) max = v;
+    if (v !== v) nanCount++;
+  }
+  return { examined, min, max, nanCount };
+}
+
+/** Counts of the first `examined` samples in TRIM_BINS equal bins over [min, max] (the top edge in the last bin). */
+function trimCounts(sample: ArrayLike<number>, examined: number, min: number, max: number): Float64Array {
+  const counts = new Float64Array(TRIM_BINS);
+  const scale = TRIM_BINS / (max - min);
+  const last = TRIM_BINS - 1;
+  for (let i = 0; i < examined; i++) {
+    // The top edge (k = TRIM_BINS) goes in the last bin; NaN in none. Every operation runs for every sample, so the
+    // loop's compiled code has seen them all (a branch for the top edge alone, first taken at the maximum, sent it
+    // back to the interpreter mid-pass).
+    const k = Math.floor((sample[i] - min) * scale);
+    if (k >= 0 && k <= TRIM_BINS) counts[k < TRIM_BINS ? k : last]++;
+  }
+  return counts;
+}
+
+/** The histogram of the reference implementation: bins 1…`bins` (index 0 unused), bin ⌈bins·(v − lower)/(upper −
+ * lower)⌉ clamped to the range, samples outside [lower, upper] (and NaN) left out. */
+function histogram(sample: ArrayLike<number>, examined: number, lower: number, upper: number, bins: number): Float64Array {
+  const counts = new Float64Array(bins + 1); // 1-based, as in the reference implementation
+  const scale = bins / (upper - lower);
+  for (let i = 0; i < examined; i++) {
+    const v = sample[i];
+    if (!(v >= lower && v <= upper)) continue; // also skips NaN and trimmed samples
+    let k = Math.ceil((v - lower) * scale);
+    if (k < 1) k = 1;
+    else if (k > bins) k = bins;
+    counts[k]++;
+  }
+  return counts;
 }
