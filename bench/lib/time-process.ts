@@ -24,12 +24,14 @@ export function timeProcess(command: string, args: string[], expect: RegExp): Pr
 }
 
 /** The analyze CLI on the big capture (its two gates): `npm run --silent analyze` as users run it (npm, then
- * scripts/run-compiled.mjs, then the compiled bundle), the compiled bundle alone (`node dist/node/…`), or the
+ * scripts/cli.sh, scripts/run-compiled.mjs and the compiled bundle), `sh scripts/cli.sh analyze` (the same without
+ * npm's start-up), the compiled bundle alone (`node dist/node/…`: without cli.sh's malloc setting either), or the
  * TypeScript through tsx (how npm run analyze ran before issue 13c). */
-export function timeCli(file: string, how: 'npm' | 'compiled' | 'tsx' = 'tsx'): Promise<{ ms: number; out: string }> {
+export function timeCli(file: string, how: 'npm' | 'launcher' | 'compiled' | 'tsx' = 'tsx'): Promise<{ ms: number; out: string }> {
   const [a, b] = BIG_CAPTURE_SHOT.gatePositions;
   const gates = ['--gate', `Gate A@${a}`, '--gate', `Gate B@${b}`];
   if (how === 'npm') return timeProcess('npm', ['run', '--silent', 'analyze', '--', file, ...gates], /speed: \d/);
+  if (how === 'launcher') return timeProcess('sh', ['scripts/cli.sh', 'analyze', file, ...gates], /speed: \d/);
   return how === 'tsx'
     ? timeProcess(path.join(ROOT, 'node_modules/.bin/tsx'), ['worker/cli/analyze.ts', file, ...gates], /speed: \d/)
     : timeProcess(process.execPath, ['dist/node/worker/cli/analyze.js', file, ...gates], /speed: \d/);
