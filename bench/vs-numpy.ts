@@ -2,8 +2,8 @@
  * `npm run bench:analyze -- --vs-numpy`: the analyze CLI against a numpy script (bench/numpy/gate-speed.py, which does
  * less: one threshold per channel, no levels, pulses or uncertainty) on the 10-million-sample capture, each a process
  * of its own, wall time, alternating, median of 3. The CLI three ways: as `npm run --silent analyze` runs it (npm's own
- * start-up, then scripts/cli.sh), as `sh scripts/cli.sh analyze` (the launcher without npm: malloc's huge pages, the
- * freshness check of scripts/run-compiled.mjs, the compiled bundle) and as `node dist/node/worker/cli/analyze.js`
+ * start-up, then scripts/cli.sh), as `sh scripts/cli.sh analyze` (the launcher without npm: its freshness check, malloc's
+ * huge pages, the compiled bundle) and as `node dist/node/worker/cli/analyze.js`
  * alone (dist/node built first when older than its sources). Target (issue 13): CLI ≤ 0.2× numpy, the launcher's
  * line. Needs Debian's python3-numpy (/usr/bin/python3); skipped with a note otherwise.
  */

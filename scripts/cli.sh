@@ -12,7 +12,8 @@
 # glibc.malloc.hugetlb=1; glibc 2.35 or later, elsewhere ignored; any GLIBC_TUNABLES of your own are kept). A deep
 # record's sample arrays are such blocks, and on this project's 2-core VM the first touch of each of their 4 KiB
 # pages cost about 4 µs: the analyze CLI on the 10-million-sample capture had 63 000 page faults, 17 000 with the
-# setting, and took 0.975 s against 1.09 s (medians of 8 alternating runs, 3 December 2026). The kernel allows huge
+# setting, and took 0.975 s against 1.09 s, and in a quieter hour 0.825 s against 0.863 s (medians of 8 and of 12
+# alternating runs, 3 December 2026). The kernel allows huge
 # pages on request when /sys/kernel/mm/transparent_hugepage/enabled is "madvise" (Debian's default) or "always";
 # the results are the same either way.
 tool=$1
@@ -28,7 +29,7 @@ root=$(cd "$(dirname "$0")/.." && pwd -P)
 GLIBC_TUNABLES="${GLIBC_TUNABLES:+$GLIBC_TUNABLES:}glibc.malloc.hugetlb=1"
 export GLIBC_TUNABLES
 stamp="$root/dist/node/.built"
-if [ -f "$stamp" ] && [ -f "$root/dist/node/worker/cli/$tool.js" ]; then
+if [ -f "$stamp" ] && [ -f "$root/dist/node/worker/cli/$tool.js" ] && command -v find > /dev/null 2>&1; then
   newer=$(cd "$root" && find server worker shared fixtures/lib scripts package-lock.json tsconfig.json \
     -name node_modules -prune -o -newer "$stamp" -print -quit 2>/dev/null)
   if [ -z "$newer" ]; then

@@ -24,7 +24,7 @@ export function timeProcess(command: string, args: string[], expect: RegExp): Pr
 }
 
 /** The analyze CLI on the big capture (its two gates): `npm run --silent analyze` as users run it (npm, then
- * scripts/cli.sh, scripts/run-compiled.mjs and the compiled bundle), `sh scripts/cli.sh analyze` (the same without
+ * scripts/cli.sh and the compiled bundle), `sh scripts/cli.sh analyze` (the same without
  * npm's start-up), the compiled bundle alone (`node dist/node/…`: without cli.sh's malloc setting either), or the
  * TypeScript through tsx (how npm run analyze ran before issue 13c). */
 export function timeCli(file: string, how: 'npm' | 'launcher' | 'compiled' | 'tsx' = 'tsx'): Promise<{ ms: number; out: string }> {

@@ -42,7 +42,7 @@ describe('scripts/cli.sh', () => {
 
   it('When the launcher tests the build, then it looks at the same sources as run-compiled.mjs', () => {
     const text = readFileSync(join(root, 'scripts/cli.sh'), 'utf8');
-    const listed = /find ([^\n\\]+)/.exec(text)?.[1].trim().split(/\s+/);
+    const listed = /&& find ([^\n\\]+)/.exec(text)?.[1].trim().split(/\s+/);
     expect(listed).toEqual([...NODE_SOURCES, 'package-lock.json', 'tsconfig.json']);
   });
 
