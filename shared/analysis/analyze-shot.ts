@@ -6,7 +6,7 @@ import { checkTimeBase } from './check-time-base.ts';
 import { ENGINE_VERSION } from './engine-version.ts';
 import { findDipCandidate } from './find-dip-candidate.ts';
 import type { ModelInput } from './measurement-model.ts';
-import { prepareChannel, thresholdOf, type PreparedChannel } from './prepare-channel.ts';
+import { prepareChannel, pulsesAt, thresholdOf, type PreparedChannel } from './prepare-channel.ts';
 import { propagateMonteCarlo } from './propagate-monte-carlo.ts';
 import { propagateUncertainty } from './propagate-uncertainty.ts';
 import { smoothSavitzkyGolay } from './smooth-savitzky-golay.ts';
@@ -124,7 +124,8 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     } catch (error) {
       return { measured: null, error: (error as Error).message, found: null };
     }
-    return prepareChannel(trace, time, opts);
+    // Its pulses are looked for below, once the channel is known not to be missed.
+    return prepareChannel(trace, time, opts, false);
   });
   ready.forEach((r, i) => {
     if (r.error !== null) warnings.push(`${capture.channels[i].name}: ${r.error}`);
@@ -185,7 +186,7 @@ export function analyzeShot(capture: ImportedCapture, options: AnalysisOptionsIn
     let result: ChannelResult | null = null;
     if (reason === null) {
       const { level, lowArm, highArm } = thresholdOf(m, opts);
-      const found = ready[c].found;
+      const found = prepared !== undefined ? ready[c].found : pulsesAt(traces[c], time, m, opts);
       if (found !== null) {
         if (found.openAtStart && isGate[c]) warnings.push(`${channel.name}: the record starts with the beam blocked; that pulse was ignored`);
         if (found.openAtEnd && isGate[c]) warnings.push(`${channel.name}: the record ends with the beam blocked; that pulse was ignored`);

@@ -5,30 +5,36 @@ import { measureChannel, type ChannelMeasurement } from './measure-channel.ts';
 
 /**
  * One channel's levels, noise and polarity, and its pulses at the threshold: the part of the analysis that needs
- * only that channel's samples (each pass over a deep record's channel is most of the analysis). The pulses are
- * found before the reference step is known; analyzeShot uses them only if the channel is not missed.
+ * only that channel's samples (each pass over a deep record's channel is most of the analysis), for another thread
+ * to do. The pulses are then found before the reference step is known; analyzeShot uses them only if the channel is
+ * not missed (preparing in its own thread, it looks for them only then).
  */
 export interface PreparedChannel {
   measured: ChannelMeasurement | null;
   /** Why the channel could not be measured (it becomes the channel's warning), or null. */
   error: string | null;
+  /** The pulses (pulsesAt), null when not looked for (`withPulses` false) or when the channel has none to look for. */
   found: FoundPulses | null;
 }
 
 /** Prepares one channel's trace (smoothed already when smoothing is asked for) with parsed options. */
-export function prepareChannel(trace: ArrayLike<number>, time: TimeBase, opts: AnalysisOptions): PreparedChannel {
+export function prepareChannel(trace: ArrayLike<number>, time: TimeBase, opts: AnalysisOptions, withPulses = true): PreparedChannel {
   let m: ChannelMeasurement;
   try {
     m = measureChannel(trace, { bins: opts.levels.bins, method: opts.levels.method, trimFraction: opts.levels.trimFraction, polarity: opts.polarity });
   } catch (error) {
     return { measured: null, error: (error as Error).message, found: null };
   }
+  return { measured: m, error: null, found: withPulses ? pulsesAt(trace, time, m, opts) : null };
+}
+
+/** A measured channel's pulses at its threshold; null for a flat channel (one level: no transitions, missed
+ * whatever its threshold) or hysteresis arms that do not enclose the threshold. */
+export function pulsesAt(trace: ArrayLike<number>, time: TimeBase, m: ChannelMeasurement, opts: AnalysisOptions): FoundPulses | null {
   const { level, lowArm, highArm } = thresholdOf(m, opts);
-  // A flat channel (one level) has no transitions, and is missed whatever its threshold.
-  const found = m.high > m.low && lowArm < level && level < highArm
+  return m.high > m.low && lowArm < level && level < highArm
     ? findPulses(trace, { time, crossLevel: level, lowArm, highArm, low: m.low, high: m.high, polarity: m.polarity, noise: m.noise })
     : null;
-  return { measured: m, error: null, found };
 }
 
 /** Channels whose samples are views of shared memory, for another thread to prepare (see ScanThread). */

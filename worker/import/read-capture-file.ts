@@ -54,7 +54,6 @@ export async function readCaptureFile(path: string, options: ReadCaptureFileOpti
 
 async function readCaptureFileOnce(path: string, options: ReadCaptureFileOptions): Promise<ImportedCapture> {
   if (typeof path !== 'string' || path === '') throw new TypeError('path must be a non-empty string');
-
   let size: number;
   try {
     // Synchronous: from here to the wait for the scan thread nothing pauses, so that work a caller starts after

@@ -386,7 +386,7 @@ export function scan(
     let taken = false;
     // Field by field; a row taken this way that is short enough becomes the shape.
     let shapeOk = width <= SHAPE_FIELDS && <u32>(delimiter - 48) >= 10;
-    if (!taken) for (;;) {
+    for (;;) {
       let neg = false;
       let mant: u64 = 0;
       let exp10: i32 = 0;
