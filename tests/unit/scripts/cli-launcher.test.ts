@@ -1,6 +1,7 @@
 // scripts/cli.sh, the launcher of `npm run analyze` and `npm run import`: runs the compiled bundle at once when the
 // build is current (its own `find` test, which must cover the sources run-compiled.mjs checks), else run-compiled.mjs;
-// always with glibc's malloc asked for huge pages, keeping the caller's own GLIBC_TUNABLES.
+// always with glibc's malloc asked for huge pages, keeping the caller's own GLIBC_TUNABLES, and without the extra
+// certificates Node would read at start (the tools open no connection).
 import { spawnSync } from 'node:child_process';
 import { chmodSync, copyFileSync, mkdirSync, mkdtempSync, readFileSync, realpathSync, rmSync, utimesSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -24,7 +25,7 @@ function project(name: string): { home: string; run: (args: string[], env?: Reco
   const home = join(dir, name);
   mkdirSync(join(home, 'scripts'), { recursive: true });
   copyFileSync(join(root, 'scripts/cli.sh'), join(home, 'scripts/cli.sh'));
-  const bin = write(join(home, 'bin/node'), '#!/bin/sh\necho "GLIBC_TUNABLES=$GLIBC_TUNABLES"\necho "$@"\n');
+  const bin = write(join(home, 'bin/node'), '#!/bin/sh\necho "GLIBC_TUNABLES=$GLIBC_TUNABLES"\n[ -z "${NODE_EXTRA_CA_CERTS+set}" ] || echo "NODE_EXTRA_CA_CERTS=$NODE_EXTRA_CA_CERTS"\necho "$@"\n');
   chmodSync(bin, 0o755);
   const run = (args: string[], env: Record<string, string> = {}) => {
     const r = spawnSync('sh', [join(home, 'scripts/cli.sh'), ...args], { cwd: home, encoding: 'utf8', env: { PATH: `${join(home, 'bin')}:/usr/bin:/bin`, ...env } });
@@ -59,13 +60,15 @@ describe('scripts/cli.sh', () => {
     expect(fresh.stdout).toBe(`GLIBC_TUNABLES=glibc.malloc.hugetlb=1\n${join(home, 'dist/node/worker/cli/analyze.js')} shot.csv --spacing 0.1\n`);
     // The caller's own tunables stay, ours after them.
     expect(run(['analyze', 'x.csv'], { GLIBC_TUNABLES: 'glibc.malloc.check=0' }).stdout).toMatch(/^GLIBC_TUNABLES=glibc\.malloc\.check=0:glibc\.malloc\.hugetlb=1\n/);
+    // Node's extra certificates are not read: the tools open no connection (~85 ms of each start saved).
+    expect(run(['analyze', 'x.csv'], { NODE_EXTRA_CA_CERTS: '/etc/ssl/certs/ca-certificates.crt' }).stdout).toBe(`GLIBC_TUNABLES=glibc.malloc.hugetlb=1\n${join(home, 'dist/node/worker/cli/analyze.js')} x.csv\n`);
     at(source, 3000);
     expect(run(['analyze', 'shot.csv']).stdout).toBe(`GLIBC_TUNABLES=glibc.malloc.hugetlb=1\n${join(home, 'scripts/run-compiled.mjs')} worker/cli/analyze.ts shot.csv\n`);
   });
 
   it('When there is no build, or the tool is not one of the two, then it says so or builds first', () => {
     const { home, run } = project('unbuilt');
-    expect(run(['import', 'a.csv']).stdout).toBe(`GLIBC_TUNABLES=glibc.malloc.hugetlb=1\n${join(home, 'scripts/run-compiled.mjs')} worker/cli/import.ts a.csv\n`);
+    expect(run(['import', 'a.csv'], { NODE_EXTRA_CA_CERTS: '/etc/ssl/certs/ca-certificates.crt' }).stdout).toBe(`GLIBC_TUNABLES=glibc.malloc.hugetlb=1\n${join(home, 'scripts/run-compiled.mjs')} worker/cli/import.ts a.csv\n`);
     const wrong = run(['fixtures']);
     expect(wrong.status).toBe(2);
     expect(wrong.stdout).toBe('');
