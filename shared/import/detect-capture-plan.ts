@@ -136,8 +136,15 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     textSentinels: new Set([...textSentinels.map((s) => s.trim().toLowerCase()), '']),
     numericSentinels: new Set(numericSentinels),
   };
-  const rows = lines.map((line) => (line.trim() === '' ? [] : splitFields(line, delimiter)));
-  const cells = rows.map((fields) => fields.map((f) => classifyCell(f, fieldOptions)));
+  // The fields of a line are split when first needed: a head of 256 KiB holds thousands of plain rows of numbers,
+  // whose cells are known without splitting (plainRowWidth), and few of which are ever looked at field by field.
+  const splitRows: (string[] | undefined)[] = new Array(lines.length);
+  const row = (i: number): string[] | undefined => {
+    if (!(i >= 0 && i < lines.length)) return undefined;
+    return (splitRows[i] ??= lines[i].trim() === '' ? [] : splitFields(lines[i], delimiter));
+  };
+  const plain = plainRowCells(delimiter, fieldOptions);
+  const cells = lines.map((line, i) => plain(line) ?? (row(i) as string[]).map((f) => classifyCell(f, fieldOptions)));
   const isBlank = (i: number) => cells[i].every((c) => c === 'empty');
   const isPure = (i: number) => cells[i].some((c) => c === 'num') && !cells[i].includes('text');
 
@@ -157,7 +164,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       for (let j = i + 1; j < lines.length && next < 2; j++) {
         if (isBlank(j)) continue;
         next++;
-        if (!isPure(j) || rows[j].length !== rows[i].length) ok = false;
+        if (!isPure(j) || cells[j].length !== cells[i].length) ok = false;
       }
       if (ok && next === 2) start = i;
     }
@@ -169,7 +176,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
       if (textLines > 50) {
         throw new ImportError(`no rows of numbers were found in ${textLines} lines${partial ? ' at the start of the file' : ''}; this does not look like an oscilloscope CSV export`, last + 1);
       }
-      if (rows[last].length >= 2 || TIME_NAME.test(lines[last].trim())) {
+      if (cells[last].length >= 2 || TIME_NAME.test(lines[last].trim())) {
         throw new ImportError('the header has no rows of samples after it', last + 1);
       }
       throw new ImportError('no rows of numbers were found; this does not look like an oscilloscope CSV export', last + 1);
@@ -186,13 +193,17 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   // Column roles from the block of plain data rows.
   // The usual width of a data row decides the columns; a longer row is an error reported when it is read.
   const widths: number[] = [];
-  for (let i = start; i <= end && widths.length < 1000; i++) if (isPure(i)) widths.push(rows[i].length);
+  for (let i = start; i <= end && widths.length < 1000; i++) if (isPure(i)) widths.push(cells[i].length);
   const columnCount = modeOf(widths);
   const hasNumber = new Array<boolean>(columnCount).fill(false);
-  for (let i = start; i <= end; i++) {
+  let numberColumns = 0;
+  for (let i = start; i <= end && numberColumns < columnCount; i++) {
     if (!isPure(i)) continue;
     for (let col = 0; col < Math.min(columnCount, cells[i].length); col++) {
-      if (cells[i][col] === 'num' || cells[i][col] === 'sentinel') hasNumber[col] = true;
+      if (!hasNumber[col] && (cells[i][col] === 'num' || cells[i][col] === 'sentinel')) {
+        hasNumber[col] = true;
+        numberColumns++;
+      }
     }
   }
   const dataColumns = hasNumber.flatMap((h, col) => (h ? [col] : []));
@@ -217,18 +228,19 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
         && cells[i].some((cell, col) => cell === 'text' && !dataColumns.includes(col))) sideRows.push(i);
   }
   const sideColumns = new Set<number>();
-  for (const i of sideRows) rows[i].forEach((f, col) => { if (!dataColumns.includes(col) && f.trim() !== '') sideColumns.add(col); });
+  for (const i of sideRows) (row(i) as string[]).forEach((f, col) => { if (!dataColumns.includes(col) && f.trim() !== '') sideColumns.add(col); });
 
   // Header rows right above the data: names, optionally followed by a row of units. A names row may hold numeric
   // channel ids ("x-axis,1,2" over "second,Volt,Volt"); both rows may carry metadata in columns beyond the data
   // ("X,CH1,Start,Increment" over "Sequence,Volt,-6.0e-03,2.0e-06").
   let headerEnd = start; // exclusive index of the header block end (= start, no blank lines kept between)
   while (headerEnd > 0 && isBlank(headerEnd - 1)) headerEnd--;
-  const field = (i: number, col: number) => (rows[i]?.[col] ?? '').trim();
+  const field = (i: number, col: number) => (row(i)?.[col] ?? '').trim();
   const isNamesRow = (i: number, aboveUnits: boolean): boolean => {
     if (i < 0 || isBlank(i)) return false;
-    const nonEmpty = rows[i].filter((f) => f.trim() !== '').length;
-    const firstText = rows[i].find((f) => f.trim() !== '')?.trim() ?? '';
+    const fields = row(i) as string[];
+    const nonEmpty = fields.filter((f) => f.trim() !== '').length;
+    const firstText = fields.find((f) => f.trim() !== '')?.trim() ?? '';
     if (nonEmpty === 1 && DATA_MARKER.test(firstText)) return false;
     // "#Points=4000", "Record length: 4000": a metadata line, not names.
     if (/^[#%]/.test(firstText) || (nonEmpty === 1 && /[=:]\s*[-+]?[\d.]/.test(firstText))) return false;
@@ -273,10 +285,10 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   if (headerStart < 0) throw new ImportError(`${headerRows} header rows were asked for, but the data starts at line ${start + 1}`);
   // A row of numbers right above the header or data, with the data's width, means the data was interrupted.
   for (let i = Math.max(0, headerStart - 3); i < headerStart; i++) {
-    if (isPure(i) && rows[i].length === rows[start].length && options.dataStartLine === undefined) {
+    if (isPure(i) && cells[i].length === cells[start].length && options.dataStartLine === undefined) {
       let bad = i + 1;
       while (bad < headerStart && isPure(bad)) bad++;
-      const found = rows[bad]?.find((f, col) => dataColumns.includes(col) && classifyCell(f, fieldOptions) === 'text');
+      const found = row(bad)?.find((f, col) => dataColumns.includes(col) && classifyCell(f, fieldOptions) === 'text');
       throw new ImportError(`expected ${dataColumns.length} numbers, found '${(found ?? lines[bad]).trim().slice(0, 40)}'`, bad + 1);
     }
   }
@@ -286,7 +298,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   const unitWords: string[] = [];
   if (headerRows >= 1) {
     for (const col of dataColumns) {
-      const label = parseUnitLabel(rows[headerStart][col] ?? '');
+      const label = parseUnitLabel((row(headerStart) as string[])[col] ?? '');
       names[col] = label.name;
       units[col] = label.sourceUnit;
     }
@@ -312,7 +324,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   };
   for (let i = 0; i < headerStart; i++) {
     if (isBlank(i)) continue;
-    let fields = rows[i].map((f) => f.trim());
+    let fields = (row(i) as string[]).map((f) => f.trim());
     if (fields.filter((f) => f !== '').length === 1) {
       const m = /^([^:=\t]+?)\s*[:=\t]\s*(.*)$/.exec(fields.find((f) => f !== '') ?? '');
       if (m) fields = [m[1], m[2]];
@@ -322,7 +334,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   }
   if (headerRows >= 1) {
     const last = headerStart + headerRows - 1;
-    for (let col = 0; col < rows[headerStart].length; col++) {
+    for (let col = 0; col < cells[headerStart].length; col++) {
       if (dataColumns.includes(col)) continue;
       const key = field(headerStart, col);
       const value = headerRows === 2 ? field(last, col) : '';
@@ -332,11 +344,11 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     }
   }
   for (const i of sideRows) {
-    const fields = rows[i].map((f, col) => [f.trim(), col] as const).filter(([f, col]) => !dataColumns.includes(col) && f !== '');
+    const fields = (row(i) as string[]).map((f, col) => [f.trim(), col] as const).filter(([f, col]) => !dataColumns.includes(col) && f !== '');
     for (let k = 0; k < fields.length; k += 2) addMeta(fields[k][0], fields[k + 1]?.[0] ?? '', `line ${i + 1}, beside the data`);
   }
   for (const i of footer) {
-    const nonEmpty = rows[i].map((f) => f.trim()).filter((f) => f !== '');
+    const nonEmpty = (row(i) as string[]).map((f) => f.trim()).filter((f) => f !== '');
     if (nonEmpty.length >= 2) addMeta(nonEmpty[0], nonEmpty.slice(1).join(', '), `line ${i + 1}, after the data`);
     else addMeta('footer', lines[i].trim(), `line ${i + 1}, after the data`);
   }
@@ -365,7 +377,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     const values: number[] = [];
     for (let i = start; i <= end && values.length < most; i++) {
       if (isBlank(i)) continue;
-      const v = readSampleField(rows[i][col] ?? '', fieldOptions);
+      const v = readSampleField((row(i) as string[])[col] ?? '', fieldOptions);
       if (v === undefined || Number.isNaN(v)) return null;
       values.push(v);
     }
@@ -624,7 +636,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   // Columns with nothing in them.
   const columnRoles: ColumnRole[] = [];
   let widest = columnCount;
-  for (const i of sideRows) widest = Math.max(widest, rows[i].length);
+  for (const i of sideRows) widest = Math.max(widest, cells[i].length);
   for (let col = 0; col < widest; col++) {
     if (col === timeColumn || col === rebuildFrom || checkColumns.includes(col)) columnRoles.push('time');
     else if (col === indexColumn) columnRoles.push('index');
@@ -689,6 +701,29 @@ function fmt(x: number): string {
   const a = Math.abs(x);
   const [scale, unit] = a === 0 || a >= 1 ? [1, ''] : a >= 1e-3 ? [1e3, 'm'] : a >= 1e-6 ? [1e6, 'µ'] : a >= 1e-9 ? [1e9, 'n'] : [1e12, 'p'];
   return `${Number((x * scale).toPrecision(6))} ${unit}`;
+}
+
+/**
+ * The cells of a line of only plain numbers between single delimiters ("-1.5e-3,0.25,4"), known without splitting it:
+ * every one 'num', in one array shared by all such lines of that width (the plan never changes it). Null for any
+ * other line (spaces or text anywhere, an empty field: classifyCell decides), and for every line when the delimiter
+ * is whitespace, the decimal a comma or a numeric sentinel below 1e36 in magnitude. Each field is NUMBER of
+ * read-sample-field.ts with at most 17 digits before the point and a positive exponent of at most 19, so below
+ * 10^36: no sentinel, within MAX_SAMPLE_MAGNITUDE, 'num' for classifyCell too; anything else goes to classifyCell.
+ * One regular expression a line: a head of 256 KiB holds thousands of such rows, and this runs once, on cold code.
+ */
+export function plainRowCells(delimiter: Delimiter, options: Required<ReadSampleFieldOptions>): (line: string) => Cell[] | null {
+  if (delimiter === 'whitespace' || options.decimalComma || [...options.numericSentinels].some((s) => !(Math.abs(s) >= 1e36))) return () => null;
+  const field = String.raw`[-+]?(?:\d{1,17}(?:\.\d*)?|\.\d+)(?:[eE](?:-\d{1,4}|\+?0*1?\d))?`;
+  const sep = delimiter === '\t' ? String.raw`\t` : delimiter;
+  const plainRow = new RegExp(`^${field}(?:${sep}${field})*$`);
+  const shared: Cell[][] = [];
+  return (line) => {
+    if (!plainRow.test(line)) return null;
+    let fields = 1;
+    for (let at = line.indexOf(delimiter); at >= 0; at = line.indexOf(delimiter, at + 1)) fields++;
+    return (shared[fields] ??= new Array<Cell>(fields).fill('num'));
+  };
 }
 
 function classifyCell(field: string, options: ReadSampleFieldOptions): Cell {
