@@ -1,11 +1,13 @@
 /**
  * `npm run bench:analyze -- --vs-numpy`: the analyze CLI against a numpy script (bench/numpy/gate-speed.py, which does
  * less: one threshold per channel, no levels, pulses or uncertainty) on the 10-million-sample capture, each a process
- * of its own, wall time, alternating, median of 3. The CLI three ways: as `npm run --silent analyze` runs it (npm's own
- * start-up, then scripts/cli.sh), as `sh scripts/cli.sh analyze` (the launcher without npm: its freshness check, malloc's
- * huge pages, the compiled bundle) and as `node dist/node/worker/cli/analyze.js`
- * alone (dist/node built first when older than its sources). Target (issue 13): CLI ≤ 0.2× numpy, the launcher's
- * line. Needs Debian's python3-numpy (/usr/bin/python3); skipped with a note otherwise.
+ * of its own, wall time, alternating, median of 5 (of 3 until 3 December 2026: this VM's speed moves by ±15 % within
+ * seconds, and the median of 3 numpy runs alone moved the ratio by ±0.03). The CLI three ways: as `npm run --silent
+ * analyze` runs it (npm's own start-up, then scripts/cli.sh), as `sh scripts/cli.sh analyze` (the launcher without
+ * npm: its freshness check, malloc's huge pages, no extra certificates, the compiled bundle) and as
+ * `node dist/node/worker/cli/analyze.js` alone (dist/node built first when older than its sources). Target (issue
+ * 13): CLI ≤ 0.2× numpy, the launcher's line. Needs Debian's python3-numpy (/usr/bin/python3); skipped with a note
+ * otherwise.
  */
 import { spawnSync } from 'node:child_process';
 import { cpus, loadavg } from 'node:os';
@@ -14,7 +16,7 @@ import { BIG_CAPTURE_SHOT, ensureBigCapture } from './lib/big-capture.ts';
 import { ROOT, timeCli, timeProcess } from './lib/time-process.ts';
 
 const PYTHON = '/usr/bin/python3';
-const ROUNDS = 3;
+const ROUNDS = 5;
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
 
@@ -52,6 +54,6 @@ export async function runVsNumpy(): Promise<void> {
     console.log(`${label.padEnd(38)}${s(median(xs))}   [${xs.map(s).join(', ')}]  → ${(median(xs) / median(numpy)).toFixed(2)}× numpy${note}`);
   line('CLI, npm run --silent analyze:', viaNpm);
   line('CLI, sh scripts/cli.sh analyze:', launcher, ' (target ≤ 0.2×)');
-  line('CLI, node dist/node/…/analyze.js:', compiled, ' (the bundle alone, without the launcher\'s malloc setting)');
+  line('CLI, node dist/node/…/analyze.js:', compiled, ' (the bundle alone, without the launcher\'s settings)');
   console.log(`check: ${speeds} (simulated truth ${BIG_CAPTURE_SHOT.speed} m/s)`);
 }
