@@ -1,3 +1,5 @@
+import { stateLevels } from '../analysis/state-levels.ts';
+import { stateNoise } from '../analysis/state-noise.ts';
 import type { AnalysisOptionsInput } from '../contracts/analysis.ts';
 import { simulateShot, type SimulatedShot } from './simulate-shot.ts';
 
@@ -32,4 +34,25 @@ export function simulatedShotCsv(shot: SimulatedShot): Uint8Array {
     lines.push([(shot.time.t0 + i * shot.time.dt).toExponential(8), ...values.map((v) => v[i].toFixed(5))].join(','));
   }
   return new TextEncoder().encode(`${lines.join('\n')}\n`);
+}
+
+/**
+ * The passes of the levels and the noise that only records of more than two million samples take (every n-th sample
+ * of the record: state-levels.ts, state-noise.ts), run on the warm-up shot's channels with a budget that makes them
+ * take every tenth. The engine on the warm-up shot itself looks at every sample, so these stayed cold until a deep
+ * upload: measured in the API's spare reading thread (bench:pipeline --deep, curl, 3 December 2026), the engine on
+ * the 10-million-sample capture took 220–270 ms without them and 150–185 ms with them, once the thread had warmed
+ * up. Returns the strides taken (10 for channels of 20 samples or more).
+ */
+export function warmUpDeepPasses(channels: readonly ArrayLike<number>[], rounds = 2): number[] {
+  const strides: number[] = [];
+  for (let round = 0; round < rounds; round++) {
+    for (const values of channels) {
+      const maxSamples = Math.max(1, Math.floor(values.length / 10));
+      const levels = stateLevels(values, { trimFraction: 0.01, maxSamples });
+      stateNoise(values, levels.low, levels.high, { maxSamples });
+      strides.push(levels.stride);
+    }
+  }
+  return strides;
 }

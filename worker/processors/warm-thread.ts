@@ -3,7 +3,7 @@ import path from 'node:path';
 import { Op } from 'sequelize';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { analysisOptionsSchema } from '../../shared/contracts/analysis.ts';
-import { simulatedShotCsv, WARM_UP_PARAMETERS, warmUpShot } from '../../shared/simulate/warm-up-shot.ts';
+import { simulatedShotCsv, WARM_UP_PARAMETERS, warmUpDeepPasses, warmUpShot } from '../../shared/simulate/warm-up-shot.ts';
 import { writeCaptureLayout } from '../../fixtures/lib/write-capture-layout.ts';
 import { writeChannelFiles } from '../../server/traces/write-channel-files.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
@@ -132,6 +132,7 @@ export async function warmThread(kind: 'ingest' | 'analysis'): Promise<void> {
       for (let round = 0; round < ANALYSIS_ROUNDS; round++) {
         const capture = await readStoredChannels(store, row);
         if (capture) results = analyzeShot(capture, parameters);
+        if (capture && round === 0) warmUpDeepPasses(capture.channels.map((c) => c.values));
       }
       // The job's final write of a version's results (a large JSON value), on no row, rolled back.
       if (results !== null) await warmResultsWrite(JSON.parse(JSON.stringify(results)) as Record<string, unknown>).catch(() => {});

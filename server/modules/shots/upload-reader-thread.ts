@@ -7,7 +7,7 @@ import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
 import { nonFinitePaths, nonFiniteResultMessage } from '../../../shared/analysis/non-finite-paths.ts';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../../shared/contracts/capture.ts';
-import { simulatedShotCsv, WARM_UP_PARAMETERS, warmUpShot } from '../../../shared/simulate/warm-up-shot.ts';
+import { simulatedShotCsv, WARM_UP_PARAMETERS, warmUpDeepPasses, warmUpShot } from '../../../shared/simulate/warm-up-shot.ts';
 import { float64Bytes } from '../../traces/channel-files.ts';
 import { channelFilesOf, describeChannelFiles, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import { readCaptureStream } from '../../../worker/import/read-capture-stream.ts';
@@ -96,8 +96,9 @@ function analyse(read: ImportedCapture | null, parameters: AnalysisOptionsInput)
 
 /**
  * Runs what a read runs (the stream reader, the descriptor, `analyse`, `prepareFiles`) once on a small simulated
- * shot (20 000 samples, 0.7 MB), so that a thread started ahead has loaded and compiled its code before the upload it
- * is kept for arrives. Measured with --cpu-prof on the 330 MB capture (3 December 2026): a thread started by the
+ * shot (20 000 samples, 0.7 MB), and the engine's passes over a deep record (warmUpDeepPasses: every tenth sample, as
+ * for a record of more than two million), so that a thread started ahead has loaded and compiled its code before the
+ * upload it is kept for arrives. Measured with --cpu-prof on the 330 MB capture (3 December 2026): a thread started by the
  * upload spent its first 0.5–0.75 s loading its modules and reading the head slowly while the upload waited for it.
  * Once: only uploads of 16 MB and more are read this way, long enough for V8 to optimise the hot loops on the way;
  * two rounds of 100 000 samples (as the worker's warm-up does) took about 2 s on the lab's 2-core machine right after
@@ -109,6 +110,7 @@ async function warmUp(): Promise<void> {
     const read = await readCaptureStream((async function* () { yield bytes; })(), { sizeHint: bytes.length });
     describeChannelFiles(read);
     analyse(read, WARM_UP_PARAMETERS);
+    warmUpDeepPasses(read.channels.map((c) => c.values));
     prepareFiles(read);
   } catch {
     // Nothing to do: the first upload pays for it.
