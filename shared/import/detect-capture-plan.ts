@@ -137,7 +137,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     numericSentinels: new Set(numericSentinels),
   };
   // The fields of a line are split when first needed: a head of 256 KiB holds thousands of plain rows of numbers,
-  // whose cells are known without splitting (plainRowWidth), and few of which are ever looked at field by field.
+  // whose cells are known without splitting (plainRowCells), and few of which are ever looked at field by field.
   const splitRows: (string[] | undefined)[] = new Array(lines.length);
   const row = (i: number): string[] | undefined => {
     if (!(i >= 0 && i < lines.length)) return undefined;

@@ -182,10 +182,11 @@ async function analyzeRead(args: CliArgs, io: CliIo, thread: ScanThread | null):
   try {
     // Each thread now runs every pass of the analysis once over a deep record, with both cores busy. V8 compiles such
     // a loop while it runs (on-stack replacement) on a background thread, which then waits for a core while the loop
-    // goes on in the interpreter; compiled on the spot instead, each thread's part took 103–121 ms against 142 ms
-    // (medians of 10 alternating runs on the 10 M-sample capture, 3 December 2026). The flag is set here, once the
-    // read is done, and not on node's command line: any V8 flag there costs ~20 ms of start-up (node's built-in code
-    // cache is made for the default flags). It changes when code is compiled, never what it computes.
+    // goes on in the interpreter; compiled on the spot instead, this thread's part took 109 ms against 132 ms, the
+    // other's 126 against 128 (medians of 12 alternating runs on the 10 M-sample capture, 3 December 2026). The flag
+    // is set here, once the read is done, and not on node's command line: any V8 flag there costs ~20 ms of start-up
+    // (node's built-in code cache is made for the default flags). It changes when code is compiled, never what it
+    // computes.
     if (thread !== null) setFlagsFromString('--no-concurrent-osr');
     const prepared = thread === null ? null : await prepareInTwoThreads(thread, capture, parseAnalysisOptions(options));
     analysis = analyzeShot(capture, options, prepared ?? undefined);
