@@ -26,6 +26,9 @@ export interface ReadCaptureStreamOptions extends ParseScopeCsvOptions, CaptureL
    * times (TimeGridHull), and only a file that turns out unevenly spaced is read a second time to keep them.
    * @default none: the times are kept while reading */
   reopen?: () => AsyncIterable<Uint8Array>;
+  /** Sample arrays in shared memory (SharedArrayBuffer), for another thread to read them in place (the API's reading
+   * thread: upload-reader-thread.ts). @default false */
+  shared?: boolean;
 }
 
 /**
@@ -117,7 +120,7 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
     let capacity = reserve
       ? most
       : sizeHint !== undefined ? Math.ceil(((sizeHint - dataOffset) / bytesPerRow) * 1.05) + 1024 : Math.max(4096, headRows * 4);
-    const array = () => new Float64Array(capacity);
+    const array = () => newArray(capacity, options.shared === true);
     const hint = options.reopen !== undefined ? headTimeHint(plan, lines) : null;
     const out: ScanOutput = {
       values: plan.channels.map(array),
@@ -209,10 +212,15 @@ export async function readCaptureStream(source: AsyncIterable<Uint8Array>, optio
  * arrays start from the head's bytes per row and grow by copying. */
 const MAX_RESERVE_BYTES = 2 ** 32;
 
+/** An array of `length` samples, in shared memory or not. */
+function newArray(length: number, shared: boolean): Float64Array {
+  return shared ? new Float64Array(new SharedArrayBuffer(length * 8)) : new Float64Array(length);
+}
+
 /** Makes room for `capacity` rows by copying into bigger arrays. */
 function grow(out: ScanOutput, capacity: number): void {
   const resized = (v: Float64Array): Float64Array => {
-    const bigger = new Float64Array(capacity);
+    const bigger = newArray(capacity, v.buffer instanceof SharedArrayBuffer);
     bigger.set(v);
     return bigger;
   };

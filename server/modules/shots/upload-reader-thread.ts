@@ -4,6 +4,7 @@
 // them), the files the trace plots read (Float32 copies, pyramids), then the full-precision values.
 import { parentPort, workerData } from 'node:worker_threads';
 import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
+import { prepareChannels, type PreparedChannel, type PrepareChannelsRequest } from '../../../shared/analysis/prepare-channel.ts';
 import { nonFinitePaths, nonFiniteResultMessage } from '../../../shared/analysis/non-finite-paths.ts';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../../shared/contracts/capture.ts';
@@ -12,7 +13,7 @@ import { float64Bytes } from '../../traces/channel-files.ts';
 import { channelFilesOf, describeChannelFiles, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import { readCaptureStream } from '../../../worker/import/read-capture-stream.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
-import type { UploadReaderReply, UploadReaderRequest } from './upload-reader.ts';
+import type { SharedSamples, UploadReaderReply, UploadReaderRequest } from './upload-reader.ts';
 
 const port = parentPort!;
 /** Started ahead of an upload (upload-reader.ts, `prestartUploadReader`): warm up first, then take the upload. */
@@ -44,18 +45,29 @@ async function* arriving(): AsyncGenerator<Uint8Array> {
   }
 }
 
-/** Whole buffers of `blobs` to transfer (each once). */
-const buffersOf = (blobs: ChannelBlob[]) => [...new Set(blobs.map((b) => b.bytes.buffer as ArrayBuffer))];
+/** Whole buffers of `blobs` to transfer (each once); shared ones go over shared, not transferred. */
+const buffersOf = (blobs: ChannelBlob[]) => [...new Set(blobs.map((b) => b.bytes.buffer).filter((b): b is ArrayBuffer => !(b instanceof SharedArrayBuffer)))];
+
+/** The capture's channels as views of shared memory and its even time base, for another thread to prepare them in
+ * place; null when they are not all shared (the text path's plain arrays) or the times are uneven. */
+function sharedSamples(read: ImportedCapture): SharedSamples | null {
+  if (read.time.kind !== 'uniform' || !read.channels.every((c) => c.values.buffer instanceof SharedArrayBuffer)) return null;
+  return {
+    channels: read.channels.map((c) => ({ buffer: c.values.buffer as SharedArrayBuffer, byteOffset: c.values.byteOffset, length: c.values.length })),
+    time: read.time,
+  };
+}
 
 async function read(sizeHint: number, limits: CaptureLimits): Promise<void> {
   try {
     // The installation's limits refuse a too wide or too deep file here too; the worker then says why.
-    capture = await readCaptureStream(arriving(), { sizeHint, ...limits });
+    // In shared memory: another thread can prepare half of the channels for the engine (upload-reader.ts, analyse).
+    capture = await readCaptureStream(arriving(), { sizeHint, ...limits, shared: true });
     // Only the descriptor now: the API records the capture and the automatic version's numbers before the files.
     const files = describeChannelFiles(capture);
     const read = capture;
     kept = files.channels.flatMap((c) => (c.values?.type === 'f64' ? [{ key: c.values.key, bytes: float64Bytes(read.channels[c.index].values as Float64Array) }] : []));
-    post({ type: 'read', ok: true, files, layout: capture.layout, warnings: capture.warnings, length: capture.length });
+    post({ type: 'read', ok: true, files, layout: capture.layout, warnings: capture.warnings, length: capture.length, samples: sharedSamples(capture) });
   } catch (error) {
     failed = true;
     blocks.length = 0;
@@ -81,11 +93,12 @@ function prepareFiles(read: ImportedCapture | null): UploadReaderReply {
   }
 }
 
-/** The engine on the capture read, as the analysis job runs it; only results that are all finite numbers come back. */
-function analyse(read: ImportedCapture | null, parameters: AnalysisOptionsInput): UploadReaderReply {
+/** The engine on the capture read, as the analysis job runs it (with its channels prepared already, when given); only
+ * results that are all finite numbers come back. */
+function analyse(read: ImportedCapture | null, parameters: AnalysisOptionsInput, prepared?: PreparedChannel[]): UploadReaderReply {
   if (read === null) return { type: 'analysed', ok: false, reason: 'nothing was read' };
   try {
-    const results = analyzeShot(read, analysisOptionsSchema.parse(parameters));
+    const results = analyzeShot(read, analysisOptionsSchema.parse(parameters), prepared);
     const nonFinite = nonFinitePaths(results);
     if (nonFinite.length > 0) return { type: 'analysed', ok: false, reason: nonFiniteResultMessage(nonFinite) };
     return { type: 'analysed', ok: true, results: JSON.parse(JSON.stringify(results)) as Record<string, unknown> };
@@ -118,10 +131,25 @@ async function warmUp(): Promise<void> {
 }
 
 const warmedUp = startedAhead ? warmUp() : Promise.resolve();
+// The API starts the helper thread once the first spare has warmed up, not beside it (upload-reader.ts).
+if (startedAhead) void warmedUp.then(() => post({ type: 'warmed' }));
+
+/** Channels of shared memory prepared for the engine: this reader's own, or (in the API's helper thread) a reader's. */
+function prepare(id: number, request: PrepareChannelsRequest): UploadReaderReply {
+  try {
+    return { type: 'prepared', id, prepared: prepareChannels(request) };
+  } catch (error) {
+    return { type: 'prepared', id, prepared: null, reason: (error as Error).message };
+  }
+}
 
 port.on('message', (message: UploadReaderRequest) => {
   if (message.type === 'analyse') {
-    post(analyse(capture, message.parameters));
+    post(analyse(capture, message.parameters, message.prepared));
+    return;
+  }
+  if (message.type === 'prepare') {
+    post(prepare(message.id, message.request));
     return;
   }
   if (message.type === 'files') {

@@ -3,7 +3,7 @@
 // the reading thread in order and handed back, a last partial block. The reference is the input itself: the stored
 // file must be the same bytes, the hash Node's SHA-256 of them, and the reader's samples the disk reader's.
 import { createHash } from 'node:crypto';
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { Readable } from 'node:stream';
@@ -11,7 +11,8 @@ import type { Request } from 'express';
 import { afterAll, describe, expect, it } from 'vitest';
 import { simulatedCsv } from '../../../bench/lib/pipeline-client.ts';
 import { captureIntake, type ReceivedFile } from '../../../server/modules/shots/capture-intake.ts';
-import { prestartUploadReader, spareUploadReaderThreadId, stopSpareUploadReader } from '../../../server/modules/shots/upload-reader.ts';
+import { helperUploadThreadId, prestartUploadReader, spareUploadReaderThreadId, stopSpareUploadReader } from '../../../server/modules/shots/upload-reader.ts';
+import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
 import { LocalDiskStore } from '../../../server/storage/local-disk-store.ts';
 import { channelFilesOf } from '../../../server/traces/write-channel-files.ts';
 import { readCaptureFile } from '../../../worker/import/read-capture-file.ts';
@@ -113,4 +114,37 @@ describe('When an upload arrives in uneven chunks through small blocks', () => {
     }
     expect(spareUploadReaderThreadId()).toBeNull();
   });
+
+  it("then the engine's numbers worked out with the helper thread preparing half of the channels are the ones the engine gives alone", async () => {
+    const parameters = { gates: [{ channel: 'Gate A', position: 0 }, { channel: 'Gate B', position: 0.15 }, { channel: 'Gate C', position: 0.3 }] };
+    const alone = JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(await storedCopy()), parameters))) as unknown;
+    // Without a helper (none started): the reading thread prepares every channel.
+    const one = await receive(csv.bytes, 0, 19);
+    expect(await one.reader!.analyse(parameters)).toEqual({ results: alone, threads: 1 });
+    await one.reader!.close();
+    try {
+      prestartUploadReader();
+      // The helper starts once the spare has warmed up.
+      expect(helperUploadThreadId()).toBeNull();
+      for (let waited = 0; helperUploadThreadId() === null && waited < 30_000; waited += 50) await new Promise((resolve) => setTimeout(resolve, 50));
+      expect(helperUploadThreadId()).not.toBeNull();
+      const two = await receive(csv.bytes, 0, 23);
+      expect(await two.reader!.analyse(parameters)).toEqual({ results: alone, threads: 2 });
+      // Smoothing asked for: the traces differ, so the reading thread prepares them all.
+      const smoothed = { ...parameters, smoothing: { windowSize: 11, polynomial: 2 } };
+      const smoothedAlone = JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(await storedCopy()), smoothed))) as unknown;
+      expect(await two.reader!.analyse(smoothed)).toEqual({ results: smoothedAlone, threads: 1 });
+      await two.reader!.close();
+    } finally {
+      await stopSpareUploadReader();
+    }
+    expect(helperUploadThreadId()).toBeNull();
+  });
 });
+
+/** The simulated capture as a file, for the disk reader. */
+async function storedCopy(): Promise<string> {
+  const file = path.join(dir, 'stored-copy.csv');
+  writeFileSync(file, simulatedCsv({ seed: 31, length: 6000 }).bytes);
+  return file;
+}
