@@ -37,6 +37,16 @@ export function pulsesAt(trace: ArrayLike<number>, time: TimeBase, m: ChannelMea
     : null;
 }
 
+/**
+ * Whether a capture's channels are worth preparing in two threads before analyzeShot (the analyze CLI, the API's
+ * upload reader): two or more of them, no smoothing (analyzeShot would prepare the smoothed traces, not these) and an
+ * even time base (uneven times would have to be copied to the other thread). Whether the samples are in shared memory
+ * is the caller's to check.
+ */
+export function preparesApart(channels: number, time: TimeBase, opts: AnalysisOptions): boolean {
+  return channels >= 2 && opts.smoothing === null && time.kind === 'uniform';
+}
+
 /** Channels whose samples are views of shared memory, for another thread to prepare (see ScanThread). */
 export interface PrepareChannelsRequest {
   channels: { buffer: SharedArrayBuffer; byteOffset: number; length: number }[];

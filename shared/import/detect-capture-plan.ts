@@ -139,12 +139,13 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   // The fields of a line are split when first needed: a head of 256 KiB holds thousands of plain rows of numbers,
   // whose cells are known without splitting (plainRowCells), and few of which are ever looked at field by field.
   const splitRows: (string[] | undefined)[] = new Array(lines.length);
-  const row = (i: number): string[] | undefined => {
-    if (!(i >= 0 && i < lines.length)) return undefined;
+  // (No fields outside the lines, as for a blank line.)
+  const row = (i: number): string[] => {
+    if (!(i >= 0 && i < lines.length)) return [];
     return (splitRows[i] ??= lines[i].trim() === '' ? [] : splitFields(lines[i], delimiter));
   };
   const plain = plainRowCells(delimiter, fieldOptions);
-  const cells = lines.map((line, i) => plain(line) ?? (row(i) as string[]).map((f) => classifyCell(f, fieldOptions)));
+  const cells = lines.map((line, i) => plain(line) ?? row(i).map((f) => classifyCell(f, fieldOptions)));
   const isBlank = (i: number) => cells[i].every((c) => c === 'empty');
   const isPure = (i: number) => cells[i].some((c) => c === 'num') && !cells[i].includes('text');
 
@@ -228,17 +229,17 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
         && cells[i].some((cell, col) => cell === 'text' && !dataColumns.includes(col))) sideRows.push(i);
   }
   const sideColumns = new Set<number>();
-  for (const i of sideRows) (row(i) as string[]).forEach((f, col) => { if (!dataColumns.includes(col) && f.trim() !== '') sideColumns.add(col); });
+  for (const i of sideRows) row(i).forEach((f, col) => { if (!dataColumns.includes(col) && f.trim() !== '') sideColumns.add(col); });
 
   // Header rows right above the data: names, optionally followed by a row of units. A names row may hold numeric
   // channel ids ("x-axis,1,2" over "second,Volt,Volt"); both rows may carry metadata in columns beyond the data
   // ("X,CH1,Start,Increment" over "Sequence,Volt,-6.0e-03,2.0e-06").
   let headerEnd = start; // exclusive index of the header block end (= start, no blank lines kept between)
   while (headerEnd > 0 && isBlank(headerEnd - 1)) headerEnd--;
-  const field = (i: number, col: number) => (row(i)?.[col] ?? '').trim();
+  const field = (i: number, col: number) => (row(i)[col] ?? '').trim();
   const isNamesRow = (i: number, aboveUnits: boolean): boolean => {
     if (i < 0 || isBlank(i)) return false;
-    const fields = row(i) as string[];
+    const fields = row(i);
     const nonEmpty = fields.filter((f) => f.trim() !== '').length;
     const firstText = fields.find((f) => f.trim() !== '')?.trim() ?? '';
     if (nonEmpty === 1 && DATA_MARKER.test(firstText)) return false;
@@ -288,7 +289,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     if (isPure(i) && cells[i].length === cells[start].length && options.dataStartLine === undefined) {
       let bad = i + 1;
       while (bad < headerStart && isPure(bad)) bad++;
-      const found = row(bad)?.find((f, col) => dataColumns.includes(col) && classifyCell(f, fieldOptions) === 'text');
+      const found = row(bad).find((f, col) => dataColumns.includes(col) && classifyCell(f, fieldOptions) === 'text');
       throw new ImportError(`expected ${dataColumns.length} numbers, found '${(found ?? lines[bad]).trim().slice(0, 40)}'`, bad + 1);
     }
   }
@@ -298,7 +299,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   const unitWords: string[] = [];
   if (headerRows >= 1) {
     for (const col of dataColumns) {
-      const label = parseUnitLabel((row(headerStart) as string[])[col] ?? '');
+      const label = parseUnitLabel(row(headerStart)[col] ?? '');
       names[col] = label.name;
       units[col] = label.sourceUnit;
     }
@@ -324,7 +325,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
   };
   for (let i = 0; i < headerStart; i++) {
     if (isBlank(i)) continue;
-    let fields = (row(i) as string[]).map((f) => f.trim());
+    let fields = row(i).map((f) => f.trim());
     if (fields.filter((f) => f !== '').length === 1) {
       const m = /^([^:=\t]+?)\s*[:=\t]\s*(.*)$/.exec(fields.find((f) => f !== '') ?? '');
       if (m) fields = [m[1], m[2]];
@@ -344,11 +345,11 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     }
   }
   for (const i of sideRows) {
-    const fields = (row(i) as string[]).map((f, col) => [f.trim(), col] as const).filter(([f, col]) => !dataColumns.includes(col) && f !== '');
+    const fields = row(i).map((f, col) => [f.trim(), col] as const).filter(([f, col]) => !dataColumns.includes(col) && f !== '');
     for (let k = 0; k < fields.length; k += 2) addMeta(fields[k][0], fields[k + 1]?.[0] ?? '', `line ${i + 1}, beside the data`);
   }
   for (const i of footer) {
-    const nonEmpty = (row(i) as string[]).map((f) => f.trim()).filter((f) => f !== '');
+    const nonEmpty = row(i).map((f) => f.trim()).filter((f) => f !== '');
     if (nonEmpty.length >= 2) addMeta(nonEmpty[0], nonEmpty.slice(1).join(', '), `line ${i + 1}, after the data`);
     else addMeta('footer', lines[i].trim(), `line ${i + 1}, after the data`);
   }
@@ -377,7 +378,7 @@ export function detectCapturePlan(lines: string[], options: DetectCapturePlanOpt
     const values: number[] = [];
     for (let i = start; i <= end && values.length < most; i++) {
       if (isBlank(i)) continue;
-      const v = readSampleField((row(i) as string[])[col] ?? '', fieldOptions);
+      const v = readSampleField(row(i)[col] ?? '', fieldOptions);
       if (v === undefined || Number.isNaN(v)) return null;
       values.push(v);
     }

@@ -1,4 +1,4 @@
-import { prepareChannel, type PrepareChannelsReply, type PreparedChannel } from '../../shared/analysis/prepare-channel.ts';
+import { prepareChannel, preparesApart, type PrepareChannelsReply, type PreparedChannel } from '../../shared/analysis/prepare-channel.ts';
 import type { AnalysisOptions } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
 import type { ScanThread } from '../import/scan-thread.ts';
@@ -13,7 +13,7 @@ import type { ScanThread } from '../import/scan-thread.ts';
  */
 export async function prepareInTwoThreads(thread: ScanThread, capture: ImportedCapture, opts: AnalysisOptions): Promise<PreparedChannel[] | null> {
   const values = capture.channels.map((c) => c.values);
-  if (values.length < 2 || opts.smoothing !== null || capture.time.kind !== 'uniform') return null;
+  if (!preparesApart(values.length, capture.time, opts)) return null;
   if (!values.every((v) => v.buffer instanceof SharedArrayBuffer)) return null;
   const mine = Math.ceil(values.length / 2);
   const theirs = values.slice(mine);

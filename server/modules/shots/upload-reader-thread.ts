@@ -48,10 +48,10 @@ async function* arriving(): AsyncGenerator<Uint8Array> {
 /** Whole buffers of `blobs` to transfer (each once); shared ones go over shared, not transferred. */
 const buffersOf = (blobs: ChannelBlob[]) => [...new Set(blobs.map((b) => b.bytes.buffer).filter((b): b is ArrayBuffer => !(b instanceof SharedArrayBuffer)))];
 
-/** The capture's channels as views of shared memory and its even time base, for another thread to prepare them in
- * place; null when they are not all shared (the text path's plain arrays) or the times are uneven. */
+/** The capture's channels as views of shared memory and its time base, for another thread to prepare them in place;
+ * null when they are not all shared (the text path's plain arrays). */
 function sharedSamples(read: ImportedCapture): SharedSamples | null {
-  if (read.time.kind !== 'uniform' || !read.channels.every((c) => c.values.buffer instanceof SharedArrayBuffer)) return null;
+  if (!read.channels.every((c) => c.values.buffer instanceof SharedArrayBuffer)) return null;
   return {
     channels: read.channels.map((c) => ({ buffer: c.values.buffer as SharedArrayBuffer, byteOffset: c.values.byteOffset, length: c.values.length })),
     time: read.time,

@@ -4,7 +4,7 @@ import type { ChannelBlob } from '../../traces/write-channel-files.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 import { analysisOptionsSchema, type AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import type { TimeBase } from '../../../shared/contracts/capture.ts';
-import type { PreparedChannel, PrepareChannelsRequest } from '../../../shared/analysis/prepare-channel.ts';
+import { preparesApart, type PreparedChannel, type PrepareChannelsRequest } from '../../../shared/analysis/prepare-channel.ts';
 
 export type UploadReaderRequest =
   | { type: 'start'; sizeHint: number; limits: CaptureLimits }
@@ -29,7 +29,7 @@ export interface UploadRead {
   samples: SharedSamples | null;
 }
 
-/** A read capture's channels as views of shared memory, with its even time base. */
+/** A read capture's channels as views of shared memory, with its time base. */
 export interface SharedSamples {
   channels: PrepareChannelsRequest['channels'];
   time: TimeBase;
@@ -313,10 +313,11 @@ export class UploadReader {
    */
   private async prepareInTwoThreads(parameters: AnalysisOptionsInput): Promise<PreparedChannel[] | null> {
     const read = await this.outcome;
-    if ('problem' in read || read.samples === null || read.samples.channels.length < 2 || helperThread === null) return null;
+    if ('problem' in read || read.samples === null || helperThread === null) return null;
     const parsed = analysisOptionsSchema.safeParse(parameters);
-    if (!parsed.success || parsed.data.smoothing !== null) return null; // the reading thread words the refusal
+    if (!parsed.success) return null; // the reading thread words the refusal
     const { channels, time } = read.samples;
+    if (!preparesApart(channels.length, time, parsed.data)) return null;
     const mine = Math.ceil(channels.length / 2);
     const [here, there] = await Promise.all([
       this.prepareHere({ channels: channels.slice(0, mine), time, opts: parsed.data }),
