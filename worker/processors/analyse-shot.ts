@@ -1,5 +1,5 @@
 import { UnrecoverableError, type Job } from 'bullmq';
-import { Op, type Transaction } from 'sequelize';
+import { Op } from 'sequelize';
 import { analyzeShot } from '../../shared/analysis/analyze-shot.ts';
 import { analysisOptionsSchema, type AnalysisOptions } from '../../shared/contracts/analysis.ts';
 import type { ImportedCapture } from '../../shared/contracts/capture.ts';
@@ -7,29 +7,12 @@ import { analysisJobData } from '../../shared/contracts/jobs.ts';
 import { combineCaptures } from '../../shared/import/combine-captures.ts';
 import { ImportError } from '../../shared/import/import-error.ts';
 import { nonFinitePaths, nonFiniteResultMessage } from '../../shared/analysis/non-finite-paths.ts';
-import { Analysis, Capture, Shot } from '../../server/db/models/index.ts';
-import { recordAudit } from '../../server/lib/audit.ts';
+import { Analysis, Capture } from '../../server/db/models/index.ts';
+import { auditWithdrawnReview, finishVersion } from '../../server/modules/analyses/finish-version.ts';
 import { readStoredChannels } from '../../server/traces/read-stored-channels.ts';
 import { workerContext } from '../context.ts';
 import { readStoredCapture } from '../read-stored-capture.ts';
 import { settleShot } from '../../server/modules/shots/settle-shot.ts';
-
-/**
- * Makes the finished version the shot's current one when it is the newest; returns the withdrawn review request's
- * details when an older version was waiting for review.
- */
-async function makeCurrentVersion(analysis: Analysis, transaction: Transaction) {
-  const shot = await Shot.findByPk(analysis.shotId, { transaction, lock: transaction.LOCK.UPDATE });
-  if (!shot) return null;
-  const current = shot.currentAnalysisId ? await Analysis.findByPk(shot.currentAnalysisId, { transaction }) : null;
-  if (current && current.version >= analysis.version) return null;
-  // A newer version becomes current whatever the review state, and needs a review of its own: an approval of an
-  // older version stays on record (shots.approved_analysis_id, the reviews table); a pending request about an
-  // older version is withdrawn, so a reviewer never signs off numbers that are no longer the shot's.
-  const wasInReview = shot.status === 'in_review' ? shot.reviewAnalysisId : null;
-  await shot.update({ currentAnalysisId: analysis.id, reviewAnalysisId: null }, { transaction });
-  return wasInReview ? { labId: shot.labId, shotId: shot.id, reviewedAnalysisId: wasInReview } : null;
-}
 
 /** The engine on the captures the version names, read from their stored channel files (or the raw files, for captures stored before those). */
 async function analyseStored(job: Job, analysis: Analysis, parameters: AnalysisOptions): Promise<Record<string, unknown>> {
@@ -63,17 +46,16 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   await analysis.update({ state: 'running', progress: 10, startedAt: analysis.startedAt ?? new Date() });
   await settleShot(analysis.shotId);
   await job.updateProgress(10);
-  let results: Record<string, unknown> | undefined;
+  let results: Record<string, unknown>;
   try {
     const parameters = analysisOptionsSchema.parse(analysis.parameters);
     // Worked out by the API in the thread that read the upload (the same engine on the same samples): taken only
-    // when they are for exactly this version's captures and parameters.
+    // when they are for exactly this version's captures and parameters. The API now stores such numbers on the
+    // version itself (automaticVersionIn); a job queued with them by an earlier release still finds them here.
     const pre = data.precomputed;
-    if (pre !== undefined && JSON.stringify(pre.captureIds) === JSON.stringify(analysis.captureIds)
-      && JSON.stringify(analysisOptionsSchema.parse(pre.parameters)) === JSON.stringify(parameters)) {
-      results = pre.results;
-    }
-    if (results === undefined) results = await analyseStored(job, analysis, parameters);
+    const fits = pre !== undefined && JSON.stringify(pre.captureIds) === JSON.stringify(analysis.captureIds)
+      && JSON.stringify(analysisOptionsSchema.parse(pre.parameters)) === JSON.stringify(parameters);
+    results = fits ? pre.results : await analyseStored(job, analysis, parameters);
     // Never store NaN or ±Infinity turned into null by JSON: the version fails with the reason instead.
     const nonFinite = nonFinitePaths(results);
     if (nonFinite.length > 0) throw new ImportError(nonFiniteResultMessage(nonFinite));
@@ -89,21 +71,12 @@ export default async function analyseShot(job: Job): Promise<{ analysisId: strin
   // The version's state, the shot's pointer and the shot's status change in one transaction: nobody reads the new
   // current version beside the old status (e.g. still "approved" for the version before).
   const withdrawn = await sequelize.transaction(async (transaction) => {
-    const [updated] = await Analysis.update(
-      { state: 'done', progress: 100, results: JSON.parse(JSON.stringify(results)), completedAt: new Date(), error: null },
-      { where: { id: analysis.id, state: { [Op.ne]: 'done' } }, transaction },
-    );
-    if (updated === 0) return null;
-    const moved = await makeCurrentVersion(analysis, transaction);
+    const { finished, withdrawn: moved } = await finishVersion(analysis, results, transaction);
+    if (!finished) return null;
     await settleShot(analysis.shotId, transaction);
     return moved;
   });
-  if (withdrawn) {
-    await recordAudit({
-      labId: withdrawn.labId, actorId: null, action: 'review.withdrawn', targetType: 'shot', targetId: withdrawn.shotId,
-      details: { reason: `analysis version ${analysis.version} finished while an older version was in review`, reviewedAnalysisId: withdrawn.reviewedAnalysisId },
-    });
-  }
+  if (withdrawn) await auditWithdrawnReview(withdrawn);
   await job.updateProgress(100);
   return { analysisId: analysis.id, state: "done" };
 }

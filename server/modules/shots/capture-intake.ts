@@ -5,7 +5,8 @@ import type { Readable } from 'node:stream';
 import type { Request } from 'express';
 import type { StorageEngine } from 'multer';
 import type { BlobStore } from '../../storage/blob-store.ts';
-import { UploadReader } from './upload-reader.ts';
+import { UploadReader, type UploadRead } from './upload-reader.ts';
+import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
 import type { CaptureLimits } from '../../../worker/import/capture-limits.ts';
 
 /** What the intake adds to each multer file. */
@@ -34,6 +35,11 @@ export interface CaptureIntakeOptions {
   blockBytes?: number;
   /** Sync the file to disk every this many bytes while it arrives. @default 64 MiB */
   syncEveryBytes?: number;
+  /**
+   * For a file read while it arrives that is (nearly) the whole request: the analysis parameters to start the engine
+   * on as soon as its read is over (UploadReader.analyseOnRead), or null for none. @default none
+   */
+  parametersOnRead?: (read: UploadRead, fileName: string) => Promise<AnalysisOptionsInput | null>;
 }
 
 /** Reads running in this process (across requests). */
@@ -45,6 +51,8 @@ const BLOCK_BYTES = 1 << 20;
 const SYNC_EVERY_BYTES = 64 << 20;
 /** Blocks written or handed over at once while the next ones arrive. */
 const MAX_IN_FLIGHT = 4;
+/** A file is (nearly) the whole request when the rest of it (multipart framing, small fields) is at most this long. */
+const REST_OF_REQUEST_BYTES = 64 << 10;
 
 /** Thrown by a receiver when a file grows past its `maxBytes` (the bytes taken so far are removed). */
 export class FileTooLargeError extends Error {
@@ -61,9 +69,9 @@ export class FileTooLargeError extends Error {
  * by its hash. The stream is a multipart part (captureIntake, through multer) or the request itself (a file sent
  * as the whole request body). With `maxBytes`, a file that grows past it is dropped with FileTooLargeError.
  */
-export function captureReceiver(options: CaptureIntakeOptions): (req: Request, stream: Readable, maxBytes?: number) => Promise<ReceivedFile> {
-  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {}, blockBytes = BLOCK_BYTES, syncEveryBytes = SYNC_EVERY_BYTES } = options;
-  return async (req: Request, stream: Readable, maxBytes = Infinity): Promise<ReceivedFile> => {
+export function captureReceiver(options: CaptureIntakeOptions): (req: Request, stream: Readable, maxBytes?: number, fileName?: string) => Promise<ReceivedFile> {
+  const { store, uploadsDir, readFromBytes, maxReads = 2, limits = {}, blockBytes = BLOCK_BYTES, syncEveryBytes = SYNC_EVERY_BYTES, parametersOnRead } = options;
+  return async (req: Request, stream: Readable, maxBytes = Infinity, fileName = ''): Promise<ReceivedFile> => {
     const onStoreDisk = store.stagingPath !== undefined && store.adoptFile !== undefined;
     let file: string;
     if (onStoreDisk) file = await store.stagingPath!();
@@ -145,6 +153,10 @@ export function captureReceiver(options: CaptureIntakeOptions): (req: Request, s
       await flush();
       await Promise.all(inFlight.splice(0));
       reader?.end();
+      // The engine can start on the read before the file is synced and recorded (see analyseOnRead).
+      if (reader !== null && parametersOnRead !== undefined && requestBytes - size <= REST_OF_REQUEST_BYTES) {
+        reader.analyseOnRead((read) => parametersOnRead(read, fileName));
+      }
       await syncing;
       await fh.sync();
     } catch (error) {
@@ -164,7 +176,8 @@ export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
   const receive = captureReceiver(options);
   return {
     _handleFile(req, file, cb) {
-      receive(req as Request, file.stream).then((info) => cb(null, info as Partial<Express.Multer.File>), (error: Error) => cb(error));
+      // Browsers send the name as Latin-1 bytes of its UTF-8 form (uploads.ts undoes it the same way).
+      receive(req as Request, file.stream, Infinity, Buffer.from(file.originalname, 'latin1').toString('utf8')).then((info) => cb(null, info as Partial<Express.Multer.File>), (error: Error) => cb(error));
     },
     _removeFile(_req, file, cb) {
       const received = file as unknown as Partial<ReceivedFile>;

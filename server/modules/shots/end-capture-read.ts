@@ -1,9 +1,9 @@
 import type { Sequelize, Transaction } from 'sequelize';
-import type { AnalysisJobData } from '../../../shared/contracts/jobs.ts';
 import { Shot } from '../../db/models/index.ts';
 import type { JobQueues } from '../../lib/job-queues.ts';
 import type { Logger } from '../../lib/logger.ts';
-import { automaticVersionIn } from '../analyses/service.ts';
+import { automaticVersionIn, type PrecomputedVersion } from '../analyses/service.ts';
+import { auditWithdrawnReview } from '../analyses/finish-version.ts';
 import { settleShot } from './settle-shot.ts';
 
 export interface EndCaptureReadOptions {
@@ -12,8 +12,8 @@ export interface EndCaptureReadOptions {
    * did; when it did not (a condition on the row failed), nothing else happens. @default nothing to write
    */
   write?: (transaction: Transaction) => Promise<boolean>;
-  /** Numbers already worked out for the automatic version (uploads.ts), handed to its job when they fit. @default none */
-  precomputed?: AnalysisJobData['precomputed'];
+  /** Numbers already worked out for the automatic version (uploads.ts), stored on it when they fit. @default none */
+  precomputed?: PrecomputedVersion;
   /**
    * Make the automatic version only when the shot has no current version (a file removed: the numbers shown stand
    * when they did not read it). @default false
@@ -24,7 +24,8 @@ export interface EndCaptureReadOptions {
 /**
  * Ends a capture's read and does what follows, in one transaction under the shot's row lock: the capture's final
  * state (`write`), the check for files still pending, the automatic version once none is (automaticVersionIn), and
- * the shot's status (settleShot). The version's job is queued after the commit.
+ * the shot's status (settleShot). The version's job is queued after the commit (none when the numbers the API
+ * worked out were stored on the version: see automaticVersionIn).
  *
  * Why one transaction: two files of a shot ending together are then taken one after the other, and no reader sees
  * a state between two of these steps. Done as separate steps, the job of the file that ended first could see the
@@ -48,16 +49,17 @@ export async function endCaptureRead(
   const { write, precomputed, onlyWithoutCurrent = false } = options;
   const ended = await ctx.sequelize.transaction(async (transaction) => {
     const shot = await Shot.findByPk(shotId, { transaction, lock: transaction.LOCK.UPDATE });
-    if (!shot) return { shot: null, written: false, created: false, job: null, statusChanged: false };
-    if (write && !(await write(transaction))) return { shot, written: false, created: false, job: null, statusChanged: false };
-    const { created, job } = onlyWithoutCurrent && shot.currentAnalysisId
-      ? { created: false, job: null }
+    if (!shot) return { shot: null, written: false, created: false, analysisId: null, job: null, withdrawn: null, statusChanged: false };
+    if (write && !(await write(transaction))) return { shot, written: false, created: false, analysisId: null, job: null, withdrawn: null, statusChanged: false };
+    const { created, analysisId, job, withdrawn } = onlyWithoutCurrent && shot.currentAnalysisId
+      ? { created: false, analysisId: null, job: null, withdrawn: null }
       : await automaticVersionIn(shot, transaction, precomputed);
     const settled = await settleShot(shotId, transaction);
-    return { shot: settled, written: write !== undefined, created, job, statusChanged: settled !== null && settled.status !== shot.status };
+    return { shot: settled, written: write !== undefined, created, analysisId, job, withdrawn, statusChanged: settled !== null && settled.status !== shot.status };
   });
   if (ended.job) await ctx.queues.addAnalysisOrDefer(ended.job, ctx.logger);
+  if (ended.withdrawn) await auditWithdrawnReview(ended.withdrawn);
   return {
-    shot: ended.shot, written: ended.written, versionMadeId: ended.created && ended.job ? ended.job.analysisId : null, statusChanged: ended.statusChanged,
+    shot: ended.shot, written: ended.written, versionMadeId: ended.created ? ended.analysisId : null, statusChanged: ended.statusChanged,
   };
 }

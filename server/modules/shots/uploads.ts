@@ -12,12 +12,11 @@ import { channelFilesWriting } from '../../traces/channel-files-in-flight.ts';
 import { captureFilesPrefix, placeChannelFiles, putChannelBlobs, syncChannelBlobs, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import type { ChannelFiles } from '../../traces/channel-files.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
-import type { AnalysisJobData } from '../../../shared/contracts/jobs.ts';
 import { captureIntake, captureReceiver, FileTooLargeError, type CaptureIntakeOptions, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
 import { settleShot } from './settle-shot.ts';
 import { endCaptureRead } from './end-capture-read.ts';
-import { combinedChannelNames, defaultParameters } from '../analyses/service.ts';
+import { combinedChannelNames, defaultParameters, type PrecomputedVersion } from '../analyses/service.ts';
 import { formatBytes } from '../../../shared/units/format-bytes.ts';
 import { assertStorageRoom } from '../storage/service.ts';
 
@@ -26,10 +25,11 @@ export const MAX_FILES_PER_UPLOAD = 32;
 /** A file received, with the name it is to be recorded under. */
 type NamedFile = ReceivedFile & { fileName: string };
 
-function intakeOptions(deps: Deps): CaptureIntakeOptions {
+function intakeOptions(deps: Deps, shot: Shot): CaptureIntakeOptions {
   return {
     store: deps.blobStore, uploadsDir: path.join(deps.config.dataDir, 'uploads'), readFromBytes: deps.config.readUploadsFromBytes,
     limits: { maxChannels: deps.config.maxChannelsPerCapture, maxSamples: deps.config.maxSamplesPerChannel },
+    parametersOnRead: (read, fileName) => soleFileParameters(shot.id, fileName, read.files),
   };
 }
 
@@ -54,7 +54,7 @@ function mediaType(req: Request): string {
  * request body against 2.86 s as multipart (medians), the API using 3.82 against 4.82 CPU-s, its reading thread
  * included. bench/pipeline-deep.ts measures the whole pipeline both ways.
  */
-async function receiveBody(deps: Deps, req: Request, fileName: string | undefined): Promise<NamedFile[]> {
+async function receiveBody(deps: Deps, req: Request, shot: Shot, fileName: string | undefined): Promise<NamedFile[]> {
   // A form or JSON body holds no file (express.json has read a JSON one already).
   const type = mediaType(req);
   const form = type === 'application/x-www-form-urlencoded' || type === 'application/json' || type.endsWith('+json');
@@ -71,7 +71,7 @@ async function receiveBody(deps: Deps, req: Request, fileName: string | undefine
   }
   if (Number.isFinite(declared) && declared > deps.config.uploadLimitBytes) throw fileTooLarge(deps);
   try {
-    const file = await captureReceiver(intakeOptions(deps))(req, req, deps.config.uploadLimitBytes);
+    const file = await captureReceiver(intakeOptions(deps, shot))(req, req, deps.config.uploadLimitBytes, fileName);
     return [{ ...file, fileName }];
   } catch (err) {
     if (err instanceof FileTooLargeError) throw fileTooLarge(deps);
@@ -80,15 +80,15 @@ async function receiveBody(deps: Deps, req: Request, fileName: string | undefine
 }
 
 /** Runs multer on this request (after the access guard, so nobody unauthorised can fill the disk). */
-async function receiveFiles(deps: Deps, req: Request, res: Response): Promise<NamedFile[]> {
-  const files = await receiveMultipart(deps, req, res);
+async function receiveFiles(deps: Deps, req: Request, res: Response, shot: Shot): Promise<NamedFile[]> {
+  const files = await receiveMultipart(deps, req, res, shot);
   // Browsers send the name as Latin-1 bytes of its UTF-8 form; undo that so "µs-run.csv" stays readable.
   return files.map((file) => Object.assign(file, { fileName: Buffer.from(file.originalname, 'latin1').toString('utf8') }));
 }
 
-function receiveMultipart(deps: Deps, req: Request, res: Response): Promise<(Express.Multer.File & ReceivedFile)[]> {
+function receiveMultipart(deps: Deps, req: Request, res: Response, shot: Shot): Promise<(Express.Multer.File & ReceivedFile)[]> {
   const upload = multer({
-    storage: captureIntake(intakeOptions(deps)),
+    storage: captureIntake(intakeOptions(deps, shot)),
     limits: { fileSize: deps.config.uploadLimitBytes, files: MAX_FILES_PER_UPLOAD },
   }).array('files', MAX_FILES_PER_UPLOAD);
   return new Promise((resolve, reject) => {
@@ -147,8 +147,9 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
     assertRequestSize(deps, declared);
     await assertStorageRoom(deps.config, shot.labId, declared, 'This upload');
   }
-  const files = isMultipart(req) ? await receiveFiles(deps, req, res) : await receiveBody(deps, req, fileName);
+  const files = isMultipart(req) ? await receiveFiles(deps, req, res, shot) : await receiveBody(deps, req, shot, fileName);
   const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
+  let answered = false;
   try {
     if (files.length === 0) {
       throw badRequest('No file received: send one or more scope CSV files in the multipart field "files", or one file as the request body with ?fileName=… in the URL.');
@@ -208,11 +209,18 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
         }
       }
     }
+    answered = true;
     return views;
   } finally {
     // Readers not handed on (duplicates, a failed request) stop here.
     await Promise.allSettled([...files, ...fresh].map((f) => f.reader?.close()));
-    await Promise.allSettled(files.map((f) => rm(f.path, { force: true })));
+    // A received file not adopted as its blob (the same bytes were stored already; a store without a disk of its
+    // own, which copied it) is removed; after a request that went well, once the answer is out: unlinking the 330 MB
+    // deep capture took 90-125 ms, all of it between the last byte and the answer (measured with strace on the lab
+    // machine, 4 December 2026). Nothing depends on it: the staged file is never read again.
+    const removed = Promise.allSettled(files.map((f) => rm(f.path, { force: true })));
+    if (answered) void removed;
+    else await removed;
   }
 }
 
@@ -229,10 +237,11 @@ const INGEST_HOLD_MS = 60_000;
  * on the lab machine, preparing its channel files took 0.3–0.45 s in the thread and writing their 90 MB 0.25–1.1 s
  * (the bytes go into fresh memory), while the engine on the samples in memory took 0.1–0.2 s. So when the file is
  * the shot's only one:
- * - the thread, which still holds the samples, works out the automatic version's numbers first; the capture is
- *   recorded as read (its files' descriptor needs no file) and its version queued with those numbers, which the
- *   analysis job stores instead of reading the files and running the engine again (automaticVersionIn checks they
- *   are for the version's captures and parameters, and the job checks again);
+ * - the thread, which still holds the samples, works out the automatic version's numbers first (it started on them
+ *   when the last byte arrived, with the parameters the shot would give this file: UploadReader.analyseOnRead); the
+ *   capture is recorded as read (its files' descriptor needs no file) and its version made with those numbers
+ *   stored on it, in the same transaction (automaticVersionIn checks they are for the version's captures and
+ *   parameters): no analysis job reads the files and runs the engine again, or hands the numbers over;
  * - then the files follow: those the trace plots read, then the full-precision values (read only by later
  *   recomputes; one asked for in between reads the stored upload instead, as readStoredChannels finds no values
  *   file). A trace request in between waits for them in this process (channelFilesWritten); if this process
@@ -260,12 +269,12 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
       return placeChannelFiles(prefix, { files: read.files, blobs: taken }).blobs;
     };
     // Only a capture still queued for this attempt: a worker that took the job over meanwhile has the last word.
-    // Queue the shot's analysis from here, as the ingest job would once it found the capture read: one job hand-over
+    // Make the shot's analysis from here, as the ingest job would once it found the capture read: one job hand-over
     // less between the last byte and the result. The mark, the version and the shot's status are written in one
     // transaction under the shot's lock (endCaptureRead), so a file of the shot ending beside this one never shows
-    // the shot "failed" in between. The released ingest job then finds the analysis keyed and queued already (the
-    // same key, so never a second one) and only writes the status again.
-    const markRead = async (precomputed: AnalysisJobData['precomputed']) => {
+    // the shot "failed" in between. The released ingest job then finds the analysis keyed and done or queued already
+    // (the same key, so never a second one) and only writes the status again.
+    const markRead = async (precomputed: PrecomputedVersion | undefined) => {
       await endCaptureRead(deps, capture.shotId, {
         precomputed,
         write: async (transaction) => {
@@ -280,7 +289,7 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
     const parameters = await soleCaptureParameters(capture, files);
     const outcome = parameters === null ? null : await reader.analyse(parameters);
     if (outcome !== null && 'problem' in outcome) deps.logger.info({ captureId: capture.id, problem: outcome.problem }, 'automatic version not worked out in the API; the worker does it');
-    const precomputed = outcome !== null && 'results' in outcome ? { captureIds: [capture.id], parameters, results: outcome.results } : undefined;
+    const precomputed = outcome !== null && 'results' in outcome ? { captureIds: [capture.id], parameters, results: outcome.results, ranAt: outcome.ranAt } : undefined;
     const written: ChannelBlob[] = [];
     if (precomputed === undefined) {
       written.push(...await take(reader.takeFiles(), 'the trace files'), ...await take(reader.takeKept(), 'the values'));
@@ -324,9 +333,20 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
  * so the reading thread can work out its numbers; null otherwise. The same function automaticVersionIn uses.
  */
 async function soleCaptureParameters(capture: Capture, files: ChannelFiles): Promise<AnalysisOptionsInput | null> {
-  const others = await Capture.count({ where: { shotId: capture.shotId, removedAt: null, id: { [Op.ne]: capture.id }, state: { [Op.in]: ['queued', 'reading', 'ready'] } } });
+  return soleFileParameters(capture.shotId, capture.fileName, files, capture.id);
+}
+
+/**
+ * The same for a file of `shotId` that has no capture row yet (`captureId` undefined: every capture of the shot is
+ * another file), when its read is over: the reading thread starts on them at once (UploadReader.analyseOnRead), and
+ * soleCaptureParameters later gives the same parameters unless something changed meanwhile.
+ */
+async function soleFileParameters(shotId: string, fileName: string, files: ChannelFiles, captureId?: string): Promise<AnalysisOptionsInput | null> {
+  const others = await Capture.count({
+    where: { shotId, removedAt: null, ...(captureId !== undefined && { id: { [Op.ne]: captureId } }), state: { [Op.in]: ['queued', 'reading', 'ready'] } },
+  });
   if (others > 0) return null;
-  const shot = await Shot.findByPk(capture.shotId);
+  const shot = await Shot.findByPk(shotId);
   if (!shot || shot.deletedAt) return null;
-  return defaultParameters(shot, combinedChannelNames([{ fileName: capture.fileName, channels: files }]));
+  return defaultParameters(shot, combinedChannelNames([{ fileName, channels: files }]));
 }

@@ -10,8 +10,8 @@ import { Readable } from 'node:stream';
 import type { Request } from 'express';
 import { afterAll, describe, expect, it } from 'vitest';
 import { simulatedCsv } from '../../../bench/lib/pipeline-client.ts';
-import { captureIntake, type ReceivedFile } from '../../../server/modules/shots/capture-intake.ts';
-import { helperUploadThreadId, prestartUploadReader, spareUploadReaderThreadId, stopSpareUploadReader } from '../../../server/modules/shots/upload-reader.ts';
+import { captureIntake, type CaptureIntakeOptions, type ReceivedFile } from '../../../server/modules/shots/capture-intake.ts';
+import { helperUploadThreadId, prestartUploadReader, spareUploadReaderThreadId, stopSpareUploadReader, type AnalyseOutcome } from '../../../server/modules/shots/upload-reader.ts';
 import { analyzeShot } from '../../../shared/analysis/analyze-shot.ts';
 import { LocalDiskStore } from '../../../server/storage/local-disk-store.ts';
 import { channelFilesOf } from '../../../server/traces/write-channel-files.ts';
@@ -33,12 +33,22 @@ function chunked(bytes: Uint8Array, seed: number): Readable {
   return Readable.from(chunks);
 }
 
-function receive(bytes: Uint8Array, readFromBytes: number, seed: number): Promise<ReceivedFile> {
-  const intake = captureIntake({ store: new LocalDiskStore(path.join(dir, 'blobs')), uploadsDir: dir, readFromBytes, blockBytes: 4096, syncEveryBytes: 64 << 10 });
-  const req = { headers: { 'content-length': String(bytes.length) } } as unknown as Request;
+/** `bytes` received as the multipart file "shot.csv" of a request `requestBytes` long (just the file by default). */
+function receive(bytes: Uint8Array, readFromBytes: number, seed: number, options: Partial<CaptureIntakeOptions> = {}, requestBytes = bytes.length): Promise<ReceivedFile> {
+  const intake = captureIntake({ store: new LocalDiskStore(path.join(dir, 'blobs')), uploadsDir: dir, readFromBytes, blockBytes: 4096, syncEveryBytes: 64 << 10, ...options });
+  const req = { headers: { 'content-length': String(requestBytes) } } as unknown as Request;
   return new Promise((resolve, reject) => {
-    intake._handleFile(req, { stream: chunked(bytes, seed) } as Express.Multer.File, (err, info) => (err ? reject(err) : resolve(info as unknown as ReceivedFile)));
+    const file = { stream: chunked(bytes, seed), originalname: 'shot.csv' } as Express.Multer.File;
+    intake._handleFile(req, file, (err, info) => (err ? reject(err) : resolve(info as unknown as ReceivedFile)));
   });
+}
+
+/** An outcome of UploadReader.analyse without its run times, which differ from run to run. */
+function withoutRunTimes(outcome: AnalyseOutcome): object {
+  if (!('results' in outcome)) return outcome;
+  const { ranAt, ...rest } = outcome;
+  expect(ranAt.completedAt.getTime()).toBeGreaterThanOrEqual(ranAt.startedAt.getTime());
+  return rest;
 }
 
 describe('When an upload arrives in uneven chunks through small blocks', () => {
@@ -120,7 +130,7 @@ describe('When an upload arrives in uneven chunks through small blocks', () => {
     const alone = JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(await storedCopy()), parameters))) as unknown;
     // Without a helper (none started): the reading thread prepares every channel.
     const one = await receive(csv.bytes, 0, 19);
-    expect(await one.reader!.analyse(parameters)).toEqual({ results: alone, threads: 1 });
+    expect(withoutRunTimes(await one.reader!.analyse(parameters))).toEqual({ results: alone, threads: 1 });
     await one.reader!.close();
     try {
       prestartUploadReader();
@@ -129,16 +139,69 @@ describe('When an upload arrives in uneven chunks through small blocks', () => {
       for (let waited = 0; helperUploadThreadId() === null && waited < 30_000; waited += 50) await new Promise((resolve) => setTimeout(resolve, 50));
       expect(helperUploadThreadId()).not.toBeNull();
       const two = await receive(csv.bytes, 0, 23);
-      expect(await two.reader!.analyse(parameters)).toEqual({ results: alone, threads: 2 });
+      expect(withoutRunTimes(await two.reader!.analyse(parameters))).toEqual({ results: alone, threads: 2 });
       // Smoothing asked for: the traces differ, so the reading thread prepares them all.
       const smoothed = { ...parameters, smoothing: { windowSize: 11, polynomial: 2 } };
       const smoothedAlone = JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(await storedCopy()), smoothed))) as unknown;
-      expect(await two.reader!.analyse(smoothed)).toEqual({ results: smoothedAlone, threads: 1 });
+      expect(withoutRunTimes(await two.reader!.analyse(smoothed))).toEqual({ results: smoothedAlone, threads: 1 });
       await two.reader!.close();
     } finally {
       await stopSpareUploadReader();
     }
     expect(helperUploadThreadId()).toBeNull();
+  });
+
+  it('then with parameters to start on, the engine runs as soon as the read is over, and asking for the same parameters takes that run', async () => {
+    const parameters = { gates: [{ channel: 'Gate A', position: 0 }, { channel: 'Gate B', position: 0.15 }] };
+    const other = { ...parameters, threshold: { level: 45, hysteresis: 30 } };
+    const alone = JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(await storedCopy()), parameters))) as unknown;
+    const asked: { length: number; channels: string[]; fileName: string }[] = [];
+    const parametersOnRead: CaptureIntakeOptions['parametersOnRead'] = async (read, fileName) => {
+      asked.push({ length: read.length, channels: read.files.channels.map((c) => c.name), fileName });
+      return parameters;
+    };
+    const got = await receive(csv.bytes, 0, 29, { parametersOnRead });
+    try {
+      await got.reader!.outcome;
+      expect(asked).toEqual([{ length: 6000, channels: ['Gate A', 'Gate B', 'Gate C'], fileName: 'shot.csv' }]);
+      // Long enough for the run started on its own to be over before it is asked for.
+      await new Promise((resolve) => setTimeout(resolve, 500));
+      const askedAt = Date.now();
+      const first = await got.reader!.analyse(parameters);
+      if (!('results' in first)) throw new Error(first.problem);
+      expect(withoutRunTimes(first)).toEqual({ results: alone, threads: 1 });
+      expect(first.ranAt.completedAt.getTime()).toBeLessThanOrEqual(askedAt);
+      // Asked again, the same run; other parameters get a run of their own.
+      expect(await got.reader!.analyse(parameters)).toBe(first);
+      const second = await got.reader!.analyse(other);
+      if (!('results' in second)) throw new Error(second.problem);
+      expect(second.ranAt.startedAt.getTime()).toBeGreaterThanOrEqual(askedAt);
+      expect(second.results).toEqual(JSON.parse(JSON.stringify(analyzeShot(await readCaptureFile(await storedCopy()), other))));
+    } finally {
+      await got.reader!.close();
+    }
+  });
+
+  it('then a file that is not (nearly) the whole request, or parameters the shot cannot give, start no run', async () => {
+    const parameters = { gates: [{ channel: 'Gate A', position: 0 }, { channel: 'Gate B', position: 0.15 }] };
+    let asked = 0;
+    // Another file of 100 KB follows in the same request: the guess that this one is the shot's only file is not made.
+    const part = await receive(csv.bytes, 0, 37, { parametersOnRead: async () => { asked += 1; return parameters; } }, csv.bytes.length + 100_000);
+    // The shot gives none (another file of it is being read): nothing runs until asked.
+    const none = await receive(csv.bytes, 0, 41, { parametersOnRead: async () => { asked += 10; return null; } });
+    try {
+      await Promise.all([part.reader!.outcome, none.reader!.outcome]);
+      await new Promise((resolve) => setTimeout(resolve, 500));
+      expect(asked).toBe(10);
+      for (const got of [part, none]) {
+        const askedAt = Date.now();
+        const outcome = await got.reader!.analyse(parameters);
+        if (!('results' in outcome)) throw new Error(outcome.problem);
+        expect(outcome.ranAt.startedAt.getTime()).toBeGreaterThanOrEqual(askedAt);
+      }
+    } finally {
+      await Promise.all([part.reader!.close(), none.reader!.close()]);
+    }
   });
 });
 
