@@ -65,7 +65,8 @@ export class FileTooLargeError extends Error {
 
 /**
  * Takes one uploaded file's bytes from a stream in one pass: hashed (SHA-256), written where the blob store can
- * adopt it without a copy (local disk: its own `.incoming` folder), synced to disk as it arrives, and, for a large
+ * adopt it without a copy (local disk: its own `.incoming` folder; directly to the disk where the file system takes
+ * it: StagedFile), synced to disk as it arrives, and, for a large
  * upload, read by the importer in a thread at the same time (UploadReader). The upload route then names the blob
  * by its hash. The stream is a multipart part (captureIntake, through multer) or the request itself (a file sent
  * as the whole request body). With `maxBytes`, a file that grows past it is dropped with FileTooLargeError.
@@ -173,13 +174,17 @@ export function captureReceiver(options: CaptureIntakeOptions): (req: Request, s
   };
 }
 
+/** A multipart part's file name as sent: browsers send it as the Latin-1 bytes of its UTF-8 form ("µs-run.csv"). */
+export function multipartFileName(originalname: string): string {
+  return Buffer.from(originalname, 'latin1').toString('utf8');
+}
+
 /** A multer storage engine that takes each file of a multipart upload with captureReceiver. */
 export function captureIntake(options: CaptureIntakeOptions): StorageEngine {
   const receive = captureReceiver(options);
   return {
     _handleFile(req, file, cb) {
-      // Browsers send the name as Latin-1 bytes of its UTF-8 form (uploads.ts undoes it the same way).
-      receive(req as Request, file.stream, Infinity, Buffer.from(file.originalname, 'latin1').toString('utf8')).then((info) => cb(null, info as Partial<Express.Multer.File>), (error: Error) => cb(error));
+      receive(req as Request, file.stream, Infinity, multipartFileName(file.originalname)).then((info) => cb(null, info as Partial<Express.Multer.File>), (error: Error) => cb(error));
     },
     _removeFile(_req, file, cb) {
       const received = file as unknown as Partial<ReceivedFile>;

@@ -12,7 +12,7 @@ import { channelFilesWriting } from '../../traces/channel-files-in-flight.ts';
 import { captureFilesPrefix, placeChannelFiles, putChannelBlobs, syncChannelBlobs, type ChannelBlob } from '../../traces/write-channel-files.ts';
 import type { ChannelFiles } from '../../traces/channel-files.ts';
 import type { AnalysisOptionsInput } from '../../../shared/contracts/analysis.ts';
-import { captureIntake, captureReceiver, FileTooLargeError, type CaptureIntakeOptions, type ReceivedFile } from './capture-intake.ts';
+import { captureIntake, captureReceiver, FileTooLargeError, multipartFileName, type CaptureIntakeOptions, type ReceivedFile } from './capture-intake.ts';
 import type { UploadReader } from './upload-reader.ts';
 import { settleShot } from './settle-shot.ts';
 import { endCaptureRead } from './end-capture-read.ts';
@@ -82,8 +82,7 @@ async function receiveBody(deps: Deps, req: Request, shot: Shot, fileName: strin
 /** Runs multer on this request (after the access guard, so nobody unauthorised can fill the disk). */
 async function receiveFiles(deps: Deps, req: Request, res: Response, shot: Shot): Promise<NamedFile[]> {
   const files = await receiveMultipart(deps, req, res, shot);
-  // Browsers send the name as Latin-1 bytes of its UTF-8 form; undo that so "µs-run.csv" stays readable.
-  return files.map((file) => Object.assign(file, { fileName: Buffer.from(file.originalname, 'latin1').toString('utf8') }));
+  return files.map((file) => Object.assign(file, { fileName: multipartFileName(file.originalname) }));
 }
 
 function receiveMultipart(deps: Deps, req: Request, res: Response, shot: Shot): Promise<(Express.Multer.File & ReceivedFile)[]> {
@@ -149,7 +148,7 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
   }
   const files = isMultipart(req) ? await receiveFiles(deps, req, res, shot) : await receiveBody(deps, req, shot, fileName);
   const fresh: { capture: Capture; reader: UploadReader | null }[] = [];
-  let answered = false;
+  let accepted = false;
   try {
     if (files.length === 0) {
       throw badRequest('No file received: send one or more scope CSV files in the multipart field "files", or one file as the request body with ?fileName=… in the URL.');
@@ -209,7 +208,7 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
         }
       }
     }
-    answered = true;
+    accepted = true;
     return views;
   } finally {
     // Readers not handed on (duplicates, a failed request) stop here.
@@ -219,7 +218,7 @@ export async function acceptUpload(deps: Deps, req: Request, res: Response, shot
     // deep capture took 90-125 ms, all of it between the last byte and the answer (measured with strace on the lab
     // machine, 4 December 2026). Nothing depends on it: the staged file is never read again.
     const removed = Promise.allSettled(files.map((f) => rm(f.path, { force: true })));
-    if (answered) void removed;
+    if (accepted) void removed;
     else await removed;
   }
 }
