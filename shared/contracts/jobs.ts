@@ -23,7 +23,8 @@ export type IngestJobData = z.infer<typeof ingestJobData>;
  * `precomputed`: the results the API worked out in the thread that read the upload, which still held its samples
  * (uploads.ts storeReadChannels), with the captures and parameters they are for. The job stores them instead of
  * reading the channel files and running the engine again, when they are for exactly the version's captures and
- * parameters; otherwise it ignores them.
+ * parameters; otherwise it ignores them. The API now stores such numbers on the version itself when it makes it
+ * (automaticVersionIn) and queues no job; jobs queued with them by an earlier release are still taken.
  */
 export const analysisJobData = z.object({
   analysisId: z.uuid(),
