@@ -12,7 +12,8 @@ const DIRECT_ALIGN = 4096;
  * the file system takes it, the file is opened with O_DIRECT and the blocks are page-aligned memory (a WebAssembly
  * memory: JavaScript has no other way to ask for aligned memory): the bytes go from the block to the disk without
  * a copy into the page cache, and without the kernel finding fresh page-cache pages for the whole file. Elsewhere (or
- * when the file system refuses: tmpfs, some network file systems) it is written through the page cache as before.
+ * when the file system refuses: older kernels' tmpfs, some network file systems) it is written through the page
+ * cache as before.
  *
  * Why: on the lab's 2-core VM (4 December 2026), storing the 330 MB deep capture through the page cache cost the
  * API's I/O threads 0.34 s of processor time in the first upload of a fresh server and 0.9–1.25 s in the ones after
