@@ -285,7 +285,7 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
         },
       });
     };
-    const parameters = await soleCaptureParameters(capture, files);
+    const parameters = await soleFileParameters(capture.shotId, capture.fileName, files, capture.id);
     const outcome = parameters === null ? null : await reader.analyse(parameters);
     if (outcome !== null && 'problem' in outcome) deps.logger.info({ captureId: capture.id, problem: outcome.problem }, 'automatic version not worked out in the API; the worker does it');
     const precomputed = outcome !== null && 'results' in outcome ? { captureIds: [capture.id], parameters, results: outcome.results, ranAt: outcome.ranAt } : undefined;
@@ -328,17 +328,11 @@ async function storeReadChannels(deps: Deps, capture: Capture, reader: UploadRea
 }
 
 /**
- * The automatic version's parameters when this upload is the shot's only file (none other ready or being read),
- * so the reading thread can work out its numbers; null otherwise. The same function automaticVersionIn uses.
- */
-async function soleCaptureParameters(capture: Capture, files: ChannelFiles): Promise<AnalysisOptionsInput | null> {
-  return soleFileParameters(capture.shotId, capture.fileName, files, capture.id);
-}
-
-/**
- * The same for a file of `shotId` that has no capture row yet (`captureId` undefined: every capture of the shot is
- * another file), when its read is over: the reading thread starts on them at once (UploadReader.analyseOnRead), and
- * soleCaptureParameters later gives the same parameters unless something changed meanwhile.
+ * The automatic version's parameters when this file is the shot's only one (none other ready or being read; its own
+ * capture, `captureId`, left out once it has a row), so the reading thread can work out its numbers; null otherwise.
+ * The same function automaticVersionIn uses. Asked when the read ends, before the row exists (the thread starts on
+ * them at once: UploadReader.analyseOnRead), and again once the capture is recorded, which gives the same parameters
+ * unless something changed meanwhile.
  */
 async function soleFileParameters(shotId: string, fileName: string, files: ChannelFiles, captureId?: string): Promise<AnalysisOptionsInput | null> {
   const others = await Capture.count({
