@@ -101,8 +101,8 @@ export class StagedFile {
       } catch (error) {
         if (!this.direct || (error as NodeJS.ErrnoException).code !== 'EINVAL') throw error;
         // A file system that opened the file for direct writes but refuses them: the rest goes through the page cache.
+        // (A padded last block written directly before this stays padded: finish() cuts it back all the same.)
         await this.writeThroughCache();
-        this.padded = false;
         await this.writeAll(block, n, at);
       }
     } finally {
